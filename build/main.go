@@ -1,0 +1,58 @@
+// Command build is zport's one command: it builds the documentation site
+// with its live calculators, and answers analysis requests for scripts.
+//
+//	go run ./build                 build dist/ and print the path of dist/index.html
+//	go run ./build serve [addr]    build, then serve dist/ on 127.0.0.1 (default :8080)
+//	go run ./build single          build one self-contained HTML file
+//	go run ./build analyze         read a request (JSON) on stdin, write the response
+//	go run ./build topologies      print the topology catalog as JSON
+//	go run ./build bench           browser benchmark of the built site (medians)
+package main
+
+import (
+	"fmt"
+	"os"
+)
+
+func main() {
+	args := os.Args[1:]
+	cmd := ""
+	if len(args) > 0 {
+		cmd, args = args[0], args[1:]
+	}
+	var err error
+	switch cmd {
+	case "", "site":
+		err = runBuild(args)
+	case "serve":
+		err = runServe(args)
+	case "single":
+		err = runSingle(args)
+	case "analyze":
+		os.Exit(runAnalyze(os.Stdin, os.Stdout, os.Stderr))
+	case "topologies":
+		err = runTopologies(os.Stdout)
+	case "bench":
+		err = runBench(args)
+	case "help", "-h", "--help":
+		fmt.Print(usage)
+		return
+	default:
+		fmt.Fprintf(os.Stderr, "build: unknown command %q\n\n%s", cmd, usage)
+		os.Exit(2)
+	}
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "build:", err)
+		os.Exit(1)
+	}
+}
+
+const usage = `usage: go run ./build [command]
+
+  (none)       build the site into dist/ and print the path of dist/index.html
+  serve [addr] build, then serve dist/ over http on 127.0.0.1 (default 127.0.0.1:8080)
+  single       build one self-contained HTML file, dist/zport-single.html
+  analyze      read an analysis request (JSON) on stdin, write the response JSON
+  topologies   print the topology catalog as JSON
+  bench        run the browser benchmark against the built site, print medians
+`

@@ -1,0 +1,401 @@
+package api
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+
+	"strings"
+
+	"gonum.org/v1/gonum/floats"
+
+	"zport/engine/circuit"
+	"zport/engine/feedback"
+	"zport/engine/topology"
+)
+
+// MaxPoints bounds a sweep.
+const MaxPoints = 5000
+
+// MaxCircuitBytes bounds circuit text.
+const MaxCircuitBytes = 256 << 10
+
+// Problem is an error with a place: a circuit line and column, or a named
+// parameter or request field.
+type Problem struct {
+	Line, Column int
+	Param        string
+	Msg          string
+}
+
+func (p *Problem) Error() string {
+	if p.Line > 0 {
+		return fmt.Sprintf("%d:%d: %s", p.Line, p.Column, p.Msg)
+	}
+	if p.Param != "" {
+		return p.Param + ": " + p.Msg
+	}
+	return p.Msg
+}
+
+func fieldErr(field, format string, args ...any) *Problem {
+	return &Problem{Param: field, Msg: fmt.Sprintf(format, args...)}
+}
+
+// Body converts any error from Analyze into the wire error body.
+func Body(err error) ErrorBody {
+	var p *Problem
+	if errors.As(err, &p) {
+		return ErrorBody{Line: p.Line, Column: p.Column, Param: p.Param, Message: p.Msg}
+	}
+	return ErrorBody{Message: err.Error()}
+}
+
+// Prepared is a request resolved against its circuit, ready to analyze.
+type Prepared struct {
+	Req      Request
+	Circuit  *circuit.Circuit
+	Analyzer *feedback.Analyzer
+	Stage    *topology.Topology
+	Values   topology.Values
+	Text     string
+	PortDefs []string
+}
+
+// Prepare parses and resolves a request without analyzing it.
+func Prepare(req Request) (*Prepared, error) {
+	p := &Prepared{Req: req}
+	if (req.Circuit == "") == (req.Topology == "") {
+		return nil, fieldErr("circuit", "give exactly one of \"circuit\" (circuit text) and \"topology\" (a catalog stage ID)")
+	}
+	text := req.Circuit
+	ref := req.Reference
+	ports := req.Ports
+	gain := req.Gain
+	if req.Topology != "" {
+		t, ok := topology.Lookup(req.Topology)
+		if !ok {
+			ids := []string{}
+			for _, s := range topology.Catalog() {
+				ids = append(ids, s.ID)
+			}
+			return nil, fieldErr("topology", "no stage %q in the catalog (one of: %s)", req.Topology, strings.Join(ids, ", "))
+		}
+		v, err := t.Values(req.Params)
+		if err != nil {
+			var pe *topology.ParamError
+			if errors.As(err, &pe) {
+				return nil, &Problem{Param: pe.Param, Msg: pe.Msg}
+			}
+			return nil, err
+		}
+		p.Stage, p.Values = t, v
+		text = t.Circuit(v)
+		if ref == "" {
+			ref = t.Reference
+		}
+		if len(ports) == 0 {
+			for _, pd := range t.Ports {
+				ports = append(ports, pd.Name)
+			}
+		}
+		if gain == nil && t.Gain != nil {
+			gain = &GainSpec{Source: t.Gain.Source, Output: t.Gain.Output}
+		}
+	} else if len(req.Params) > 0 {
+		return nil, fieldErr("params", "\"params\" goes with \"topology\"; for circuit text, edit the values in the text")
+	}
+	if len(text) > MaxCircuitBytes {
+		return nil, &Problem{Line: 1, Column: 1, Msg: fmt.Sprintf("the circuit text is %d KB; the limit is %d KB", len(text)>>10, MaxCircuitBytes>>10)}
+	}
+	c, err := circuit.Parse(text)
+	if err != nil {
+		var list circuit.ErrorList
+		if errors.As(err, &list) && len(list) > 0 {
+			msg := list[0].Msg
+			if len(list) > 1 {
+				msg += fmt.Sprintf(" (and %d more problems)", len(list)-1)
+			}
+			return nil, &Problem{Line: list[0].Line, Column: list[0].Column, Msg: msg}
+		}
+		return nil, err
+	}
+	p.Circuit, p.Text = c, text
+	if req.Frequency < 0 || math.IsNaN(req.Frequency) || math.IsInf(req.Frequency, 0) {
+		return nil, fieldErr("frequency", "the spot frequency must be ≥ 0 Hz")
+	}
+	if s := req.Sweep; s != nil {
+		switch {
+		case !(s.From > 0) || math.IsInf(s.From, 0):
+			return nil, fieldErr("sweep.from", "the sweep must start above 0 Hz (it is log-spaced)")
+		case !(s.To > s.From) || math.IsInf(s.To, 0):
+			return nil, fieldErr("sweep.to", "the sweep must end above its start")
+		case s.Points < 2 || s.Points > MaxPoints:
+			return nil, fieldErr("sweep.points", "a sweep has 2 to %d points", MaxPoints)
+		}
+	}
+	var fp []feedback.Port
+	for i, name := range ports {
+		port, err := resolvePort(c, name)
+		if err != nil {
+			return nil, fieldErr(fmt.Sprintf("ports[%d]", i), "%v", err)
+		}
+		fp = append(fp, port)
+		p.PortDefs = append(p.PortDefs, name)
+	}
+	var g *feedback.Gain
+	if gain != nil {
+		g, err = resolveGain(c, *gain)
+		if err != nil {
+			return nil, err
+		}
+	}
+	a, err := feedback.New(c, ref, fp, g)
+	if err != nil {
+		return nil, fieldErr("reference", "%v", err)
+	}
+	p.Analyzer = a
+	p.Req.Reference = ref
+	return p, nil
+}
+
+func resolvePort(c *circuit.Circuit, name string) (feedback.Port, error) {
+	if pt, ok := c.Port(name); ok {
+		return feedback.Port{Name: pt.Name, A: pt.A, B: pt.B}, nil
+	}
+	a, b, pair := strings.Cut(name, ",")
+	ia, ok := c.Node(strings.TrimSpace(a))
+	if !ok {
+		return feedback.Port{}, fmt.Errorf("%q is neither a port nor a node of the circuit", name)
+	}
+	ib := circuit.Gnd
+	if pair {
+		ib, ok = c.Node(strings.TrimSpace(b))
+		if !ok {
+			return feedback.Port{}, fmt.Errorf("node %q is not in the circuit", strings.TrimSpace(b))
+		}
+	}
+	if ia == ib {
+		return feedback.Port{}, fmt.Errorf("port %q has both ends on one node", name)
+	}
+	return feedback.Port{Name: name, A: ia, B: ib}, nil
+}
+
+func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
+	p, ok := c.Part(g.Source)
+	if !ok {
+		return nil, fieldErr("gain.source", "no source called %q (one of: %s)", g.Source, strings.Join(c.Sources(), ", "))
+	}
+	if p.Kind != circuit.VSource && p.Kind != circuit.ISource {
+		return nil, fieldErr("gain.source", "%q is a %s; a gain is taken from a vsource or an isource", g.Source, p.Kind)
+	}
+	src := -1
+	for i := range c.Parts {
+		if c.Parts[i].Name == g.Source {
+			src = i
+		}
+	}
+	a, b, pair := strings.Cut(g.Output, ",")
+	ia, ok := c.Node(strings.TrimSpace(a))
+	if !ok {
+		return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(a))
+	}
+	ib := circuit.Gnd
+	if pair {
+		if ib, ok = c.Node(strings.TrimSpace(b)); !ok {
+			return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(b))
+		}
+	}
+	if ia == ib {
+		return nil, fieldErr("gain.output", "the output %q has both ends on one node", g.Output)
+	}
+	return &feedback.Gain{Source: src, OutA: ia, OutB: ib, SourceName: g.Source, OutputName: g.Output}, nil
+}
+
+// Analyze answers a request.
+func Analyze(req Request) (*Response, error) {
+	p, err := Prepare(req)
+	if err != nil {
+		return nil, err
+	}
+	return p.Run()
+}
+
+// Run analyzes a prepared request.
+func (p *Prepared) Run() (*Response, error) {
+	a := p.Analyzer
+	pt, err := a.At(p.Req.Frequency)
+	if err != nil {
+		return nil, &Problem{Msg: err.Error()}
+	}
+	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), Notes: []string{}}
+	for i, pr := range pt.Ports {
+		resp.Ports = append(resp.Ports, portResult(a, i, pr))
+	}
+	if pt.Gain != nil {
+		resp.Gain = p.gainResult(pt.Gain)
+	}
+	var notes []string
+	notes = append(notes, pt.Notes...)
+	if s := p.Req.Sweep; s != nil {
+		grid := floats.LogSpan(make([]float64, s.Points), s.From, s.To)
+		pts, err := a.Sweep(grid)
+		if err != nil {
+			return nil, &Problem{Msg: err.Error()}
+		}
+		resp.Sweep = sweepResult(grid, pts)
+		resp.fillSweepNames()
+		T := make([]complex128, len(pts))
+		for i := range pts {
+			T[i] = pts[i].T
+		}
+		m := feedback.Margins(grid, T, a.ReturnRatio)
+		resp.Margins = margins(m)
+		notes = append(notes, feedback.Notes(pts)...)
+	}
+	seen := map[string]bool{}
+	for _, n := range notes {
+		if !seen[n] {
+			seen[n] = true
+			resp.Notes = append(resp.Notes, n)
+		}
+	}
+	if p.Stage != nil {
+		resp.Topology = p.echo()
+	}
+	return resp, nil
+}
+
+func portResult(a *feedback.Analyzer, i int, pr feedback.PortResult) PortResult {
+	port := a.Ports[i]
+	out := PortResult{
+		Name: port.Name, A: a.C.Nodes[port.A], B: a.C.Nodes[port.B],
+		Z0: C(pr.Z0), TShort: C(pr.TShort), TOpen: C(pr.TOpen), Z: C(pr.Z), ZDirect: C(pr.ZDirect),
+		Agreement: F(pr.Agreement),
+	}
+	if out.Z == nil {
+		out.Y = C(pr.Y)
+	}
+	return out
+}
+
+func (p *Prepared) gainResult(g *feedback.GainResult) *GainResult {
+	spec := p.Analyzer.Gain
+	return &GainResult{Source: spec.SourceName, Output: spec.OutputName, Unit: spec.Unit(p.Circuit),
+		G0: C(g.G0), GInf: C(g.GInf), G: C(g.G), GDirect: C(g.GDirect), Agreement: F(g.Agreement)}
+}
+
+func sweepResult(grid []float64, pts []feedback.Point) *SweepResult {
+	n := len(pts)
+	s := &SweepResult{Frequency: grid, ReturnRatio: make([]*Complex, n)}
+	if n == 0 {
+		return s
+	}
+	s.Ports = make([]PortSweep, len(pts[0].Ports))
+	for j := range s.Ports {
+		s.Ports[j] = PortSweep{Z0: make([]*Complex, n), TShort: make([]*Complex, n), TOpen: make([]*Complex, n), Z: make([]*Complex, n), ZDirect: make([]*Complex, n)}
+	}
+	if pts[0].Gain != nil {
+		s.Gain = &GainSweep{G0: make([]*Complex, n), GInf: make([]*Complex, n), G: make([]*Complex, n), GDirect: make([]*Complex, n)}
+	}
+	for i, pt := range pts {
+		s.ReturnRatio[i] = C(pt.T)
+		for j, pr := range pt.Ports {
+			ps := &s.Ports[j]
+			ps.Z0[i], ps.TShort[i], ps.TOpen[i], ps.Z[i], ps.ZDirect[i] = C(pr.Z0), C(pr.TShort), C(pr.TOpen), C(pr.Z), C(pr.ZDirect)
+		}
+		if g := pt.Gain; g != nil {
+			s.Gain.G0[i], s.Gain.GInf[i], s.Gain.G[i], s.Gain.GDirect[i] = C(g.G0), C(g.GInf), C(g.G), C(g.GDirect)
+		}
+	}
+	return s
+}
+
+// fillSweepNames copies the port names of the spot result into the sweep.
+func (r *Response) fillSweepNames() {
+	if r.Sweep == nil {
+		return
+	}
+	for j := range r.Sweep.Ports {
+		if j < len(r.Ports) {
+			r.Sweep.Ports[j].Name = r.Ports[j].Name
+		}
+	}
+}
+
+func margins(m feedback.MarginResult) *Margins {
+	out := &Margins{Crossovers: []Crossover{}, PhaseCrossings: []PhaseCrossing{},
+		Crossover: F(m.Crossover), PhaseMargin: F(m.PhaseMargin), GainMargin: F(m.GainMargin),
+		Verdict: m.Verdict, VerdictDetail: m.Detail}
+	for _, c := range m.Crossovers {
+		dir := "up"
+		if c.Falling {
+			dir = "down"
+		}
+		out.Crossovers = append(out.Crossovers, Crossover{Frequency: c.F, PhaseMargin: c.PhaseMargin, Direction: dir})
+	}
+	for _, p := range m.PhaseCrossings {
+		out.PhaseCrossings = append(out.PhaseCrossings, PhaseCrossing{Frequency: p.F, GainMargin: p.GainMargin})
+	}
+	return out
+}
+
+func (p *Prepared) echo() *TopologyEcho {
+	t := p.Stage
+	e := &TopologyEcho{ID: t.ID, Title: t.Title, Params: map[string]float64(p.Values), Circuit: p.Text,
+		Reference: p.Req.Reference, Ports: p.PortDefs}
+	if g := p.Analyzer.Gain; g != nil {
+		e.Gain = &GainSpec{Source: g.SourceName, Output: g.OutputName}
+	}
+	if t.Forms == nil {
+		return e
+	}
+	forms := t.Forms(p.Values, p.Req.Frequency)
+	cf := &ClosedForm{ReturnRatio: formula(forms.T), Gain: formula(forms.Gain), Ports: []PortFormulas{}}
+	for _, pf := range forms.Ports {
+		cf.Ports = append(cf.Ports, PortFormulas{Name: pf.Name, Z0: formula(pf.Z0), TShort: formula(pf.TShort), TOpen: formula(pf.TOpen), Z: formula(pf.Z)})
+	}
+	e.ClosedForm = cf
+	for _, x := range forms.Extras {
+		e.Extras = append(e.Extras, Extra{Name: x.Name, Value: F(x.Value), Unit: x.Unit, Note: x.Note, Source: x.Source})
+	}
+	return e
+}
+
+func formula(f *topology.Formula) *Formula {
+	if f == nil {
+		return nil
+	}
+	return &Formula{Value: C(f.Value), Text: f.Text, Source: f.Source}
+}
+
+// AnalyzeJSON answers a JSON request with JSON; ok is false when the answer
+// is an ErrorResponse. It never panics: a panic inside the engine becomes an
+// error response naming it as an internal error.
+func AnalyzeJSON(in []byte) (out []byte, ok bool) {
+	defer func() {
+		if r := recover(); r != nil {
+			out, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: fmt.Sprintf("internal error: %v (please report this circuit)", r)}})
+			ok = false
+		}
+	}()
+	var req Request
+	dec := json.NewDecoder(strings.NewReader(string(in)))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&req); err != nil {
+		out, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: "request is not valid JSON for this contract: " + err.Error()}})
+		return out, false
+	}
+	resp, err := Analyze(req)
+	if err != nil {
+		out, _ = json.Marshal(ErrorResponse{Error: Body(err)})
+		return out, false
+	}
+	out, err = json.Marshal(resp)
+	if err != nil {
+		out, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: "internal error: " + err.Error()}})
+		return out, false
+	}
+	return out, true
+}

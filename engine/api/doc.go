@@ -1,0 +1,17 @@
+// Package api is zport's one JSON contract: the request and response types
+// that the analyze command, the page bridge and the tests exchange, and
+// Analyze, which answers a request from circuit text or from a catalog
+// stage.
+//
+// A request names a circuit (or a topology with parameters), the reference
+// element, the ports, a spot frequency and optionally a gain and a sweep:
+//
+//	{"circuit": "...", "reference": "U1", "ports": ["in", "out"],
+//	 "frequency": 1000, "gain": {"source": "Vin", "output": "out"},
+//	 "sweep": {"from": 10, "to": 1e8, "points": 400}}
+//
+// The response carries every complex number as {"re": x, "im": y}, and null
+// where a value is not finite, with a note saying why; it never carries NaN
+// or Inf. Bad input gives an ErrorResponse with the line and column in the
+// circuit text, or the name of the parameter or field at fault.
+package api

@@ -1,0 +1,256 @@
+package api
+
+import (
+	"encoding/json"
+	"math"
+	"math/cmplx"
+)
+
+// Request is one analysis request. Exactly one of Circuit and Topology is set.
+type Request struct {
+	// Circuit is circuit text (see package zport/engine/circuit).
+	Circuit string `json:"circuit,omitempty"`
+	// Topology is a catalog stage ID; Params overrides its defaults, each
+	// value in the engine's value syntax ("4k7", "10 pF" is not allowed: "10p").
+	Topology string            `json:"topology,omitempty"`
+	Params   map[string]string `json:"params,omitempty"`
+
+	// Reference names the element whose return ratio is used: a controlled
+	// source or an opamp. For a topology, empty means the stage's own.
+	Reference string `json:"reference,omitempty"`
+	// Ports lists port names (from `port` lines), or "NODE" (node to gnd), or
+	// "NODE,NODE". For a topology, empty means all of the stage's ports.
+	Ports []string `json:"ports,omitempty"`
+	// Frequency is the spot frequency in hertz, ≥ 0.
+	Frequency float64 `json:"frequency"`
+	// Gain asks for the closed-loop gain from an independent source to an
+	// output node ("NODE") or node pair ("NODE,NODE").
+	Gain *GainSpec `json:"gain,omitempty"`
+	// Sweep asks for the same quantities on a log-spaced grid.
+	Sweep *SweepSpec `json:"sweep,omitempty"`
+
+	// Design aids (see the DEVELOPERS.md contract section).
+	Tolerance      json.RawMessage `json:"tolerance,omitempty"`
+	StandardValues json.RawMessage `json:"standardValues,omitempty"`
+	Sensitivity    json.RawMessage `json:"sensitivity,omitempty"`
+}
+
+// GainSpec names the input source and the output of a gain.
+type GainSpec struct {
+	Source string `json:"source"`
+	Output string `json:"output"`
+}
+
+// SweepSpec is a log-spaced frequency grid: Points frequencies from From to
+// To hertz inclusive (From > 0, To > From, 2 ≤ Points ≤ MaxPoints).
+type SweepSpec struct {
+	From   float64 `json:"from"`
+	To     float64 `json:"to"`
+	Points int     `json:"points"`
+}
+
+// Complex is a complex number on the wire: {"re": x, "im": y}. A nil
+// *Complex is written as null and means "not finite here" (see Notes).
+type Complex struct {
+	Re float64 `json:"re"`
+	Im float64 `json:"im"`
+}
+
+// C converts z to a wire value, nil when z is not finite.
+func C(z complex128) *Complex {
+	if cmplx.IsNaN(z) || cmplx.IsInf(z) {
+		return nil
+	}
+	return &Complex{real(z), imag(z)}
+}
+
+// Value returns the number; a nil receiver gives NaN.
+func (c *Complex) Value() complex128 {
+	if c == nil {
+		return cmplx.NaN()
+	}
+	return complex(c.Re, c.Im)
+}
+
+// F converts x to a wire value, nil when x is not finite.
+func F(x float64) *float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil
+	}
+	return &x
+}
+
+// Response is the answer at the spot frequency, plus the sweep and margins
+// when a sweep was asked for.
+type Response struct {
+	Frequency   float64       `json:"frequency"`
+	Reference   string        `json:"reference"`
+	ReturnRatio *Complex      `json:"returnRatio"`
+	Ports       []PortResult  `json:"ports"`
+	Gain        *GainResult   `json:"gain,omitempty"`
+	Notes       []string      `json:"notes"`
+	Sweep       *SweepResult  `json:"sweep,omitempty"`
+	Margins     *Margins      `json:"margins,omitempty"`
+	Topology    *TopologyEcho `json:"topology,omitempty"`
+
+	Tolerance      any `json:"tolerance,omitempty"`
+	StandardValues any `json:"standardValues,omitempty"`
+	Sensitivity    any `json:"sensitivity,omitempty"`
+}
+
+// PortResult holds Blackman's terms for one port at one frequency.
+type PortResult struct {
+	Name string `json:"name"`
+	// A and B are the port's nodes (A is the + side).
+	A string `json:"a"`
+	B string `json:"b"`
+	// Z0 is the port impedance with the reference gain at zero.
+	Z0 *Complex `json:"z0"`
+	// TShort and TOpen are the reference's return ratio with the port
+	// shorted and open.
+	TShort *Complex `json:"tShort"`
+	TOpen  *Complex `json:"tOpen"`
+	// Z is Blackman's Z0·(1+TShort)/(1+TOpen); ZDirect the nodal solution.
+	Z       *Complex `json:"z"`
+	ZDirect *Complex `json:"zDirect"`
+	// Y is the port admittance from the admittance form of Blackman's
+	// formula, given only when Z is not finite.
+	Y *Complex `json:"y,omitempty"`
+	// Agreement is |Z − ZDirect| / |ZDirect| (null when either is not finite).
+	Agreement *float64 `json:"agreement"`
+}
+
+// GainResult holds the asymptotic gain model's terms at one frequency.
+type GainResult struct {
+	Source    string   `json:"source"`
+	Output    string   `json:"output"`
+	Unit      string   `json:"unit"` // "V/V" for a voltage source, "V/A" for a current source
+	G0        *Complex `json:"g0"`
+	GInf      *Complex `json:"gInf"`
+	G         *Complex `json:"g"`
+	GDirect   *Complex `json:"gDirect"`
+	Agreement *float64 `json:"agreement"`
+}
+
+// SweepResult holds the same quantities over the grid, index for index.
+type SweepResult struct {
+	Frequency   []float64   `json:"frequency"`
+	ReturnRatio []*Complex  `json:"returnRatio"`
+	Ports       []PortSweep `json:"ports"`
+	Gain        *GainSweep  `json:"gain,omitempty"`
+}
+
+// PortSweep is one port's terms over the sweep.
+type PortSweep struct {
+	Name    string     `json:"name"`
+	Z0      []*Complex `json:"z0"`
+	TShort  []*Complex `json:"tShort"`
+	TOpen   []*Complex `json:"tOpen"`
+	Z       []*Complex `json:"z"`
+	ZDirect []*Complex `json:"zDirect"`
+}
+
+// GainSweep is the gain's terms over the sweep.
+type GainSweep struct {
+	G0      []*Complex `json:"g0"`
+	GInf    []*Complex `json:"gInf"`
+	G       []*Complex `json:"g"`
+	GDirect []*Complex `json:"gDirect"`
+}
+
+// Margins summarizes the loop's stability from the return ratio over the
+// sweep. Phase is unwrapped continuously from the lowest frequency; the phase
+// margin at a crossover is 180° + ∠T there.
+type Margins struct {
+	// Crossovers lists every frequency where |T| crosses 1, refined.
+	Crossovers []Crossover `json:"crossovers"`
+	// PhaseCrossings lists every frequency where the unwrapped ∠T crosses
+	// −180° (mod 360°), with the gain margin −20·log10|T| there.
+	PhaseCrossings []PhaseCrossing `json:"phaseCrossings"`
+	// Crossover, PhaseMargin and GainMargin are the governing values: the
+	// crossover with the smallest phase margin, and the smallest gain margin.
+	Crossover   *float64 `json:"crossover"`
+	PhaseMargin *float64 `json:"phaseMargin"`
+	GainMargin  *float64 `json:"gainMargin"`
+	// Verdict is one of "no crossover", "stable", "margin below 45°",
+	// "unstable"; VerdictDetail says why in a sentence.
+	Verdict       string `json:"verdict"`
+	VerdictDetail string `json:"verdictDetail"`
+}
+
+// Crossover is one unity-gain crossing of |T|.
+type Crossover struct {
+	Frequency   float64 `json:"frequency"`
+	PhaseMargin float64 `json:"phaseMargin"` // degrees
+	Direction   string  `json:"direction"`   // "down" when |T| falls through 1, "up" otherwise
+}
+
+// PhaseCrossing is one −180° crossing of the unwrapped phase of T.
+type PhaseCrossing struct {
+	Frequency  float64 `json:"frequency"`
+	GainMargin float64 `json:"gainMargin"` // dB, positive when |T| < 1 there
+}
+
+// TopologyEcho is what a topology request used, and its closed forms.
+type TopologyEcho struct {
+	ID        string             `json:"id"`
+	Title     string             `json:"title"`
+	Params    map[string]float64 `json:"params"`
+	Circuit   string             `json:"circuit"`
+	Reference string             `json:"reference"`
+	Ports     []string           `json:"ports"`
+	Gain      *GainSpec          `json:"gain,omitempty"`
+	// ClosedForm holds the hand formulas' values at the spot frequency.
+	ClosedForm *ClosedForm `json:"closedForm,omitempty"`
+	// Extras carries stage-specific values (e.g. suggested Cf), each with
+	// its name, value, unit and the source of the formula.
+	Extras []Extra `json:"extras,omitempty"`
+}
+
+// ClosedForm is the hand-formula side of a topology result.
+type ClosedForm struct {
+	ReturnRatio *Formula       `json:"returnRatio,omitempty"`
+	Ports       []PortFormulas `json:"ports"`
+	Gain        *Formula       `json:"gain,omitempty"`
+}
+
+// PortFormulas are the closed forms of one port's Blackman terms; a nil
+// entry means no closed form is offered for that term.
+type PortFormulas struct {
+	Name   string   `json:"name"`
+	Z0     *Formula `json:"z0,omitempty"`
+	TShort *Formula `json:"tShort,omitempty"`
+	TOpen  *Formula `json:"tOpen,omitempty"`
+	Z      *Formula `json:"z,omitempty"`
+}
+
+// Formula is a closed-form value with its text form and published source.
+type Formula struct {
+	Value  *Complex `json:"value"`
+	Text   string   `json:"text"`
+	Source string   `json:"source"`
+}
+
+// Extra is a stage-specific derived value.
+type Extra struct {
+	Name   string   `json:"name"`
+	Value  *float64 `json:"value"`
+	Unit   string   `json:"unit"`
+	Note   string   `json:"note,omitempty"`
+	Source string   `json:"source,omitempty"`
+}
+
+// ErrorResponse is the answer to bad input.
+type ErrorResponse struct {
+	Error ErrorBody `json:"error"`
+}
+
+// ErrorBody locates a problem: Line and Column (1-based) in the circuit
+// text when it came from there, else zero; Param names the topology
+// parameter or request field at fault.
+type ErrorBody struct {
+	Line    int    `json:"line"`
+	Column  int    `json:"column"`
+	Param   string `json:"param,omitempty"`
+	Message string `json:"message"`
+}

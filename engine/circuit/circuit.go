@@ -1,0 +1,161 @@
+package circuit
+
+import (
+	"math"
+	"sort"
+)
+
+// Kind is the kind of a part.
+type Kind int
+
+// The part kinds, in the order of the table in the package doc.
+const (
+	Resistor Kind = iota
+	Capacitor
+	Inductor
+	VSource
+	ISource
+	VCVS
+	VCCS
+	CCVS
+	CCCS
+	OpAmp
+)
+
+var kindNames = [...]string{"resistor", "capacitor", "inductor", "vsource", "isource", "vcvs", "vccs", "ccvs", "cccs", "opamp"}
+
+func (k Kind) String() string {
+	if k < 0 || int(k) >= len(kindNames) {
+		return "unknown"
+	}
+	return kindNames[k]
+}
+
+// Controlled reports whether parts of kind k have a gain that can serve as
+// the reference for a return ratio.
+func (k Kind) Controlled() bool { return k >= VCVS }
+
+// VoltageOutput reports whether the part forces a voltage between its first
+// two nodes (and so carries a branch current that can be sensed).
+func (k Kind) VoltageOutput() bool {
+	return k == Inductor || k == VSource || k == VCVS || k == CCVS
+}
+
+// Gnd is the index of the reference node.
+const Gnd = 0
+
+// Part is one line of circuit text.
+type Part struct {
+	Kind Kind
+	Name string
+	// Nodes are the part's terminals by position: A B, P N, FROM TO, or for
+	// an opamp PLUS MINUS OUT.
+	Nodes []int
+	// Value is the resistance, capacitance, inductance, source value, gain,
+	// transconductance or transresistance, by kind.
+	Value float64
+	// Ctrl holds the sensed node pair (CP, CN) of a vcvs or vccs.
+	Ctrl [2]int
+	// Sense is the index in Circuit.Parts of the part whose current a ccvs
+	// or cccs senses.
+	Sense int
+	// Amp is set for an opamp.
+	Amp *Amp
+	// Line and Col locate the part's name in the text (1-based).
+	Line, Col int
+}
+
+// Amp holds an opamp's model. A zero GBW, P2, Rid or Rcm means absent.
+type Amp struct {
+	A0, GBW, P2, Rid, Rcm, Ro float64
+}
+
+// Gain returns the open-loop gain A(s) at s = j2πf.
+func (a *Amp) Gain(f float64) complex128 {
+	s := complex(0, 2*math.Pi*f)
+	g := complex(a.A0, 0)
+	if a.GBW > 0 {
+		g /= 1 + s/complex(2*math.Pi*a.GBW/a.A0, 0)
+	}
+	if a.P2 > 0 {
+		g /= 1 + s/complex(2*math.Pi*a.P2, 0)
+	}
+	return g
+}
+
+// Port is a named node pair.
+type Port struct {
+	Name      string
+	A, B      int
+	Line, Col int
+}
+
+// Circuit is parsed circuit text.
+type Circuit struct {
+	Parts []Part
+	Ports []Port
+	// Nodes holds the node names by index; Nodes[Gnd] is "gnd".
+	Nodes []string
+
+	parts map[string]int
+	nodes map[string]int
+}
+
+// Part returns the part called name.
+func (c *Circuit) Part(name string) (*Part, bool) {
+	i, ok := c.parts[name]
+	if !ok {
+		return nil, false
+	}
+	return &c.Parts[i], true
+}
+
+// Node returns the index of the node called name.
+func (c *Circuit) Node(name string) (int, bool) {
+	i, ok := c.nodes[name]
+	return i, ok
+}
+
+// Port returns the port called name.
+func (c *Circuit) Port(name string) (*Port, bool) {
+	for i := range c.Ports {
+		if c.Ports[i].Name == name {
+			return &c.Ports[i], true
+		}
+	}
+	return nil, false
+}
+
+// References lists, sorted, the names of parts that can serve as the
+// reference element: controlled sources and opamps.
+func (c *Circuit) References() []string {
+	var r []string
+	for _, p := range c.Parts {
+		if p.Kind.Controlled() {
+			r = append(r, p.Name)
+		}
+	}
+	sort.Strings(r)
+	return r
+}
+
+// Sources lists, sorted, the names of the independent sources.
+func (c *Circuit) Sources() []string {
+	var r []string
+	for _, p := range c.Parts {
+		if p.Kind == VSource || p.Kind == ISource {
+			r = append(r, p.Name)
+		}
+	}
+	sort.Strings(r)
+	return r
+}
+
+// Gain returns the controlled gain of p at frequency f: K, G or R by kind,
+// or A(s) for an opamp.
+func (p *Part) Gain(f float64) complex128 {
+	if p.Kind == OpAmp {
+		return p.Amp.Gain(f)
+	}
+	return complex(p.Value, 0)
+}

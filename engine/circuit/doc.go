@@ -1,0 +1,44 @@
+// Package circuit reads zport's circuit text: one part per line, positional
+// by kind, with key=value options where a part has them.
+//
+//	# a non-inverting stage, invented example
+//	vsource  Vin  in   gnd  1
+//	opamp    U1   in   fb   out  a0=100k gbw=1M ro=50
+//	resistor R1   fb   gnd  2k
+//	resistor R2   out  fb   18k
+//	port     out  out  gnd
+//
+// The lines:
+//
+//	resistor  NAME A B VALUE              resistance between A and B (> 0)
+//	capacitor NAME A B VALUE              capacitance (> 0)
+//	inductor  NAME A B VALUE              inductance (> 0; a short at DC)
+//	vsource   NAME P N VALUE              V(P) − V(N) = VALUE
+//	isource   NAME FROM TO VALUE          drives VALUE into TO, drawn from FROM
+//	vcvs      NAME P N sense=CP,CN gain=K V(P) − V(N) = K·(V(CP) − V(CN))
+//	vccs      NAME FROM TO sense=CP,CN gm=G  drives G·(V(CP) − V(CN)) into TO
+//	ccvs      NAME P N sense=PART r=R     V(P) − V(N) = R·I(PART)
+//	cccs      NAME FROM TO sense=PART gain=K drives K·I(PART) into TO
+//	opamp     NAME PLUS MINUS OUT [a0=] [gbw=] [p2=] [rid=] [rcm=] [ro=]
+//	port      NAME A B                    a named port (A is the + side)
+//
+// A # starts a comment; blank lines are ignored; tokens are separated by
+// spaces or tabs. Part names are unique and case-sensitive, node names are
+// words of letters, digits and _, and gnd is the reference node. I(PART) is
+// the current through PART from its first node to its second; it can be
+// sensed on resistors, capacitors, inductors, voltage sources and the
+// voltage-output controlled sources.
+//
+// The opamp is a differential input resistance rid between PLUS and MINUS
+// (absent: infinite), a common-mode resistance rcm from each input to gnd
+// (absent: infinite), and an internal voltage source of gain
+// A(s) = a0/((1 + s/ω1)(1 + s/ω2)) driven by V(PLUS) − V(MINUS), with
+// ω1 = 2π·gbw/a0 (absent gbw: no first pole) and ω2 = 2π·p2 (absent: none),
+// behind an output resistance ro (absent: 0). a0 defaults to 100k.
+//
+// Values use package zport/engine/value: 4k7, 2.2e-9, 10p, 1µ0, with an
+// optional unit symbol fitting the part (10kΩ, 4.7nF, 1MHz).
+//
+// Parse reports every problem it finds as an ErrorList of *Error, each with
+// the 1-based line and column (in characters) of the offending token.
+package circuit

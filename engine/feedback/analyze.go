@@ -1,0 +1,410 @@
+package feedback
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"strings"
+
+	"zport/engine/circuit"
+	"zport/engine/mna"
+)
+
+// MaxNodes bounds the circuits analyzed, to keep a page responsive.
+const MaxNodes = 200
+
+// Port is a resolved port.
+type Port struct {
+	Name string
+	A, B int // circuit node indices
+	// Drivers are the voltage sources wired exactly across the port.
+	Drivers []int
+}
+
+// Gain is a resolved gain request.
+type Gain struct {
+	Source     int // part index of an independent source
+	OutA, OutB int // output node pair (OutB may be gnd)
+	SourceName string
+	OutputName string
+}
+
+// Unit returns "V/V" for a voltage source and "V/A" for a current source.
+func (g *Gain) Unit(c *circuit.Circuit) string {
+	if c.Parts[g.Source].Kind == circuit.ISource {
+		return "V/A"
+	}
+	return "V/V"
+}
+
+// PortResult holds Blackman's terms for one port; NaN marks a term that is
+// not finite here (see Point.Notes).
+type PortResult struct {
+	Z0, TShort, TOpen, Z, ZDirect complex128
+	// Y is the admittance form of Blackman's formula, set when Z is not
+	// finite but the admittance is.
+	Y complex128
+	// Agreement is |Z − ZDirect|/|ZDirect|, NaN when either is not finite.
+	Agreement float64
+}
+
+// GainResult holds the asymptotic gain model's terms.
+type GainResult struct {
+	G0, GInf, G, GDirect complex128
+	Agreement            float64
+}
+
+// Point is the analysis at one frequency.
+type Point struct {
+	F     float64
+	T     complex128
+	Ports []PortResult
+	Gain  *GainResult
+	Notes []string
+}
+
+// Analyzer analyzes one circuit for one reference element, a set of ports
+// and optionally a gain, at any frequency. It keeps its work buffers, so it
+// is not safe for concurrent use.
+type Analyzer struct {
+	C   *circuit.Circuit
+	Sys *mna.System
+	// Ref is the part index of the reference element.
+	Ref   int
+	ref   int // index in Sys.Controls
+	Ports []Port
+	Gain  *Gain
+
+	slots map[string]*slot
+	r     []complex128 // reference injection, length Sys.N+1
+	bufs  [4][]complex128
+}
+
+type slot struct {
+	lu  mna.LU
+	mat []complex128
+	err error
+	f   float64
+	ok  bool
+}
+
+// New prepares an analysis of c with the named reference element.
+func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analyzer, error) {
+	if n := len(c.Nodes) - 1; n > MaxNodes {
+		return nil, fmt.Errorf("the circuit has %d nodes; zport analyzes up to %d so the page stays responsive", n, MaxNodes)
+	}
+	p, ok := c.Part(reference)
+	if !ok {
+		if reference == "" {
+			return nil, fmt.Errorf("no reference element given (choose one of: %s)", strings.Join(c.References(), ", "))
+		}
+		return nil, fmt.Errorf("reference %q: no part of that name (choose one of: %s)", reference, strings.Join(c.References(), ", "))
+	}
+	if !p.Kind.Controlled() {
+		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source or an opamp (one of: %s)", reference, p.Kind, strings.Join(c.References(), ", "))
+	}
+	sys := mna.New(c)
+	a := &Analyzer{C: c, Sys: sys, Ports: ports, Gain: gain, slots: map[string]*slot{}}
+	for i := range c.Parts {
+		if c.Parts[i].Name == reference {
+			a.Ref = i
+		}
+	}
+	a.ref = sys.ControlOf(a.Ref)
+	for i := range a.Ports {
+		a.Ports[i].Drivers = drivers(c, a.Ports[i].A, a.Ports[i].B)
+	}
+	if gain != nil {
+		k := c.Parts[gain.Source].Kind
+		if k != circuit.VSource && k != circuit.ISource {
+			return nil, fmt.Errorf("gain source %q is a %s; it must be a vsource or isource", c.Parts[gain.Source].Name, k)
+		}
+	}
+	a.r = make([]complex128, sys.N+1)
+	mna.Scatter(a.r, sys.Controls[a.ref].R)
+	for i := range a.bufs {
+		a.bufs[i] = make([]complex128, sys.N+1)
+	}
+	return a, nil
+}
+
+func drivers(c *circuit.Circuit, pa, pb int) []int {
+	var d []int
+	for i, p := range c.Parts {
+		if p.Kind != circuit.VSource {
+			continue
+		}
+		if p.Nodes[0] == pa && p.Nodes[1] == pb || p.Nodes[0] == pb && p.Nodes[1] == pa {
+			d = append(d, i)
+		}
+	}
+	return d
+}
+
+// factor returns the factorization of the system for cfg at cfg.F, cached
+// under key for that frequency.
+func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
+	s := a.slots[key]
+	if s == nil {
+		s = &slot{}
+		a.slots[key] = s
+	}
+	if s.ok && s.f == cfg.F {
+		return s, s.err
+	}
+	s.mat = a.Sys.Assemble(s.mat, cfg)
+	s.err = s.lu.Factor(s.mat, a.Sys.Size(cfg))
+	s.f, s.ok = cfg.F, true
+	return s, s.err
+}
+
+// gainAt is the reference's gain k at f.
+func (a *Analyzer) gainAt(f float64) complex128 { return a.C.Parts[a.Ref].Gain(f) }
+
+// returnRatio solves the injection of a unit test source at the reference
+// for the factored system s and returns T = −k·(control signal).
+func (a *Analyzer) returnRatio(s *slot, f float64, n int, x []complex128) complex128 {
+	s.lu.SolveTo(x[:n], a.r[:n])
+	return -a.gainAt(f) * a.Sys.ControlSignal(a.ref, f, x)
+}
+
+// ReturnRatio returns T at f with every independent source zeroed.
+func (a *Analyzer) ReturnRatio(f float64) (complex128, error) {
+	cfg := mna.Config{F: f, Ref: a.ref}
+	s, err := a.factor("base0", cfg)
+	if err != nil {
+		return cmplx.NaN(), a.explain(err, cfg, "with the reference gain at zero")
+	}
+	return a.returnRatio(s, f, a.Sys.N, a.bufs[0]), nil
+}
+
+var nan = cmplx.NaN()
+
+// At analyzes the circuit at frequency f ≥ 0.
+func (a *Analyzer) At(f float64) (Point, error) {
+	if f < 0 || math.IsNaN(f) || math.IsInf(f, 0) {
+		return Point{}, fmt.Errorf("frequency %g Hz: it must be finite and ≥ 0", f)
+	}
+	pt := Point{F: f, T: nan}
+	notes := map[string]bool{}
+	note := func(format string, args ...any) {
+		s := fmt.Sprintf(format, args...)
+		if !notes[s] {
+			notes[s] = true
+			pt.Notes = append(pt.Notes, s)
+		}
+	}
+	N := a.Sys.N
+	cfgK := mna.Config{F: f, Ref: a.ref, RefGain: true}
+	baseK, err := a.factor("baseK", cfgK)
+	if err != nil {
+		return Point{}, a.explain(err, cfgK, "")
+	}
+	cfg0 := mna.Config{F: f, Ref: a.ref}
+	base0, err0 := a.factor("base0", cfg0)
+	xr := a.bufs[0]
+	var cr complex128
+	if err0 != nil {
+		note("%s: with %s's gain at zero the circuit has no solution (%v), so the return ratio is not finite; only the direct results are given", hz(f), a.C.Parts[a.Ref].Name, a.explain(err0, cfg0, "with the reference gain at zero"))
+	} else {
+		pt.T = a.returnRatio(base0, f, N, xr)
+		cr = a.Sys.ControlSignal(a.ref, f, xr)
+	}
+	k := a.gainAt(f)
+	if k == 0 {
+		note("%s: %s has zero gain, so every return ratio is zero", hz(f), a.C.Parts[a.Ref].Name)
+	}
+
+	if g := a.Gain; g != nil {
+		gr := &GainResult{G0: nan, GInf: nan, G: nan, GDirect: nan, Agreement: math.NaN()}
+		b := a.bufs[1]
+		a.sourceVector(b[:N])
+		xs := a.bufs[2]
+		baseK.lu.SolveTo(xs[:N], b[:N])
+		gr.GDirect = a.output(xs)
+		if err0 == nil {
+			base0.lu.SolveTo(xs[:N], b[:N])
+			gr.G0 = a.output(xs)
+			cs := a.Sys.ControlSignal(a.ref, f, xs)
+			if cr != 0 {
+				gr.GInf = gr.G0 - a.output(xr)*cs/cr
+				gr.G = gr.GInf*pt.T/(1+pt.T) + gr.G0/(1+pt.T)
+			} else {
+				note("%s: the reference's control signal does not respond to its output (T = 0), so G∞ is not defined and G = G₀", hz(f))
+				gr.G = gr.G0
+			}
+			if 1+pt.T == 0 {
+				gr.G = nan
+				note("%s: 1 + T = 0, so the asymptotic gain formula has no finite value", hz(f))
+			}
+		}
+		gr.Agreement = relDiff(gr.G, gr.GDirect)
+		pt.Gain = gr
+	}
+
+	for pi := range a.Ports {
+		pt.Ports = append(pt.Ports, a.port(pi, f, base0, err0, baseK, pt.T, note))
+	}
+	return pt, nil
+}
+
+func (a *Analyzer) port(pi int, f float64, base0 *slot, err0 error, baseK *slot, T complex128, note func(string, ...any)) PortResult {
+	p := &a.Ports[pi]
+	N := a.Sys.N
+	res := PortResult{Z0: nan, TShort: nan, TOpen: nan, Z: nan, ZDirect: nan, Y: nan, Agreement: math.NaN()}
+	bp := a.bufs[1]
+	clear(bp)
+	if v := mna.NodeVar(p.A); v >= 0 {
+		bp[v] = 1
+	}
+	if v := mna.NodeVar(p.B); v >= 0 {
+		bp[v] = -1
+	}
+	vp := func(x []complex128) complex128 {
+		var v complex128
+		if i := mna.NodeVar(p.A); i >= 0 {
+			v += x[i]
+		}
+		if i := mna.NodeVar(p.B); i >= 0 {
+			v -= x[i]
+		}
+		return v
+	}
+	x := a.bufs[2]
+	open0, openK := base0, baseK
+	errOpen0, errOpenK := err0, error(nil)
+	var short0 *slot
+	var errShort0 error
+	if len(p.Drivers) > 0 {
+		// The port's driver is removed for the open port; the driver,
+		// zeroed, is itself the short.
+		cfg := mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}
+		open0, errOpen0 = a.factor("open0:"+p.Name, cfg)
+		cfg.RefGain = true
+		openK, errOpenK = a.factor("openK:"+p.Name, cfg)
+		short0, errShort0 = base0, err0
+		res.TShort = T
+	} else {
+		cfg := mna.Config{F: f, Ref: a.ref, Short: &[2]int{p.A, p.B}}
+		short0, errShort0 = a.factor("short0:"+p.Name, cfg)
+		if errShort0 == nil {
+			res.TShort = a.returnRatio(short0, f, N+1, a.bufs[3])
+		}
+	}
+	if errShort0 != nil {
+		note("%s: port %s: with the port shorted and the reference gain at zero the circuit has no solution, so T short is not finite", hz(f), p.Name)
+	}
+	if errOpen0 == nil {
+		open0.lu.SolveTo(x[:N], bp[:N])
+		res.Z0 = vp(x)
+		res.TOpen = a.returnRatio(open0, f, N, a.bufs[3])
+	} else {
+		note("%s: port %s: with the reference gain at zero nothing connects the open port (%v), so Z₀ is infinite and T open is not finite", hz(f), p.Name, a.explain(errOpen0, mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}, "with the port open and the reference gain at zero"))
+	}
+	if errOpenK == nil {
+		openK.lu.SolveTo(x[:N], bp[:N])
+		res.ZDirect = vp(x)
+	} else {
+		note("%s: port %s: with the port open the full circuit has no solution, so the direct impedance is infinite", hz(f), p.Name)
+	}
+	if finite(res.Z0) && finite(res.TShort) && finite(res.TOpen) {
+		den := 1 + res.TOpen
+		if cmplx.Abs(den) <= 1e-14*math.Max(1, cmplx.Abs(res.TOpen)) {
+			note("%s: port %s: 1 + T open = 0, so the impedance is infinite; its admittance is given instead", hz(f), p.Name)
+			res.Y = den / (res.Z0 * (1 + res.TShort))
+		} else {
+			res.Z = res.Z0 * (1 + res.TShort) / den
+		}
+	}
+	res.Agreement = relDiff(res.Z, res.ZDirect)
+	return res
+}
+
+func (a *Analyzer) sourceVector(b []complex128) {
+	clear(b)
+	g := a.Gain
+	src := a.C.Parts[g.Source]
+	if src.Kind == circuit.VSource {
+		b[a.Sys.Branch[g.Source]] = 1
+		return
+	}
+	if v := mna.NodeVar(src.Nodes[1]); v >= 0 {
+		b[v] += 1
+	}
+	if v := mna.NodeVar(src.Nodes[0]); v >= 0 {
+		b[v] -= 1
+	}
+}
+
+func (a *Analyzer) output(x []complex128) complex128 {
+	var v complex128
+	if i := mna.NodeVar(a.Gain.OutA); i >= 0 {
+		v += x[i]
+	}
+	if i := mna.NodeVar(a.Gain.OutB); i >= 0 {
+		v -= x[i]
+	}
+	return v
+}
+
+func finite(z complex128) bool { return !cmplx.IsNaN(z) && !cmplx.IsInf(z) }
+
+func relDiff(a, b complex128) float64 {
+	if !finite(a) || !finite(b) {
+		return math.NaN()
+	}
+	d := cmplx.Abs(a - b)
+	if m := cmplx.Abs(b); m > 0 {
+		return d / m
+	}
+	return d
+}
+
+// hz writes a frequency for notes.
+func hz(f float64) string { return "at " + fmtHz(f) }
+
+// Sweep analyzes the circuit at each frequency of grid.
+func (a *Analyzer) Sweep(grid []float64) ([]Point, error) {
+	pts := make([]Point, len(grid))
+	for i, f := range grid {
+		p, err := a.At(f)
+		if err != nil {
+			return nil, err
+		}
+		pts[i] = p
+	}
+	return pts, nil
+}
+
+// Notes gathers the distinct notes of pts, in order of first appearance,
+// replacing per-frequency prefixes by the range where each applies.
+func Notes(pts []Point) []string {
+	type rng struct{ lo, hi float64 }
+	order := []string{}
+	where := map[string]*rng{}
+	for _, p := range pts {
+		for _, n := range p.Notes {
+			body := n
+			if i := strings.Index(n, ": "); i >= 0 && strings.HasPrefix(n, "at ") {
+				body = n[i+2:]
+			}
+			r := where[body]
+			if r == nil {
+				r = &rng{p.F, p.F}
+				where[body] = r
+				order = append(order, body)
+			}
+			r.hi = p.F
+		}
+	}
+	out := make([]string, 0, len(order))
+	for _, b := range order {
+		r := where[b]
+		if r.lo == r.hi {
+			out = append(out, "at "+fmtHz(r.lo)+": "+b)
+		} else {
+			out = append(out, "from "+fmtHz(r.lo)+" to "+fmtHz(r.hi)+": "+b)
+		}
+	}
+	return out
+}

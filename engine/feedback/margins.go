@@ -1,0 +1,231 @@
+package feedback
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+)
+
+// Crossover is one frequency where |T| crosses 1.
+type Crossover struct {
+	F           float64
+	PhaseMargin float64 // degrees, 180° + ∠T wrapped to (−180°, 180°]
+	Falling     bool    // |T| falls through 1 as f rises
+}
+
+// PhaseCrossing is one frequency where the unwrapped ∠T crosses −180°
+// (mod 360°).
+type PhaseCrossing struct {
+	F          float64
+	GainMargin float64 // dB, −20·log10|T|
+}
+
+// Verdicts.
+const (
+	NoCrossover = "no crossover"
+	Stable      = "stable"
+	LowMargin   = "margin below 45°"
+	Unstable    = "unstable"
+)
+
+// MarginResult summarizes the loop over a sweep.
+type MarginResult struct {
+	Crossovers     []Crossover
+	PhaseCrossings []PhaseCrossing
+	// Governing values: the crossover with the smallest phase margin and
+	// the smallest gain margin; NaN when there is none.
+	Crossover, PhaseMargin, GainMargin float64
+	Verdict, Detail                    string
+}
+
+// TargetPM is the phase margin below which the verdict warns: 45°, with 60°
+// the usual design aim (common practice).
+const TargetPM = 45.0
+
+// Margins finds the crossovers and margins of T sampled on grid (ascending),
+// refining each crossing with eval, which must return T at any frequency.
+func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, error)) MarginResult {
+	m := MarginResult{Crossover: math.NaN(), PhaseMargin: math.NaN(), GainMargin: math.NaN()}
+	n := len(grid)
+	ph := make([]float64, n) // unwrapped phase in degrees; NaN where T is not finite
+	prev := math.NaN()
+	for i, t := range T {
+		if !finite(t) || t == 0 {
+			ph[i] = math.NaN()
+			continue
+		}
+		a := deg(cmplx.Phase(t))
+		if math.IsNaN(prev) {
+			ph[i] = a
+		} else {
+			ph[i] = prev + wrap180(a-prev)
+		}
+		prev = ph[i]
+	}
+	// unwrapNear puts the phase of t on the branch nearest ref.
+	unwrapNear := func(t complex128, ref float64) float64 {
+		a := deg(cmplx.Phase(t))
+		return ref + wrap180(a-ref)
+	}
+	evalOK := func(f float64) (complex128, bool) {
+		t, err := eval(f)
+		return t, err == nil && finite(t) && t != 0
+	}
+	above, below := false, false
+	for i := 0; i < n; i++ {
+		if math.IsNaN(ph[i]) {
+			continue
+		}
+		if cmplx.Abs(T[i]) >= 1 {
+			above = true
+		} else {
+			below = true
+		}
+		if i+1 >= n || math.IsNaN(ph[i+1]) {
+			continue
+		}
+		la, lb := math.Log(cmplx.Abs(T[i])), math.Log(cmplx.Abs(T[i+1]))
+		if la >= 0 && lb < 0 || la < 0 && lb >= 0 {
+			fc := refine(grid[i], grid[i+1], la, lb, func(f float64) (float64, bool) {
+				t, ok := evalOK(f)
+				return math.Log(cmplx.Abs(t)), ok
+			})
+			t, ok := evalOK(fc)
+			if !ok {
+				continue
+			}
+			ref := interpPhase(grid[i], grid[i+1], ph[i], ph[i+1], fc)
+			p := unwrapNear(t, ref)
+			m.Crossovers = append(m.Crossovers, Crossover{F: fc, PhaseMargin: wrapPM(180 + p), Falling: lb < la})
+		}
+		// −180° crossings: (φ + 180)/360 passes an integer.
+		qa, qb := (ph[i]+180)/360, (ph[i+1]+180)/360
+		lo, hi := math.Min(qa, qb), math.Max(qa, qb)
+		for k := math.Ceil(lo); k <= hi; k++ {
+			if k == lo && k != qa { // counted at the previous interval
+				continue
+			}
+			target := 360*k - 180
+			fa, fb := grid[i], grid[i+1]
+			da, db := ph[i]-target, ph[i+1]-target
+			if da == 0 && i > 0 && !math.IsNaN(ph[i-1]) && (ph[i-1]-target)*db <= 0 {
+				continue
+			}
+			f180 := refine(fa, fb, da, db, func(f float64) (float64, bool) {
+				t, ok := evalOK(f)
+				if !ok {
+					return 0, false
+				}
+				return unwrapNear(t, interpPhase(fa, fb, ph[i], ph[i+1], f)) - target, true
+			})
+			t, ok := evalOK(f180)
+			if !ok {
+				continue
+			}
+			m.PhaseCrossings = append(m.PhaseCrossings, PhaseCrossing{F: f180, GainMargin: -20 * math.Log10(cmplx.Abs(t))})
+		}
+	}
+	for _, c := range m.Crossovers {
+		if math.IsNaN(m.PhaseMargin) || c.PhaseMargin < m.PhaseMargin {
+			m.PhaseMargin, m.Crossover = c.PhaseMargin, c.F
+		}
+	}
+	for _, p := range m.PhaseCrossings {
+		if math.IsNaN(m.GainMargin) || p.GainMargin < m.GainMargin {
+			m.GainMargin = p.GainMargin
+		}
+	}
+	span := ""
+	if n > 0 {
+		span = fmt.Sprintf("from %s to %s", fmtHz(grid[0]), fmtHz(grid[n-1]))
+	}
+	switch {
+	case len(m.Crossovers) == 0 && !above && !below:
+		m.Verdict, m.Detail = NoCrossover, "T is not finite over the sweep, so no margins can be read."
+	case len(m.Crossovers) == 0 && above:
+		m.Verdict, m.Detail = NoCrossover, "|T| stays above 1 "+span+"; widen the sweep to find the crossover."
+	case len(m.Crossovers) == 0:
+		m.Verdict, m.Detail = NoCrossover, "|T| stays below 1 "+span+": the loop never reaches unity gain, so it has little feedback and no phase margin to speak of."
+	case m.PhaseMargin <= 0:
+		m.Verdict = Unstable
+		m.Detail = fmt.Sprintf("Phase margin %.1f° at %s: the loop has no margin and the closed loop is expected to oscillate.", m.PhaseMargin, fmtHz(m.Crossover))
+	case m.PhaseMargin < TargetPM:
+		m.Verdict = LowMargin
+		m.Detail = fmt.Sprintf("Phase margin %.1f° at %s: stable, but expect ringing and peaking; 45° is the usual minimum and 60° the usual aim (common practice).", m.PhaseMargin, fmtHz(m.Crossover))
+	default:
+		m.Verdict = Stable
+		m.Detail = fmt.Sprintf("Phase margin %.1f° at %s.", m.PhaseMargin, fmtHz(m.Crossover))
+	}
+	if len(m.Crossovers) > 1 {
+		m.Detail += fmt.Sprintf(" |T| crosses 1 %d times; the verdict uses the smallest margin, and a loop like this deserves a Nyquist look.", len(m.Crossovers))
+	}
+	if m.Verdict != Unstable && m.Verdict != NoCrossover {
+		for _, p := range m.PhaseCrossings {
+			if p.GainMargin < 0 && p.F < m.Crossover {
+				m.Detail += fmt.Sprintf(" ∠T reaches −180° at %s while |T| > 1: the loop is conditionally stable and may oscillate if its gain drops.", fmtHz(p.F))
+				break
+			}
+		}
+	}
+	return m
+}
+
+// refine finds the root of g between fa and fb (ga, gb of opposite sign or
+// zero) by false position on log f with the Illinois modification.
+func refine(fa, fb, ga, gb float64, g func(f float64) (float64, bool)) float64 {
+	if ga == 0 {
+		return fa
+	}
+	if gb == 0 {
+		return fb
+	}
+	xa, xb := math.Log(fa), math.Log(fb)
+	side := 0
+	for iter := 0; iter < 100; iter++ {
+		x := (xa*gb - xb*ga) / (gb - ga)
+		if !(x > math.Min(xa, xb) && x < math.Max(xa, xb)) {
+			x = (xa + xb) / 2
+		}
+		gx, ok := g(math.Exp(x))
+		if !ok {
+			return math.Exp(x)
+		}
+		if gx == 0 || math.Abs(xb-xa) < 1e-14*math.Max(1, math.Abs(x)) {
+			return math.Exp(x)
+		}
+		if (gx > 0) == (gb > 0) {
+			xb, gb = x, gx
+			if side == -1 {
+				ga /= 2
+			}
+			side = -1
+		} else {
+			xa, ga = x, gx
+			if side == 1 {
+				gb /= 2
+			}
+			side = 1
+		}
+	}
+	return math.Exp((xa + xb) / 2)
+}
+
+func interpPhase(fa, fb, pa, pb, f float64) float64 {
+	t := (math.Log(f) - math.Log(fa)) / (math.Log(fb) - math.Log(fa))
+	return pa + t*(pb-pa)
+}
+
+func deg(r float64) float64 { return r * 180 / math.Pi }
+
+// wrap180 wraps d degrees into (−180, 180].
+func wrap180(d float64) float64 {
+	d = math.Mod(d, 360)
+	if d > 180 {
+		d -= 360
+	} else if d <= -180 {
+		d += 360
+	}
+	return d
+}
+
+func wrapPM(pm float64) float64 { return wrap180(pm) }

@@ -1,0 +1,160 @@
+package mna
+
+import (
+	"math"
+)
+
+// PivotTolerance is the smallest pivot magnitude, relative to the
+// equilibrated matrix whose rows and columns all have largest entry 1, that
+// Factor accepts.
+const PivotTolerance = 1e-14
+
+// LU is a factorization P·Dr·A·Dc = L·U of a dense complex matrix.
+type LU struct {
+	n      int
+	a      []complex128 // L below the diagonal (unit), U on and above
+	piv    []int
+	rs, cs []float64 // row and column scale factors
+	work   []complex128
+	minPiv float64
+}
+
+// Singular reports a failed factorization: the equilibrated matrix has a
+// zero row, a zero column, or a pivot below PivotTolerance at Index (an
+// unknown's index, before pivoting for columns).
+type Singular struct {
+	Index int
+	Kind  string // "row", "column" or "pivot"
+}
+
+func (e *Singular) Error() string { return "singular system (" + e.Kind + ")" }
+
+// Factor factors the n×n row-major matrix a in place (a is kept by lu and
+// must not be reused by the caller until the next Factor).
+func (lu *LU) Factor(a []complex128, n int) error {
+	lu.n = n
+	lu.a = a
+	if cap(lu.piv) < n {
+		lu.piv = make([]int, n)
+		lu.rs = make([]float64, n)
+		lu.cs = make([]float64, n)
+		lu.work = make([]complex128, n)
+	}
+	lu.piv, lu.rs, lu.cs, lu.work = lu.piv[:n], lu.rs[:n], lu.cs[:n], lu.work[:n]
+	// Equilibrate rows, then columns, to largest magnitude 1 (powers of two
+	// so the scaling itself is exact).
+	for i := 0; i < n; i++ {
+		m := 0.0
+		row := a[i*n : i*n+n]
+		for _, v := range row {
+			m = math.Max(m, abs1(v))
+		}
+		if m == 0 {
+			return &Singular{Index: i, Kind: "row"}
+		}
+		s := pow2inv(m)
+		lu.rs[i] = s
+		for j := range row {
+			row[j] *= complex(s, 0)
+		}
+	}
+	for j := 0; j < n; j++ {
+		m := 0.0
+		for i := 0; i < n; i++ {
+			m = math.Max(m, abs1(a[i*n+j]))
+		}
+		if m == 0 {
+			return &Singular{Index: j, Kind: "column"}
+		}
+		s := pow2inv(m)
+		lu.cs[j] = s
+		if s != 1 {
+			for i := 0; i < n; i++ {
+				a[i*n+j] *= complex(s, 0)
+			}
+		}
+	}
+	lu.minPiv = math.Inf(1)
+	for k := 0; k < n; k++ {
+		p, pm := k, abs1(a[k*n+k])
+		for i := k + 1; i < n; i++ {
+			if m := abs1(a[i*n+k]); m > pm {
+				p, pm = i, m
+			}
+		}
+		lu.piv[k] = p
+		if pm <= PivotTolerance {
+			return &Singular{Index: k, Kind: "pivot"}
+		}
+		lu.minPiv = math.Min(lu.minPiv, pm)
+		if p != k {
+			rk, rp := a[k*n:k*n+n], a[p*n:p*n+n]
+			for j := range rk {
+				rk[j], rp[j] = rp[j], rk[j]
+			}
+		}
+		inv := 1 / a[k*n+k]
+		rk := a[k*n+k+1 : k*n+n]
+		for i := k + 1; i < n; i++ {
+			l := a[i*n+k]
+			if l == 0 {
+				continue
+			}
+			l *= inv
+			a[i*n+k] = l
+			ri := a[i*n+k+1 : i*n+n]
+			for j, u := range rk {
+				ri[j] -= l * u
+			}
+		}
+	}
+	return nil
+}
+
+// MinPivot is the smallest pivot magnitude of the last successful Factor,
+// relative to the equilibrated matrix: a rough measure of how close the
+// system came to singular.
+func (lu *LU) MinPivot() float64 { return lu.minPiv }
+
+// SolveTo solves A·x = b into dst (len n), leaving b unchanged. dst and b
+// may be the same slice.
+func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
+	n, a, y := lu.n, lu.a, lu.work
+	for i := 0; i < n; i++ {
+		y[i] = b[i] * complex(lu.rs[i], 0)
+	}
+	for k := 0; k < n; k++ {
+		if p := lu.piv[k]; p != k {
+			y[k], y[p] = y[p], y[k]
+		}
+	}
+	for i := 1; i < n; i++ {
+		s := y[i]
+		row := a[i*n : i*n+i]
+		for j, l := range row {
+			s -= l * y[j]
+		}
+		y[i] = s
+	}
+	for i := n - 1; i >= 0; i-- {
+		s := y[i]
+		row := a[i*n+i+1 : i*n+n]
+		for j, u := range row {
+			s -= u * y[i+1+j]
+		}
+		y[i] = s / a[i*n+i]
+	}
+	for i := 0; i < n; i++ {
+		dst[i] = y[i] * complex(lu.cs[i], 0)
+	}
+	return dst
+}
+
+// abs1 is |re| + |im|, a cheap norm good enough for pivoting and scaling.
+func abs1(v complex128) float64 { return math.Abs(real(v)) + math.Abs(imag(v)) }
+
+// pow2inv returns the power of two nearest 1/m.
+func pow2inv(m float64) float64 {
+	_, e := math.Frexp(m)
+	return math.Ldexp(1, -e+1)
+}

@@ -1,0 +1,200 @@
+package plot
+
+import (
+	"math"
+
+	"zport/engine/value"
+)
+
+// tick is one position on an axis, in axis coordinates: log10 of the value
+// on a log axis, the value itself on a linear one.
+type tick struct {
+	pos   float64
+	label string // "" for an unlabelled tick
+	major bool   // drawn as a full grid line; minor ticks get a faint one
+}
+
+// axis maps axis coordinates [lo, hi] onto pixels [p0, p1]; p1 < p0 for a
+// vertical axis, whose low end is at the bottom.
+type axis struct {
+	lo, hi float64
+	p0, p1 float64
+	ticks  []tick
+}
+
+func (a *axis) px(v float64) float64 { return a.p0 + (v-a.lo)*(a.p1-a.p0)/(a.hi-a.lo) }
+
+// pxPerUnit is the pixel length of one axis unit (one decade on a log axis).
+func (a *axis) pxPerUnit() float64 { return math.Abs(a.p1-a.p0) / (a.hi - a.lo) }
+
+// in reports whether axis coordinate v lies on the axis.
+func (a *axis) in(v float64) bool { return v >= a.lo-1e-9 && v <= a.hi+1e-9 }
+
+const eps = 1e-9
+
+// Decade label strides: every decade, every second, third, fifth …
+var strides = []int{1, 2, 3, 5, 10, 20, 30, 50, 100}
+
+// logTicks returns the ticks of a log axis spanning [lo, hi] (log10 units)
+// at pxPerDec pixels per decade, labelled with value.Format in unit. gap is
+// the least distance between label positions, in pixels: decades are
+// labelled every stride decades so labels never crowd, the 2 and 5 of each
+// decade are labelled too when a decade is long enough, and 2…9 get minor
+// grid lines when it is long enough for them to read as a grid. If that
+// leaves fewer than two labels (a range inside one decade), both ends are
+// labelled with three digits.
+func logTicks(lo, hi, pxPerDec, gap float64, unit string) []tick {
+	stride := strides[len(strides)-1]
+	for _, s := range strides {
+		if pxPerDec*float64(s) >= gap {
+			stride = s
+			break
+		}
+	}
+	label25 := stride == 1 && pxPerDec*math.Log10(2.5/2) >= gap
+	labelAll := stride == 1 && pxPerDec*math.Log10(10.0/9) >= gap
+	minor := stride == 1 && pxPerDec >= 30
+
+	var ticks []tick
+	labelled := 0
+	kLo, kHi := int(math.Floor(lo)), int(math.Ceil(hi))
+	for k := kLo; k <= kHi; k++ {
+		if p := float64(k); p >= lo-eps && p <= hi+eps {
+			t := tick{pos: p}
+			if mod(k, stride) == 0 {
+				t.major = true
+				t.label = value.Format(math.Pow10(k), unit, 1)
+				labelled++
+			}
+			ticks = append(ticks, t)
+		}
+		if !minor {
+			continue
+		}
+		for m := 2; m <= 9; m++ {
+			p := float64(k) + math.Log10(float64(m))
+			if p < lo-eps || p > hi+eps {
+				continue
+			}
+			t := tick{pos: p}
+			if labelAll || label25 && (m == 2 || m == 5) {
+				t.label = value.Format(float64(m)*math.Pow10(k), unit, 1)
+				labelled++
+			}
+			ticks = append(ticks, t)
+		}
+	}
+	if labelled < 2 {
+		for i := range ticks {
+			ticks[i].label = ""
+		}
+		ticks = append(ticks,
+			tick{pos: lo, label: value.Format(math.Pow(10, lo), unit, 3)},
+			tick{pos: hi, label: value.Format(math.Pow(10, hi), unit, 3)})
+	}
+	return ticks
+}
+
+func mod(a, b int) int { return ((a % b) + b) % b }
+
+// niceStep returns the smallest step of the form 1, 2 or 5 × 10^k that
+// divides span into at most n intervals.
+func niceStep(span float64, n int) float64 {
+	if n < 1 {
+		n = 1
+	}
+	if !(span > 0) || math.IsInf(span, 0) {
+		return 1
+	}
+	raw := span / float64(n)
+	p := math.Pow10(int(math.Floor(math.Log10(raw))))
+	for _, m := range []float64{1, 2, 5, 10} {
+		if m*p >= raw*(1-eps) {
+			return m * p
+		}
+	}
+	return 10 * p
+}
+
+// snap widens [lo, hi] outward to multiples of step.
+func snap(lo, hi, step float64) (float64, float64) {
+	return math.Floor(lo/step+eps) * step, math.Ceil(hi/step-eps) * step
+}
+
+// linTicks returns a labelled major tick at every multiple of step in
+// [lo, hi], with suffix appended to each label.
+func linTicks(lo, hi, step float64, suffix string) []tick {
+	var ticks []tick
+	for i := math.Ceil(lo/step - eps); i*step <= hi+eps*step; i++ {
+		v := i * step
+		ticks = append(ticks, tick{pos: v, label: linLabel(v, step) + suffix, major: true})
+	}
+	return ticks
+}
+
+// dbRange chooses the range and ticks of a decibel axis for data in
+// [lo, hi] (NaN when there is none) on an axis of px pixels: at least 10 dB
+// tall, padded a little, snapped to a 1-2-5 step.
+func dbRange(lo, hi, px float64) (float64, float64, []tick) {
+	if math.IsNaN(lo) {
+		lo, hi = -20, 20
+	}
+	if hi-lo < 10 {
+		c := (lo + hi) / 2
+		lo, hi = c-5, c+5
+	}
+	pad := 0.03 * (hi - lo)
+	lo, hi = lo-pad, hi+pad
+	n := max(2, int(px/28))
+	var step, slo, shi float64
+	for m := n; m >= 1; m-- {
+		step = niceStep(hi-lo, m)
+		slo, shi = snap(lo, hi, step)
+		if (shi-slo)/step <= float64(n)+eps {
+			break
+		}
+	}
+	return slo, shi, linTicks(slo, shi, step, "")
+}
+
+// phaseSteps are the tick steps of a phase axis, all multiples of 45°.
+var phaseSteps = []float64{45, 90, 180, 360, 720, 1440, 2880, 5760}
+
+// phaseRange chooses the range and ticks of a phase axis for unwrapped
+// phases in [lo, hi] degrees (NaN when there are none) on an axis of px
+// pixels: at least 90° tall, snapped to a multiple of 45° or 90° (or of a
+// larger multiple of 90° when the phase winds through many turns).
+func phaseRange(lo, hi, px float64) (float64, float64, []tick) {
+	if math.IsNaN(lo) {
+		lo, hi = -90, 90
+	}
+	if hi-lo < 90 {
+		c := (lo + hi) / 2
+		lo, hi = c-45, c+45
+	}
+	n := max(2, int(px/24))
+	for _, step := range phaseSteps {
+		slo, shi := snap(lo, hi, step)
+		if (shi-slo)/step <= float64(n)+eps {
+			return slo, shi, linTicks(slo, shi, step, "°")
+		}
+	}
+	step := niceStep(hi-lo, n)
+	slo, shi := snap(lo, hi, step)
+	return slo, shi, linTicks(slo, shi, step, "°")
+}
+
+// logRange chooses the range of a log axis (log10 units) for data in
+// [lo, hi] (NaN when there is none): at least one decade tall, with 5 %
+// of the span as padding at each end.
+func logRange(lo, hi float64) (float64, float64) {
+	if math.IsNaN(lo) {
+		return -1, 2
+	}
+	if hi-lo < 1 {
+		c := (lo + hi) / 2
+		return c - 0.5, c + 0.5
+	}
+	pad := 0.05 * (hi - lo)
+	return lo - pad, hi + pad
+}

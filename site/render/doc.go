@@ -1,0 +1,55 @@
+// Package render turns an analysis response into the results panel of a
+// calculator: HTML for the page, a Markdown table for "copy results" and a
+// CSV file of the sweep. The site builder calls it to pre-render each
+// calculator's default results, and the WebAssembly bridge calls it on every
+// edit, so the numbers a page shows before and after the engine starts come
+// from one code path.
+//
+// # Forms
+//
+// A calculator holds text exactly as typed. Form carries it: the topology
+// ID, its parameters, the spot frequency and the sweep, each in the engine's
+// value syntax. Compute reads a Form, asks the engine, and renders:
+//
+//	out := render.Compute(render.Form{
+//		Topology:  "inverting",
+//		Params:    map[string]string{"R2": "100k"},
+//		Frequency: "1k",
+//	})
+//	// out.HTML, out.Markdown, out.CSV, out.State; or out.Error naming the field
+//
+// A bad field gives an Output whose Error names it (Param is the parameter
+// name, "frequency", "sweep.from", "sweep.to", "sweep.points" or
+// "fragment"); the page shows the message beside that input and keeps the
+// last good panel.
+//
+// # URL fragment
+//
+// State is the form as a URL fragment (without "#"), so a shared link
+// reproduces the calculator: form-encoded key=value pairs joined by "&",
+// the topology's parameters in catalog order followed by f (spot
+// frequency), from, to and points (the sweep). The key p is reserved for the
+// single-file export, which uses it to choose the page, and is ignored here.
+// Form.Fragment, when set, is read back over the defaults by the same rules;
+// anything malformed — an unknown key, a repeated key, bad escaping, an
+// over-long value, control characters — is refused whole with an error
+// whose Param is "fragment", and the page falls back to its defaults with a
+// notice.
+//
+// # HTML
+//
+// The panel is written by a small element writer in which every piece of
+// text and every attribute value is escaped on the way out; only the SVG
+// from package zport/site/plot is inserted as markup. html/template would do
+// the same job, but its reflection keeps every exported method of the
+// program alive and more than doubles the WebAssembly download, so the
+// writer is kept deliberately small instead.
+//
+// Every displayed value carries machine-readable attributes: data-quantity
+// (z0, tShort, tOpen, z, zDirect, agreement, g0, gInf, g, gDirect, T, fc,
+// pm, gm), data-port on port quantities, and data-re/data-im (complex) or
+// data-value (real) written with strconv's shortest round-trip form. A value
+// that is not finite has data-null="true" and shows a dash. Hand-formula
+// values carry data-closed-form instead of data-quantity, so selectors for
+// the engine's numbers match exactly one element.
+package render

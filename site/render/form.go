@@ -1,0 +1,299 @@
+package render
+
+import (
+	"math"
+	"net/url"
+	"strconv"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"zport/engine/api"
+	"zport/engine/value"
+)
+
+// Form is what a calculator's inputs hold, as typed.
+type Form struct {
+	// Topology is a catalog stage ID; Params overrides its defaults.
+	Topology string            `json:"topology,omitempty"`
+	Params   map[string]string `json:"params,omitempty"`
+
+	// Circuit, Reference, Ports and Gain describe a circuit of the user's
+	// own instead of a topology (see api.Request).
+	Circuit   string       `json:"circuit,omitempty"`
+	Reference string       `json:"reference,omitempty"`
+	Ports     []string     `json:"ports,omitempty"`
+	Gain      *api.GainSpec `json:"gain,omitempty"`
+
+	// Frequency is the spot frequency in value syntax ("1k"); empty means
+	// the topology's suggestion.
+	Frequency string `json:"frequency,omitempty"`
+	// Sweep is the frequency grid; empty fields mean the topology's
+	// suggestion.
+	Sweep SweepForm `json:"sweep"`
+
+	// ID prefixes the element ids inside the panel, so that several
+	// calculators can share a page.
+	ID string `json:"id,omitempty"`
+
+	// Fragment, when set, is a URL fragment (without "#") read over the
+	// topology's defaults in place of Params, Frequency and Sweep.
+	Fragment *string `json:"fragment,omitempty"`
+}
+
+// SweepForm is a sweep as typed: from and to in value syntax, points a
+// whole number.
+type SweepForm struct {
+	From   string `json:"from,omitempty"`
+	To     string `json:"to,omitempty"`
+	Points string `json:"points,omitempty"`
+}
+
+// Field names used in Output.Error.Param for the form's own inputs.
+const (
+	FieldFrequency = "frequency"
+	FieldFrom      = "sweep.from"
+	FieldTo        = "sweep.to"
+	FieldPoints    = "sweep.points"
+	FieldFragment  = "fragment"
+)
+
+// Limits on a URL fragment: longer text is refused before it is read.
+const (
+	maxFragment      = 4096
+	maxFragmentValue = 64
+)
+
+// fragment keys for the form's own fields; p is reserved for the
+// single-file export's page choice.
+const (
+	keyFrequency = "f"
+	keyFrom      = "from"
+	keyTo        = "to"
+	keyPoints    = "points"
+	keyPage      = "p"
+)
+
+// ReservedKeys lists the fragment keys that are not topology parameters.
+// No catalog parameter may use one of them as its name.
+var ReservedKeys = []string{keyFrequency, keyFrom, keyTo, keyPoints, keyPage}
+
+// DefaultForm is the form of a topology at its catalog defaults.
+func DefaultForm(e api.CatalogEntry) Form {
+	f := Form{Topology: e.ID, Params: make(map[string]string, len(e.Params))}
+	for _, p := range e.Params {
+		f.Params[p.Name] = p.Default
+	}
+	f.Frequency = Syntax(e.Frequency)
+	f.Sweep = SweepForm{From: Syntax(e.Sweep.From), To: Syntax(e.Sweep.To), Points: strconv.Itoa(e.Sweep.Points)}
+	return f
+}
+
+// withDefaults returns f with every empty field of a topology form taken
+// from the catalog entry.
+func (f Form) withDefaults(e api.CatalogEntry) Form {
+	d := DefaultForm(e)
+	params := make(map[string]string, len(d.Params)+len(f.Params))
+	for k, v := range d.Params {
+		params[k] = v
+	}
+	for k, v := range f.Params {
+		params[k] = v
+	}
+	f.Params = params
+	if strings.TrimSpace(f.Frequency) == "" {
+		f.Frequency = d.Frequency
+	}
+	if strings.TrimSpace(f.Sweep.From) == "" {
+		f.Sweep.From = d.Sweep.From
+	}
+	if strings.TrimSpace(f.Sweep.To) == "" {
+		f.Sweep.To = d.Sweep.To
+	}
+	if strings.TrimSpace(f.Sweep.Points) == "" {
+		f.Sweep.Points = d.Sweep.Points
+	}
+	return f
+}
+
+// Syntax writes a frequency or count in the engine's value syntax with an
+// SI prefix, so that it reads back exactly: 1000 → "1k", 1e8 → "100M",
+// 2.5e-3 → "2.5m". It is how defaults given as numbers appear in inputs.
+func Syntax(v float64) string {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return "0"
+	}
+	prefixes := []struct {
+		exp int
+		sym string
+	}{{12, "T"}, {9, "G"}, {6, "M"}, {3, "k"}, {0, ""}, {-3, "m"}, {-6, "u"}, {-9, "n"}, {-12, "p"}, {-15, "f"}}
+	a := math.Abs(v)
+	for _, p := range prefixes {
+		scale := math.Pow10(p.exp)
+		if a >= scale || p.exp == -15 {
+			for prec := 1; prec <= 17; prec++ {
+				s := strconv.FormatFloat(v/scale, 'f', -1, 64)
+				if prec < 17 {
+					s = strconv.FormatFloat(v/scale, 'g', prec, 64)
+					if strings.ContainsAny(s, "e") {
+						continue
+					}
+				}
+				if got, err := value.Parse(s+p.sym, ""); err == nil && got == v {
+					return s + p.sym
+				}
+			}
+			break
+		}
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// request turns the form into an engine request. Field errors name the
+// field; parameter values are checked by the engine itself, which names the
+// parameter.
+func (f Form) request() (api.Request, *api.ErrorBody) {
+	req := api.Request{
+		Topology:  f.Topology,
+		Params:    f.Params,
+		Circuit:   f.Circuit,
+		Reference: f.Reference,
+		Ports:     f.Ports,
+		Gain:      f.Gain,
+	}
+	fieldErr := func(field, msg string) *api.ErrorBody {
+		return &api.ErrorBody{Param: field, Message: msg}
+	}
+	freq, err := value.Parse(strings.TrimSpace(f.Frequency), "Hz")
+	if err != nil {
+		return req, fieldErr(FieldFrequency, "spot frequency: "+err.Error())
+	}
+	if freq < 0 {
+		return req, fieldErr(FieldFrequency, "spot frequency: must not be negative")
+	}
+	req.Frequency = freq
+	if f.Sweep == (SweepForm{}) {
+		return req, nil
+	}
+	from, err := value.Parse(strings.TrimSpace(f.Sweep.From), "Hz")
+	if err != nil {
+		return req, fieldErr(FieldFrom, "sweep start: "+err.Error())
+	}
+	if from <= 0 {
+		return req, fieldErr(FieldFrom, "sweep start: must be above 0 Hz (the axis is logarithmic)")
+	}
+	to, err := value.Parse(strings.TrimSpace(f.Sweep.To), "Hz")
+	if err != nil {
+		return req, fieldErr(FieldTo, "sweep end: "+err.Error())
+	}
+	if to <= from {
+		return req, fieldErr(FieldTo, "sweep end: must be above the start, "+value.Format(from, "Hz", 4))
+	}
+	pts, err := strconv.Atoi(strings.TrimSpace(f.Sweep.Points))
+	if err != nil {
+		return req, fieldErr(FieldPoints, "sweep points: a whole number is needed, e.g. 400")
+	}
+	if pts < 2 || pts > api.MaxPoints {
+		return req, fieldErr(FieldPoints, "sweep points: must be from 2 to "+strconv.Itoa(api.MaxPoints))
+	}
+	req.Sweep = &api.SweepSpec{From: from, To: to, Points: pts}
+	return req, nil
+}
+
+// State writes the form of a topology as a URL fragment (without "#"):
+// every parameter in catalog order, then the spot frequency and sweep.
+func (f Form) State(e api.CatalogEntry) string {
+	var b strings.Builder
+	add := func(k, v string) {
+		if b.Len() > 0 {
+			b.WriteByte('&')
+		}
+		b.WriteString(url.QueryEscape(k))
+		b.WriteByte('=')
+		b.WriteString(url.QueryEscape(v))
+	}
+	for _, p := range e.Params {
+		add(p.Name, f.Params[p.Name])
+	}
+	add(keyFrequency, f.Frequency)
+	add(keyFrom, f.Sweep.From)
+	add(keyTo, f.Sweep.To)
+	add(keyPoints, f.Sweep.Points)
+	return b.String()
+}
+
+// FragmentError is a URL fragment that could not be read.
+type FragmentError struct {
+	Msg string
+}
+
+func (e *FragmentError) Error() string { return "link settings not used: " + e.Msg }
+
+// ReadFragment reads a URL fragment (with or without "#") written by State
+// over the defaults of e. It refuses the whole fragment when any part of it
+// is malformed: the caller then keeps its defaults and says why.
+func ReadFragment(frag string, e api.CatalogEntry) (Form, error) {
+	f := DefaultForm(e)
+	frag = strings.TrimPrefix(frag, "#")
+	if len(frag) > maxFragment {
+		return f, &FragmentError{"the link's settings are longer than " + strconv.Itoa(maxFragment) + " characters"}
+	}
+	known := make(map[string]bool, len(e.Params))
+	for _, p := range e.Params {
+		known[p.Name] = true
+	}
+	seen := map[string]bool{}
+	for _, part := range strings.Split(frag, "&") {
+		if part == "" {
+			continue
+		}
+		rawKey, rawVal, ok := strings.Cut(part, "=")
+		if !ok {
+			return DefaultForm(e), &FragmentError{"a setting has no “=”"}
+		}
+		k, err1 := url.QueryUnescape(rawKey)
+		v, err2 := url.QueryUnescape(rawVal)
+		if err1 != nil || err2 != nil {
+			return DefaultForm(e), &FragmentError{"a setting is not properly escaped"}
+		}
+		if !printable(k) || !printable(v) {
+			return DefaultForm(e), &FragmentError{"a setting holds characters that are not allowed"}
+		}
+		if len(k) > maxFragmentValue || len(v) > maxFragmentValue {
+			return DefaultForm(e), &FragmentError{"a setting is longer than " + strconv.Itoa(maxFragmentValue) + " characters"}
+		}
+		if seen[k] {
+			return DefaultForm(e), &FragmentError{"the setting " + strconv.Quote(k) + " appears twice"}
+		}
+		seen[k] = true
+		switch {
+		case k == keyPage:
+		case k == keyFrequency:
+			f.Frequency = v
+		case k == keyFrom:
+			f.Sweep.From = v
+		case k == keyTo:
+			f.Sweep.To = v
+		case k == keyPoints:
+			f.Sweep.Points = v
+		case known[k]:
+			f.Params[k] = v
+		default:
+			return DefaultForm(e), &FragmentError{"unknown setting " + strconv.Quote(k) + " for " + e.Title}
+		}
+	}
+	return f, nil
+}
+
+// printable reports whether s is valid UTF-8 free of control characters.
+func printable(s string) bool {
+	if !utf8.ValidString(s) {
+		return false
+	}
+	for _, r := range s {
+		if unicode.IsControl(r) || r == utf8.RuneError {
+			return false
+		}
+	}
+	return true
+}

@@ -1,0 +1,64 @@
+package render
+
+import (
+	"html"
+	"strings"
+)
+
+// writer builds HTML in which text and attribute values are always escaped.
+// Element and attribute names come from this package's code only, never from
+// data; raw markup enters only through svg, for the plot package's output.
+type writer struct {
+	b strings.Builder
+}
+
+// open writes a start tag. attrs alternates names and values; a value is
+// escaped, and a name given with an empty value and a trailing "?" (e.g.
+// "hidden?") is written as a bare boolean attribute when the value is
+// non-empty and omitted otherwise.
+func (w *writer) open(tag string, attrs ...string) {
+	w.b.WriteByte('<')
+	w.b.WriteString(tag)
+	for i := 0; i+1 < len(attrs); i += 2 {
+		name, val := attrs[i], attrs[i+1]
+		if strings.HasSuffix(name, "?") {
+			if val != "" {
+				w.b.WriteByte(' ')
+				w.b.WriteString(strings.TrimSuffix(name, "?"))
+			}
+			continue
+		}
+		w.b.WriteByte(' ')
+		w.b.WriteString(name)
+		w.b.WriteString(`="`)
+		w.b.WriteString(html.EscapeString(val))
+		w.b.WriteByte('"')
+	}
+	w.b.WriteByte('>')
+}
+
+// close writes an end tag.
+func (w *writer) close(tag string) {
+	w.b.WriteString("</")
+	w.b.WriteString(tag)
+	w.b.WriteByte('>')
+}
+
+// text writes escaped text.
+func (w *writer) text(s string) {
+	w.b.WriteString(html.EscapeString(s))
+}
+
+// elem writes a whole element holding escaped text.
+func (w *writer) elem(tag, text string, attrs ...string) {
+	w.open(tag, attrs...)
+	w.text(text)
+	w.close(tag)
+}
+
+// svg inserts markup produced by package plot, which escapes its own text.
+func (w *writer) svg(markup string) {
+	w.b.WriteString(markup)
+}
+
+func (w *writer) String() string { return w.b.String() }
