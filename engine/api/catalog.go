@@ -1,5 +1,7 @@
 package api
 
+import "zport/engine/topology"
+
 // CatalogEntry describes one topology of the catalog: what `topologies`
 // prints and what a page needs to build its form.
 type CatalogEntry struct {
@@ -47,4 +49,41 @@ type GainInfo struct {
 	Output string `json:"output"`
 	Unit   string `json:"unit"`
 	Title  string `json:"title"`
+}
+
+// Catalog lists the topology catalog on the wire.
+func Catalog() []CatalogEntry {
+	var out []CatalogEntry
+	for _, t := range topology.Catalog() {
+		out = append(out, Entry(t))
+	}
+	return out
+}
+
+// Entry converts one stage to its catalog entry.
+func Entry(t *topology.Topology) CatalogEntry {
+	e := CatalogEntry{ID: t.ID, Title: t.Title, Description: t.Description, Scenario: t.Scenario,
+		Reference: t.Reference, Frequency: t.Frequency,
+		Sweep:    SweepSpec{From: t.Sweep.From, To: t.Sweep.To, Points: t.Sweep.Points},
+		Cautions: t.Cautions, Params: []ParamInfo{}, Ports: []PortInfo{}}
+	for _, p := range t.Params {
+		e.Params = append(e.Params, ParamInfo{Name: p.Name, Symbol: p.Symbol, Meaning: p.Meaning, Unit: p.Unit,
+			Default: p.Default, Min: p.Min, Max: p.Max, Optional: p.Optional, Group: p.Group})
+	}
+	for _, p := range t.Ports {
+		e.Ports = append(e.Ports, PortInfo{Name: p.Name, Title: p.Title, A: p.A, B: p.B})
+	}
+	if g := t.Gain; g != nil {
+		e.Gain = &GainInfo{Source: g.Source, Output: g.Output, Unit: g.Unit, Title: g.Title}
+	}
+	return e
+}
+
+// LookupEntry returns the catalog entry of stage id.
+func LookupEntry(id string) (CatalogEntry, bool) {
+	t, ok := topology.Lookup(id)
+	if !ok {
+		return CatalogEntry{}, false
+	}
+	return Entry(t), true
 }

@@ -116,7 +116,8 @@ type PortResult struct {
 	// Y is the port admittance from the admittance form of Blackman's
 	// formula, given only when Z is not finite.
 	Y *Complex `json:"y,omitempty"`
-	// Agreement is |Z − ZDirect| / |ZDirect| (null when either is not finite).
+	// Agreement is |Z − ZDirect| / max(|Z|, |ZDirect|), absolute when one
+	// is exactly zero (null when either is not finite).
 	Agreement *float64 `json:"agreement"`
 }
 

@@ -44,7 +44,8 @@ type PortResult struct {
 	// Y is the admittance form of Blackman's formula, set when Z is not
 	// finite but the admittance is.
 	Y complex128
-	// Agreement is |Z − ZDirect|/|ZDirect|, NaN when either is not finite.
+	// Agreement is |Z − ZDirect|/max(|Z|, |ZDirect|) (absolute when one is
+	// exactly zero), NaN when either is not finite.
 	Agreement float64
 }
 
@@ -200,6 +201,9 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	if err != nil {
 		return Point{}, a.explain(err, cfgK, "")
 	}
+	if mp := baseK.lu.MinPivot(); mp < 1e-8 {
+		note("%s: the equations are ill-conditioned (smallest relative pivot %.1e): expect about %d good digits, not 15", hz(f), mp, max(1, int(16+math.Log10(mp))))
+	}
 	cfg0 := mna.Config{F: f, Ref: a.ref}
 	base0, err0 := a.factor("base0", cfg0)
 	xr := a.bufs[0]
@@ -291,9 +295,6 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, err0 error, baseK *slot,
 			res.TShort = a.returnRatio(short0, f, N+1, a.bufs[3])
 		}
 	}
-	if errShort0 != nil {
-		note("%s: port %s: with the port shorted and the reference gain at zero the circuit has no solution, so T short is not finite", hz(f), p.Name)
-	}
 	if errOpen0 == nil {
 		open0.lu.SolveTo(x[:N], bp[:N])
 		res.Z0 = vp(x)
@@ -307,7 +308,15 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, err0 error, baseK *slot,
 	} else {
 		note("%s: port %s: with the port open the full circuit has no solution, so the direct impedance is infinite", hz(f), p.Name)
 	}
-	if finite(res.Z0) && finite(res.TShort) && finite(res.TOpen) {
+	if errShort0 != nil && res.Z0 != 0 {
+		note("%s: port %s: with the port shorted and the reference gain at zero the circuit has no solution, so T short is not finite", hz(f), p.Name)
+	}
+	if res.Z0 == 0 && !finite(res.TShort) && finite(res.TOpen) {
+		// An ideal voltage source at the port: shorting it is undefined,
+		// but Blackman's product is zero whatever T short is.
+		note("%s: port %s: an ideal voltage source drives the port (Z₀ = 0), so T short is undefined and Z = 0", hz(f), p.Name)
+		res.Z = 0
+	} else if finite(res.Z0) && finite(res.TShort) && finite(res.TOpen) {
 		den := 1 + res.TOpen
 		if cmplx.Abs(den) <= 1e-14*math.Max(1, cmplx.Abs(res.TOpen)) {
 			note("%s: port %s: 1 + T open = 0, so the impedance is infinite; its admittance is given instead", hz(f), p.Name)
@@ -353,11 +362,13 @@ func relDiff(a, b complex128) float64 {
 	if !finite(a) || !finite(b) {
 		return math.NaN()
 	}
+	// Relative, except that an exact zero (Blackman's product when Z₀ = 0)
+	// against rounding residue is compared absolutely.
 	d := cmplx.Abs(a - b)
-	if m := cmplx.Abs(b); m > 0 {
-		return d / m
+	if a == 0 || b == 0 {
+		return d
 	}
-	return d
+	return d / math.Max(cmplx.Abs(a), cmplx.Abs(b))
 }
 
 // hz writes a frequency for notes.
