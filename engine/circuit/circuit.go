@@ -110,6 +110,12 @@ func (c *Circuit) Part(name string) (*Part, bool) {
 	return &c.Parts[i], true
 }
 
+// PartIndex returns the index in Parts of the part called name.
+func (c *Circuit) PartIndex(name string) (int, bool) {
+	i, ok := c.parts[name]
+	return i, ok
+}
+
 // Node returns the index of the node called name.
 func (c *Circuit) Node(name string) (int, bool) {
 	i, ok := c.nodes[name]

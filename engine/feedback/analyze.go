@@ -19,6 +19,23 @@ type Port struct {
 	A, B int // circuit node indices
 	// Drivers are the voltage sources wired exactly across the port.
 	Drivers []int
+	// HeldBy names the ideal voltage sources (other than the drivers)
+	// that connect A to B: such a port's impedance is exactly zero.
+	HeldBy []string
+	keys   map[string]string
+}
+
+// key names the port's cached factorization of one kind.
+func (p *Port) key(kind string) string {
+	if k, ok := p.keys[kind]; ok {
+		return k
+	}
+	if p.keys == nil {
+		p.keys = map[string]string{}
+	}
+	k := kind + ":" + p.Name
+	p.keys[kind] = k
+	return k
 }
 
 // Gain is a resolved gain request.
@@ -75,10 +92,14 @@ type Analyzer struct {
 	ref   int // index in Sys.Controls
 	Ports []Port
 	Gain  *Gain
+	// Explicit computes every Blackman term from its own factorization
+	// instead of the compensation theorem: slower, and a check on the
+	// fast path.
+	Explicit bool
 
 	slots map[string]*slot
 	r     []complex128 // reference injection, length Sys.N+1
-	bufs  [4][]complex128
+	bufs  [6][]complex128
 }
 
 type slot struct {
@@ -113,7 +134,9 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	}
 	a.ref = sys.ControlOf(a.Ref)
 	for i := range a.Ports {
-		a.Ports[i].Drivers = drivers(c, a.Ports[i].A, a.Ports[i].B)
+		p := &a.Ports[i]
+		p.Drivers = drivers(c, p.A, p.B)
+		p.HeldBy = heldBy(c, p.A, p.B, p.Drivers)
 	}
 	if gain != nil {
 		k := c.Parts[gain.Source].Kind
@@ -127,6 +150,53 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 		a.bufs[i] = make([]complex128, sys.N+1)
 	}
 	return a, nil
+}
+
+// heldBy returns the ideal voltage sources on a path from node pa to node
+// pb, when there is one: vsources (other than the port's drivers), vcvs
+// outputs and opamp outputs without ro. A current injected into such a port
+// flows through the path and changes no other equation — unless a
+// current-controlled source senses a part on the path, in which case there
+// is no such rule and heldBy returns nil.
+func heldBy(c *circuit.Circuit, pa, pb int, drivers []int) []string {
+	skip := map[int]bool{}
+	for _, d := range drivers {
+		skip[d] = true
+	}
+	sensed := map[int]bool{}
+	for _, p := range c.Parts {
+		if p.Kind == circuit.CCVS || p.Kind == circuit.CCCS {
+			sensed[p.Sense] = true
+		}
+	}
+	type edge struct {
+		a, b int
+		part int
+	}
+	var edges []edge
+	for i, p := range c.Parts {
+		switch {
+		case skip[i]:
+		case p.Kind == circuit.VSource || p.Kind == circuit.VCVS:
+			edges = append(edges, edge{p.Nodes[0], p.Nodes[1], i})
+		case p.Kind == circuit.OpAmp && p.Amp.Ro == 0:
+			edges = append(edges, edge{p.Nodes[2], circuit.Gnd, i})
+		}
+	}
+	names := pathBetween(pa, pb, len(c.Nodes), func(yield func(a, b int, name string)) {
+		for _, e := range edges {
+			yield(e.a, e.b, c.Parts[e.part].Name)
+		}
+	})
+	if len(names) == 0 {
+		return nil
+	}
+	for _, n := range names {
+		if i, ok := c.PartIndex(n); ok && sensed[i] {
+			return nil
+		}
+	}
+	return names
 }
 
 func drivers(c *circuit.Circuit, pa, pb int) []int {
@@ -275,32 +345,89 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, err0 error, baseK *slot,
 		return v
 	}
 	x := a.bufs[2]
+	if len(p.HeldBy) > 0 && len(p.Drivers) == 0 && err0 == nil {
+		// Exactly zero by structure; the direct solution still runs, so
+		// its rounding residue shows as the agreement.
+		res.Z0, res.Z, res.TOpen = 0, 0, T
+		baseK.lu.SolveTo(x[:N], bp[:N])
+		res.ZDirect = vp(x)
+		res.Agreement = relDiff(res.Z, res.ZDirect)
+		note("%s: port %s is held by ideal voltage sources (%s): its impedance is exactly 0, and T short is undefined", hz(f), p.Name, strings.Join(p.HeldBy, ", "))
+		return res
+	}
 	open0, openK := base0, baseK
 	errOpen0, errOpenK := err0, error(nil)
 	var short0 *slot
 	var errShort0 error
-	if len(p.Drivers) > 0 {
-		// The port's driver is removed for the open port; the driver,
-		// zeroed, is itself the short.
-		cfg := mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}
-		open0, errOpen0 = a.factor("open0:"+p.Name, cfg)
-		cfg.RefGain = true
-		openK, errOpenK = a.factor("openK:"+p.Name, cfg)
-		short0, errShort0 = base0, err0
-		res.TShort = T
-	} else {
-		cfg := mna.Config{F: f, Ref: a.ref, Short: &[2]int{p.A, p.B}}
-		short0, errShort0 = a.factor("short0:"+p.Name, cfg)
-		if errShort0 == nil {
-			res.TShort = a.returnRatio(short0, f, N+1, a.bufs[3])
+	if err0 == nil && !a.Explicit && len(p.Drivers) <= 1 {
+		// One factorization, base0, gives all three Blackman terms: the
+		// port's other state follows from the compensation theorem (one
+		// extra solve), exact in exact arithmetic. Z direct keeps its own
+		// factorization, so the check stays independent.
+		xr := a.bufs[0]
+		k := a.gainAt(f)
+		base0.lu.SolveTo(x[:N], bp[:N])
+		if len(p.Drivers) == 1 {
+			// base0 holds the driver as a 0 V source: the port shorted.
+			// Removing it is a voltage v on the driver that makes its
+			// current zero.
+			d := p.Drivers[0]
+			br := a.Sys.Branch[d]
+			sign := complex(1, 0)
+			if a.C.Parts[d].Nodes[0] != p.A {
+				sign = -1
+			}
+			e, xd := a.bufs[4], a.bufs[5]
+			clear(e)
+			e[br] = 1
+			base0.lu.SolveTo(xd[:N], e[:N])
+			res.TShort = T
+			if xd[br] != 0 {
+				corr := k * a.Sys.ControlSignal(a.ref, f, xd) * xr[br] / xd[br]
+				res.TOpen = sum(T, corr)
+				res.Z0 = -sign * x[br] / xd[br]
+			} else {
+				errOpen0 = &mna.Singular{Index: br, Kind: "pivot"}
+			}
+			cfg := mna.Config{F: f, Ref: a.ref, RefGain: true, Removed: p.Drivers}
+			openK, errOpenK = a.factor(p.key("openK"), cfg)
+		} else {
+			res.Z0 = vp(x)
+			res.TOpen = T
+			if res.Z0 != 0 {
+				corr := k * a.Sys.ControlSignal(a.ref, f, x) * vp(xr) / res.Z0
+				res.TShort = sum(T, corr)
+			} else {
+				errShort0 = &mna.Singular{Kind: "pivot"}
+			}
 		}
-	}
-	if errOpen0 == nil {
-		open0.lu.SolveTo(x[:N], bp[:N])
-		res.Z0 = vp(x)
-		res.TOpen = a.returnRatio(open0, f, N, a.bufs[3])
+		if errOpen0 != nil {
+			note("%s: port %s: with the reference gain at zero nothing connects the open port, so Z₀ is infinite and T open is not finite", hz(f), p.Name)
+		}
 	} else {
-		note("%s: port %s: with the reference gain at zero nothing connects the open port (%v), so Z₀ is infinite and T open is not finite", hz(f), p.Name, a.explain(errOpen0, mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}, "with the port open and the reference gain at zero"))
+		if len(p.Drivers) > 0 {
+			// The port's driver is removed for the open port; the driver,
+			// zeroed, is itself the short.
+			cfg := mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}
+			open0, errOpen0 = a.factor(p.key("open0"), cfg)
+			cfg.RefGain = true
+			openK, errOpenK = a.factor(p.key("openK"), cfg)
+			short0, errShort0 = base0, err0
+			res.TShort = T
+		} else {
+			cfg := mna.Config{F: f, Ref: a.ref, Short: &[2]int{p.A, p.B}}
+			short0, errShort0 = a.factor(p.key("short0"), cfg)
+			if errShort0 == nil {
+				res.TShort = a.returnRatio(short0, f, N+1, a.bufs[3])
+			}
+		}
+		if errOpen0 == nil {
+			open0.lu.SolveTo(x[:N], bp[:N])
+			res.Z0 = vp(x)
+			res.TOpen = a.returnRatio(open0, f, N, a.bufs[3])
+		} else {
+			note("%s: port %s: with the reference gain at zero nothing connects the open port (%v), so Z₀ is infinite and T open is not finite", hz(f), p.Name, a.explain(errOpen0, mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}, "with the port open and the reference gain at zero"))
+		}
 	}
 	if errOpenK == nil {
 		openK.lu.SolveTo(x[:N], bp[:N])
@@ -352,6 +479,17 @@ func (a *Analyzer) output(x []complex128) complex128 {
 	}
 	if i := mna.NodeVar(a.Gain.OutB); i >= 0 {
 		v -= x[i]
+	}
+	return v
+}
+
+// sum adds a correction to a return ratio, rounding to zero a result
+// smaller than the rounding of its own terms (a port short that cuts the
+// loop exactly, say).
+func sum(t, corr complex128) complex128 {
+	v := t + corr
+	if cmplx.Abs(v) <= 1e-13*(cmplx.Abs(t)+cmplx.Abs(corr)) {
+		return 0
 	}
 	return v
 }

@@ -217,6 +217,9 @@ func pathBetween(a, b, n int, edges func(yield func(a, b int, name string))) []s
 			}
 		}
 	}
+	if prev[b] == -2 {
+		return nil
+	}
 	var names []string
 	for v := b; v != a && v >= 0 && prev[v] != -2; v = prev[v] {
 		names = append(names, via[v])

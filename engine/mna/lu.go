@@ -16,6 +16,8 @@ type LU struct {
 	piv    []int
 	rs, cs []float64 // row and column scale factors
 	work   []complex128
+	nz     []int
+	inv    []complex128 // reciprocals of U's diagonal
 	minPiv float64
 }
 
@@ -39,7 +41,10 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		lu.rs = make([]float64, n)
 		lu.cs = make([]float64, n)
 		lu.work = make([]complex128, n)
+		lu.nz = make([]int, 0, n)
+		lu.inv = make([]complex128, n)
 	}
+	lu.inv = lu.inv[:n]
 	lu.piv, lu.rs, lu.cs, lu.work = lu.piv[:n], lu.rs[:n], lu.cs[:n], lu.work[:n]
 	// Equilibrate rows, then columns, to largest magnitude 1 (powers of two
 	// so the scaling itself is exact).
@@ -47,21 +52,27 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		m := 0.0
 		row := a[i*n : i*n+n]
 		for _, v := range row {
-			m = math.Max(m, abs1(v))
+			if x := abs1(v); x > m {
+				m = x
+			}
 		}
 		if m == 0 {
 			return &Singular{Index: i, Kind: "row"}
 		}
 		s := pow2inv(m)
 		lu.rs[i] = s
-		for j := range row {
-			row[j] *= complex(s, 0)
+		for j, v := range row {
+			if v != 0 {
+				row[j] = complex(real(v)*s, imag(v)*s)
+			}
 		}
 	}
 	for j := 0; j < n; j++ {
 		m := 0.0
-		for i := 0; i < n; i++ {
-			m = math.Max(m, abs1(a[i*n+j]))
+		for i := j; i < n*n; i += n {
+			if x := abs1(a[i]); x > m {
+				m = x
+			}
 		}
 		if m == 0 {
 			return &Singular{Index: j, Kind: "column"}
@@ -69,8 +80,10 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		s := pow2inv(m)
 		lu.cs[j] = s
 		if s != 1 {
-			for i := 0; i < n; i++ {
-				a[i*n+j] *= complex(s, 0)
+			for i := j; i < n*n; i += n {
+				if a[i] != 0 {
+					a[i] = complex(real(a[i])*s, imag(a[i])*s)
+				}
 			}
 		}
 	}
@@ -78,8 +91,10 @@ func (lu *LU) Factor(a []complex128, n int) error {
 	for k := 0; k < n; k++ {
 		p, pm := k, abs1(a[k*n+k])
 		for i := k + 1; i < n; i++ {
-			if m := abs1(a[i*n+k]); m > pm {
-				p, pm = i, m
+			if v := a[i*n+k]; v != 0 {
+				if m := abs1(v); m > pm {
+					p, pm = i, m
+				}
 			}
 		}
 		lu.piv[k] = p
@@ -93,8 +108,17 @@ func (lu *LU) Factor(a []complex128, n int) error {
 				rk[j], rp[j] = rp[j], rk[j]
 			}
 		}
-		inv := 1 / a[k*n+k]
-		rk := a[k*n+k+1 : k*n+n]
+		inv := recip(a[k*n+k])
+		lu.inv[k] = inv
+		// Circuit matrices are sparse: update only the pivot row's nonzero
+		// columns, so a ladder costs O(n²) rather than O(n³).
+		nz := lu.nz[:0]
+		for j := k + 1; j < n; j++ {
+			if a[k*n+j] != 0 {
+				nz = append(nz, j)
+			}
+		}
+		lu.nz = nz
 		for i := k + 1; i < n; i++ {
 			l := a[i*n+k]
 			if l == 0 {
@@ -102,9 +126,10 @@ func (lu *LU) Factor(a []complex128, n int) error {
 			}
 			l *= inv
 			a[i*n+k] = l
-			ri := a[i*n+k+1 : i*n+n]
-			for j, u := range rk {
-				ri[j] -= l * u
+			ri := a[i*n : i*n+n]
+			rk := a[k*n : k*n+n]
+			for _, j := range nz {
+				ri[j] -= l * rk[j]
 			}
 		}
 	}
@@ -132,17 +157,22 @@ func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
 		s := y[i]
 		row := a[i*n : i*n+i]
 		for j, l := range row {
-			s -= l * y[j]
+			if l != 0 {
+				s -= l * y[j]
+			}
 		}
 		y[i] = s
 	}
 	for i := n - 1; i >= 0; i-- {
 		s := y[i]
 		row := a[i*n+i+1 : i*n+n]
+		yy := y[i+1 : n]
 		for j, u := range row {
-			s -= u * y[i+1+j]
+			if u != 0 {
+				s -= u * yy[j]
+			}
 		}
-		y[i] = s / a[i*n+i]
+		y[i] = s * lu.inv[i]
 	}
 	for i := 0; i < n; i++ {
 		dst[i] = y[i] * complex(lu.cs[i], 0)
@@ -150,8 +180,25 @@ func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
 	return dst
 }
 
+// recip is 1/z without the care Go's complex division takes for values
+// near overflow: pivots here are equilibrated to magnitudes near 1.
+func recip(z complex128) complex128 {
+	r, i := real(z), imag(z)
+	d := r*r + i*i
+	return complex(r/d, -i/d)
+}
+
 // abs1 is |re| + |im|, a cheap norm good enough for pivoting and scaling.
-func abs1(v complex128) float64 { return math.Abs(real(v)) + math.Abs(imag(v)) }
+func abs1(v complex128) float64 {
+	r, i := real(v), imag(v)
+	if r < 0 {
+		r = -r
+	}
+	if i < 0 {
+		i = -i
+	}
+	return r + i
+}
 
 // pow2inv returns the power of two nearest 1/m.
 func pow2inv(m float64) float64 {

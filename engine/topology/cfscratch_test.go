@@ -1,0 +1,33 @@
+package topology_test
+
+import (
+	"encoding/json"
+	"os"
+	"testing"
+
+	"zport/engine/api"
+	"zport/engine/topology"
+)
+
+func TestCfScratch(t *testing.T) {
+	id := os.Getenv("CFID")
+	if id == "" {
+		t.Skip()
+	}
+	st, _ := topology.Lookup(id)
+	v, _ := st.Values(nil)
+	t.Log("\n" + st.Circuit(v))
+	r, err := api.Analyze(api.Request{Topology: id, Frequency: st.Frequency})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, _ := json.MarshalIndent(r.Topology.Extras, "", " ")
+	t.Log(string(b))
+	for _, p := range r.Ports {
+		t.Log(p.Name, p.Z0.Value(), p.TShort.Value(), p.TOpen.Value(), p.Z.Value(), p.ZDirect.Value())
+	}
+	if r.Gain != nil {
+		t.Log("gain", r.Gain.G.Value(), r.Gain.GDirect.Value())
+	}
+	t.Log(r.Notes)
+}
