@@ -2,6 +2,7 @@
 // with its live calculators, and answers analysis requests for scripts.
 //
 //	go run ./build                 build dist/ and print the path of dist/index.html
+//	go run ./build open            build, then open dist/index.html in the browser
 //	go run ./build serve [addr]    build, then serve dist/ on 127.0.0.1 (default :8080)
 //	go run ./build single          build one self-contained HTML file
 //	go run ./build analyze         read a request (JSON) on stdin, write the response
@@ -24,6 +25,8 @@ func main() {
 	switch cmd {
 	case "", "site":
 		err = runBuild(args)
+	case "open":
+		err = runOpen(args)
 	case "serve":
 		err = runServe(args)
 	case "single":
@@ -50,6 +53,7 @@ func main() {
 const usage = `usage: go run ./build [command]
 
   (none)       build the site into dist/ and print the path of dist/index.html
+  open         build, then open dist/index.html in the system's browser
   serve [addr] build, then serve dist/ over http on 127.0.0.1 (default 127.0.0.1:8080)
   single       build one self-contained HTML file, dist/zport-single.html
   analyze      read an analysis request (JSON) on stdin, write the response JSON

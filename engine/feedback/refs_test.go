@@ -235,3 +235,23 @@ capacitor CL out gnd 1p
 		}
 	}
 }
+
+// Transimpedance input with a = ωt/s: Zin ≈ (Zf + ro)/(1 + a), which looks
+// like an inductor L = Rf/(2π·gbw) well inside the loop bandwidth [derived],
+// REFERENCES.md §3. Here Rf = 1 MΩ, gbw = 10 MHz → L = 15.915 mH.
+func TestTransimpedanceInputInductive(t *testing.T) {
+	a := analyzer(t, `
+isource Iin gnd n 1u
+resistor Rf n out 1M
+opamp U1 gnd n out a0=1G gbw=10M
+`, "U1", [][3]string{{"in", "n", "gnd"}}, nil)
+	f := 1e3
+	p, _ := a.At(f)
+	z := p.Ports[0].Z
+	L := imag(z) / (2 * math.Pi * f)
+	near(t, "L", complex(L, 0), 1e6/(2*math.Pi*10e6), 1e-6)
+	// Exact form (Zf + ro)/(1 + a) with ro = 0.
+	s := complex(0, 2*math.Pi*f)
+	aa := 1e9 / (1 + s/complex(2*math.Pi*10e6/1e9, 0))
+	nearC(t, "Zin", z, 1e6/(1+aa), 1e-12)
+}

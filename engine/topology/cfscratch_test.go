@@ -31,3 +31,14 @@ func TestCfScratch(t *testing.T) {
 	}
 	t.Log(r.Notes)
 }
+
+func TestCfProbe(t *testing.T) {
+	if os.Getenv("CFPROBE") == "" {
+		t.Skip()
+	}
+	r, err := api.Analyze(api.Request{Topology: "integrator", Params: map[string]string{"R2": ""}, Frequency: 0})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Log("T", r.ReturnRatio.Value(), "G", r.Gain.G, "G0", r.Gain.G0, "GInf", r.Gain.GInf, "GDirect", r.Gain.GDirect.Value(), r.Notes)
+}

@@ -109,10 +109,21 @@ type Topology struct {
 	Frequency   float64 // suggested spot frequency
 	Sweep       Sweep
 	Cautions    []string
+	// Ratios are the resistor pairs whose quotient sets the stage's
+	// behaviour (a gain, a divider), for standard-value snapping.
+	Ratios []Ratio
 	// Circuit generates the circuit text for v.
 	Circuit func(v Values) string
 	// Forms evaluates the closed forms at frequency f.
 	Forms func(v Values, f float64) Forms
+}
+
+// Ratio is a pair of parameters whose quotient matters: Num/Den, or
+// 1 + Num/Den when Plus1 (a non-inverting gain).
+type Ratio struct {
+	Num, Den string
+	Plus1    bool
+	Title    string // e.g. "gain-setting ratio R2/R1"
 }
 
 // ParamError reports a bad parameter value by name.
