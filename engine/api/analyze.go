@@ -225,11 +225,13 @@ func Analyze(req Request) (*Response, error) {
 // Run analyzes a prepared request.
 func (p *Prepared) Run() (*Response, error) {
 	a := p.Analyzer
+	a.Condition = true
 	pt, err := a.At(p.Req.Frequency)
+	a.Condition = false
 	if err != nil {
 		return nil, &Problem{Msg: err.Error()}
 	}
-	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), Notes: []string{}}
+	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), Notes: []string{}, Condition: F(pt.Cond)}
 	for i, pr := range pt.Ports {
 		resp.Ports = append(resp.Ports, portResult(a, i, pr))
 	}

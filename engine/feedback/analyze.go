@@ -79,6 +79,10 @@ type Point struct {
 	Ports []PortResult
 	Gain  *GainResult
 	Notes []string
+	// Cond is the largest estimated condition number among the systems
+	// solved, when Analyzer.Condition is set (else 0): expect relative
+	// errors of about Cond·2⁻⁵³.
+	Cond float64
 }
 
 // Analyzer analyzes one circuit for one reference element, a set of ports
@@ -92,14 +96,14 @@ type Analyzer struct {
 	ref   int // index in Sys.Controls
 	Ports []Port
 	Gain  *Gain
-	// Explicit computes every Blackman term from its own factorization
-	// instead of the compensation theorem: slower, and a check on the
-	// fast path.
-	Explicit bool
+	// Condition asks At to estimate the condition of every system it
+	// solves (a few extra solves each; meant for spot analyses).
+	Condition bool
 
 	slots map[string]*slot
+	used  []*slot      // factored during the current At
 	r     []complex128 // reference injection, length Sys.N+1
-	bufs  [6][]complex128
+	bufs  [4][]complex128
 }
 
 type slot struct {
@@ -108,6 +112,9 @@ type slot struct {
 	err error
 	f   float64
 	ok  bool
+	// The structural check, done once (per DC or not).
+	structErr   *SingularError
+	checked, dc bool
 }
 
 // New prepares an analysis of c with the named reference element.
@@ -223,9 +230,23 @@ func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
 	if s.ok && s.f == cfg.F {
 		return s, s.err
 	}
+	// The graph decides structural failures, whatever rounding would let
+	// the factorization pass; it depends on the frequency only through
+	// f = 0, so it is kept per slot.
+	dc := cfg.F == 0
+	if !s.checked || s.dc != dc {
+		s.structErr, s.checked, s.dc = a.structure(cfg, ""), true, dc
+	}
+	if s.structErr != nil {
+		s.f, s.ok, s.err = cfg.F, true, s.structErr
+		return s, s.err
+	}
 	s.mat = a.Sys.Assemble(s.mat, cfg)
 	s.err = s.lu.Factor(s.mat, a.Sys.Size(cfg))
 	s.f, s.ok = cfg.F, true
+	if s.err == nil {
+		a.used = append(a.used, s)
+	}
 	return s, s.err
 }
 
@@ -266,12 +287,13 @@ func (a *Analyzer) At(f float64) (Point, error) {
 		}
 	}
 	N := a.Sys.N
+	a.used = a.used[:0]
 	cfgK := mna.Config{F: f, Ref: a.ref, RefGain: true}
 	baseK, err := a.factor("baseK", cfgK)
 	if err != nil {
 		return Point{}, a.explain(err, cfgK, "")
 	}
-	if mp := baseK.lu.MinPivot(); mp < 1e-8 {
+	if mp := baseK.lu.MinPivot(); !a.Condition && mp < 1e-8 {
 		note("%s: the equations are ill-conditioned (smallest relative pivot %.1e): expect about %d good digits, not 15", hz(f), mp, max(1, int(16+math.Log10(mp))))
 	}
 	cfg0 := mna.Config{F: f, Ref: a.ref}
@@ -300,16 +322,19 @@ func (a *Analyzer) At(f float64) (Point, error) {
 			base0.lu.SolveTo(xs[:N], b[:N])
 			gr.G0 = a.output(xs)
 			cs := a.Sys.ControlSignal(a.ref, f, xs)
-			if cr != 0 {
-				gr.GInf = gr.G0 - a.output(xr)*cs/cr
-				gr.G = gr.GInf*pt.T/(1+pt.T) + gr.G0/(1+pt.T)
-			} else {
-				note("%s: the reference's control signal does not respond to its output (T = 0), so G∞ is not defined and G = G₀", hz(f))
-				gr.G = gr.G0
-			}
+			vr := a.output(xr)
+			// G = G∞·T/(1+T) + G₀/(1+T), written as G₀ + k·vr·cs/(1+T)
+			// (the same expression), so that a vanishing T needs no
+			// division by the returned signal.
 			if 1+pt.T == 0 {
-				gr.G = nan
 				note("%s: 1 + T = 0, so the asymptotic gain formula has no finite value", hz(f))
+			} else {
+				gr.G = gr.G0 + k*vr*cs/(1+pt.T)
+			}
+			if cr != 0 {
+				gr.GInf = gr.G0 - vr*cs/cr
+			} else {
+				note("%s: the reference's control signal does not respond to its output (T = 0), so G∞ is not defined", hz(f))
 			}
 		}
 		gr.Agreement = relDiff(gr.G, gr.GDirect)
@@ -318,6 +343,14 @@ func (a *Analyzer) At(f float64) (Point, error) {
 
 	for pi := range a.Ports {
 		pt.Ports = append(pt.Ports, a.port(pi, f, base0, err0, baseK, pt.T, note))
+	}
+	if a.Condition {
+		for _, s := range a.used {
+			pt.Cond = math.Max(pt.Cond, s.lu.Cond())
+		}
+		if digits := -math.Log10(pt.Cond * 0x1p-53); digits < 9 {
+			note("%s: the equations are ill-conditioned (condition ≈ %.1e): expect about %d good digits, not 15", hz(f), pt.Cond, max(1, int(digits)))
+		}
 	}
 	return pt, nil
 }
@@ -359,75 +392,28 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, err0 error, baseK *slot,
 	errOpen0, errOpenK := err0, error(nil)
 	var short0 *slot
 	var errShort0 error
-	if err0 == nil && !a.Explicit && len(p.Drivers) <= 1 {
-		// One factorization, base0, gives all three Blackman terms: the
-		// port's other state follows from the compensation theorem (one
-		// extra solve), exact in exact arithmetic. Z direct keeps its own
-		// factorization, so the check stays independent.
-		xr := a.bufs[0]
-		k := a.gainAt(f)
-		base0.lu.SolveTo(x[:N], bp[:N])
-		if len(p.Drivers) == 1 {
-			// base0 holds the driver as a 0 V source: the port shorted.
-			// Removing it is a voltage v on the driver that makes its
-			// current zero.
-			d := p.Drivers[0]
-			br := a.Sys.Branch[d]
-			sign := complex(1, 0)
-			if a.C.Parts[d].Nodes[0] != p.A {
-				sign = -1
-			}
-			e, xd := a.bufs[4], a.bufs[5]
-			clear(e)
-			e[br] = 1
-			base0.lu.SolveTo(xd[:N], e[:N])
-			res.TShort = T
-			if xd[br] != 0 {
-				corr := k * a.Sys.ControlSignal(a.ref, f, xd) * xr[br] / xd[br]
-				res.TOpen = sum(T, corr)
-				res.Z0 = -sign * x[br] / xd[br]
-			} else {
-				errOpen0 = &mna.Singular{Index: br, Kind: "pivot"}
-			}
-			cfg := mna.Config{F: f, Ref: a.ref, RefGain: true, Removed: p.Drivers}
-			openK, errOpenK = a.factor(p.key("openK"), cfg)
-		} else {
-			res.Z0 = vp(x)
-			res.TOpen = T
-			if res.Z0 != 0 {
-				corr := k * a.Sys.ControlSignal(a.ref, f, x) * vp(xr) / res.Z0
-				res.TShort = sum(T, corr)
-			} else {
-				errShort0 = &mna.Singular{Kind: "pivot"}
-			}
-		}
-		if errOpen0 != nil {
-			note("%s: port %s: with the reference gain at zero nothing connects the open port, so Z₀ is infinite and T open is not finite", hz(f), p.Name)
-		}
+	if len(p.Drivers) > 0 {
+		// The port's driver is removed for the open port; the driver,
+		// zeroed, is itself the short.
+		cfg := mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}
+		open0, errOpen0 = a.factor(p.key("open0"), cfg)
+		cfg.RefGain = true
+		openK, errOpenK = a.factor(p.key("openK"), cfg)
+		short0, errShort0 = base0, err0
+		res.TShort = T
 	} else {
-		if len(p.Drivers) > 0 {
-			// The port's driver is removed for the open port; the driver,
-			// zeroed, is itself the short.
-			cfg := mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}
-			open0, errOpen0 = a.factor(p.key("open0"), cfg)
-			cfg.RefGain = true
-			openK, errOpenK = a.factor(p.key("openK"), cfg)
-			short0, errShort0 = base0, err0
-			res.TShort = T
-		} else {
-			cfg := mna.Config{F: f, Ref: a.ref, Short: &[2]int{p.A, p.B}}
-			short0, errShort0 = a.factor(p.key("short0"), cfg)
-			if errShort0 == nil {
-				res.TShort = a.returnRatio(short0, f, N+1, a.bufs[3])
-			}
+		cfg := mna.Config{F: f, Ref: a.ref, Short: &[2]int{p.A, p.B}}
+		short0, errShort0 = a.factor(p.key("short0"), cfg)
+		if errShort0 == nil {
+			res.TShort = a.returnRatio(short0, f, N+1, a.bufs[3])
 		}
-		if errOpen0 == nil {
-			open0.lu.SolveTo(x[:N], bp[:N])
-			res.Z0 = vp(x)
-			res.TOpen = a.returnRatio(open0, f, N, a.bufs[3])
-		} else {
-			note("%s: port %s: with the reference gain at zero nothing connects the open port (%v), so Z₀ is infinite and T open is not finite", hz(f), p.Name, a.explain(errOpen0, mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}, "with the port open and the reference gain at zero"))
-		}
+	}
+	if errOpen0 == nil {
+		open0.lu.SolveTo(x[:N], bp[:N])
+		res.Z0 = vp(x)
+		res.TOpen = a.returnRatio(open0, f, N, a.bufs[3])
+	} else {
+		note("%s: port %s: with the reference gain at zero nothing connects the open port (%v), so Z₀ is infinite and T open is not finite", hz(f), p.Name, a.explain(errOpen0, mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}, "with the port open and the reference gain at zero"))
 	}
 	if errOpenK == nil {
 		openK.lu.SolveTo(x[:N], bp[:N])
@@ -479,17 +465,6 @@ func (a *Analyzer) output(x []complex128) complex128 {
 	}
 	if i := mna.NodeVar(a.Gain.OutB); i >= 0 {
 		v -= x[i]
-	}
-	return v
-}
-
-// sum adds a correction to a return ratio, rounding to zero a result
-// smaller than the rounding of its own terms (a port short that cuts the
-// loop exactly, say).
-func sum(t, corr complex128) complex128 {
-	v := t + corr
-	if cmplx.Abs(v) <= 1e-13*(cmplx.Abs(t)+cmplx.Abs(corr)) {
-		return 0
 	}
 	return v
 }

@@ -31,6 +31,27 @@ func (a *Analyzer) explain(err error, cfg mna.Config, context string) error {
 	if !errors.As(err, &s) {
 		return err
 	}
+	if se := a.structure(cfg, context); se != nil {
+		return se
+	}
+	ctx := ""
+	if context != "" {
+		ctx = " " + context
+	}
+	c := a.C
+	// 3. The structure is sound, so the values cancel.
+	where := ""
+	if s.Index >= 0 && s.Index < len(c.Nodes)-1 {
+		where = fmt.Sprintf(" (near node %s)", c.Nodes[s.Index+1])
+	}
+	return &SingularError{F: cfg.F, Msg: fmt.Sprintf("the circuit equations are singular at %s%s%s: controlled-source gains or part values cancel exactly, or impedances so unlike meet at one node (say 1 mΩ in series with 1 TΩ) that double precision cannot tell them apart; change one of them", fmtHz(cfg.F), ctx, where)}
+}
+
+// structure checks the circuit's graph under cfg for the two ways a
+// circuit's equations fail whatever its values: nodes that nothing ties to
+// gnd, and loops of parts that each force a voltage. It returns nil when the
+// structure is sound.
+func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 	c := a.C
 	ctx := ""
 	if context != "" {
@@ -41,11 +62,23 @@ func (a *Analyzer) explain(err error, cfg mna.Config, context string) error {
 		removed[r] = true
 	}
 	dc := cfg.F == 0
+	refIdx := a.Ref
 	// 1. Nodes with no path to gnd through parts that fix a voltage.
 	uf := newUF(len(c.Nodes))
 	for i, p := range c.Parts {
 		switch p.Kind {
-		case circuit.ISource, circuit.VCCS, circuit.CCCS:
+		case circuit.ISource, circuit.CCCS:
+			continue
+		case circuit.VCCS:
+			// A transconductance whose control includes its own output
+			// node acts as a conductance there (a diode-connected device).
+			if i == refIdx && !cfg.RefGain {
+				continue
+			}
+			out := [2]int{p.Nodes[0], p.Nodes[1]}
+			if p.Ctrl[0] == out[0] || p.Ctrl[0] == out[1] || p.Ctrl[1] == out[0] || p.Ctrl[1] == out[1] {
+				uf.union(out[0], out[1])
+			}
 			continue
 		case circuit.Capacitor:
 			if dc {
@@ -117,7 +150,6 @@ func (a *Analyzer) explain(err error, cfg mna.Config, context string) error {
 	}
 	for i, e := range edges {
 		if vf.find(e.a) == vf.find(e.b) {
-			// Find the path between e.a and e.b among the earlier edges.
 			path := pathBetween(e.a, e.b, len(c.Nodes), func(yield func(a, b int, name string)) {
 				for _, f := range edges[:i] {
 					yield(f.a, f.b, f.name)
@@ -129,16 +161,11 @@ func (a *Analyzer) explain(err error, cfg mna.Config, context string) error {
 			if dc {
 				what = "at DC, a loop of voltage sources and inductors"
 			}
-			return &SingularError{F: cfg.F, Parts: parts, Msg: fmt.Sprintf("%s %s%s: their voltages cannot all hold (%s)", list(parts), "form "+what, ctx, "remove one or add series resistance")}
+			return &SingularError{F: cfg.F, Parts: parts, Msg: fmt.Sprintf("%s form %s%s: their voltages cannot all hold (remove one or add series resistance)", list(parts), what, ctx)}
 		}
 		vf.union(e.a, e.b)
 	}
-	// 3. The structure is sound, so the values cancel.
-	where := ""
-	if s.Index >= 0 && s.Index < len(c.Nodes)-1 {
-		where = fmt.Sprintf(" (near node %s)", c.Nodes[s.Index+1])
-	}
-	return &SingularError{F: cfg.F, Msg: fmt.Sprintf("the circuit equations are singular at %s%s%s: controlled-source gains or part values cancel exactly, or impedances so unlike meet at one node (say 1 mΩ in series with 1 TΩ) that double precision cannot tell them apart; change one of them", fmtHz(cfg.F), ctx, where)}
+	return nil
 }
 
 func contains(l []string, s string) bool {

@@ -2,6 +2,7 @@ package mna
 
 import (
 	"math"
+	"math/cmplx"
 )
 
 // PivotTolerance is the smallest pivot magnitude, relative to the
@@ -19,6 +20,7 @@ type LU struct {
 	nz     []int
 	inv    []complex128 // reciprocals of U's diagonal
 	minPiv float64
+	norm1  float64 // 1-norm of the equilibrated matrix
 }
 
 // Singular reports a failed factorization: the equilibrated matrix has a
@@ -86,6 +88,14 @@ func (lu *LU) Factor(a []complex128, n int) error {
 				}
 			}
 		}
+	}
+	lu.norm1 = 0
+	for j := 0; j < n; j++ {
+		c := 0.0
+		for i := j; i < n*n; i += n {
+			c += abs1(a[i])
+		}
+		lu.norm1 = math.Max(lu.norm1, c)
 	}
 	lu.minPiv = math.Inf(1)
 	for k := 0; k < n; k++ {
@@ -186,6 +196,98 @@ func recip(z complex128) complex128 {
 	r, i := real(z), imag(z)
 	d := r*r + i*i
 	return complex(r/d, -i/d)
+}
+
+// Cond estimates the 1-norm condition number of the equilibrated matrix of
+// the last successful Factor (Hager's method as refined by Higham, the one
+// LAPACK's xLACON uses): a relative error in the solution of about
+// Cond·2⁻⁵³ is to be expected. It costs a few extra solves, so callers use
+// it at a spot frequency rather than in sweeps.
+func (lu *LU) Cond() float64 {
+	n := lu.n
+	x := make([]complex128, n)
+	y := make([]complex128, n)
+	for i := range x {
+		x[i] = complex(1/float64(n), 0)
+	}
+	est := 0.0
+	for iter := 0; iter < 5; iter++ {
+		lu.solveScaled(y, x, false)
+		e := 0.0
+		for _, v := range y {
+			e += cmplx.Abs(v)
+		}
+		if iter > 0 && e <= est {
+			break
+		}
+		est = e
+		for i, v := range y {
+			if m := cmplx.Abs(v); m > 0 {
+				y[i] = v / complex(m, 0)
+			} else {
+				y[i] = 1
+			}
+		}
+		lu.solveScaled(x, y, true)
+		j, zmax := 0, 0.0
+		for i, v := range x {
+			if m := cmplx.Abs(v); m > zmax {
+				j, zmax = i, m
+			}
+		}
+		clear(x)
+		x[j] = 1
+	}
+	return est * lu.norm1
+}
+
+// solveScaled solves the equilibrated system Ã·x = b, or Ãᴴ·x = b.
+func (lu *LU) solveScaled(dst, b []complex128, conjTrans bool) {
+	n, a := lu.n, lu.a
+	y := dst
+	copy(y, b)
+	if !conjTrans {
+		for k := 0; k < n; k++ {
+			if p := lu.piv[k]; p != k {
+				y[k], y[p] = y[p], y[k]
+			}
+		}
+		for i := 1; i < n; i++ {
+			s := y[i]
+			for j := 0; j < i; j++ {
+				s -= a[i*n+j] * y[j]
+			}
+			y[i] = s
+		}
+		for i := n - 1; i >= 0; i-- {
+			s := y[i]
+			for j := i + 1; j < n; j++ {
+				s -= a[i*n+j] * y[j]
+			}
+			y[i] = s * lu.inv[i]
+		}
+		return
+	}
+	// (P·L·U)ᴴ: solve Uᴴ·w = b, Lᴴ·v = w, then undo the pivoting.
+	for i := 0; i < n; i++ {
+		s := y[i]
+		for j := 0; j < i; j++ {
+			s -= cmplx.Conj(a[j*n+i]) * y[j]
+		}
+		y[i] = s * cmplx.Conj(lu.inv[i])
+	}
+	for i := n - 1; i >= 0; i-- {
+		s := y[i]
+		for j := i + 1; j < n; j++ {
+			s -= cmplx.Conj(a[j*n+i]) * y[j]
+		}
+		y[i] = s
+	}
+	for k := n - 1; k >= 0; k-- {
+		if p := lu.piv[k]; p != k {
+			y[k], y[p] = y[p], y[k]
+		}
+	}
 }
 
 // abs1 is |re| + |im|, a cheap norm good enough for pivoting and scaling.

@@ -2,6 +2,8 @@ package topology
 
 import (
 	"fmt"
+	"math"
+	"math/cmplx"
 	"strings"
 )
 
@@ -41,7 +43,8 @@ func degNetOf(v Values, f float64) degNet {
 // two-node case only C11, C12, C22 matter).
 func (n degNet) cof() (det, c11, c22, c33, c12, c13, c23 complex128) {
 	if !n.hasRg {
-		det = n.m11*n.m22 - n.m12*n.m12
+		// m11·m22 − g_o², expanded so that g_o² cancels by hand.
+		det = n.go_*(n.gs+n.ygs) + (n.yl+n.ygd)*n.m22
 		return det, n.m22, n.m11, 0, -n.m12, 0, 0
 	}
 	c11 = n.m22*n.m33 - n.m23*n.m23
@@ -79,9 +82,15 @@ func (n degNet) source() (vd, vgs complex128) {
 	return vd, 1 - vs
 }
 
+// T = −gm·vgs_r, with the cofactor sum C13 − C23 − C12 + C22 reduced by
+// hand to Y_L(G_g + Y_gd) + Y_gd(G_g + G_S) (Y_L + Y_gd without Rg) so that
+// no difference of large terms is left.
 func (n degNet) T() complex128 {
-	_, vgs := n.injection()
-	return -n.gm * vgs
+	det, _, _, _, _, _, _ := n.cof()
+	if !n.hasRg {
+		return n.gm * (n.yl + n.ygd) / det
+	}
+	return n.gm * (n.yl*(n.yg+n.ygd) + n.ygd*(n.yg+n.gs)) / det
 }
 
 // tsc is T with the drain shorted to ground: vgs_r = −(Yg + Ygd)/C11.
@@ -134,8 +143,8 @@ func degForms(v Values, f float64) Forms {
 		"g_o = 1/r_O, G_S = 1/R_S, G_g = 1/R_g, Y_gs = sC_gs, Y_gd = sC_gd, Y_L = 1/R_L + sC_L; Δ its determinant, C_ij its cofactors " +
 		"(without R_g the gate is Vin's node and the matrix is the 2×2 over (d, s))"
 	var out Forms
-	out.T = cfF(T, "T = −g_m·v_gs for 1 A injected drain → source = g_m(C13 − C23 − C12 + C22)/Δ; "+defs+
-		" (no load, no capacitors: T = 0)", cfSrcDerived)
+	out.T = cfF(T, "T = −g_m·v_gs for 1 A injected drain → source = g_m(C13 − C23 − C12 + C22)/Δ = g_m[Y_L(G_g + Y_gd) + Y_gd(G_g + G_S)]/Δ "+
+		"(without R_g: g_m(Y_L + Y_gd)/Δ); "+defs+" (no load, no capacitors: T = 0)", cfSrcDerived)
 
 	vd0, vgs0 := n.source()
 	vdr, _ := n.injection()
@@ -151,8 +160,17 @@ func degForms(v Values, f float64) Forms {
 		Z:      cfF(z0*(1+tsc)/(1+T), "Z = Z₀(1 + T_sc)/(1 + T_oc) (low frequency, no load: r_O + R_S + g_m·r_O·R_S)", src),
 	}}
 
+	// The stage's own output impedance: the same terms with the load removed.
+	nl := n
+	nl.yl = 0
+	nl.m11 = nl.go_ + nl.ygd
+	detL, c11L, _, _, _, _, _ := nl.cof()
+	zown := c11L / detL * (1 + nl.tsc()) / (1 + nl.T())
 	gm, ro, rs := v["gm"], v["ro"], v["RS"]
 	out.Extras = []Extra{
+		{Name: "output impedance with the load removed, real part", Value: real(zown), Unit: "Ω", Note: "the stage alone, at the spot frequency", Source: src},
+		{Name: "output impedance with the load removed, magnitude", Value: cmplx.Abs(zown), Unit: "Ω",
+			Note: fmt.Sprintf("phase %.4g°", cmplx.Phase(zown)*180/math.Pi), Source: src},
 		{Name: "low-frequency output resistance rO + RS + gm·rO·RS", Value: ro + rs + gm*ro*rs, Unit: "Ω", Note: "load and capacitors excluded", Source: src},
 		{Name: "intrinsic gain gm·rO", Value: gm * ro, Unit: "V/V", Source: "standard result, e.g. B. Razavi, Design of Analog CMOS Integrated Circuits, 2nd ed., 2017, ch. 3 [memory]"},
 		{Name: "degenerated transconductance gm/(1 + gm·RS + RS/rO)", Value: gm / (1 + gm*rs + rs/ro), Unit: "S",
@@ -167,12 +185,14 @@ func init() {
 		Title: "Source-degenerated transistor stage",
 		Description: "A transistor with a resistor RS in its source lead: the local series feedback multiplies the output resistance to " +
 			"rO + RS + gm·rO·RS and linearizes the transconductance to about 1/RS. Designers use it for current sinks and sources, the lower device " +
-			"of a cascode, and tail currents of differential pairs. The reference is the transconductance source gm (the vccs Gm1), so Blackman's " +
-			"terms read: Z₀ = rO + RS with gm off, T_sc = gm·(RS ∥ rO) with the drain shorted, T_oc = 0 with it open (no load). What to watch: " +
-			"the gate capacitances, Cgd above all, bypass the feedback and pull the output impedance down at high frequency; a gate resistor Rg " +
-			"lets the gate move and lowers the low-frequency gain of the feedback too. A load RL ∥ CL at the drain, when given, is part of what the port shows.",
+			"of a cascode, and tail currents of differential pairs. The reference is the transconductance source gm (the vccs Gm1); with nothing " +
+			"else on the drain, Blackman's terms read Z₀ = rO + RS (gm off), T_sc = gm·(RS ∥ rO) (drain shorted), T_oc = 0 (drain open). The port " +
+			"out is the drain node and includes the load RL ∥ CL that the drain drives; the extras give the stage's own output impedance with the load " +
+			"removed. What to watch: the gate capacitances, Cgd above all, bypass the feedback and pull the output impedance down at high frequency; a " +
+			"gate resistor Rg lets the gate move, which changes both the capacitive paths and the gain.",
 		Scenario: "Invented scenario: the tail current sink of a sensor interface's input pair in a mixed-signal chip (gm = 1 mS, rO = 100 kΩ, " +
-			"RS = 1 kΩ) must present at least 150 kΩ at low frequency and stay above 50 kΩ to 1 MHz, with Cgs = 200 fF and Cgd = 20 fF.",
+			"RS = 1 kΩ) must present at least 150 kΩ at low frequency and stay above 50 kΩ to 1 MHz, with Cgs = 200 fF and Cgd = 20 fF; the pair's " +
+			"common node loads it with about 1 MΩ.",
 		Params: []Param{
 			{Name: "gm", Symbol: "g_m", Meaning: "transconductance (the vccs Gm1)", Unit: "S", Default: "1m", Min: 1e-9, Max: 100, Group: "amplifier"},
 			{Name: "ro", Symbol: "r_O", Meaning: "drain-source output resistance (resistor ro1)", Unit: "Ω", Default: "100k", Min: 1, Max: 1e12, Group: "amplifier"},
@@ -180,7 +200,7 @@ func init() {
 			{Name: "Cgs", Symbol: "C_gs", Meaning: "gate-source capacitance (empty: none)", Unit: "F", Default: "200f", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
 			{Name: "Cgd", Symbol: "C_gd", Meaning: "gate-drain capacitance (empty: none)", Unit: "F", Default: "20f", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
 			{Name: "Rg", Symbol: "R_g", Meaning: "gate drive resistance, Vin to the gate (empty: Vin drives the gate directly)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e12, Optional: true, Group: "source"},
-			{Name: "RL", Symbol: "R_L", Meaning: "drain load resistance to AC ground (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
+			{Name: "RL", Symbol: "R_L", Meaning: "drain load resistance to AC ground (what else the drain node sees)", Unit: "Ω", Default: "1M", Min: 1e-3, Max: 1e12, Group: "load"},
 			{Name: "CL", Symbol: "C_L", Meaning: "drain load capacitance (empty: none)", Unit: "F", Default: "", Min: 1e-18, Max: 1, Optional: true, Group: "load"},
 		},
 		Reference: "Gm1",

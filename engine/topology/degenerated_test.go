@@ -14,6 +14,7 @@ func TestDegeneratedAgainstEngine(t *testing.T) {
 		{"gate resistor and load", map[string]string{"Rg": "10k", "RL": "50k", "CL": "100f"}, 20e6},
 		{"gate resistor, no capacitors", map[string]string{"Rg": "1M", "Cgs": "", "Cgd": ""}, 0},
 		{"load only, DC", map[string]string{"RL": "20k", "Cgs": "", "Cgd": ""}, 0},
+		{"light load, no capacitors", map[string]string{"RL": "1G", "Cgs": "", "Cgd": ""}, 1e3},
 		{"gate resistor, Cgd only", map[string]string{"Rg": "2k", "Cgs": ""}, 1e9},
 	})
 }
@@ -22,14 +23,16 @@ func TestDegeneratedAgainstEngine(t *testing.T) {
 // rO + RS + gm·rO·RS is the standard result, e.g. B. Razavi, Design of
 // Analog CMOS Integrated Circuits, 2nd ed., 2017, ch. 3 [memory]):
 // gm = 1 mS, rO = 100 kΩ, RS = 1 kΩ → Z₀ = 101 kΩ, T_sc = 0.9900990099,
-// T_oc = 0, Rout = 201 kΩ.
+// T_oc = 0, Rout = 201 kΩ. The stage always has a load parameter, so the
+// unloaded check evaluates its forms and its generated circuit with the
+// load left out (Forms and Circuit accept any Values), and reads the
+// extras of the loaded stage.
 func TestDegeneratedRazaviCheck(t *testing.T) {
 	st, _ := topology.Lookup("degenerated")
-	for _, params := range []map[string]string{
-		{"gm": "1m", "ro": "100k", "RS": "1k", "Cgs": "", "Cgd": ""},
-		{"gm": "1m", "ro": "100k", "RS": "1k", "Cgs": "", "Cgd": "", "Rg": "47k"}, // the gate draws no current at DC
+	for _, v := range []topology.Values{
+		{"gm": 1e-3, "ro": 100e3, "RS": 1e3},
+		{"gm": 1e-3, "ro": 100e3, "RS": 1e3, "Rg": 47e3}, // the gate draws no current at DC
 	} {
-		v, _ := st.Values(params)
 		fs := st.Forms(v, 0)
 		p := fs.Ports[0]
 		cfNear(t, "Z₀", real(p.Z0.Value), 101e3, 1e-12)
@@ -39,7 +42,7 @@ func TestDegeneratedRazaviCheck(t *testing.T) {
 		}
 		cfNear(t, "Rout", real(p.Z.Value), 201e3, 1e-12)
 		cfNear(t, "extra Rout", cfExtra(t, fs, "low-frequency output resistance"), 201e3, 1e-12)
-		resp, err := api.Analyze(api.Request{Topology: "degenerated", Params: params, Frequency: 0})
+		resp, err := api.Analyze(api.Request{Circuit: st.Circuit(v), Reference: "Gm1", Ports: []string{"out"}, Frequency: 0})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -47,10 +50,18 @@ func TestDegeneratedRazaviCheck(t *testing.T) {
 		cfNear(t, "engine Z₀", real(r.Z0.Value()), 101e3, 1e-9)
 		cfNear(t, "engine T_sc", real(r.TShort.Value()), 0.9900990099, 1e-9)
 		cfNear(t, "engine Rout", real(r.ZDirect.Value()), 201e3, 1e-9)
-		if x := r.TOpen.Value(); x != 0 && rel(x, 0) > 1e-12 {
+		if x := r.TOpen.Value(); rel(x, 0) > 1e-12 {
 			t.Errorf("engine T_oc = %v, want 0", x)
 		}
 	}
+	// With its load, the stage's extra gives the same unloaded 201 kΩ.
+	vals, err := st.Values(map[string]string{"Cgs": "", "Cgd": "", "RL": "20k"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	fs := st.Forms(vals, 0)
+	cfNear(t, "extra Rout, load removed", cfExtra(t, fs, "output impedance with the load removed, real"), 201e3, 1e-12)
+	cfNear(t, "port with the load", real(fs.Ports[0].Z.Value), 201e3*20e3/221e3, 1e-12)
 }
 
 // Low-frequency gain with a drain load, gate driven directly:

@@ -372,6 +372,10 @@ func init() {
 			"The common-mode voltage at the op-amp inputs is v2·R4/(R3+R4): keep it inside the op amp's input range.",
 			"Where the inputs connect to mains or high-voltage circuits, use a rated isolation or high-voltage difference amplifier and follow local codes and licensed practice.",
 		},
+		Ratios: []Ratio{
+			{Num: "R2", Den: "R1", Title: "differential gain R2/R1"},
+			{Num: "R4", Den: "R3", Title: "bridge ratio R4/R3 (match it to R2/R1 for common-mode rejection)"},
+		},
 		Circuit: diffCircuit,
 		Forms:   diffForms,
 	})

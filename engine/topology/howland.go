@@ -187,6 +187,10 @@ func init() {
 			"The over-compensated side (ε < 0) is a negative resistance: with a capacitive or open load it can latch up or oscillate — check the loop margins with the load you will use.",
 			"Driving current into a person (bioimpedance, stimulation, electrodes) is governed by medical-device safety standards (e.g. the IEC 60601 family: patient leakage and auxiliary-current limits) and licensed practice: this calculator is no substitute for that design and approval process.",
 		},
+		Ratios: []Ratio{
+			{Num: "R2", Den: "R1", Title: "positive-feedback ratio R2/R1"},
+			{Num: "R4", Den: "R3", Title: "negative-feedback ratio R4/R3 (match it to R2/R1 for high output impedance)"},
+		},
 		Circuit: howCircuit,
 		Forms:   howForms,
 	})

@@ -139,7 +139,7 @@ func init() {
 			"the DC gain at −R2/R1 and turns the integrator into a lossy one below 1/(2π·R2·C1). The loop is that of a unity-gain follower " +
 			"at high frequency (C1 shorts the output to the summing node), so the op amp must be unity-gain stable; the summing node's " +
 			"impedance rises with frequency as the loop gain falls.",
-		Scenario: "Invented scenario: the soft-start ramp of a bench power supply integrates a 1 V step to a 0–10 V reference over about " +
+		Scenario: "Invented scenario: the soft-start ramp of a bench power supply integrates a −1 V step into a 0 to 10 V reference ramp over about " +
 			"10 ms (R1 = 100 kΩ, C1 = 10 nF, unity-gain frequency 159 Hz), with a 10 MΩ damping resistor holding the DC gain at −100 so the " +
 			"op amp's offset cannot creep the ramp; it drives a 10 kΩ divider.",
 		Params:    params,
@@ -157,6 +157,7 @@ func init() {
 			"C1 should be a low-leakage, low-absorption type (film or C0G); dielectric absorption makes a held ramp creep.",
 			"At high frequency the loop is a unity-gain follower's: use a unity-gain-stable op amp and check the margin with the actual load capacitance.",
 		},
+		Ratios:  []Ratio{{Num: "R2", Den: "R1", Title: "DC gain R2/R1 set by the damping resistor"}},
 		Circuit: intCircuit,
 		Forms:   intForms,
 	})

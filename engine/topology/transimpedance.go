@@ -97,7 +97,7 @@ func transimpedanceForms(v Values, f float64) Forms {
 
 	zi := "Zi = Rsh ∥ 1/(s(Cd + Cin)) ∥ rcm ∥ rid"
 	return Forms{
-		T: opmF(T, "T = a·Zi/(Zi + Zf)·Zo′/(Zo′ + ro), "+zi+", Zf = Rf ∥ 1/(sCf), Zo′ = ZL ∥ (Zf + Zi); with no load: a·Zi/(Zi + Zf + ro) (REFERENCES.md §3 [derived])", opmSrcLoop),
+		T:    opmF(T, "T = a·Zi/(Zi + Zf)·Zo′/(Zo′ + ro), "+zi+", Zf = Rf ∥ 1/(sCf), Zo′ = ZL ∥ (Zf + Zi); with no load: a·Zi/(Zi + Zf + ro) (REFERENCES.md §3 [derived])", opmSrcLoop),
 		Gain: opmGain(-zf, g0, T, "G∞ = −Zf", "G₀ = [Zi ∥ (Zf + Zq)]·Zq/(Zf + Zq), Zq = ro ∥ ZL"),
 		Ports: []PortForms{
 			{Name: "in",
