@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -26,8 +27,8 @@ func TestAnalyzeCommand(t *testing.T) {
 	if len(resp.Ports) != 1 || resp.Ports[0].Z == nil || resp.Gain == nil || resp.Margins == nil || resp.Sweep == nil || len(resp.Sweep.Frequency) != 100 {
 		t.Fatalf("incomplete response: %s", out.String())
 	}
-	if strings.Contains(out.String(), "NaN") || strings.Contains(out.String(), "Inf") {
-		t.Errorf("response carries NaN or Inf")
+	if bad := regexp.MustCompile(`:\s*-?(NaN|Inf|Infinity)\b`).FindString(out.String()); bad != "" {
+		t.Errorf("response carries a non-finite number: %s", bad)
 	}
 }
 

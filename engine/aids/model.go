@@ -71,10 +71,9 @@ type Param struct {
 }
 
 // Model is a circuit under study with the numbers the design aids vary.
-// Every evaluation builds a fresh feedback.Analyzer for the circuit with
-// the parameters at the given values, so a Model is never changed by use;
-// it is not safe for concurrent use by the runners that share it only in
-// that each runner keeps its own scratch copy of the circuit.
+// Every evaluation writes the values into the runner's own scratch copy of
+// the circuit and builds a fresh feedback.Analyzer for it, so the aids only
+// read a Model: several runners may share one, each used by one goroutine.
 type Model struct {
 	Circuit   *circuit.Circuit
 	Reference string
@@ -96,11 +95,12 @@ type Model struct {
 }
 
 // DefaultGrid is the crossover search grid used when a Model has none:
-// 1 mHz to 1 THz, ten points a decade, crossings refined between them.
+// 1 mHz to 1 THz, twenty points a decade, crossings refined between them.
+// It is swept once per study, for the nominal circuit.
 func DefaultGrid() []float64 {
-	g := make([]float64, 151)
+	g := make([]float64, 301)
 	for i := range g {
-		g[i] = math.Pow(10, -3+float64(i)/10)
+		g[i] = math.Pow(10, -3+float64(i)/20)
 	}
 	return g
 }

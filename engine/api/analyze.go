@@ -263,6 +263,9 @@ func (p *Prepared) Run() (*Response, error) {
 			resp.Notes = append(resp.Notes, n)
 		}
 	}
+	if err := p.runAids(resp); err != nil {
+		return nil, err
+	}
 	if p.Stage != nil {
 		resp.Topology = p.echo()
 	}

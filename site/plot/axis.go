@@ -32,8 +32,9 @@ func (a *axis) in(v float64) bool { return v >= a.lo-1e-9 && v <= a.hi+1e-9 }
 
 const eps = 1e-9
 
-// Decade label strides: every decade, every second, third, fifth …
-var strides = []int{1, 2, 3, 5, 10, 20, 30, 50, 100}
+// Decade label strides: every decade, every second, then multiples of
+// three so labels fall on SI prefixes (1 Hz, 1 kHz, 1 MHz …).
+var strides = []int{1, 2, 3, 6, 9, 12, 15, 30, 60, 90, 150, 300}
 
 // logTicks returns the ticks of a log axis spanning [lo, hi] (log10 units)
 // at pxPerDec pixels per decade, labelled with value.Format in unit. gap is
@@ -51,7 +52,7 @@ func logTicks(lo, hi, pxPerDec, gap float64, unit string) []tick {
 			break
 		}
 	}
-	label25 := stride == 1 && pxPerDec*math.Log10(2.5/2) >= gap
+	label25 := stride == 1 && pxPerDec*math.Log10(2) >= gap
 	labelAll := stride == 1 && pxPerDec*math.Log10(10.0/9) >= gap
 	minor := stride == 1 && pxPerDec >= 30
 
@@ -95,6 +96,8 @@ func logTicks(lo, hi, pxPerDec, gap float64, unit string) []tick {
 	return ticks
 }
 
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
 func mod(a, b int) int { return ((a % b) + b) % b }
 
 // niceStep returns the smallest step of the form 1, 2 or 5 × 10^k that
@@ -125,7 +128,7 @@ func snap(lo, hi, step float64) (float64, float64) {
 // [lo, hi], with suffix appended to each label.
 func linTicks(lo, hi, step float64, suffix string) []tick {
 	var ticks []tick
-	for i := math.Ceil(lo/step - eps); i*step <= hi+eps*step; i++ {
+	for i := math.Ceil(lo/step - eps); i*step <= hi+eps*step && len(ticks) < 1000; i++ {
 		v := i * step
 		ticks = append(ticks, tick{pos: v, label: linLabel(v, step) + suffix, major: true})
 	}
@@ -134,7 +137,7 @@ func linTicks(lo, hi, step float64, suffix string) []tick {
 
 // dbRange chooses the range and ticks of a decibel axis for data in
 // [lo, hi] (NaN when there is none) on an axis of px pixels: at least 10 dB
-// tall, padded a little, snapped to a 1-2-5 step.
+// tall, widened to the nearest multiples of a 1-2-5 step.
 func dbRange(lo, hi, px float64) (float64, float64, []tick) {
 	if math.IsNaN(lo) {
 		lo, hi = -20, 20
@@ -143,8 +146,6 @@ func dbRange(lo, hi, px float64) (float64, float64, []tick) {
 		c := (lo + hi) / 2
 		lo, hi = c-5, c+5
 	}
-	pad := 0.03 * (hi - lo)
-	lo, hi = lo-pad, hi+pad
 	n := max(2, int(px/28))
 	var step, slo, shi float64
 	for m := n; m >= 1; m-- {

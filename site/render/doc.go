@@ -16,7 +16,8 @@
 //		Params:    map[string]string{"R2": "100k"},
 //		Frequency: "1k",
 //	})
-//	// out.HTML, out.Markdown, out.CSV, out.State; or out.Error naming the field
+//	// out.HTML, out.Markdown, out.State (and out.CSV when Form.CSV is set);
+//	// or out.Error naming the field
 //
 // A bad field gives an Output whose Error names it (Param is the parameter
 // name, "frequency", "sweep.from", "sweep.to", "sweep.points" or
@@ -45,11 +46,18 @@
 // program alive and more than doubles the WebAssembly download, so the
 // writer is kept deliberately small instead.
 //
-// Every displayed value carries machine-readable attributes: data-quantity
-// (z0, tShort, tOpen, z, zDirect, agreement, g0, gInf, g, gDirect, T, fc,
-// pm, gm), data-port on port quantities, and data-re/data-im (complex) or
-// data-value (real) written with strconv's shortest round-trip form. A value
-// that is not finite has data-null="true" and shows a dash. Hand-formula
-// values carry data-closed-form instead of data-quantity, so selectors for
-// the engine's numbers match exactly one element.
+// Every displayed value carries machine-readable attributes: data-quantity,
+// data-port on port quantities, and data-re/data-im (complex) or data-value
+// (real) written with strconv's shortest round-trip form. The quantities:
+//
+//	per port   z0 tShort tOpen z zDirect (complex), agreement (real),
+//	           y (complex, the admittance, only where z is not finite)
+//	gain       g0 gInf g gDirect (complex), gainAgreement (real)
+//	loop       T (complex), fc (Hz), pm (degrees), gm (dB), verdict (text)
+//	extras     extra, with data-name (real, in the extra's own unit)
+//
+// A value that is not finite has data-null="true" and shows a dash.
+// Hand-formula values carry data-closed-form (z0, tShort, tOpen, z,
+// agreement, g, gainAgreement, T) instead of data-quantity, so selectors
+// for the engine's numbers match exactly one element.
 package render

@@ -2,7 +2,6 @@ package render
 
 import (
 	"math"
-	"net/url"
 	"strconv"
 	"strings"
 	"unicode"
@@ -20,9 +19,9 @@ type Form struct {
 
 	// Circuit, Reference, Ports and Gain describe a circuit of the user's
 	// own instead of a topology (see api.Request).
-	Circuit   string       `json:"circuit,omitempty"`
-	Reference string       `json:"reference,omitempty"`
-	Ports     []string     `json:"ports,omitempty"`
+	Circuit   string        `json:"circuit,omitempty"`
+	Reference string        `json:"reference,omitempty"`
+	Ports     []string      `json:"ports,omitempty"`
 	Gain      *api.GainSpec `json:"gain,omitempty"`
 
 	// Frequency is the spot frequency in value syntax ("1k"); empty means
@@ -39,6 +38,11 @@ type Form struct {
 	// Fragment, when set, is a URL fragment (without "#") read over the
 	// topology's defaults in place of Params, Frequency and Sweep.
 	Fragment *string `json:"fragment,omitempty"`
+
+	// CSV asks for the sweep as CSV in Output.CSV. Writing every value of a
+	// sweep in full precision costs more than drawing it, so a page asks
+	// only when the user wants the file.
+	CSV bool `json:"csv,omitempty"`
 }
 
 // SweepForm is a sweep as typed: from and to in value syntax, points a
@@ -117,8 +121,9 @@ func (f Form) withDefaults(e api.CatalogEntry) Form {
 }
 
 // Syntax writes a frequency or count in the engine's value syntax with an
-// SI prefix, so that it reads back exactly: 1000 → "1k", 1e8 → "100M",
-// 2.5e-3 → "2.5m". It is how defaults given as numbers appear in inputs.
+// SI prefix: 1000 → "1k", 1e8 → "100M", 2.5e-3 → "2.5m". It is how
+// defaults given as numbers appear in inputs, so it uses the fewest digits
+// that read back within 1e-14 of v.
 func Syntax(v float64) string {
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return "0"
@@ -129,22 +134,23 @@ func Syntax(v float64) string {
 	}{{12, "T"}, {9, "G"}, {6, "M"}, {3, "k"}, {0, ""}, {-3, "m"}, {-6, "u"}, {-9, "n"}, {-12, "p"}, {-15, "f"}}
 	a := math.Abs(v)
 	for _, p := range prefixes {
-		scale := math.Pow10(p.exp)
-		if a >= scale || p.exp == -15 {
-			for prec := 1; prec <= 17; prec++ {
-				s := strconv.FormatFloat(v/scale, 'f', -1, 64)
-				if prec < 17 {
-					s = strconv.FormatFloat(v/scale, 'g', prec, 64)
-					if strings.ContainsAny(s, "e") {
-						continue
-					}
-				}
-				if got, err := value.Parse(s+p.sym, ""); err == nil && got == v {
-					return s + p.sym
-				}
-			}
-			break
+		if a < math.Pow10(p.exp) && p.exp != -15 {
+			continue
 		}
+		m := v / math.Pow10(p.exp)
+		for prec := 1; prec <= 17; prec++ {
+			s := strconv.FormatFloat(m, 'f', -1, 64)
+			if prec < 17 {
+				s = strconv.FormatFloat(m, 'g', prec, 64)
+			}
+			if strings.ContainsRune(s, 'e') {
+				continue
+			}
+			if got, err := value.Parse(s+p.sym, ""); err == nil && math.Abs(got-v) <= 1e-14*a {
+				return s + p.sym
+			}
+		}
+		break
 	}
 	return strconv.FormatFloat(v, 'g', -1, 64)
 }
@@ -208,9 +214,9 @@ func (f Form) State(e api.CatalogEntry) string {
 		if b.Len() > 0 {
 			b.WriteByte('&')
 		}
-		b.WriteString(url.QueryEscape(k))
+		b.WriteString(queryEscape(k))
 		b.WriteByte('=')
-		b.WriteString(url.QueryEscape(v))
+		b.WriteString(queryEscape(v))
 	}
 	for _, p := range e.Params {
 		add(p.Name, f.Params[p.Name])
@@ -227,16 +233,23 @@ type FragmentError struct {
 	Msg string
 }
 
-func (e *FragmentError) Error() string { return "link settings not used: " + e.Msg }
+func (e *FragmentError) Error() string { return e.Msg }
 
 // ReadFragment reads a URL fragment (with or without "#") written by State
-// over the defaults of e. It refuses the whole fragment when any part of it
-// is malformed: the caller then keeps its defaults and says why.
-func ReadFragment(frag string, e api.CatalogEntry) (Form, error) {
-	f := DefaultForm(e)
+// over base, a form of topology e: settings the fragment leaves out keep
+// base's values. It refuses the whole fragment when any part of it is
+// malformed, returning base unchanged: the caller then keeps its defaults
+// and says why.
+func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
+	base = base.withDefaults(e)
+	f := base
+	f.Params = make(map[string]string, len(base.Params))
+	for k, v := range base.Params {
+		f.Params[k] = v
+	}
 	frag = strings.TrimPrefix(frag, "#")
 	if len(frag) > maxFragment {
-		return f, &FragmentError{"the link's settings are longer than " + strconv.Itoa(maxFragment) + " characters"}
+		return base, &FragmentError{"the link's settings are longer than " + strconv.Itoa(maxFragment) + " characters"}
 	}
 	known := make(map[string]bool, len(e.Params))
 	for _, p := range e.Params {
@@ -249,21 +262,21 @@ func ReadFragment(frag string, e api.CatalogEntry) (Form, error) {
 		}
 		rawKey, rawVal, ok := strings.Cut(part, "=")
 		if !ok {
-			return DefaultForm(e), &FragmentError{"a setting has no “=”"}
+			return base, &FragmentError{"a setting has no “=”"}
 		}
-		k, err1 := url.QueryUnescape(rawKey)
-		v, err2 := url.QueryUnescape(rawVal)
+		k, err1 := queryUnescape(rawKey)
+		v, err2 := queryUnescape(rawVal)
 		if err1 != nil || err2 != nil {
-			return DefaultForm(e), &FragmentError{"a setting is not properly escaped"}
+			return base, &FragmentError{"a setting is not properly escaped"}
 		}
 		if !printable(k) || !printable(v) {
-			return DefaultForm(e), &FragmentError{"a setting holds characters that are not allowed"}
+			return base, &FragmentError{"a setting holds characters that are not allowed"}
 		}
 		if len(k) > maxFragmentValue || len(v) > maxFragmentValue {
-			return DefaultForm(e), &FragmentError{"a setting is longer than " + strconv.Itoa(maxFragmentValue) + " characters"}
+			return base, &FragmentError{"a setting is longer than " + strconv.Itoa(maxFragmentValue) + " characters"}
 		}
 		if seen[k] {
-			return DefaultForm(e), &FragmentError{"the setting " + strconv.Quote(k) + " appears twice"}
+			return base, &FragmentError{"the setting " + strconv.Quote(k) + " appears twice"}
 		}
 		seen[k] = true
 		switch {
@@ -279,7 +292,7 @@ func ReadFragment(frag string, e api.CatalogEntry) (Form, error) {
 		case known[k]:
 			f.Params[k] = v
 		default:
-			return DefaultForm(e), &FragmentError{"unknown setting " + strconv.Quote(k) + " for " + e.Title}
+			return base, &FragmentError{"unknown setting " + strconv.Quote(k) + " for " + e.Title}
 		}
 	}
 	return f, nil
@@ -296,4 +309,70 @@ func printable(s string) bool {
 		}
 	}
 	return true
+}
+
+// queryEscape writes s form-encoded, as URLSearchParams reads it: letters,
+// digits and "-_.~" stay, a space becomes "+", every other byte %XX. It
+// stands in for net/url, which would bring net/netip into the WebAssembly
+// module.
+func queryEscape(s string) string {
+	const hex = "0123456789ABCDEF"
+	var b strings.Builder
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		switch {
+		case c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '-' || c == '_' || c == '.' || c == '~':
+			b.WriteByte(c)
+		case c == ' ':
+			b.WriteByte('+')
+		default:
+			b.WriteByte('%')
+			b.WriteByte(hex[c>>4])
+			b.WriteByte(hex[c&15])
+		}
+	}
+	return b.String()
+}
+
+// errEscape is a malformed %-escape.
+var errEscape = &FragmentError{"a setting is not properly escaped"}
+
+// queryUnescape reads a form-encoded string: "+" is a space, %XX a byte.
+func queryUnescape(s string) (string, error) {
+	if !strings.ContainsAny(s, "%+") {
+		return s, nil
+	}
+	var b strings.Builder
+	for i := 0; i < len(s); i++ {
+		switch c := s[i]; c {
+		case '+':
+			b.WriteByte(' ')
+		case '%':
+			if i+2 >= len(s) {
+				return "", errEscape
+			}
+			hi, ok1 := unhex(s[i+1])
+			lo, ok2 := unhex(s[i+2])
+			if !ok1 || !ok2 {
+				return "", errEscape
+			}
+			b.WriteByte(hi<<4 | lo)
+			i += 2
+		default:
+			b.WriteByte(c)
+		}
+	}
+	return b.String(), nil
+}
+
+func unhex(c byte) (byte, bool) {
+	switch {
+	case c >= '0' && c <= '9':
+		return c - '0', true
+	case c >= 'a' && c <= 'f':
+		return c - 'a' + 10, true
+	case c >= 'A' && c <= 'F':
+		return c - 'A' + 10, true
+	}
+	return 0, false
 }

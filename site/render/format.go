@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/cmplx"
 	"strconv"
+	"strings"
 
 	"zport/engine/value"
 )
@@ -11,10 +12,18 @@ import (
 // sig is the number of significant digits the panel shows.
 const sig = 4
 
-// negligible is the relative size below which one part of a complex value is
-// treated as zero when naming an equivalent element: a reactance of 1e-12 Ω
-// beside 10 kΩ is rounding, not a 16 F capacitor.
-const negligible = 1e-9
+// negligible is the relative size below which one part of an impedance is
+// left out when naming its equivalent series element: a part that leaves
+// the phase within 0.005° of 0° or ±90°, so that the series element agrees
+// with the phase as the panel writes it (two decimals of a degree). Without
+// it, 74 Ω in parallel with 100 pF would read "74.3 Ω + 45.8 mF" at 1 kHz,
+// hiding that the element is a resistor.
+var negligible = math.Tan(0.005 * math.Pi / 180)
+
+// rounding is the relative size below which a part of a complex value is
+// written as zero: it is the residue of floating-point arithmetic, and a
+// display of "j9.8 × 10⁻²¹" would only hide the digits that matter.
+const rounding = 1e-13
 
 // num writes x in the shortest form that reads back to the same float64;
 // it is what data-re, data-im and data-value hold.
@@ -34,25 +43,127 @@ func degrees(d float64) string {
 }
 
 // phase is the argument of z in degrees.
-func phase(z complex128) float64 { return cmplx.Phase(z) * 180 / math.Pi }
+// A zero part counts as +0, so that −0 + j0 does not read as 180°.
+func phase(z complex128) float64 {
+	re, im := real(z), imag(z)
+	if re == 0 {
+		re = 0
+	}
+	if im == 0 {
+		im = 0
+	}
+	return math.Atan2(im, re) * 180 / math.Pi
+}
 
 // polar writes z as magnitude ∠ phase, e.g. "54.94 kΩ ∠ −0.01°".
 func polar(z complex128, unit string) string {
-	return value.Format(cmplx.Abs(z), unit, sig) + " ∠ " + degrees(phase(z))
+	m := cmplx.Abs(z)
+	if m == 0 {
+		return magnitude(0, unit)
+	}
+	return magnitude(m, unit) + " ∠ " + degrees(phase(z))
+}
+
+// Magnitude writes a real value in unit as the panel shows it: with an SI
+// prefix for a physical unit ("4.700 kΩ"), as a plain number for a ratio
+// ("" or "V/V"), where a prefix such as the m of "986.0m" reads badly, in
+// degrees for "°" and decibels for "dB".
+func Magnitude(v float64, unit string) string { return magnitude(v, unit) }
+
+func magnitude(v float64, unit string) string {
+	switch unit {
+	case "":
+		return plain(v)
+	case "V/V":
+		return plain(v) + " V/V"
+	case "°":
+		return degrees(v)
+	case "dB":
+		return dB(v)
+	}
+	s := value.Format(v, unit, sig)
+	if strings.Contains(s, "×10^") { // beyond the SI prefixes
+		s = plain(v) + " " + unit
+	}
+	return s
+}
+
+// superscripts are the digits and minus of a written power of ten.
+var superscripts = map[rune]string{'0': "⁰", '1': "¹", '2': "²", '3': "³", '4': "⁴",
+	'5': "⁵", '6': "⁶", '7': "⁷", '8': "⁸", '9': "⁹", '-': "⁻"}
+
+// plain writes a dimensionless number with sig significant digits: fixed
+// point from 0.001 to 100 000, else mantissa × 10ⁿ; a typographic minus.
+func plain(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "—"
+	}
+	if v == 0 {
+		return "0"
+	}
+	a := math.Abs(v)
+	var s string
+	if a >= 1e-3 && a < 1e5 {
+		e := int(math.Floor(math.Log10(a)))
+		d := sig - 1 - e
+		if d < 0 {
+			d = 0
+		}
+		s = strconv.FormatFloat(a, 'f', d, 64)
+		if r, _ := strconv.ParseFloat(s, 64); r >= math.Pow10(e+1) && d > 0 {
+			s = strconv.FormatFloat(a, 'f', d-1, 64) // 9.9996 rounds to 10.000
+		}
+	} else {
+		m := strconv.FormatFloat(a, 'e', sig-1, 64)
+		i := strings.IndexByte(m, 'e')
+		exp, _ := strconv.Atoi(m[i+1:])
+		var b strings.Builder
+		for _, r := range strconv.Itoa(exp) {
+			b.WriteString(superscripts[r])
+		}
+		s = m[:i] + " × 10" + b.String()
+	}
+	if v < 0 {
+		s = "−" + s
+	}
+	return s
+}
+
+// dB writes a level in decibels with two decimals, e.g. "−3.01 dB".
+func dB(x float64) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return "—"
+	}
+	s := strconv.FormatFloat(math.Abs(x), 'f', 2, 64) + " dB"
+	if x < 0 && s != "0.00 dB" {
+		s = "−" + s
+	}
+	return s
 }
 
 // rect writes z as real ± j imaginary, each part with its own prefix and
-// the unit, e.g. "54.94 kΩ − j3.210 Ω". A unit that reads badly with a
-// prefix (a ratio such as V/V) is written once at the end instead:
-// "−4.700 − j1.230m V/V".
+// the unit, e.g. "54.94 kΩ − j3.210 Ω". A ratio ("" or V/V) is written
+// without prefixes, the unit once at the end: "−4.700 − j0.001230 V/V".
 func rect(z complex128, unit string) string {
 	re, im := real(z), imag(z)
+	m := cmplx.Abs(z)
+	if math.Abs(re) <= rounding*m {
+		re = 0
+	}
+	if math.Abs(im) <= rounding*m {
+		im = 0
+	}
 	sign := " + j"
-	if im < 0 || (im == 0 && math.Signbit(im)) {
+	if im < 0 {
 		sign = " − j"
 	}
-	if unit == "V/V" {
-		return value.Format(re, "", sig) + sign + value.Format(math.Abs(im), "", sig) + " V/V"
+	switch unit {
+	case "", "V/V":
+		s := plain(re) + sign + plain(math.Abs(im))
+		if unit != "" {
+			s += " " + unit
+		}
+		return s
 	}
 	return value.Format(re, unit, sig) + sign + value.Format(math.Abs(im), unit, sig)
 }
@@ -63,12 +174,7 @@ func decibels(z complex128) string {
 	if m == 0 {
 		return "−∞ dB"
 	}
-	db := 20 * math.Log10(m)
-	s := strconv.FormatFloat(math.Abs(db), 'f', 2, 64) + " dB"
-	if db < 0 && s != "0.00 dB" {
-		s = "−" + s
-	}
-	return s
+	return dB(20 * math.Log10(m))
 }
 
 // SeriesElement names the two-element series circuit that has impedance z

@@ -1,9 +1,6 @@
 package render
 
-import (
-	"html"
-	"strings"
-)
+import "strings"
 
 // writer builds HTML in which text and attribute values are always escaped.
 // Element and attribute names come from this package's code only, never from
@@ -31,7 +28,7 @@ func (w *writer) open(tag string, attrs ...string) {
 		w.b.WriteByte(' ')
 		w.b.WriteString(name)
 		w.b.WriteString(`="`)
-		w.b.WriteString(html.EscapeString(val))
+		w.b.WriteString(escape(val))
 		w.b.WriteByte('"')
 	}
 	w.b.WriteByte('>')
@@ -46,7 +43,7 @@ func (w *writer) close(tag string) {
 
 // text writes escaped text.
 func (w *writer) text(s string) {
-	w.b.WriteString(html.EscapeString(s))
+	w.b.WriteString(escape(s))
 }
 
 // elem writes a whole element holding escaped text.
@@ -62,3 +59,31 @@ func (w *writer) svg(markup string) {
 }
 
 func (w *writer) String() string { return w.b.String() }
+
+// escape replaces the five characters that are markup in text or in a
+// quoted attribute value. It stands in for html.EscapeString, whose package
+// carries the whole entity table into the WebAssembly module.
+func escape(s string) string {
+	if !strings.ContainsAny(s, "&<>\"'") {
+		return s
+	}
+	var b strings.Builder
+	b.Grow(len(s) + 16)
+	for i := 0; i < len(s); i++ {
+		switch c := s[i]; c {
+		case '&':
+			b.WriteString("&amp;")
+		case '<':
+			b.WriteString("&lt;")
+		case '>':
+			b.WriteString("&gt;")
+		case '"':
+			b.WriteString("&#34;")
+		case '\'':
+			b.WriteString("&#39;")
+		default:
+			b.WriteByte(c)
+		}
+	}
+	return b.String()
+}

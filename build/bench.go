@@ -1,0 +1,228 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"net/url"
+	"os"
+	"path/filepath"
+	"slices"
+	"time"
+
+	"github.com/chromedp/chromedp"
+
+	"zport/engine/api"
+)
+
+// chromium is Debian's Chromium, the browser the project measures with.
+const chromium = "/usr/bin/chromium"
+
+// browserOptions are the launch flags for a headless, quiet Chromium with
+// its own profile in dir.
+func browserOptions(dir string) []chromedp.ExecAllocatorOption {
+	return append(chromedp.DefaultExecAllocatorOptions[:],
+		chromedp.ExecPath(chromium),
+		chromedp.Headless,
+		chromedp.NoSandbox,
+		chromedp.DisableGPU,
+		chromedp.NoFirstRun,
+		chromedp.Flag("disable-quic", true),
+		chromedp.Flag("disable-background-networking", true),
+		chromedp.Flag("disable-component-update", true),
+		chromedp.Flag("disable-sync", true),
+		chromedp.UserDataDir(dir),
+		chromedp.WindowSize(1280, 800),
+	)
+}
+
+// browser starts a Chromium with a fresh profile; stop ends it and removes
+// the profile.
+func browser() (ctx context.Context, stop func(), err error) {
+	dir, err := os.MkdirTemp("", "zport-bench-profile-")
+	if err != nil {
+		return nil, nil, err
+	}
+	actx, cancelA := chromedp.NewExecAllocator(context.Background(), browserOptions(dir)...)
+	ctx, cancelB := chromedp.NewContext(actx)
+	stop = func() {
+		cancelB()
+		cancelA()
+		os.RemoveAll(dir)
+	}
+	// The first Run starts the browser; it must not carry a timeout.
+	if err := chromedp.Do(ctx); err != nil {
+		stop()
+		return nil, nil, err
+	}
+	return ctx, stop, nil
+}
+
+// load is what one navigation to a calculator page measured, from the
+// navigation's start: the engine running ("zport-engine-ready") and the
+// first result it computed on the page ("zport-first-live"); performance
+// marks of zport.js.
+type load struct{ ready, live time.Duration }
+
+// firstLive navigates to u and waits for the first live result.
+func firstLive(ctx context.Context, u string) (load, error) {
+	tctx, cancel := context.WithTimeout(ctx, 30*time.Second)
+	defer cancel()
+	if err := chromedp.Do(tctx, chromedp.Navigate(u)); err != nil {
+		return load{}, err
+	}
+	ms, err := chromedp.Run(tctx, chromedp.Poll[[]float64](`(() => {
+		if (document.documentElement.dataset.engine === 'failed') throw new Error(document.querySelector('[data-role="engine-status"]').textContent);
+		const m = performance.getEntriesByName('zport-first-live')[0];
+		const r = performance.getEntriesByName('zport-engine-ready')[0];
+		return m && r ? [r.startTime, m.startTime] : null;
+	})()`, chromedp.WithPollingInterval(5*time.Millisecond)))
+	if err != nil {
+		return load{}, err
+	}
+	return load{dur(ms[0]), dur(ms[1])}, nil
+}
+
+func dur(ms float64) time.Duration { return time.Duration(ms * float64(time.Millisecond)) }
+
+// recompute edits the spot frequency of the page's calculator and returns
+// the duration of the recompute it caused (the "zport-recompute" measure:
+// the engine's call, rendering the panel with its charts, inserting it and
+// laying it out) and of the engine's call within it ("zport-engine-call":
+// analysis and rendering in WebAssembly, and the JSON both ways).
+func recompute(ctx context.Context, i int) (total, call time.Duration, err error) {
+	tctx, cancel := context.WithTimeout(ctx, 10*time.Second)
+	defer cancel()
+	// Alternate between two nearby frequencies so every edit changes the result.
+	v := []string{"1.1k", "900"}[i%2]
+	n, err := chromedp.Run(tctx, chromedp.Evaluate[int](`(() => {
+		const n = performance.getEntriesByName('zport-recompute').length;
+		const input = document.querySelector('[data-calculator] input[name="frequency"]');
+		input.value = `+"`"+v+"`"+`;
+		input.dispatchEvent(new Event('input', {bubbles: true}));
+		return n;
+	})()`))
+	if err != nil {
+		return 0, 0, err
+	}
+	ms, err := chromedp.Run(tctx, chromedp.Poll[[]float64](fmt.Sprintf(`(() => {
+		const e = performance.getEntriesByName('zport-recompute');
+		const c = performance.getEntriesByName('zport-engine-call');
+		return e.length > %d ? [e[e.length - 1].duration, c[c.length - 1].duration] : null;
+	})()`, n), chromedp.WithPollingInterval(2*time.Millisecond)))
+	if err != nil {
+		return 0, 0, err
+	}
+	return dur(ms[0]), dur(ms[1]), nil
+}
+
+func median(d []time.Duration) time.Duration {
+	s := slices.Clone(d)
+	slices.Sort(s)
+	n := len(s)
+	if n == 0 {
+		return 0
+	}
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return (s[n/2-1] + s[n/2]) / 2
+}
+
+func ms(d time.Duration) string { return fmt.Sprintf("%.1f ms", float64(d)/float64(time.Millisecond)) }
+
+// runBench builds the site and measures it in Chromium from file://,
+// printing medians: navigation to the first live result, cold (a fresh
+// browser and profile each run) and warm (the same browser navigating
+// again); one recompute and redraw per topology at its default sweep; and
+// the engine's size as the page loads it.
+func runBench(args []string) error {
+	fs := flag.NewFlagSet("bench", flag.ContinueOnError)
+	runs := fs.Int("runs", 9, "runs per measurement (the median is printed)")
+	page := fs.String("page", "inverting", "page for the first-live measurements")
+	if err := fs.Parse(args); err != nil {
+		return err
+	}
+	if *runs < 1 {
+		return errors.New("bench: -runs must be at least 1")
+	}
+	if _, err := os.Stat(chromium); err != nil {
+		return fmt.Errorf("bench needs Chromium at %s (apt-get install -y chromium): %v", chromium, err)
+	}
+	dist, _, err := buildSite()
+	if err != nil {
+		return err
+	}
+	pageURL := func(name string) string {
+		return (&url.URL{Scheme: "file", Path: filepath.ToSlash(filepath.Join(dist, name+".html"))}).String()
+	}
+
+	var cold, coldReady []time.Duration
+	for i := 0; i < *runs; i++ {
+		ctx, stop, err := browser()
+		if err != nil {
+			return err
+		}
+		d, err := firstLive(ctx, pageURL(*page))
+		stop()
+		if err != nil {
+			return fmt.Errorf("cold run %d: %w", i+1, err)
+		}
+		cold, coldReady = append(cold, d.live), append(coldReady, d.ready)
+	}
+
+	ctx, stop, err := browser()
+	if err != nil {
+		return err
+	}
+	defer stop()
+	if _, err := firstLive(ctx, pageURL(*page)); err != nil { // fill the caches
+		return err
+	}
+	var warm, warmReady []time.Duration
+	for i := 0; i < *runs; i++ {
+		d, err := firstLive(ctx, pageURL(*page))
+		if err != nil {
+			return fmt.Errorf("warm run %d: %w", i+1, err)
+		}
+		warm, warmReady = append(warm, d.live), append(warmReady, d.ready)
+	}
+
+	fmt.Printf("first live result, %s.html from file:// (medians of %d runs; target ≤ 200 ms)\n", *page, *runs)
+	fmt.Printf("  cold (fresh browser and profile)      engine ready %s, first live result %s\n", ms(median(coldReady)), ms(median(cold)))
+	fmt.Printf("  warm (same browser, navigated again)  engine ready %s, first live result %s\n", ms(median(warmReady)), ms(median(warm)))
+
+	fmt.Printf("recompute and redraw after one edit of the spot frequency (medians; target ≤ 16 ms)\n")
+	for _, e := range api.Catalog() {
+		if _, err := firstLive(ctx, pageURL(e.ID)); err != nil {
+			return fmt.Errorf("%s: %w", e.ID, err)
+		}
+		var d, c []time.Duration
+		for i := 0; i < *runs+2; i++ {
+			t, call, err := recompute(ctx, i)
+			if err != nil {
+				return fmt.Errorf("%s: recompute: %w", e.ID, err)
+			}
+			if i >= 2 { // the first edits warm the engine's code paths up
+				d, c = append(d, t), append(c, call)
+			}
+		}
+		fmt.Printf("  %-16s %4d points  total %s, of which the engine call %s\n", e.ID, e.Sweep.Points, ms(median(d)), ms(median(c)))
+	}
+
+	eng, err := os.Stat(filepath.Join(dist, "zport-engine.js"))
+	if err != nil {
+		return err
+	}
+	exec, err := os.Stat(filepath.Join(dist, "wasm_exec.js"))
+	if err != nil {
+		return err
+	}
+	fmt.Printf("payload as loaded: zport-engine.js %s + wasm_exec.js %s = %s (target ≤ 1.2 MB)\n",
+		mb(eng.Size()), kbs(exec.Size()), mb(eng.Size()+exec.Size()))
+	return nil
+}
+
+func mb(n int64) string  { return fmt.Sprintf("%.3f MB", float64(n)/1e6) }
+func kbs(n int64) string { return fmt.Sprintf("%.1f kB", float64(n)/1e3) }

@@ -1,0 +1,62 @@
+// Package site is zport's documentation site: Markdown pages with live
+// calculators, built into static files that work from file:// with no
+// network, under any sub-path, and with scripts turned off (showing the
+// results computed at build time).
+//
+// # Sources
+//
+// The site is data, embedded as Sources and replaceable by any fs.FS:
+//
+//	content/     one Markdown file per page: index, method, about, and one
+//	             per topology of the catalog, named after its ID
+//	templates/   html/template: page.html (a page), single.html (the
+//	             single-file export), calculator.html (a calculator's
+//	             inputs, and the catalog table)
+//	assets/      style.css, zport.js (the one loader and the calculators'
+//	             glue), plothover.js (chart readout), icon.svg
+//	schematics/  one SVG schematic per topology, part names as in the
+//	             generated circuit text
+//
+// # Markdown
+//
+// Pages are converted by one goldmark instance with an explicit list of
+// extensions: GitHub tables and Blocks, this package's extension, which
+// gives three fenced-block info strings a meaning:
+//
+//	```calculator            a live calculator; the body is "key: value"
+//	topology: inverting      lines: the stage (required), any parameter
+//	R2: 100k                 default to override, the spot frequency and
+//	frequency: 1k            the sweep (FROM TO POINTS)
+//	sweep: 10 100M 400
+//	```
+//
+//	```catalog               the catalog as a table linking every stage
+//	```
+//
+//	```math                  a display formula, converted to MathML at
+//	Z = Z_0 \, \frac{1 + T_{sc}}{1 + T_{oc}}    build time (see MathML)
+//	```
+//
+// Each block becomes a node of its own kind (KindCalculator, KindCatalog,
+// KindMath) and is rendered by a renderer registered for that kind, the
+// shape of goldmark's own extensions. A calculator is rendered with its
+// default results already computed by the native engine through
+// zport/site/render, the same code the WebAssembly engine runs on every
+// edit, so the page shows real numbers and charts before the engine starts.
+// Raw HTML in the Markdown is not passed through (goldmark's safe default).
+//
+// # Output
+//
+// Build returns the multi-file site; Single returns one HTML file holding
+// every page as a section chosen by the fragment (#p=NAME), with its style
+// sheet and scripts inline and allowed by their SHA-256 hashes in its
+// Content-Security-Policy. The engine is written as zport-engine.js, the
+// module gzip-compressed and base64-encoded into one global string (see
+// EngineScript), because browsers refuse to fetch a .wasm file from
+// file://. Every page carries the Content-Security-Policy CSP; nothing is
+// inline but the data of the pages themselves, and every link is relative.
+//
+// Output is deterministic: files are produced in lexical order, the
+// catalog in its own order, and nothing depends on the time or the
+// machine, so two builds of one tree are byte-identical.
+package site

@@ -1,0 +1,287 @@
+package plot
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+
+	"zport/engine/value"
+)
+
+// Histogram is a single-panel chart of counts in bins, such as the spread
+// of a result over Monte Carlo trials. Bin i spans [Edges[i], Edges[i+1]]
+// and holds Counts[i], so len(Edges) = len(Counts)+1. Markers (Freq is the
+// x value) draw labelled vertical lines, e.g. percentiles or a target; the
+// x range widens to show them. Input that breaks these rules draws empty
+// axes with a note saying what is wrong.
+type Histogram struct {
+	ID      string
+	Title   string
+	XLabel  string // x axis title, e.g. "Output impedance at 1 kHz"
+	Unit    string // unit of the x values for value.Format, e.g. "Ω"
+	Edges   []float64
+	Counts  []int
+	Markers []Marker
+	Width   int // pixels; default 640
+	Height  int // pixels; default 320
+	NoStyle bool
+}
+
+// SVG returns the chart as a standalone SVG document fragment.
+func (h *Histogram) SVG() string { return string(h.AppendSVG(nil)) }
+
+// WriteTo writes the chart's SVG to w.
+func (h *Histogram) WriteTo(w io.Writer) (int64, error) {
+	n, err := w.Write(h.AppendSVG(nil))
+	return int64(n), err
+}
+
+// problem returns why the histogram cannot be drawn, or "".
+func (h *Histogram) problem() string {
+	switch {
+	case len(h.Edges) == 0 && len(h.Counts) == 0:
+		return "no data"
+	case len(h.Edges) != len(h.Counts)+1:
+		return fmt.Sprintf("invalid histogram: %d edges for %d counts (need one edge more than counts)", len(h.Edges), len(h.Counts))
+	}
+	for i, e := range h.Edges {
+		if math.IsNaN(e) || math.IsInf(e, 0) {
+			return fmt.Sprintf("invalid histogram: edge %d is not finite", i)
+		}
+		if i > 0 && !(e > h.Edges[i-1]) {
+			return fmt.Sprintf("invalid histogram: edge %d is not above edge %d", i, i-1)
+		}
+	}
+	if !finite(h.Edges[len(h.Edges)-1] - h.Edges[0]) {
+		return "invalid histogram: the edges span more than a float64 can hold"
+	}
+	for i, c := range h.Counts {
+		if c < 0 {
+			return fmt.Sprintf("invalid histogram: count %d is negative", i)
+		}
+	}
+	return ""
+}
+
+// AppendSVG appends the chart's SVG to dst and returns the extended slice.
+func (h *Histogram) AppendSVG(dst []byte) []byte {
+	W, H := size(h.Width, h.Height, 640, 320, 240, 160)
+	id := cleanID(h.ID, "zhist")
+	problem := h.problem()
+
+	lo, hi := 0.0, 1.0
+	total, maxC, fullest := 0, 0, -1
+	if problem == "" {
+		lo, hi = h.Edges[0], h.Edges[len(h.Edges)-1]
+		for i, c := range h.Counts {
+			total += c
+			if c > maxC {
+				maxC, fullest = c, i
+			}
+		}
+	}
+	for _, m := range h.Markers {
+		// A marker widens the range unless that would overflow it.
+		if l, u := min(lo, m.Freq), max(hi, m.Freq); finite(u - l) {
+			lo, hi = l, u
+		}
+	}
+	if pad := 0.02 * (hi - lo); finite(lo-pad) && finite(hi+pad) {
+		lo, hi = lo-pad, hi+pad
+	}
+
+	top := outer
+	titleY := 0.0
+	if h.Title != "" {
+		titleY = top + 12
+		top += 22
+	}
+	top += 4
+	bottom := H - 26
+	if h.XLabel != "" {
+		bottom = H - 40
+	}
+
+	// Count axis: integer 1-2-5 steps, a little headroom for marker labels.
+	cy := axis{p0: bottom, p1: top}
+	n := max(2, int((bottom-top)/28))
+	step := max(1, niceStep(float64(maxC)*1.08, n))
+	cy.lo, cy.hi = 0, math.Max(step, math.Ceil(float64(maxC)*1.08/step-eps)*step)
+	cy.ticks = linTicks(0, cy.hi, step, "")
+	labelW := 0.0
+	for _, t := range cy.ticks {
+		labelW = max(labelW, textWidth(t.label, fontPx))
+	}
+	x0 := math.Round(outer + 16 + labelW + 10)
+	x1 := W - 16
+	xa := axis{lo: lo, hi: hi, p0: x0, p1: x1}
+	xa.ticks = engTicks(lo, hi, x1-x0, h.Unit)
+	if over := overhang(&xa, W); over > 0 {
+		x1 -= over
+		xa.p1 = x1
+		xa.ticks = engTicks(lo, hi, x1-x0, h.Unit)
+	}
+
+	b := dst
+	if b == nil {
+		b = make([]byte, 0, 4096+len(h.Counts)*24)
+	}
+	b = append(b, `<svg xmlns="http://www.w3.org/2000/svg" class="zplot zplot-hist"`...)
+	b = appendAttr(b, "id", id)
+	b = appendViewBox(b, W, H)
+	b = append(b, ` role="img" aria-labelledby="`...)
+	b = append(b, id...)
+	b = append(b, `-title" aria-describedby="`...)
+	b = append(b, id...)
+	b = append(b, `-desc" font-family="system-ui,sans-serif" font-size="12" fill="currentColor">`...)
+	title := h.Title
+	if title == "" {
+		title = "Histogram"
+	}
+	b = appendTitleDesc(b, id, title, h.describe(problem, total, fullest))
+	if !h.NoStyle {
+		b = append(b, "<style>"...)
+		b = append(b, CSS...)
+		b = append(b, "</style>"...)
+	}
+
+	b = append(b, `<path class="grid" fill="none" stroke="currentColor" stroke-opacity=".16" d="`...)
+	for _, t := range cy.ticks {
+		b = appendHLine(b, tenths(x0), tenths(cy.px(t.pos)), tenths(x1))
+	}
+	b = append(b, `"/>`...)
+
+	if problem == "" {
+		b = append(b, `<path class="bar" fill="currentColor" fill-opacity=".3" d="`...)
+		yb := tenths(bottom)
+		for i, c := range h.Counts {
+			if c == 0 {
+				continue
+			}
+			b = appendVLine(b, tenths(xa.px(h.Edges[i])), yb, tenths(cy.px(float64(c))))
+			b = append(b, 'H')
+			b = appendTenths(b, tenths(xa.px(h.Edges[i+1])), true)
+			b = append(b, 'V')
+			b = appendTenths(b, yb, true)
+			b = append(b, 'Z')
+		}
+		b = append(b, `"/>`...)
+	}
+
+	b = append(b, `<path class="axis" fill="none" stroke="currentColor" stroke-opacity=".5" d="`...)
+	b = appendBox(b, x0, top, x1, bottom)
+	for _, t := range xa.ticks {
+		b = appendVLine(b, tenths(xa.px(t.pos)), tenths(bottom), tenths(bottom+5))
+	}
+	b = append(b, `"/><g class="tick" text-anchor="end">`...)
+	for _, t := range cy.ticks {
+		b = appendText(b, "", x0-6, cy.px(t.pos), ".35em", t.label)
+	}
+	b = append(b, `</g><g class="tick" text-anchor="middle">`...)
+	for _, t := range xa.ticks {
+		b = appendText(b, "", xa.px(t.pos), bottom+18, "", t.label)
+	}
+	b = append(b, `</g>`...)
+	b = appendVText(b, 18, (top+bottom)/2, "Count")
+	if h.XLabel != "" {
+		b = appendText(b, ` class="axis-title" text-anchor="middle"`, (x0+x1)/2, H-8, "", h.XLabel)
+	}
+
+	var labels []byte
+	slot := 0
+	for _, m := range h.Markers {
+		if math.IsNaN(m.Freq) || math.IsInf(m.Freq, 0) {
+			continue
+		}
+		x := xa.px(m.Freq)
+		b = append(b, `<path class="marker`...)
+		b = appendClassSuffix(b, "marker-", m.Class)
+		b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="3 3" d="`...)
+		b = appendVLine(b, tenths(x), tenths(top), tenths(bottom))
+		b = append(b, `"/>`...)
+		if m.Label != "" {
+			labels = appendMarkerLabel(labels, x, x0, x1, top+13+13*float64(slot%4), m.Label)
+			slot++
+		}
+	}
+	if len(labels) > 0 {
+		b = append(b, `<g class="label halo">`...)
+		b = append(b, labels...)
+		b = append(b, `</g>`...)
+	}
+	if h.Title != "" {
+		b = appendText(b, ` class="title"`, outer, titleY, "", h.Title)
+	}
+	note := problem
+	if note == "" && total == 0 {
+		note = "no samples"
+	}
+	if note != "" {
+		b = appendText(b, ` class="note" text-anchor="middle"`, (x0+x1)/2, (top+bottom)/2, ".35em", note)
+	}
+	return append(b, "</svg>"...)
+}
+
+// engTicks returns labelled ticks at 1-2-5 steps across [lo, hi] on an
+// axis of px pixels, labelled by value.Format in unit with the digits the
+// step needs, spaced so the labels do not touch.
+func engTicks(lo, hi, px float64, unit string) []tick {
+	var ticks []tick
+	for n := max(2, int(px/70)); n >= 1; n-- {
+		step := niceStep(hi-lo, n)
+		ticks = ticks[:0]
+		widest := 0.0
+		for i := math.Ceil(lo/step - eps); i*step <= hi+eps*step && len(ticks) <= n+2; i++ {
+			v := i * step
+			sig := 1
+			if math.Abs(v) < step*eps {
+				v = 0
+			} else {
+				// Digits down to the step's: 4.65 kΩ for a 10 Ω step.
+				sig = int(math.Floor(math.Log10(math.Abs(v))+eps)-math.Floor(math.Log10(step)+eps)) + 1
+				sig = min(max(sig, 1), 6)
+			}
+			t := tick{pos: v, label: value.Format(v, unit, sig), major: true}
+			widest = max(widest, textWidth(t.label, fontPx))
+			ticks = append(ticks, t)
+		}
+		if len(ticks) < 2 || px*step/(hi-lo) >= widest+14 || n == 1 {
+			break
+		}
+	}
+	return ticks
+}
+
+// describe writes the text of the histogram's <desc>.
+func (h *Histogram) describe(problem string, total, fullest int) string {
+	if problem != "" {
+		return "Histogram: " + problem + "."
+	}
+	last := len(h.Edges) - 1
+	b := []byte("Histogram of ")
+	b = strconv.AppendInt(b, int64(total), 10)
+	b = append(b, " samples in "...)
+	b = strconv.AppendInt(b, int64(len(h.Counts)), 10)
+	b = append(b, " bins from "...)
+	b = append(b, value.Format(h.Edges[0], h.Unit, 3)...)
+	b = append(b, " to "...)
+	b = append(b, value.Format(h.Edges[last], h.Unit, 3)...)
+	if fullest >= 0 {
+		b = append(b, "; the fullest bin, "...)
+		b = append(b, value.Format(h.Edges[fullest], h.Unit, 3)...)
+		b = append(b, " to "...)
+		b = append(b, value.Format(h.Edges[fullest+1], h.Unit, 3)...)
+		b = append(b, ", holds "...)
+		b = strconv.AppendInt(b, int64(h.Counts[fullest]), 10)
+	}
+	b = append(b, '.')
+	for _, m := range h.Markers {
+		if m.Label != "" {
+			b = append(b, " Marker: "...)
+			b = append(b, m.Label...)
+			b = append(b, '.')
+		}
+	}
+	return string(b)
+}

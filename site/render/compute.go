@@ -1,0 +1,97 @@
+package render
+
+import (
+	"encoding/json"
+	"fmt"
+	"strings"
+
+	"zport/engine/api"
+)
+
+// Output is a rendered panel, or the error that stopped it.
+type Output struct {
+	HTML     string `json:"html,omitempty"`
+	Markdown string `json:"markdown,omitempty"`
+	// CSV is the sweep as comma-separated values, when Form.CSV asked.
+	CSV string `json:"csv,omitempty"`
+	// State is the form as a URL fragment (topology forms only).
+	State string `json:"state,omitempty"`
+	// Form is the form that was computed, with every default filled in;
+	// a page reading a fragment fills its inputs from it.
+	Form *Form `json:"form,omitempty"`
+	// Error names the field at fault (Param) or the place in circuit text.
+	Error *api.ErrorBody `json:"error,omitempty"`
+}
+
+// Compute analyzes a form and renders its panel. It never panics: a panic
+// inside the engine or the renderer becomes an internal error in Output.
+func Compute(f Form) (out Output) {
+	defer func() {
+		if r := recover(); r != nil {
+			out = Output{Error: &api.ErrorBody{Message: fmt.Sprintf("internal error: %v (please report the settings that caused it)", r)}}
+		}
+	}()
+	var entry *api.CatalogEntry
+	if f.Topology != "" {
+		e, ok := api.LookupEntry(f.Topology)
+		if !ok {
+			return Output{Error: &api.ErrorBody{Param: "topology", Message: fmt.Sprintf("no stage %q in the catalog", f.Topology)}}
+		}
+		entry = &e
+		f = f.withDefaults(e)
+		if f.Fragment != nil {
+			g, err := ReadFragment(*f.Fragment, f, e)
+			if err != nil {
+				return Output{Error: &api.ErrorBody{Param: FieldFragment, Message: err.Error()}}
+			}
+			f = g
+		}
+	}
+	f.Fragment = nil
+	req, bad := f.request()
+	if bad != nil {
+		return Output{Error: bad}
+	}
+	resp, err := api.Analyze(req)
+	if err != nil {
+		body := api.Body(err)
+		return Output{Error: &body}
+	}
+	out = Output{
+		HTML:     Panel(resp, entry, f.ID),
+		Markdown: Markdown(resp, entry),
+		Form:     &f,
+	}
+	if f.CSV {
+		out.CSV = CSV(resp)
+		f.CSV = false
+	}
+	if entry != nil {
+		out.State = f.State(*entry)
+	}
+	return out
+}
+
+// ComputeJSON is Compute on JSON: a Form in, an Output out. It never
+// panics and always returns a JSON object.
+func ComputeJSON(in []byte) []byte {
+	var f Form
+	dec := json.NewDecoder(strings.NewReader(string(in)))
+	dec.DisallowUnknownFields()
+	var out Output
+	if err := dec.Decode(&f); err != nil {
+		out = Output{Error: &api.ErrorBody{Message: "the calculator's request is not valid: " + err.Error()}}
+	} else {
+		out = Compute(f)
+	}
+	// The page parses the answer with JSON.parse, not as HTML, so the
+	// markup need not be escaped as \u003c: that only makes it longer.
+	var b strings.Builder
+	enc := json.NewEncoder(&b)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(out); err != nil {
+		b.Reset()
+		_ = enc.Encode(Output{Error: &api.ErrorBody{Message: "internal error: " + err.Error()}})
+	}
+	return []byte(strings.TrimSuffix(b.String(), "\n"))
+}

@@ -1,0 +1,474 @@
+package render
+
+import (
+	"encoding/xml"
+	"io"
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+	"strconv"
+	"strings"
+	"testing"
+
+	"zport/engine/api"
+)
+
+// hostile is text a user could put where a port or part name goes; the
+// panel must show it as text.
+const hostile = `<img src=x onerror=alert(1)>`
+
+// sample is a response built by hand (values our own, not from any
+// circuit) with every section of the panel present, and hostile names in
+// every place a name from the circuit can appear.
+func sample() *api.Response {
+	c := func(re, im float64) *api.Complex { return &api.Complex{Re: re, Im: im} }
+	f := func(x float64) *float64 { return &x }
+	freq := []float64{10, 100, 1e3, 1e4, 1e5}
+	col := func(z complex128) []*api.Complex {
+		out := make([]*api.Complex, len(freq))
+		for i, fr := range freq {
+			out[i] = api.C(z / complex(1, fr/1e3))
+		}
+		return out
+	}
+	return &api.Response{
+		Frequency:   1e3,
+		Reference:   hostile,
+		ReturnRatio: c(100, -100),
+		Ports: []api.PortResult{{
+			Name: hostile, A: hostile, B: "gnd",
+			Z0: c(54935.77, -0.3), TShort: c(26077.6, -12), TOpen: c(143259.6, -60),
+			Z: c(10000.31, 1.5), ZDirect: c(10000.31, 1.5), Agreement: f(2.1e-15),
+		}, {
+			Name: "open", A: "n1", B: "gnd",
+			Z0: nil, TShort: c(0, 0), TOpen: c(-1, 0), Z: nil, ZDirect: nil, Y: c(1e-3, 2e-4),
+		}},
+		Gain: &api.GainResult{Source: hostile, Output: "out", Unit: "V/V",
+			G0: c(1e-3, 0), GInf: c(-4.7, 0), G: c(-4.69, 0.02), GDirect: c(-4.69, 0.02), Agreement: f(1e-16)},
+		Notes: []string{"note with " + hostile},
+		Sweep: &api.SweepResult{
+			Frequency:   freq,
+			ReturnRatio: col(1e4),
+			Ports: []api.PortSweep{
+				{Name: hostile, Z0: col(5e4), TShort: col(2e4), TOpen: col(1e5), Z: col(1e4), ZDirect: col(1e4)},
+				{Name: "open", Z0: make([]*api.Complex, 5), TShort: col(0), TOpen: col(-1), Z: make([]*api.Complex, 5), ZDirect: make([]*api.Complex, 5)},
+			},
+			Gain: &api.GainSweep{G0: col(1e-3), GInf: col(-4.7), G: col(-4.69), GDirect: col(-4.69)},
+		},
+		Margins: &api.Margins{
+			Crossovers:     []api.Crossover{{Frequency: 1.86e5, PhaseMargin: 88.2, Direction: "down"}},
+			PhaseCrossings: []api.PhaseCrossing{{Frequency: 1.3e7, GainMargin: 43.9}},
+			Crossover:      f(1.86e5), PhaseMargin: f(88.2), GainMargin: f(43.9),
+			Verdict: "stable", VerdictDetail: "Phase margin 88.2° " + hostile,
+		},
+		Topology: &api.TopologyEcho{
+			ID: "t", Title: "Test stage " + hostile, Params: map[string]float64{"R1": 1e4, hostile: 1},
+			Circuit: "resistor R1 a b 10k # " + hostile, Reference: hostile,
+			ClosedForm: &api.ClosedForm{
+				ReturnRatio: &api.Formula{Value: c(100, -100), Text: "T = a·β " + hostile, Source: "src " + hostile},
+				Ports: []api.PortFormulas{{Name: hostile,
+					Z0: &api.Formula{Value: c(54935.77, -0.3), Text: "Z₀ = " + hostile, Source: "Franco"},
+					Z:  &api.Formula{Value: c(10000.31, 1.5), Text: "Z", Source: "Blackman"}}},
+				Gain: &api.Formula{Value: c(-4.69, 0.02), Text: "G", Source: "AGM"},
+			},
+			Extras: []api.Extra{{Name: "Cf " + hostile, Value: f(0.798e-12), Unit: "F", Note: hostile, Source: hostile},
+				{Name: "phase margin", Value: f(65.83), Unit: "°"}, {Name: "nothing", Value: nil, Unit: "Ω"}},
+		},
+	}
+}
+
+// element is one element of a parsed panel.
+type element struct {
+	name  string
+	attrs map[string]string
+	text  string
+}
+
+// parse reads the panel as XML: the writer closes every element and quotes
+// every attribute, so a panel that is not well-formed XML is a bug. It
+// returns every element in document order.
+func parse(t *testing.T, html string) []*element {
+	t.Helper()
+	d := xml.NewDecoder(strings.NewReader(html))
+	d.Strict = true
+	d.Entity = map[string]string{}
+	var all, stack []*element
+	for {
+		tok, err := d.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatalf("panel is not well-formed: %v", err)
+		}
+		switch tok := tok.(type) {
+		case xml.StartElement:
+			e := &element{name: tok.Name.Local, attrs: map[string]string{}}
+			for _, a := range tok.Attr {
+				e.attrs[a.Name.Local] = a.Value
+			}
+			all = append(all, e)
+			stack = append(stack, e)
+		case xml.EndElement:
+			stack = stack[:len(stack)-1]
+		case xml.CharData:
+			for _, e := range stack {
+				e.text += string(tok)
+			}
+		}
+	}
+	return all
+}
+
+func TestPanelEscapesHostileText(t *testing.T) {
+	resp := sample()
+	entry := &api.CatalogEntry{ID: "t", Title: hostile, Ports: []api.PortInfo{{Name: hostile, Title: hostile}},
+		Gain: &api.GainInfo{Title: hostile}}
+	html := Panel(resp, entry, `x"><script>alert(1)</script>`)
+	for _, bad := range []string{"<img", "<script", `onerror=alert(1)>`} {
+		if strings.Contains(html, bad) {
+			t.Errorf("panel contains %q unescaped", bad)
+		}
+	}
+	if !strings.Contains(html, "&lt;img src=x onerror=alert(1)&gt;") {
+		t.Errorf("the hostile name is not shown as text")
+	}
+	els := parse(t, html)
+	for _, e := range els {
+		for k := range e.attrs {
+			if strings.HasPrefix(k, "on") {
+				t.Errorf("element %s has an event handler attribute %s", e.name, k)
+			}
+		}
+		if e.name == "img" || e.name == "script" {
+			t.Errorf("panel holds a %s element", e.name)
+		}
+	}
+	md := Markdown(resp, entry)
+	if strings.Count(md, "<") != strings.Count(md, `\<`) || !strings.Contains(md, `\<img`) {
+		t.Errorf("Markdown does not escape the hostile name:\n%s", md)
+	}
+	csv := CSV(resp)
+	head := strings.SplitN(csv, "\r\n", 2)[0]
+	if strings.Count(head, ",") != 1+2*(1+5+5+4)-1 {
+		t.Errorf("CSV header has %d commas outside quotes? header %q", strings.Count(head, ","), head)
+	}
+}
+
+func TestPanelDataAttributes(t *testing.T) {
+	resp := sample()
+	els := parse(t, Panel(resp, nil, "p"))
+	find := func(port, q string) []*element {
+		var out []*element
+		for _, e := range els {
+			if e.attrs["data-quantity"] == q && e.attrs["data-port"] == port {
+				out = append(out, e)
+			}
+		}
+		return out
+	}
+	pr := resp.Ports[0]
+	for q, want := range map[string]*api.Complex{"z0": pr.Z0, "tShort": pr.TShort, "tOpen": pr.TOpen, "z": pr.Z, "zDirect": pr.ZDirect} {
+		got := find(hostile, q)
+		if len(got) != 1 {
+			t.Errorf("%s: %d elements, want exactly 1", q, len(got))
+			continue
+		}
+		re, err1 := strconv.ParseFloat(got[0].attrs["data-re"], 64)
+		im, err2 := strconv.ParseFloat(got[0].attrs["data-im"], 64)
+		if err1 != nil || err2 != nil || re != want.Re || im != want.Im {
+			t.Errorf("%s: data-re/data-im = %q/%q, want %v/%v exactly", q, got[0].attrs["data-re"], got[0].attrs["data-im"], want.Re, want.Im)
+		}
+	}
+	if a := find(hostile, "agreement"); len(a) != 1 || a[0].attrs["data-value"] != "2.1e-15" {
+		t.Errorf("agreement element: %v", a)
+	}
+	for _, q := range []string{"z0", "z", "zDirect"} {
+		if got := find("open", q); len(got) != 1 || got[0].attrs["data-null"] != "true" || !strings.Contains(got[0].text, "—") {
+			t.Errorf("open port %s: want one null value shown as a dash, got %v", q, got)
+		}
+	}
+	if got := find("open", "y"); len(got) != 1 {
+		t.Errorf("open port: the admittance is not shown")
+	}
+	for q, want := range map[string]string{"g0": "0.001", "gInf": "-4.7", "g": "-4.69", "gDirect": "-4.69", "T": "100"} {
+		got := find("", q)
+		if len(got) != 1 || got[0].attrs["data-re"] != want {
+			t.Errorf("%s: want one element with data-re %s, got %v", q, want, got)
+		}
+	}
+	for q, want := range map[string]string{"fc": "186000", "pm": "88.2", "gm": "43.9"} {
+		got := find("", q)
+		if len(got) != 1 || got[0].attrs["data-value"] != want {
+			t.Errorf("%s: want one element with data-value %s, got %v", q, want, got)
+		}
+	}
+	// Hand formulas are marked apart from the engine's values.
+	n := 0
+	for _, e := range els {
+		if e.attrs["data-closed-form"] != "" {
+			if e.attrs["data-quantity"] != "" {
+				t.Errorf("a hand-formula value also carries data-quantity=%s", e.attrs["data-quantity"])
+			}
+			n++
+		}
+	}
+	if n == 0 {
+		t.Errorf("no hand-formula values")
+	}
+	// Every chart's SVG is inline, without a style element (the pages' CSP
+	// forbids inline styles).
+	svgs := 0
+	for _, e := range els {
+		if e.name == "svg" {
+			svgs++
+		}
+		if e.name == "style" {
+			t.Errorf("panel holds a style element")
+		}
+		if _, ok := e.attrs["style"]; ok {
+			t.Errorf("element %s has a style attribute", e.name)
+		}
+	}
+	if want := 2 + 1 + 1; svgs != want { // two ports, the loop, the gain
+		t.Errorf("%d charts, want %d", svgs, want)
+	}
+}
+
+func TestSeriesElement(t *testing.T) {
+	w := 2 * math.Pi * 1e3
+	for _, tc := range []struct {
+		z    complex128
+		f    float64
+		want string
+	}{
+		{complex(0.37, w*159e-6), 1e3, "370 mΩ + 159 µH"},
+		{complex(12e3, -1/(w*3.3e-9)), 1e3, "12.0 kΩ + 3.30 nF"},
+		{complex(1.5, w*2e-3), 1e3, "1.50 Ω + 2.00 mH"},
+		{complex(-375e3, w*10e-3), 1e3, "−375 kΩ + 10.0 mH"}, // a negative resistance stays negative
+		{complex(0, -1/(w*1e-6)), 1e3, "1.00 µF"},            // a pure reactance
+		{complex(4.7e3, 0), 1e3, "4.70 kΩ"},
+		{complex(4.7e3, 1), 0, "4.70 kΩ"},                  // no reactance at DC
+		{complex(74.3, -3.473e-3), 1e3, "74.3 Ω"},          // ∠ −0.0027°: a resistor
+		{complex(74.3, -74.3e-3), 1e3, "74.3 Ω + 2.14 mF"}, // ∠ −0.057°: shown
+		{cmplx.NaN(), 1e3, "—"},
+		{cmplx.Inf(), 1e3, "—"},
+	} {
+		if got := SeriesElement(tc.z, tc.f); got != tc.want {
+			t.Errorf("SeriesElement(%v, %g) = %q, want %q", tc.z, tc.f, got, tc.want)
+		}
+	}
+}
+
+func TestFormatting(t *testing.T) {
+	for _, tc := range []struct{ got, want string }{
+		{polar(complex(54935.77, -0.3), "Ω"), "54.94 kΩ ∠ 0.00°"}, // no "−0.00°"
+		{polar(complex(54935.77, -30), "Ω"), "54.94 kΩ ∠ −0.03°"},
+		{polar(complex(math.Copysign(0, -1), 0), ""), "0"},
+		{polar(complex(-4.273, 0.02293), "V/V"), "4.273 V/V ∠ 179.69°"},
+		{rect(complex(-4.273, 9.8e-21), "V/V"), "−4.273 + j0 V/V"},
+		{rect(complex(11e3, 47.64), "Ω"), "11.00 kΩ + j47.64 Ω"},
+		{rect(complex(0.8997, -186.3), ""), "0.8997 − j186.3"},
+		{plain(26077.6), "26078"},
+		{plain(143259.6), "1.433 × 10⁵"},
+		{plain(9.9996), "10.00"},
+		{plain(-0.00123), "−0.001230"},
+		{plain(2.3e-21), "2.300 × 10⁻²¹"},
+		{decibels(complex(186.3, 0)), "45.40 dB"},
+		{degrees(-89.724), "−89.72°"},
+		{Magnitude(1e16, "Ω"), "1.000 × 10¹⁶ Ω"},
+		{Magnitude(4700, "Ω"), "4.700 kΩ"},
+		{Magnitude(65.834, "°"), "65.83°"},
+	} {
+		if tc.got != tc.want {
+			t.Errorf("got %q, want %q", tc.got, tc.want)
+		}
+	}
+}
+
+// entry is a catalog entry of our own for the form tests.
+var entry = api.CatalogEntry{
+	ID: "t", Title: "Test stage",
+	Params: []api.ParamInfo{
+		{Name: "R1", Unit: "Ω", Default: "10k"},
+		{Name: "R2", Unit: "Ω", Default: "47k"},
+		{Name: "Cf", Unit: "F", Default: "", Optional: true},
+	},
+	Frequency: 1e3,
+	Sweep:     api.SweepSpec{From: 10, To: 1e8, Points: 400},
+}
+
+func TestSyntax(t *testing.T) {
+	for v, want := range map[float64]string{
+		1000: "1k", 1e8: "100M", 10: "10", 2.5e-3: "2.5m", 1.5e6: "1.5M", 123456: "123.456k",
+		0.47: "470m", 4.7e-9: "4.7n", 1e-12: "1p", 0: "0", 1e13: "10T",
+	} {
+		if got := Syntax(v); got != want {
+			t.Errorf("Syntax(%g) = %q, want %q", v, got, want)
+		}
+	}
+}
+
+func TestFragmentRoundTrip(t *testing.T) {
+	f := DefaultForm(entry)
+	f.Params["R2"] = "4k7"
+	f.Params["Cf"] = "2.2p"
+	f.Frequency = "1.5 k" // spaces and other text survive escaping
+	f.Sweep.Points = "200"
+	state := f.State(entry)
+	if state != "R1=10k&R2=4k7&Cf=2.2p&f=1.5+k&from=10&to=100M&points=200" {
+		t.Errorf("State = %q", state)
+	}
+	for _, frag := range []string{state, "#" + state, "p=t&" + state, state + "&"} {
+		g, err := ReadFragment(frag, DefaultForm(entry), entry)
+		if err != nil {
+			t.Fatalf("ReadFragment(%q): %v", frag, err)
+		}
+		if g.State(entry) != state {
+			t.Errorf("round trip of %q gave %q", frag, g.State(entry))
+		}
+	}
+	// A partial fragment keeps the base's other values.
+	base := DefaultForm(entry)
+	base.Params["R1"] = "2k2"
+	g, err := ReadFragment("R2=1M", base, entry)
+	if err != nil || g.Params["R1"] != "2k2" || g.Params["R2"] != "1M" {
+		t.Errorf("partial fragment: %v, %v", g.Params, err)
+	}
+	if base.Params["R2"] != "47k" {
+		t.Errorf("ReadFragment changed its base")
+	}
+}
+
+func TestFragmentRefused(t *testing.T) {
+	for _, frag := range []string{
+		hostile,
+		"R1=" + hostile + "&nope=1",
+		"R9=10k",
+		"R1=10k&R1=20k",
+		"R1=%zz",
+		"R1=%0",
+		"R1=%00",
+		"R1=a%0Ab",
+		"R1=%FF",
+		"R1",
+		"R1=" + strings.Repeat("9", maxFragmentValue+1),
+		strings.Repeat("R1=1&", maxFragment/5+1),
+		"constructor=1",
+		"__proto__=1",
+	} {
+		base := DefaultForm(entry)
+		g, err := ReadFragment(frag, base, entry)
+		if err == nil {
+			t.Errorf("ReadFragment(%q) accepted it: %v", frag, g)
+			continue
+		}
+		if g.State(entry) != base.State(entry) {
+			t.Errorf("ReadFragment(%q) did not return the base unchanged", frag)
+		}
+	}
+}
+
+func FuzzReadFragment(f *testing.F) {
+	f.Add("R1=10k&R2=4k7&f=1k&from=10&to=100M&points=400")
+	f.Add(hostile)
+	f.Add("p=t&%zz=%%")
+	f.Fuzz(func(t *testing.T, frag string) {
+		g, err := ReadFragment(frag, DefaultForm(entry), entry)
+		if err != nil {
+			return
+		}
+		// What was accepted is written back and read again to the same form.
+		h, err := ReadFragment(g.State(entry), DefaultForm(entry), entry)
+		if err != nil || h.State(entry) != g.State(entry) {
+			t.Errorf("state %q does not round-trip: %v", g.State(entry), err)
+		}
+	})
+}
+
+func TestFormFieldErrors(t *testing.T) {
+	for _, tc := range []struct {
+		f     Form
+		field string
+	}{
+		{Form{Frequency: "1kk"}, FieldFrequency},
+		{Form{Frequency: "-1"}, FieldFrequency},
+		{Form{Frequency: "1k", Sweep: SweepForm{From: "0", To: "1M", Points: "10"}}, FieldFrom},
+		{Form{Frequency: "1k", Sweep: SweepForm{From: "10", To: "1", Points: "10"}}, FieldTo},
+		{Form{Frequency: "1k", Sweep: SweepForm{From: "10", To: "1M", Points: "ten"}}, FieldPoints},
+		{Form{Frequency: "1k", Sweep: SweepForm{From: "10", To: "1M", Points: "1"}}, FieldPoints},
+		{Form{Frequency: "1k", Sweep: SweepForm{From: "10", To: "1M", Points: strconv.Itoa(api.MaxPoints + 1)}}, FieldPoints},
+	} {
+		_, bad := tc.f.request()
+		if bad == nil || bad.Param != tc.field || bad.Message == "" {
+			t.Errorf("%+v: error %+v, want one naming %s", tc.f, bad, tc.field)
+		}
+	}
+}
+
+// TestComputeCatalog runs every stage of the catalog through Compute, the
+// path both the page build and the WebAssembly bridge take.
+func TestComputeCatalog(t *testing.T) {
+	cat := api.Catalog()
+	if len(cat) == 0 {
+		t.Fatal("the catalog is empty")
+	}
+	for _, e := range cat {
+		t.Run(e.ID, func(t *testing.T) {
+			out := Compute(Form{Topology: e.ID, ID: "c", CSV: true})
+			if out.Error != nil {
+				t.Fatalf("defaults: %+v", out.Error)
+			}
+			els := parse(t, out.HTML)
+			for _, p := range e.Ports {
+				for _, q := range []string{"z0", "tShort", "tOpen", "zDirect"} {
+					found := false
+					for _, el := range els {
+						found = found || el.attrs["data-port"] == p.Name && el.attrs["data-quantity"] == q
+					}
+					if !found {
+						t.Errorf("port %s: no %s value", p.Name, q)
+					}
+				}
+			}
+			if out.Markdown == "" || !strings.HasPrefix(out.CSV, "frequency_Hz,T_re,T_im,") {
+				t.Errorf("Markdown or CSV missing")
+			}
+			if n := strings.Count(out.CSV, "\r\n"); n != e.Sweep.Points+1 {
+				t.Errorf("CSV has %d lines, want %d", n, e.Sweep.Points+1)
+			}
+			// The state reproduces the panel exactly.
+			frag := out.State
+			again := Compute(Form{Topology: e.ID, ID: "c", Fragment: &frag, CSV: true})
+			if again.Error != nil || again.HTML != out.HTML {
+				t.Errorf("the state %q does not reproduce the panel (%v)", frag, again.Error)
+			}
+			// A bad value of each parameter names that parameter.
+			for _, p := range e.Params {
+				bad := Compute(Form{Topology: e.ID, Params: map[string]string{p.Name: "4k7k"}})
+				if bad.Error == nil || bad.Error.Param != p.Name {
+					t.Errorf("bad %s: error %+v, want one naming it", p.Name, bad.Error)
+				}
+			}
+		})
+	}
+}
+
+func TestComputeJSONNeverPanics(t *testing.T) {
+	rnd := rand.New(rand.NewPCG(1, 1))
+	inputs := []string{"", "null", "[]", "{", `{"topology": 3}`, `{"topology": "nope"}`, `{"x": 1}`,
+		`{"topology": "inverting", "fragment": "` + hostile + `"}`, `{"circuit": "resistor R1 a gnd 1k\nport p a gnd\n", "frequency": "1k"}`}
+	for i := 0; i < 50; i++ {
+		b := make([]byte, rnd.IntN(40))
+		for j := range b {
+			b[j] = byte(rnd.IntN(256))
+		}
+		inputs = append(inputs, string(b))
+	}
+	for _, in := range inputs {
+		out := ComputeJSON([]byte(in))
+		if len(out) == 0 || out[0] != '{' {
+			t.Errorf("ComputeJSON(%q) = %q, want a JSON object", in, out)
+		}
+	}
+}

@@ -1,0 +1,173 @@
+//go:build js && wasm
+
+package main
+
+import (
+	"encoding/json"
+	"strings"
+	"syscall/js"
+	"testing"
+)
+
+// setup registers the bridge on a fresh object standing in for the page's
+// global scope and returns it with a cleanup.
+func setup(t *testing.T) (z js.Value, exited *bool) {
+	t.Helper()
+	global := js.Global().Get("Object").New()
+	done := false
+	release := register(global, func() { done = true })
+	t.Cleanup(release)
+	return global.Get("zport"), &done
+}
+
+// call invokes a bridge function and decodes its JSON answer.
+func call(t *testing.T, z js.Value, name string, args ...any) map[string]any {
+	t.Helper()
+	res := z.Call(name, args...)
+	if res.Type() != js.TypeString {
+		t.Fatalf("zport.%s returned a %s, want a string", name, res.Type())
+	}
+	var m map[string]any
+	if err := json.Unmarshal([]byte(res.String()), &m); err != nil {
+		t.Fatalf("zport.%s returned invalid JSON %q: %v", name, res.String(), err)
+	}
+	return m
+}
+
+func errorMessage(m map[string]any) string {
+	e, ok := m["error"].(map[string]any)
+	if !ok {
+		return ""
+	}
+	s, _ := e["message"].(string)
+	return s
+}
+
+func TestAnalyzeCircuit(t *testing.T) {
+	z, _ := setup(t)
+	// A follower around an ideal-gain amplifier: values our own.
+	req := `{"circuit": "vsource Vin in gnd 1\nresistor R1 out gnd 10k\nvcvs E1 out gnd sense=in,out gain=1000\nport o out gnd\n", "reference": "E1", "ports": ["o"], "frequency": 0}`
+	m := call(t, z, "analyze", req)
+	if msg := errorMessage(m); msg != "" {
+		t.Fatalf("analyze: %s", msg)
+	}
+	ports, ok := m["ports"].([]any)
+	if !ok || len(ports) != 1 {
+		t.Fatalf("ports = %v, want one", m["ports"])
+	}
+}
+
+func TestAnalyzeBadInput(t *testing.T) {
+	z, _ := setup(t)
+	m := call(t, z, "analyze", `{"circuit": "resistor R1 a\n", "ports": ["a"], "frequency": 1}`)
+	e, ok := m["error"].(map[string]any)
+	if !ok {
+		t.Fatalf("want an error object, got %v", m)
+	}
+	if line, _ := e["line"].(float64); line != 1 {
+		t.Errorf("error line = %v, want 1", e["line"])
+	}
+}
+
+func TestWrongArguments(t *testing.T) {
+	z, _ := setup(t)
+	for _, tc := range []struct {
+		name string
+		args []any
+	}{
+		{"analyze", nil},
+		{"analyze", []any{42}},
+		{"analyze", []any{"{}", "{}"}},
+		{"panel", []any{js.Null()}},
+		{"catalog", []any{"x"}},
+	} {
+		m := call(t, z, tc.name, tc.args...)
+		if errorMessage(m) == "" {
+			t.Errorf("zport.%s(%v): want an error object, got %v", tc.name, tc.args, m)
+		}
+	}
+}
+
+func TestNotJSON(t *testing.T) {
+	z, _ := setup(t)
+	for _, name := range []string{"analyze", "panel"} {
+		if m := call(t, z, name, "{not json"); errorMessage(m) == "" {
+			t.Errorf("zport.%s: want an error object for malformed JSON, got %v", name, m)
+		}
+	}
+}
+
+func TestCatalogAndPanel(t *testing.T) {
+	z, _ := setup(t)
+	res := z.Call("catalog")
+	var cat []struct {
+		ID string `json:"id"`
+	}
+	if err := json.Unmarshal([]byte(res.String()), &cat); err != nil {
+		t.Fatalf("catalog: %v", err)
+	}
+	if len(cat) == 0 {
+		t.Fatal("catalog is empty")
+	}
+	m := call(t, z, "panel", `{"topology": "`+cat[0].ID+`", "id": "t"}`)
+	if msg := errorMessage(m); msg != "" {
+		t.Fatalf("panel: %s", msg)
+	}
+	html, _ := m["html"].(string)
+	if !strings.Contains(html, `data-quantity="zDirect"`) {
+		t.Errorf("panel html lacks the zDirect values")
+	}
+	if s, _ := m["state"].(string); s == "" {
+		t.Errorf("panel gave no state")
+	}
+	// A bad parameter names itself.
+	m = call(t, z, "panel", `{"topology": "`+cat[0].ID+`", "params": {"`+firstParam(t, z, cat[0].ID)+`": "4k7k"}}`)
+	e, ok := m["error"].(map[string]any)
+	if !ok || e["param"] == "" {
+		t.Fatalf("want an error naming the parameter, got %v", m)
+	}
+}
+
+func firstParam(t *testing.T, z js.Value, id string) string {
+	var cat []struct {
+		ID     string `json:"id"`
+		Params []struct {
+			Name string `json:"name"`
+		} `json:"params"`
+	}
+	if err := json.Unmarshal([]byte(z.Call("catalog").String()), &cat); err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range cat {
+		if e.ID == id && len(e.Params) > 0 {
+			return e.Params[0].Name
+		}
+	}
+	t.Fatalf("no parameters for %s", id)
+	return ""
+}
+
+func TestPanicIsReported(t *testing.T) {
+	f := guard(func([]js.Value) string { panic("boom") })
+	defer f.Release()
+	res := f.Invoke()
+	if res.Type() != js.TypeString || !strings.Contains(res.String(), "internal error: boom") {
+		t.Fatalf("panic came back as %v", res)
+	}
+}
+
+func TestExitAndRelease(t *testing.T) {
+	global := js.Global().Get("Object").New()
+	exits := 0
+	release := register(global, func() { exits++ })
+	z := global.Get("zport")
+	z.Call("exit")
+	z.Call("exit")
+	if exits != 1 {
+		t.Errorf("exit ran %d times, want once", exits)
+	}
+	release()
+	if !global.Get("zport").IsUndefined() {
+		t.Errorf("zport is still set after release")
+	}
+}
