@@ -14,49 +14,13 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"zport/engine/api"
+	zbrowser "zport/site/browser"
 )
-
-// chromium is Debian's Chromium, the browser the project measures with.
-const chromium = "/usr/bin/chromium"
-
-// browserOptions are the launch flags for a headless, quiet Chromium with
-// its own profile in dir.
-func browserOptions(dir string) []chromedp.ExecAllocatorOption {
-	return append(chromedp.DefaultExecAllocatorOptions[:],
-		chromedp.ExecPath(chromium),
-		chromedp.Headless,
-		chromedp.NoSandbox,
-		chromedp.DisableGPU,
-		chromedp.NoFirstRun,
-		chromedp.Flag("disable-quic", true),
-		chromedp.Flag("disable-background-networking", true),
-		chromedp.Flag("disable-component-update", true),
-		chromedp.Flag("disable-sync", true),
-		chromedp.UserDataDir(dir),
-		chromedp.WindowSize(1280, 800),
-	)
-}
 
 // browser starts a Chromium with a fresh profile; stop ends it and removes
 // the profile.
 func browser() (ctx context.Context, stop func(), err error) {
-	dir, err := os.MkdirTemp("", "zport-bench-profile-")
-	if err != nil {
-		return nil, nil, err
-	}
-	actx, cancelA := chromedp.NewExecAllocator(context.Background(), browserOptions(dir)...)
-	ctx, cancelB := chromedp.NewContext(actx)
-	stop = func() {
-		cancelB()
-		cancelA()
-		os.RemoveAll(dir)
-	}
-	// The first Run starts the browser; it must not carry a timeout.
-	if err := chromedp.Do(ctx); err != nil {
-		stop()
-		return nil, nil, err
-	}
-	return ctx, stop, nil
+	return zbrowser.Start(1280, 800)
 }
 
 // load is what one navigation to a calculator page measured, from the
@@ -147,8 +111,8 @@ func runBench(args []string) error {
 	if *runs < 1 {
 		return errors.New("bench: -runs must be at least 1")
 	}
-	if _, err := os.Stat(chromium); err != nil {
-		return fmt.Errorf("bench needs Chromium at %s (apt-get install -y chromium): %v", chromium, err)
+	if err := zbrowser.Available(); err != nil {
+		return fmt.Errorf("bench needs Chromium: %v", err)
 	}
 	dist, _, err := buildSite()
 	if err != nil {

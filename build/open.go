@@ -6,6 +6,8 @@ import (
 	"os/exec"
 	"path/filepath"
 	"runtime"
+
+	"zport/site"
 )
 
 // runOpen builds the site, then opens dist/index.html in the system's
@@ -15,10 +17,11 @@ func runOpen(args []string) error {
 	if err := runBuild(args); err != nil {
 		return err
 	}
-	index, err := filepath.Abs(filepath.Join("dist", "index.html"))
+	root, err := site.ModuleRoot()
 	if err != nil {
 		return err
 	}
+	index := filepath.Join(root, "dist", "index.html")
 	var cmd *exec.Cmd
 	switch runtime.GOOS {
 	case "darwin":

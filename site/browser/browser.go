@@ -1,0 +1,97 @@
+//go:build !js
+
+// Package browser starts Debian's Chromium, headless, the way every zport
+// browser test and the browser benchmark need it: a fresh profile, no GPU,
+// and the flags that keep it from reaching for the network (this workplace
+// has none, and refused connections slow a start).
+//
+//	ctx := browser.ForTest(t) // skips loudly without Chromium, fails when required
+//	chromedp.Run(ctx, chromedp.Navigate(url))
+//
+// When /usr/bin/chromium is absent, ForTest skips the test with a message
+// saying how to install it — unless ZPORT_BROWSER=required (as CI sets),
+// when it fails the test instead.
+package browser
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"testing"
+
+	"github.com/chromedp/chromedp"
+)
+
+// Path is where Debian's chromium package installs the browser.
+const Path = "/usr/bin/chromium"
+
+// Required reports whether ZPORT_BROWSER=required is set.
+func Required() bool { return os.Getenv("ZPORT_BROWSER") == "required" }
+
+// Available reports whether Chromium is installed.
+func Available() error {
+	if _, err := os.Stat(Path); err != nil {
+		return fmt.Errorf("no Chromium at %s (install it with: apt-get install -y chromium)", Path)
+	}
+	return nil
+}
+
+// Options are chromedp's defaults plus the flags this project always uses.
+func Options(profile string, width, height int) []chromedp.ExecAllocatorOption {
+	return append(chromedp.DefaultExecAllocatorOptions[:],
+		chromedp.ExecPath(Path),
+		chromedp.Headless,
+		chromedp.NoSandbox,
+		chromedp.DisableGPU,
+		chromedp.NoFirstRun,
+		chromedp.Flag("disable-quic", true),
+		chromedp.Flag("disable-background-networking", true),
+		chromedp.Flag("disable-component-update", true),
+		chromedp.Flag("disable-sync", true),
+		chromedp.UserDataDir(profile),
+		chromedp.WindowSize(width, height),
+	)
+}
+
+// Start launches a browser with a fresh profile in a temporary folder; stop
+// ends it and removes the profile.
+func Start(width, height int) (ctx context.Context, stop func(), err error) {
+	if err := Available(); err != nil {
+		return nil, nil, err
+	}
+	dir, err := os.MkdirTemp("", "zport-chromium-")
+	if err != nil {
+		return nil, nil, err
+	}
+	actx, cancelA := chromedp.NewExecAllocator(context.Background(), Options(dir, width, height)...)
+	ctx, cancelB := chromedp.NewContext(actx)
+	stop = func() {
+		cancelB()
+		cancelA()
+		os.RemoveAll(dir)
+	}
+	// The first Run starts the browser; it must not carry a timeout.
+	if err := chromedp.Do(ctx); err != nil {
+		stop()
+		return nil, nil, err
+	}
+	return ctx, stop, nil
+}
+
+// ForTest starts a 1280×800 browser for t, stopped when t ends. Without
+// Chromium it skips t loudly, or fails it when ZPORT_BROWSER=required.
+func ForTest(t testing.TB) context.Context {
+	t.Helper()
+	if err := Available(); err != nil {
+		if Required() {
+			t.Fatalf("ZPORT_BROWSER=required but %v", err)
+		}
+		t.Skipf("SKIPPING BROWSER TEST: %v; set ZPORT_BROWSER=required to make this a failure", err)
+	}
+	ctx, stop, err := Start(1280, 800)
+	if err != nil {
+		t.Fatalf("starting Chromium: %v", err)
+	}
+	t.Cleanup(stop)
+	return ctx
+}
