@@ -1,6 +1,9 @@
 package topology
 
-import "math"
+import (
+	"math"
+	"zport/engine/value"
+)
 
 func init() { register(capload) }
 
@@ -62,18 +65,18 @@ func caploadCircuit(v Values) string {
 	b.opamp(v, plus, "fb", pin)
 	if v.Has("Riso") {
 		b.comment("Isolation resistor from the op-amp pin to the load")
-		b.part("resistor", "Riso", "amp", "out", opmNum(v["Riso"]))
+		b.part("resistor", "Riso", "amp", "out", value.Exact(v["Riso"]))
 	}
 	if v.Has("Cf") {
 		b.comment("In-loop compensation: Rf senses the load (DC), Cf feeds the pin back (high frequency)")
-		b.part("resistor", "Rf", "out", "fb", opmNum(v["Rf"]))
-		b.part("capacitor", "Cf", pin, "fb", opmNum(v["Cf"]))
+		b.part("resistor", "Rf", "out", "fb", value.Exact(v["Rf"]))
+		b.part("capacitor", "Cf", pin, "fb", value.Exact(v["Cf"]))
 	} else {
 		b.comment("Feedback taken at the op-amp pin through Rf")
-		b.part("resistor", "Rf", pin, "fb", opmNum(v["Rf"]))
+		b.part("resistor", "Rf", pin, "fb", value.Exact(v["Rf"]))
 	}
 	if v.Has("R1") {
-		b.part("resistor", "R1", "fb", "gnd", opmNum(v["R1"]))
+		b.part("resistor", "R1", "fb", "gnd", value.Exact(v["R1"]))
 	}
 	b.load(v, "out")
 	b.ports("out out gnd", "in src gnd")
@@ -197,7 +200,7 @@ func caploadForms(v Values, f float64) Forms {
 	}
 }
 
-const caploadSrcPole = "ro with CL adds a loop pole at 1/(2π·ro·CL), REFERENCES.md §4 [memory]"
+const caploadSrcPole = "ro with CL adds a loop pole at 1/(2π·ro·CL) [memory; a standard result of op-amp stability texts, not re-read]"
 
 // caploadExtras: the ro·CL pole, the pole–zero pair Riso makes, and the
 // phase margin the engine finds as given, without Riso and without CL.

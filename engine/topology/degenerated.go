@@ -1,6 +1,8 @@
 package topology
 
 import (
+	"zport/engine/value"
+
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -111,22 +113,22 @@ func degCircuit(v Values) string {
 	if v.Has("Rg") {
 		b.WriteString("# gate drive: Vin behind Rg (zeroed, it AC-grounds the gate through Rg)\n")
 		b.WriteString("vsource  Vin in gnd 1\n")
-		fmt.Fprintf(&b, "resistor Rg in g %s\n", cfNum(v["Rg"]))
+		fmt.Fprintf(&b, "resistor Rg in g %s\n", value.Exact(v["Rg"]))
 	} else {
 		b.WriteString("# gate drive: Vin on the gate (zeroed, it AC-grounds the gate)\n")
 		b.WriteString("vsource  Vin g gnd 1\n")
 	}
 	b.WriteString("# M1 small-signal model: gm·vgs from drain to source, rO across them\n")
-	fmt.Fprintf(&b, "vccs     Gm1 d s sense=%s,s gm=%s\n", g, cfNum(v["gm"]))
-	fmt.Fprintf(&b, "resistor ro1 d s %s\n", cfNum(v["ro"]))
+	fmt.Fprintf(&b, "vccs     Gm1 d s sense=%s,s gm=%s\n", g, value.Exact(v["gm"]))
+	fmt.Fprintf(&b, "resistor ro1 d s %s\n", value.Exact(v["ro"]))
 	if v.Has("Cgs") {
-		fmt.Fprintf(&b, "capacitor Cgs1 %s s %s\n", g, cfNum(v["Cgs"]))
+		fmt.Fprintf(&b, "capacitor Cgs1 %s s %s\n", g, value.Exact(v["Cgs"]))
 	}
 	if v.Has("Cgd") {
-		fmt.Fprintf(&b, "capacitor Cgd1 %s d %s\n", g, cfNum(v["Cgd"]))
+		fmt.Fprintf(&b, "capacitor Cgd1 %s d %s\n", g, value.Exact(v["Cgd"]))
 	}
 	b.WriteString("# degeneration resistor\n")
-	fmt.Fprintf(&b, "resistor RS s gnd %s\n", cfNum(v["RS"]))
+	fmt.Fprintf(&b, "resistor RS s gnd %s\n", value.Exact(v["RS"]))
 	b.WriteString(cfLoadLines(v, "d"))
 	b.WriteString("# port: the drain, where the output resistance is read\n")
 	b.WriteString("port     out d gnd\n")
@@ -152,7 +154,7 @@ func degForms(v Values, f float64) Forms {
 	out.Gain = cfF(gain, "vD/Vin = G₀ + g_m·v_gs₀·v_d,r/(1 + T) (superposition on the controlled source); at low frequency with a load R_L and "+
 		"gate driven directly: −g_m·r_O·R_L/(r_O + R_S + g_m·r_O·R_S + R_L)", cfSrcDerived)
 
-	src := "standard result, e.g. B. Razavi, Design of Analog CMOS Integrated Circuits, 2nd ed., 2017, ch. 3 [memory]; Blackman terms as in REFERENCES.md §3 [derived]"
+	src := "standard result, e.g. B. Razavi, Design of Analog CMOS Integrated Circuits, 2nd ed., 2017, ch. 3 [memory]; Blackman terms derived here from the stage's node equations [derived]"
 	out.Ports = []PortForms{{Name: "out",
 		Z0:     cfF(z0, "Z₀ = C11/Δ (low frequency, no load: r_O + R_S)", src),
 		TShort: cfF(tsc, "T_sc = g_m(G_g + Y_gd)/C11 (low frequency: g_m·(R_S ∥ r_O))", src),

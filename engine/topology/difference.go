@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
-	"strconv"
 	"strings"
 
 	"zport/engine/value"
@@ -18,29 +17,6 @@ import (
 // cfSrcDerived is the source line of a closed form worked out for the
 // stage's exact model.
 const cfSrcDerived = "derived here by nodal analysis of the stage's exact small-signal model (node equations solved by cofactors) [derived]"
-
-// cfNum writes x for circuit text: with an SI prefix when that reads back to
-// exactly the same float64, else in Go's shortest exact form.
-func cfNum(x float64) string {
-	plain := strconv.FormatFloat(x, 'g', -1, 64)
-	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
-		return plain
-	}
-	e := int(math.Floor(math.Log10(math.Abs(x))/3)) * 3
-	syms := map[int]string{-15: "f", -12: "p", -9: "n", -6: "u", -3: "m", 0: "", 3: "k", 6: "M", 9: "G", 12: "T"}
-	sym, ok := syms[e]
-	if !ok {
-		return plain
-	}
-	s := strconv.FormatFloat(x/math.Pow10(e), 'g', -1, 64) + sym
-	if strings.ContainsAny(s, "eE") {
-		return plain
-	}
-	if back, err := value.Parse(s, ""); err == nil && back == x {
-		return s
-	}
-	return plain
-}
 
 // cfShow writes x for a comment, with its unit.
 func cfShow(x float64, unit string) string { return value.Format(x, unit, 4) }
@@ -111,21 +87,21 @@ func (m cfAmp) gc() complex128 {
 
 // line writes the opamp line of the circuit text.
 func (m cfAmp) line(name, plus, minus, out string) string {
-	opts := []string{"a0=" + cfNum(m.a0)}
+	opts := []string{"a0=" + value.Exact(m.a0)}
 	if m.gbw > 0 {
-		opts = append(opts, "gbw="+cfNum(m.gbw))
+		opts = append(opts, "gbw="+value.Exact(m.gbw))
 	}
 	if m.p2 > 0 {
-		opts = append(opts, "p2="+cfNum(m.p2))
+		opts = append(opts, "p2="+value.Exact(m.p2))
 	}
 	if m.rid > 0 {
-		opts = append(opts, "rid="+cfNum(m.rid))
+		opts = append(opts, "rid="+value.Exact(m.rid))
 	}
 	if m.rcm > 0 {
-		opts = append(opts, "rcm="+cfNum(m.rcm))
+		opts = append(opts, "rcm="+value.Exact(m.rcm))
 	}
 	if m.ro > 0 {
-		opts = append(opts, "ro="+cfNum(m.ro))
+		opts = append(opts, "ro="+value.Exact(m.ro))
 	}
 	return fmt.Sprintf("opamp    %s %s %s %s %s\n", name, plus, minus, out, strings.Join(opts, " "))
 }
@@ -158,10 +134,10 @@ func cfLoadLines(v Values, node string) string {
 		b.WriteString("# load\n")
 	}
 	if v.Has("RL") {
-		fmt.Fprintf(&b, "resistor RL %s gnd %s\n", node, cfNum(v["RL"]))
+		fmt.Fprintf(&b, "resistor RL %s gnd %s\n", node, value.Exact(v["RL"]))
 	}
 	if v.Has("CL") {
-		fmt.Fprintf(&b, "capacitor CL %s gnd %s\n", node, cfNum(v["CL"]))
+		fmt.Fprintf(&b, "capacitor CL %s gnd %s\n", node, value.Exact(v["CL"]))
 	}
 	return b.String()
 }
@@ -229,18 +205,18 @@ func diffCircuit(v Values) string {
 	b.WriteString("vsource  V2 in2 gnd 1\n")
 	a1, a2 := "in1", "in2"
 	if v.Has("Rs1") {
-		fmt.Fprintf(&b, "resistor Rs1 in1 s1 %s\n", cfNum(v["Rs1"]))
+		fmt.Fprintf(&b, "resistor Rs1 in1 s1 %s\n", value.Exact(v["Rs1"]))
 		a1 = "s1"
 	}
 	if v.Has("Rs2") {
-		fmt.Fprintf(&b, "resistor Rs2 in2 s2 %s\n", cfNum(v["Rs2"]))
+		fmt.Fprintf(&b, "resistor Rs2 in2 s2 %s\n", value.Exact(v["Rs2"]))
 		a2 = "s2"
 	}
 	b.WriteString("# the resistor bridge (mismatch is in the values themselves)\n")
-	fmt.Fprintf(&b, "resistor R1 %s n %s\n", a1, cfNum(v["R1"]))
-	fmt.Fprintf(&b, "resistor R2 n out %s\n", cfNum(v["R2"]))
-	fmt.Fprintf(&b, "resistor R3 %s p %s\n", a2, cfNum(v["R3"]))
-	fmt.Fprintf(&b, "resistor R4 p gnd %s\n", cfNum(v["R4"]))
+	fmt.Fprintf(&b, "resistor R1 %s n %s\n", a1, value.Exact(v["R1"]))
+	fmt.Fprintf(&b, "resistor R2 n out %s\n", value.Exact(v["R2"]))
+	fmt.Fprintf(&b, "resistor R3 %s p %s\n", a2, value.Exact(v["R3"]))
+	fmt.Fprintf(&b, "resistor R4 p gnd %s\n", value.Exact(v["R4"]))
 	b.WriteString("# op amp: + at p, − at n\n")
 	b.WriteString(cfAmpOf(v).line("U1", "p", "n", "out"))
 	b.WriteString(cfLoadLines(v, "out"))

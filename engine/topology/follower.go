@@ -1,5 +1,7 @@
 package topology
 
+import "zport/engine/value"
+
 func init() { register(follower) }
 
 var follower = &Topology{
@@ -48,7 +50,7 @@ func followerCircuit(v Values) string {
 	b.opamp(v, plus, pin, pin)
 	if v.Has("Riso") {
 		b.comment("Isolation resistor from the output pin (where the feedback is taken) to the load")
-		b.part("resistor", "Riso", "amp", "out", opmNum(v["Riso"]))
+		b.part("resistor", "Riso", "amp", "out", value.Exact(v["Riso"]))
 	}
 	b.load(v, "out")
 	b.ports("in src gnd", "out out gnd")

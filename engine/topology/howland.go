@@ -1,6 +1,8 @@
 package topology
 
 import (
+	"zport/engine/value"
+
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -76,15 +78,15 @@ func howCircuit(v Values) string {
 	b.WriteString("vsource  Vin in gnd 1\n")
 	a := "in"
 	if v.Has("Rs") {
-		fmt.Fprintf(&b, "resistor Rs in s %s\n", cfNum(v["Rs"]))
+		fmt.Fprintf(&b, "resistor Rs in s %s\n", value.Exact(v["Rs"]))
 		a = "s"
 	}
 	b.WriteString("# positive-feedback side: R1 from the source, R2 from the output\n")
-	fmt.Fprintf(&b, "resistor R1 %s p %s\n", a, cfNum(v["R1"]))
-	fmt.Fprintf(&b, "resistor R2 p vo %s\n", cfNum(v["R2"]))
+	fmt.Fprintf(&b, "resistor R1 %s p %s\n", a, value.Exact(v["R1"]))
+	fmt.Fprintf(&b, "resistor R2 p vo %s\n", value.Exact(v["R2"]))
 	b.WriteString("# negative-feedback side: R3 to ground, R4 from the output\n")
-	fmt.Fprintf(&b, "resistor R3 n gnd %s\n", cfNum(v["R3"]))
-	fmt.Fprintf(&b, "resistor R4 n vo %s\n", cfNum(v["R4"]))
+	fmt.Fprintf(&b, "resistor R3 n gnd %s\n", value.Exact(v["R3"]))
+	fmt.Fprintf(&b, "resistor R4 n vo %s\n", value.Exact(v["R4"]))
 	b.WriteString("# op amp: + at p, − at n\n")
 	b.WriteString(cfAmpOf(v).line("U1", "p", "n", "vo"))
 	b.WriteString(cfLoadLines(v, "p"))
@@ -110,10 +112,10 @@ func howForms(v Values, f float64) Forms {
 	out.Ports = append(out.Ports, PortForms{Name: "out",
 		Z0: cfF(z0, "Z₀ = (b·c − r_o·G4²)/Δ₀ (= R1 ∥ R2 ∥ Z_L for an ideal-input, ro = 0 op amp)", cfSrcDerived),
 		TShort: cfF(tsc, "T_sc = A·G4/(b·c − r_o·G4²) (= A·β_N with ro = 0, r_id = r_cm = ∞)",
-			"Blackman form in REFERENCES.md §3 [derived], generalized here to r_id, r_cm, r_o [derived]"),
+			"Blackman form derived here from the bridge's node equations, with r_id, r_cm, r_o [derived]"),
 		TOpen: cfF(T, "T_oc = T", cfSrcDerived),
 		Z: cfF(h.zp(), "Z = Z₀(1 + T_sc)/(1 + T_oc); with no load, ro = 0, r_id = r_cm = ∞: R_o = (R1∥R2)(1 + aβ_N)/(1 + a(β_N − β_P)), β_P = R1/(R1+R2)",
-			"Blackman form in REFERENCES.md §3 [derived]; exact here for the full model [derived]"),
+			"Blackman form derived here from the bridge's node equations, exact for the full model [derived]"),
 	})
 
 	Ra := v.Or("Rs", 0) + v["R1"]
@@ -137,9 +139,9 @@ func howForms(v Values, f float64) Forms {
 		{Name: "output impedance seen by the load (load removed), magnitude", Value: cmplx.Abs(ro), Unit: "Ω",
 			Note: fmt.Sprintf("phase %.4g°", cmplx.Phase(ro)*180/math.Pi), Source: cfSrcDerived},
 		{Name: "bridge mismatch ε, from R4/R3 = (R2/R1)(1 − ε)", Value: eps, Unit: "",
-			Note: "R1 here includes R_s", Source: "S. Franco, Design with Operational Amplifiers and Analog Integrated Circuits, 3rd ed., 2002, ch. 2 [found: as re-worked in REFERENCES.md §3]"},
+			Note: "R1 here includes R_s", Source: "S. Franco, Design with Operational Amplifiers and Analog Integrated Circuits, 3rd ed., 2002, ch. 2 [found: the formulas, as re-worked in a public set of textbook-example scripts]"},
 		{Name: "mismatch-limited output resistance R1/ε (a → ∞)", Value: Ra / eps, Unit: "Ω",
-			Note: "no value (infinite) for a balanced bridge", Source: "S. Franco, Design with Operational Amplifiers and Analog Integrated Circuits, 3rd ed., 2002, ch. 2 [found: as re-worked in REFERENCES.md §3]"},
+			Note: "no value (infinite) for a balanced bridge", Source: "S. Franco, Design with Operational Amplifiers and Analog Integrated Circuits, 3rd ed., 2002, ch. 2 [found: the formulas, as re-worked in a public set of textbook-example scripts]"},
 		{Name: "ideal transconductance 1/R1 (balanced bridge)", Value: 1 / Ra, Unit: "A/V", Source: "S. Franco, Design with Operational Amplifiers and Analog Integrated Circuits, 3rd ed., 2002, ch. 2 [memory]"},
 		{Name: "op-amp output swing per volt of Vin, |vO/Vin|", Value: cmplx.Abs(gvo),
 			Unit: "V/V", Note: "the compliance check: vO must stay inside the op amp's output range", Source: cfSrcDerived},

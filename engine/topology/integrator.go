@@ -1,6 +1,8 @@
 package topology
 
 import (
+	"zport/engine/value"
+
 	"fmt"
 	"math"
 	"strings"
@@ -47,19 +49,19 @@ func intCircuit(v Values) string {
 	b.WriteString("vsource  Vin in gnd 1\n")
 	a := "in"
 	if v.Has("Rs") {
-		fmt.Fprintf(&b, "resistor Rs in s %s\n", cfNum(v["Rs"]))
+		fmt.Fprintf(&b, "resistor Rs in s %s\n", value.Exact(v["Rs"]))
 		a = "s"
 	}
 	b.WriteString("# input resistor into the summing node\n")
-	fmt.Fprintf(&b, "resistor R1 %s sum %s\n", a, cfNum(v["R1"]))
+	fmt.Fprintf(&b, "resistor R1 %s sum %s\n", a, value.Exact(v["R1"]))
 	b.WriteString("# feedback capacitor")
 	if v.Has("R2") {
 		b.WriteString(" with its damping resistor (DC gain −R2/R1)")
 	}
 	b.WriteString("\n")
-	fmt.Fprintf(&b, "capacitor C1 sum out %s\n", cfNum(v["C1"]))
+	fmt.Fprintf(&b, "capacitor C1 sum out %s\n", value.Exact(v["C1"]))
 	if v.Has("R2") {
-		fmt.Fprintf(&b, "resistor R2 sum out %s\n", cfNum(v["R2"]))
+		fmt.Fprintf(&b, "resistor R2 sum out %s\n", value.Exact(v["R2"]))
 	}
 	b.WriteString("# op amp: + grounded, − at the summing node\n")
 	b.WriteString(cfAmpOf(v).line("U1", "gnd", "sum", "out"))

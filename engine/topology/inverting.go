@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
-	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/floats"
@@ -71,12 +70,12 @@ func invertingCircuit(v Values) string {
 	b.header("Inverting amplifier", "inverting")
 	r1 := b.source(v, "in")
 	b.comment("Feedback network: R1 into the summing node, R2 back from the output")
-	b.part("resistor", "R1", r1, "sum", opmNum(v["R1"]))
-	b.part("resistor", "R2", "out", "sum", opmNum(v["R2"]))
+	b.part("resistor", "R1", r1, "sum", value.Exact(v["R1"]))
+	b.part("resistor", "R2", "out", "sum", value.Exact(v["R2"]))
 	plus := "gnd"
 	if v.Has("Rp") {
 		b.comment("Bias-compensation resistor at the + input")
-		b.part("resistor", "Rp", "plus", "gnd", opmNum(v["Rp"]))
+		b.part("resistor", "Rp", "plus", "gnd", value.Exact(v["Rp"]))
 		plus = "plus"
 	}
 	b.opamp(v, plus, "sum", "out")
@@ -283,30 +282,6 @@ func opmLoad(rl, cl string) []Param {
 	}
 }
 
-// opmNum writes x so that value.Parse reads back exactly x: with an SI
-// prefix where that is exact, else in Go's shortest round-trip form.
-func opmNum(x float64) string {
-	prefixes := []struct {
-		exp int
-		sym string
-	}{{12, "T"}, {9, "G"}, {6, "M"}, {3, "k"}, {0, ""}, {-3, "m"}, {-6, "µ"}, {-9, "n"}, {-12, "p"}, {-15, "f"}}
-	plain := strconv.FormatFloat(x, 'g', -1, 64)
-	for _, p := range prefixes {
-		if math.Abs(x) < math.Pow10(p.exp) && p.exp != -15 {
-			continue
-		}
-		m := strconv.FormatFloat(x/math.Pow10(p.exp), 'g', -1, 64)
-		if strings.ContainsAny(m, "e") {
-			break
-		}
-		if y, err := value.Parse(m+p.sym, ""); err == nil && y == x {
-			return m + p.sym
-		}
-		break
-	}
-	return plain
-}
-
 // opmText builds commented circuit text with aligned columns.
 type opmText struct{ strings.Builder }
 
@@ -327,7 +302,7 @@ func (b *opmText) source(v Values, after string) string {
 	}
 	b.comment("Source: Vin behind its source resistance Rs; the input port is across Vin, Rs included")
 	b.part("vsource", "Vin", "src", "gnd", "1")
-	b.part("resistor", "Rs", "src", after, opmNum(v["Rs"]))
+	b.part("resistor", "Rs", "src", after, value.Exact(v["Rs"]))
 	return after
 }
 
@@ -338,10 +313,10 @@ func (b *opmText) part(kind, name, n1, n2, val string) {
 // opamp writes U1 with the model options present in v.
 func (b *opmText) opamp(v Values, plus, minus, out string) {
 	b.comment("Op amp U1: + input, − input, output; open-loop gain a0/((1 + s/ω1)(1 + s/ω2)), ω1 = 2π·gbw/a0, ω2 = 2π·p2")
-	opts := []string{"a0=" + opmNum(v["a0"])}
+	opts := []string{"a0=" + value.Exact(v["a0"])}
 	for _, k := range []string{"gbw", "p2", "rid", "rcm", "ro"} {
 		if v.Has(k) {
-			opts = append(opts, k+"="+opmNum(v[k]))
+			opts = append(opts, k+"="+value.Exact(v[k]))
 		}
 	}
 	fmt.Fprintf(b, "%-9s %-5s %-5s %-5s %-5s %s\n", "opamp", "U1", plus, minus, out, strings.Join(opts, " "))
@@ -354,10 +329,10 @@ func (b *opmText) load(v Values, node string) {
 	}
 	b.comment("Load: RL ∥ CL")
 	if v.Has("RL") {
-		b.part("resistor", "RL", node, "gnd", opmNum(v["RL"]))
+		b.part("resistor", "RL", node, "gnd", value.Exact(v["RL"]))
 	}
 	if v.Has("CL") {
-		b.part("capacitor", "CL", node, "gnd", opmNum(v["CL"]))
+		b.part("capacitor", "CL", node, "gnd", value.Exact(v["CL"]))
 	}
 }
 

@@ -1,5 +1,7 @@
 package topology
 
+import "zport/engine/value"
+
 func init() { register(noninverting) }
 
 var noninverting = &Topology{
@@ -42,8 +44,8 @@ func noninvertingCircuit(v Values) string {
 	b.header("Non-inverting amplifier", "noninverting")
 	plus := b.source(v, "plus")
 	b.comment("Feedback divider: R1 from the − input to gnd, R2 from the output")
-	b.part("resistor", "R1", "fb", "gnd", opmNum(v["R1"]))
-	b.part("resistor", "R2", "out", "fb", opmNum(v["R2"]))
+	b.part("resistor", "R1", "fb", "gnd", value.Exact(v["R1"]))
+	b.part("resistor", "R2", "out", "fb", value.Exact(v["R2"]))
 	b.opamp(v, plus, "fb", "out")
 	b.load(v, "out")
 	b.ports("in src gnd", "out out gnd")

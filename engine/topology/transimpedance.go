@@ -1,6 +1,8 @@
 package topology
 
 import (
+	"zport/engine/value"
+
 	"math"
 	"math/cmplx"
 
@@ -55,19 +57,19 @@ func transimpedanceCircuit(v Values) string {
 	b.comment("Sensor: current source Iin into the summing node, with its capacitance Cd and shunt resistance Rsh")
 	b.part("isource", "Iin", "gnd", "sum", "1")
 	if v.Has("Cd") {
-		b.part("capacitor", "Cd", "sum", "gnd", opmNum(v["Cd"]))
+		b.part("capacitor", "Cd", "sum", "gnd", value.Exact(v["Cd"]))
 	}
 	if v.Has("Rsh") {
-		b.part("resistor", "Rsh", "sum", "gnd", opmNum(v["Rsh"]))
+		b.part("resistor", "Rsh", "sum", "gnd", value.Exact(v["Rsh"]))
 	}
 	if v.Has("Cin") {
 		b.comment("Op-amp input capacitance at the − input")
-		b.part("capacitor", "Cin", "sum", "gnd", opmNum(v["Cin"]))
+		b.part("capacitor", "Cin", "sum", "gnd", value.Exact(v["Cin"]))
 	}
 	b.comment("Feedback: Rf ∥ Cf from the output to the summing node")
-	b.part("resistor", "Rf", "out", "sum", opmNum(v["Rf"]))
+	b.part("resistor", "Rf", "out", "sum", value.Exact(v["Rf"]))
 	if v.Has("Cf") {
-		b.part("capacitor", "Cf", "out", "sum", opmNum(v["Cf"]))
+		b.part("capacitor", "Cf", "out", "sum", value.Exact(v["Cf"]))
 	}
 	b.opamp(v, "gnd", "sum", "out")
 	b.load(v, "out")
@@ -97,14 +99,14 @@ func transimpedanceForms(v Values, f float64) Forms {
 
 	zi := "Zi = Rsh ∥ 1/(s(Cd + Cin)) ∥ rcm ∥ rid"
 	return Forms{
-		T:    opmF(T, "T = a·Zi/(Zi + Zf)·Zo′/(Zo′ + ro), "+zi+", Zf = Rf ∥ 1/(sCf), Zo′ = ZL ∥ (Zf + Zi); with no load: a·Zi/(Zi + Zf + ro) (REFERENCES.md §3 [derived])", opmSrcLoop),
+		T:    opmF(T, "T = a·Zi/(Zi + Zf)·Zo′/(Zo′ + ro), "+zi+", Zf = Rf ∥ 1/(sCf), Zo′ = ZL ∥ (Zf + Zi); with no load: a·Zi/(Zi + Zf + ro) [derived here from the node equations]", opmSrcLoop),
 		Gain: opmGain(-zf, g0, T, "G∞ = −Zf", "G₀ = [Zi ∥ (Zf + Zq)]·Zq/(Zf + Zq), Zq = ro ∥ ZL"),
 		Ports: []PortForms{
 			{Name: "in",
 				Z0:     opmF(z0in, "Z₀ = Zi ∥ (Zf + ro ∥ ZL), "+zi, opmSrcZ0),
 				TShort: opmF(0, "T_sc = 0 (the summing node shorted leaves no error voltage)", opmSrcLoop),
 				TOpen:  opmF(T, "T_oc = T", opmSrcLoop),
-				Z:      opmBlackman(z0in, 0, T, "Zin = [Zi ∥ (Zf + ro)]/(1 + T) with no load; without Ci and rd, (Zf + ro)/(1 + a) (REFERENCES.md §3 [derived])"),
+				Z:      opmBlackman(z0in, 0, T, "Zin = [Zi ∥ (Zf + ro)]/(1 + T) with no load; without Ci and rd, (Zf + ro)/(1 + a) [derived here from the node equations]"),
 			},
 			{Name: "out",
 				Z0:     opmF(z0out, "Z₀ = ro ∥ ZL ∥ (Zf + Zi)", opmSrcZ0),
@@ -119,8 +121,8 @@ func transimpedanceForms(v Values, f float64) Forms {
 
 // Sources of the TIA's design aids.
 const (
-	tiaSrc45 = "approximate \"45°\" choice, J. Graeme, Photodiode Amplifiers: Op Amp Solutions, McGraw-Hill, 1996 [memory] (REFERENCES.md §5)"
-	tiaSrcBW = "exact second-order Butterworth value for a = ωt/s, Z_T = −Rf/[1 + s(Rf·Cf + 1/ωt) + s²·Rf(Ci + Cf)/ωt] (REFERENCES.md §5 [derived])"
+	tiaSrc45 = "approximate \"45°\" choice, J. Graeme, Photodiode Amplifiers: Op Amp Solutions, McGraw-Hill, 1996 [memory]"
+	tiaSrcBW = "exact second-order Butterworth value for a = ωt/s, Z_T = −Rf/[1 + s(Rf·Cf + 1/ωt) + s²·Rf(Ci + Cf)/ωt] [derived here]"
 )
 
 // transimpedanceExtras suggests Cf by the approximate 45° rule and the exact
@@ -139,7 +141,7 @@ func transimpedanceExtras(v Values) []Extra {
 	gbw := v["gbw"]
 	wt := 2 * math.Pi * gbw
 	x = append(x, Extra{Name: "equivalent input inductance Rf/(2π·gbw)", Value: rf / wt, Unit: "H",
-		Note: "with a = ωt/s the summing node looks like this inductance (in series with ro, in parallel with Ci)", Source: "REFERENCES.md §3 [derived]"})
+		Note: "with a = ωt/s the summing node looks like this inductance (in series with ro, in parallel with Ci)", Source: "derived here from Zin = (Zf + ro)/(1 + a) with a = ωt/s [derived]"})
 	if ci <= 0 {
 		return x
 	}

@@ -68,3 +68,42 @@ func Format(v float64, unit string, sig int) string {
 	}
 	return sign + strconv.FormatFloat(m, 'f', decimals, 64) + sep + sym + unit
 }
+
+// Exact writes x so that Parse reads back exactly the same float64, as
+// briefly as it can: with an SI prefix where a short mantissa is exact
+// (4.7e-10 → "470p", 10000 → "10k"), else in Go's shortest round-trip form.
+// Generated circuit text uses it, so a user's edit of one value leaves every
+// other value as it was.
+func Exact(x float64) string {
+	plain := strconv.FormatFloat(x, 'g', -1, 64)
+	if x == 0 || math.IsNaN(x) || math.IsInf(x, 0) {
+		return plain
+	}
+	e := int(math.Floor(math.Log10(math.Abs(x))/3)) * 3
+	sym := ""
+	found := false
+	for _, p := range formatPrefixes {
+		if p.exp == e {
+			sym, found = p.sym, true
+		}
+	}
+	if !found {
+		return plain
+	}
+	// The shortest mantissa that reads back exactly: dividing by the power
+	// of ten can leave a tail (470.00000000000006) that a shorter decimal
+	// avoids.
+	for digits := 1; digits <= 17; digits++ {
+		m := strconv.FormatFloat(x/math.Pow10(e), 'f', -1, 64)
+		if digits < 17 {
+			m = strconv.FormatFloat(x/math.Pow10(e), 'g', digits, 64)
+		}
+		if strings.ContainsAny(m, "eE") {
+			continue
+		}
+		if back, err := Parse(m+sym, ""); err == nil && back == x {
+			return m + sym
+		}
+	}
+	return plain
+}

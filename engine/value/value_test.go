@@ -138,3 +138,25 @@ func FuzzParse(f *testing.F) {
 		}
 	})
 }
+
+func TestExact(t *testing.T) {
+	cases := []struct {
+		x    float64
+		want string
+	}{
+		{4.7e-10, "470p"}, {10e3, "10k"}, {4700, "4.7k"}, {1e-15, "1f"}, {0.5, "500m"},
+		{1.5e6, "1.5M"}, {2, "2"}, {0, "0"}, {123456789.123, "123.456789123M"},
+	}
+	for _, c := range cases {
+		if got := Exact(c.x); got != c.want {
+			t.Errorf("Exact(%g) = %q, want %q", c.x, got, c.want)
+		}
+	}
+	rng := []float64{1e-14, 3.3e-12, 470e-12, 0.1 + 0.2, 1 / 3.0, 2.2e-9 * 3, 98.7654321e3, 1e20, 5e-324}
+	for _, x := range rng {
+		back, err := Parse(Exact(x), "")
+		if err != nil || back != x {
+			t.Errorf("Exact(%v) = %q reads back as %v, %v", x, Exact(x), back, err)
+		}
+	}
+}
