@@ -9,7 +9,7 @@ import (
 // Crossover is one frequency where |T| crosses 1.
 type Crossover struct {
 	F           float64
-	PhaseMargin float64 // degrees, 180° + ∠T wrapped to (−180°, 180°]
+	PhaseMargin float64 // degrees, 180° + ∠T with ∠T unwrapped from the lowest frequency
 	Falling     bool    // |T| falls through 1 as f rises
 }
 
@@ -44,6 +44,13 @@ const TargetPM = 45.0
 
 // Margins finds the crossovers and margins of T sampled on grid (ascending),
 // refining each crossing with eval, which must return T at any frequency.
+//
+// The phase margin at a crossover is 180° + ∠T with ∠T unwrapped
+// continuously from the lowest frequency and not wrapped again: a loop that
+// has lagged past −180° there has a negative margin, and one whose |T| rises
+// through 1 with phase lead (a feedforward path) has a margin above 180°,
+// far from −1. The verdict takes the smallest margin, and calls a loop with
+// T < −1 at the lowest frequency unstable (positive feedback).
 func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, error)) MarginResult {
 	m := MarginResult{Crossover: math.NaN(), PhaseMargin: math.NaN(), GainMargin: math.NaN()}
 	n := len(grid)
@@ -96,7 +103,7 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 			}
 			ref := interpPhase(grid[i], grid[i+1], ph[i], ph[i+1], fc)
 			p := unwrapNear(t, ref)
-			m.Crossovers = append(m.Crossovers, Crossover{F: fc, PhaseMargin: wrapPM(180 + p), Falling: lb < la})
+			m.Crossovers = append(m.Crossovers, Crossover{F: fc, PhaseMargin: 180 + p, Falling: lb < la})
 		}
 		// −180° crossings: (φ + 180)/360 passes an integer.
 		qa, qb := (ph[i]+180)/360, (ph[i+1]+180)/360
@@ -139,7 +146,26 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 	if n > 0 {
 		span = fmt.Sprintf("from %s to %s", fmtHz(grid[0]), fmtHz(grid[n-1]))
 	}
+	// T negative, flat and beyond 1 at the lowest frequency is positive
+	// feedback: 1 + T < 0 there, and a closed-loop pole sits on the positive
+	// real axis. (A double integrator also starts near −180°, but with |T|
+	// falling 40 dB a decade, not flat.)
+	first := -1
+	for i := range T {
+		if !math.IsNaN(ph[i]) {
+			first = i
+			break
+		}
+	}
+	positive := false
+	if first >= 0 && first+1 < n && !math.IsNaN(ph[first+1]) {
+		flat := math.Abs(cmplx.Abs(T[first+1])/cmplx.Abs(T[first])-1) < 0.02
+		positive = flat && math.Abs(ph[first]) > 160 && cmplx.Abs(T[first]) > 1
+	}
 	switch {
+	case positive:
+		m.Verdict = Unstable
+		m.Detail = fmt.Sprintf("T = %s at %s: negative and larger than 1, so the loop is positive feedback and latches or oscillates; check the reference element and its sign.", fmtC(T[first]), fmtHz(grid[first]))
 	case len(m.Crossovers) == 0 && !above && !below:
 		m.Verdict, m.Detail = NoCrossover, "T is not finite over the sweep, so no margins can be read."
 	case len(m.Crossovers) == 0 && above:
@@ -210,6 +236,10 @@ func refine(fa, fb, ga, gb float64, g func(f float64) (float64, bool)) float64 {
 	return math.Exp((xa + xb) / 2)
 }
 
+func fmtC(z complex128) string {
+	return fmt.Sprintf("%.4g ∠ %.1f°", cmplx.Abs(z), deg(cmplx.Phase(z)))
+}
+
 func interpPhase(fa, fb, pa, pb, f float64) float64 {
 	t := (math.Log(f) - math.Log(fa)) / (math.Log(fb) - math.Log(fa))
 	return pa + t*(pb-pa)
@@ -227,5 +257,3 @@ func wrap180(d float64) float64 {
 	}
 	return d
 }
-
-func wrapPM(pm float64) float64 { return wrap180(pm) }

@@ -148,3 +148,42 @@ func TestNoCrossover(t *testing.T) {
 		t.Errorf("positive feedback: verdict %q PM %v, want unstable", m.Verdict, m.PhaseMargin)
 	}
 }
+
+// A loop whose |T| rises through 1 with phase lead (a feedforward path, as
+// a transistor's Cμ gives) is far from −1 there: its margin is above 180°,
+// and the verdict rests on the falling crossover. A double integrator with
+// a zero (a type-2 loop) starts near −180° and is stable with its margin
+// positive; neither may be taken for positive feedback.
+func TestMarginsLeadAndTypeTwo(t *testing.T) {
+	grid := floats.LogSpan(make([]float64, 300), 1, 1e9)
+	// T = 0.5·(1 + s/ωz)/(1 + s/ωp)² · (1 + s/ωz)… rising above 1 with lead,
+	// falling back with lag: zeros at 1 MHz (two), poles at 100 MHz (three).
+	lead := func(f float64) (complex128, error) {
+		s := complex(0, f)
+		z := (1 + s/1e6) * (1 + s/1e6)
+		p := (1 + s/1e7) * (1 + s/1e7) * (1 + s/1e7)
+		return 0.5 * z / p, nil
+	}
+	vals := make([]complex128, len(grid))
+	for i, f := range grid {
+		vals[i], _ = lead(f)
+	}
+	m := feedback.Margins(grid, vals, lead)
+	if len(m.Crossovers) != 2 || m.Verdict != feedback.Stable || m.Crossovers[0].PhaseMargin <= 180 {
+		t.Errorf("lead loop: %d crossovers, verdict %q, margins %+v", len(m.Crossovers), m.Verdict, m.Crossovers)
+	}
+	// Type 2: T = (ωc/s)²·(1 + s/(ωc/3))/(1 + s/(3ωc)), PM = 2·atan(3) − 90° ≈ 53.13°.
+	wc := 1e4
+	type2 := func(f float64) (complex128, error) {
+		s := complex(0, f)
+		return complex(wc*wc, 0) / (s * s) * (1 + s/complex(wc/3, 0)) / (1 + s/complex(3*wc, 0)) / 3, nil
+	}
+	for i, f := range grid {
+		vals[i], _ = type2(f)
+	}
+	m = feedback.Margins(grid, vals, type2)
+	want := 2*math.Atan(3)*180/math.Pi - 90
+	if m.Verdict != feedback.Stable || math.Abs(m.PhaseMargin-want) > 1e-6 {
+		t.Errorf("type-2 loop: verdict %q PM %.6f°, want stable %.6f°", m.Verdict, m.PhaseMargin, want)
+	}
+}
