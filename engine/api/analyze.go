@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/cmplx"
 
 	"strings"
 
@@ -293,29 +294,47 @@ func (p *Prepared) gainResult(g *feedback.GainResult) *GainResult {
 
 func sweepResult(grid []float64, pts []feedback.Point) *SweepResult {
 	n := len(pts)
-	s := &SweepResult{Frequency: grid, ReturnRatio: make([]*Complex, n)}
+	s := &SweepResult{Frequency: grid}
 	if n == 0 {
 		return s
 	}
+	// One backing array for every value of the sweep, rather than an
+	// allocation per number: a page recomputes this on every keystroke.
+	per := 1 + 5*len(pts[0].Ports)
+	if pts[0].Gain != nil {
+		per += 4
+	}
+	arena := make([]Complex, 0, n*per)
+	c := func(z complex128) *Complex {
+		if !finite(z) {
+			return nil
+		}
+		arena = append(arena, Complex{real(z), imag(z)})
+		return &arena[len(arena)-1]
+	}
+	col := func() []*Complex { return make([]*Complex, n) }
+	s.ReturnRatio = col()
 	s.Ports = make([]PortSweep, len(pts[0].Ports))
 	for j := range s.Ports {
-		s.Ports[j] = PortSweep{Z0: make([]*Complex, n), TShort: make([]*Complex, n), TOpen: make([]*Complex, n), Z: make([]*Complex, n), ZDirect: make([]*Complex, n)}
+		s.Ports[j] = PortSweep{Z0: col(), TShort: col(), TOpen: col(), Z: col(), ZDirect: col()}
 	}
 	if pts[0].Gain != nil {
-		s.Gain = &GainSweep{G0: make([]*Complex, n), GInf: make([]*Complex, n), G: make([]*Complex, n), GDirect: make([]*Complex, n)}
+		s.Gain = &GainSweep{G0: col(), GInf: col(), G: col(), GDirect: col()}
 	}
 	for i, pt := range pts {
-		s.ReturnRatio[i] = C(pt.T)
+		s.ReturnRatio[i] = c(pt.T)
 		for j, pr := range pt.Ports {
 			ps := &s.Ports[j]
-			ps.Z0[i], ps.TShort[i], ps.TOpen[i], ps.Z[i], ps.ZDirect[i] = C(pr.Z0), C(pr.TShort), C(pr.TOpen), C(pr.Z), C(pr.ZDirect)
+			ps.Z0[i], ps.TShort[i], ps.TOpen[i], ps.Z[i], ps.ZDirect[i] = c(pr.Z0), c(pr.TShort), c(pr.TOpen), c(pr.Z), c(pr.ZDirect)
 		}
 		if g := pt.Gain; g != nil {
-			s.Gain.G0[i], s.Gain.GInf[i], s.Gain.G[i], s.Gain.GDirect[i] = C(g.G0), C(g.GInf), C(g.G), C(g.GDirect)
+			s.Gain.G0[i], s.Gain.GInf[i], s.Gain.G[i], s.Gain.GDirect[i] = c(g.G0), c(g.GInf), c(g.G), c(g.GDirect)
 		}
 	}
 	return s
 }
+
+func finite(z complex128) bool { return !cmplx.IsNaN(z) && !cmplx.IsInf(z) }
 
 // fillSweepNames copies the port names of the spot result into the sweep.
 func (r *Response) fillSweepNames() {

@@ -69,10 +69,13 @@ func (lu *LU) Factor(a []complex128, n int) error {
 			}
 		}
 	}
+	lu.norm1 = 0
 	for j := 0; j < n; j++ {
-		m := 0.0
+		m, sum := 0.0, 0.0
 		for i := j; i < n*n; i += n {
-			if x := abs1(a[i]); x > m {
+			x := abs1(a[i])
+			sum += x
+			if x > m {
 				m = x
 			}
 		}
@@ -81,6 +84,7 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		}
 		s := pow2inv(m)
 		lu.cs[j] = s
+		lu.norm1 = math.Max(lu.norm1, sum*s) // the 1-norm, for Cond
 		if s != 1 {
 			for i := j; i < n*n; i += n {
 				if a[i] != 0 {
@@ -88,14 +92,6 @@ func (lu *LU) Factor(a []complex128, n int) error {
 				}
 			}
 		}
-	}
-	lu.norm1 = 0
-	for j := 0; j < n; j++ {
-		c := 0.0
-		for i := j; i < n*n; i += n {
-			c += abs1(a[i])
-		}
-		lu.norm1 = math.Max(lu.norm1, c)
 	}
 	lu.minPiv = math.Inf(1)
 	for k := 0; k < n; k++ {

@@ -1,0 +1,24 @@
+package api_test
+
+import (
+	"testing"
+
+	"zport/engine/api"
+)
+
+// One calculator recompute as a page asks for it: a catalog stage at its
+// defaults, spot frequency and its 400-point sweep, every port and the gain.
+func benchStage(b *testing.B, id string) {
+	entry, _ := api.LookupEntry(id)
+	req := api.Request{Topology: id, Frequency: entry.Frequency, Sweep: &entry.Sweep}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := api.Analyze(req); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkInverting3Port400(b *testing.B)      { benchStage(b, "inverting") }
+func BenchmarkTransimpedance2Port400(b *testing.B) { benchStage(b, "transimpedance") }
+func BenchmarkDifference3Port400(b *testing.B)     { benchStage(b, "difference") }
