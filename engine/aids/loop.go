@@ -35,7 +35,9 @@ type loop struct {
 }
 
 // crossing is one nominal crossover: where, and d ln|T| / d ln f there.
-type crossing struct{ fc, slope float64 }
+// crossing is a nominal crossover: its frequency, the slope of ln|T| in
+// ln f there, and its unwrapped phase in degrees.
+type crossing struct{ fc, slope, phase float64 }
 
 const (
 	maxSecant  = 12
@@ -62,7 +64,7 @@ func newLoop(a *feedback.Analyzer, grid []float64) (*loop, feedback.MarginResult
 	l := &loop{track: true}
 	const d = 0.01
 	for _, c := range m.Crossovers {
-		k := crossing{fc: c.F}
+		k := crossing{fc: c.F, phase: c.PhaseMargin - 180}
 		tp, errp := a.ReturnRatio(c.F * math.Exp(d))
 		tm, errm := a.ReturnRatio(c.F * math.Exp(-d))
 		if errp == nil && errm == nil && finite(tp) && finite(tm) && tp != 0 && tm != 0 {
@@ -146,7 +148,7 @@ func secant(a *feedback.Analyzer, c crossing) (pm, fc float64, ok bool) {
 		return 0, 0, false
 	}
 	if math.Abs(g0) < 1e-13 {
-		return pmOf(t0), c.fc, true
+		return pmOf(t0, c.phase), c.fc, true
 	}
 	x1 := x0 - g0/c.slope
 	for range maxSecant {
@@ -158,7 +160,7 @@ func secant(a *feedback.Analyzer, c crossing) (pm, fc float64, ok bool) {
 			return 0, 0, false
 		}
 		if math.Abs(g1) < 1e-13 || math.Abs(x1-x0) < 1e-14*math.Max(1, math.Abs(x1)) {
-			return pmOf(t1), math.Exp(x1), true
+			return pmOf(t1, c.phase), math.Exp(x1), true
 		}
 		if g1 == g0 {
 			return 0, 0, false
@@ -168,6 +170,9 @@ func secant(a *feedback.Analyzer, c crossing) (pm, fc float64, ok bool) {
 	return 0, 0, false
 }
 
-// pmOf is the phase margin 180° + ∠T at a crossover, wrapped to
-// (−180°, 180°] as feedback.Margins reports it.
-func pmOf(t complex128) float64 { return wrap180(180 + cmplx.Phase(t)*180/math.Pi) }
+// pmOf is the phase margin 180° + ∠T at a crossover, with ∠T on the branch
+// nearest ref, the nominal crossover's unwrapped phase — the convention of
+// feedback.Margins, which unwraps from the lowest frequency.
+func pmOf(t complex128, ref float64) float64 {
+	return 180 + ref + wrap180(cmplx.Phase(t)*180/math.Pi-ref)
+}
