@@ -34,7 +34,6 @@ type loop struct {
 	Fast, Slow int
 }
 
-// crossing is one nominal crossover: where, and d ln|T| / d ln f there.
 // crossing is a nominal crossover: its frequency, the slope of ln|T| in
 // ln f there, and its unwrapped phase in degrees.
 type crossing struct{ fc, slope, phase float64 }
