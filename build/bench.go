@@ -99,12 +99,15 @@ func ms(d time.Duration) string { return fmt.Sprintf("%.1f ms", float64(d)/float
 // runBench builds the site and measures it in Chromium from file://,
 // printing medians: navigation to the first live result, cold (a fresh
 // browser and profile each run) and warm (the same browser navigating
-// again); one recompute and redraw per topology at its default sweep; and
-// the engine's size as the page loads it.
+// again); one recompute and redraw per topology at its default sweep; each
+// topology's design aids (bench_aids.go); the custom-circuit page
+// (bench_custom.go; -only custom runs that part alone); and the engine's
+// size as the page loads it.
 func runBench(args []string) error {
 	fs := flag.NewFlagSet("bench", flag.ContinueOnError)
 	runs := fs.Int("runs", 9, "runs per measurement (the median is printed)")
 	page := fs.String("page", "inverting", "page for the first-live measurements")
+	only := fs.String("only", "", `run one part only: "custom" (the custom-circuit page)`)
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
@@ -120,6 +123,16 @@ func runBench(args []string) error {
 	}
 	pageURL := func(name string) string {
 		return (&url.URL{Scheme: "file", Path: filepath.ToSlash(filepath.Join(dist, name+".html"))}).String()
+	}
+	if *only == "custom" {
+		ctx, stop, err := browser()
+		if err != nil {
+			return err
+		}
+		defer stop()
+		return runBenchCustom(ctx, pageURL, *runs)
+	} else if *only != "" {
+		return fmt.Errorf("bench: -only %q: the only part is \"custom\"", *only)
 	}
 
 	var cold, coldReady []time.Duration
@@ -173,6 +186,13 @@ func runBench(args []string) error {
 			}
 		}
 		fmt.Printf("  %-16s %4d points  total %s, of which the engine call %s\n", e.ID, e.Sweep.Points, ms(median(d)), ms(median(c)))
+	}
+
+	if err := runBenchAids(ctx, pageURL, *runs); err != nil {
+		return err
+	}
+	if err := runBenchCustom(ctx, pageURL, *runs); err != nil {
+		return err
 	}
 
 	eng, err := os.Stat(filepath.Join(dist, "zport-engine.js"))

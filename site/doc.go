@@ -7,13 +7,16 @@
 //
 // The site is data, embedded as Sources and replaceable by any fs.FS:
 //
-//	content/     one Markdown file per page: index, method, about, and one
-//	             per topology of the catalog, named after its ID
+//	content/     one Markdown file per page: index, method, about, custom
+//	             (the custom-circuit page), and one per topology of the
+//	             catalog, named after its ID
 //	templates/   html/template: page.html (a page), single.html (the
 //	             single-file export), calculator.html (a calculator's
-//	             inputs, and the catalog table)
+//	             inputs, and the catalog table), editor.html (the
+//	             custom-circuit page's editor)
 //	assets/      style.css, zport.js (the one loader and the calculators'
-//	             glue), plothover.js (chart readout), icon.svg
+//	             glue), circuit.js (the custom-circuit page's editor, on
+//	             zport.js's engine), plothover.js (chart readout), icon.svg
 //	schematics/  one SVG schematic per topology, part names as in the
 //	             generated circuit text
 //
@@ -37,8 +40,14 @@
 //	Z = Z_0 \, \frac{1 + T_{sc}}{1 + T_{oc}}    build time (see MathML)
 //	```
 //
+// A second extension, Editor, gives "circuit-editor" its meaning: the
+// custom-circuit page's editor (circuit text with line numbers, pickers
+// for the reference, ports and gain, the results panel), opening with one
+// of the examples of package zport/site/examples ("example: ID", default
+// the first), pre-rendered like a calculator. A page holds one editor.
+//
 // Each block becomes a node of its own kind (KindCalculator, KindCatalog,
-// KindMath) and is rendered by a renderer registered for that kind, the
+// KindMath, KindCircuitEditor) and is rendered by a renderer registered for that kind, the
 // shape of goldmark's own extensions. A calculator is rendered with its
 // default results already computed by the native engine through
 // zport/site/render, the same code the WebAssembly engine runs on every

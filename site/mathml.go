@@ -74,7 +74,7 @@ var mathOps = map[string]string{
 }
 
 var mathFuncs = map[string]bool{"cos": true, "sin": true, "tan": true, "log": true, "ln": true,
-	"exp": true, "arg": true, "Re": true, "Im": true}
+	"exp": true, "arg": true, "Re": true, "Im": true, "max": true, "min": true}
 
 // list reads items up to the end, or up to "}" when inGroup.
 func (p *mathParser) list(inGroup bool) ([]string, error) {

@@ -23,6 +23,7 @@ import (
 	"github.com/yuin/goldmark/text"
 
 	"zport/engine/api"
+	"zport/site/examples"
 	"zport/site/plot"
 	"zport/site/render"
 )
@@ -137,6 +138,7 @@ type pageData struct {
 	Body        template.HTML
 	CSP         string
 	Engine      bool // the page holds a calculator and loads the engine
+	Editor      bool // the page holds the circuit editor and loads circuit.js
 	Hover       bool // plothover.js is part of the site
 	Single      bool
 	Home        string
@@ -185,6 +187,7 @@ func newBuilder(opt Options) (*builder, error) {
 				Schematic: b.schematic,
 				Templates: tmpl,
 			},
+			&Editor{Examples: examples.All(), Compute: render.Compute, Templates: tmpl},
 		),
 		goldmark.WithParserOptions(parser.WithAutoHeadingID()),
 	)
@@ -266,6 +269,7 @@ type converted struct {
 	Title  string
 	Body   template.HTML
 	Engine bool
+	Editor bool
 }
 
 func (b *builder) convert(p pageSrc, single bool) (converted, error) {
@@ -283,6 +287,8 @@ func (b *builder) convert(p pageSrc, single bool) (converted, error) {
 			}
 		case *Calculator:
 			c.Engine = true
+		case *CircuitEditor:
+			c.Engine, c.Editor = true, true
 		}
 		return ast.WalkContinue, nil
 	})
@@ -319,7 +325,10 @@ func plainText(n ast.Node, src []byte) string {
 
 // nav builds the navigation for page current.
 func (b *builder) nav(current string, titles map[string]string, single bool) (nav, stages []navItem, prev, next *navItem) {
-	for _, n := range []string{"index", "method", "about"} {
+	for _, n := range []string{"index", "method", "custom", "about"} {
+		if n == "custom" && !b.hasPage(n) {
+			continue
+		}
 		nav = append(nav, navItem{Name: n, Title: navTitles[n], Link: PageLink(n, single), Current: n == current})
 	}
 	for i, e := range b.catalog {
@@ -339,7 +348,7 @@ func (b *builder) nav(current string, titles map[string]string, single bool) (na
 	return nav, stages, prev, next
 }
 
-var navTitles = map[string]string{"index": "Start", "method": "Method", "about": "About and cautions"}
+var navTitles = map[string]string{"index": "Start", "method": "Method", "custom": "Your circuit", "about": "About and cautions"}
 
 // Build renders the multi-file site: one HTML file per page of content/,
 // the style sheet, the scripts, the icon, wasm_exec.js and the engine.
@@ -363,7 +372,7 @@ func Build(opt Options) (Files, error) {
 	}
 	for _, p := range b.pages {
 		c := conv[p.Name]
-		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, CSP: CSP, Engine: c.Engine, Hover: b.hover, Home: PageLink("index", false)}
+		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, CSP: CSP, Engine: c.Engine, Editor: c.Editor, Hover: b.hover, Home: PageLink("index", false)}
 		d.Nav, d.Stages, d.Prev, d.Next = b.nav(p.Name, titles, false)
 		var out bytes.Buffer
 		if err := b.tmpl.ExecuteTemplate(&out, "page", d); err != nil {
@@ -424,6 +433,15 @@ func Single(opt Options) ([]byte, error) {
 		scripts = append(scripts, h)
 	}
 	scripts = append(scripts, zjs)
+	// aids.js, the design-aid sections, follows zport.js as in page.html.
+	if ajs, err := fs.ReadFile(b.src, "assets/aids.js"); err == nil {
+		scripts = append(scripts, ajs)
+	}
+	// circuit.js, the custom page's script, runs after zport.js, whose
+	// helpers it uses (as in the multi-file site).
+	if cjs, err := fs.ReadFile(b.src, "assets/circuit.js"); err == nil {
+		scripts = append(scripts, cjs)
+	}
 
 	var style, inline strings.Builder
 	var scriptHashes []string
@@ -460,7 +478,7 @@ func Single(opt Options) ([]byte, error) {
 	var sections []pageData
 	for _, p := range b.pages {
 		c := conv[p.Name]
-		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, Engine: c.Engine, Single: true, Hover: b.hover, Home: PageLink("index", true)}
+		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, Engine: c.Engine, Editor: c.Editor, Single: true, Hover: b.hover, Home: PageLink("index", true)}
 		d.Nav, d.Stages, d.Prev, d.Next = b.nav(p.Name, titles, true)
 		sections = append(sections, d)
 	}

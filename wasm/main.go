@@ -45,12 +45,79 @@ func register(global js.Value, exit func()) (release func()) {
 		}
 		return string(b)
 	}))
+	add("circuit", guard(func(args []js.Value) string {
+		in, err := oneString(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		return string(render.ComputeCircuitJSON([]byte(in)))
+	}))
 	add("panel", guard(func(args []js.Value) string {
 		in, err := oneString(args)
 		if err != nil {
 			return errorJSON(err.Error())
 		}
 		return string(render.ComputeJSON([]byte(in)))
+	}))
+	for name, fn := range map[string]func([]byte) []byte{
+		"aidsForm":   render.AidsFormJSON,
+		"aidsPanels": render.AidsPanelsJSON,
+		"aidsStudy":  render.StudyJSON,
+	} {
+		add(name, guard(func(args []js.Value) string {
+			in, err := oneString(args)
+			if err != nil {
+				return errorJSON(err.Error())
+			}
+			return string(fn([]byte(in)))
+		}))
+	}
+	runs := &toleranceRuns{byID: map[int]*toleranceRun{}}
+	add("toleranceStart", guard(func(args []js.Value) string {
+		in, err := oneString(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		run, id, errJSON := render.StartToleranceJSON([]byte(in))
+		if run == nil {
+			return string(errJSON)
+		}
+		n := runs.add(&toleranceRun{run: run, panelID: id})
+		_, total := run.Step(0)
+		return fmt.Sprintf(`{"run":%d,"done":0,"total":%d}`, n, total)
+	}))
+	add("toleranceStep", guard(func(args []js.Value) string {
+		if len(args) != 2 || args[1].Type() != js.TypeNumber {
+			return errorJSON("zport.toleranceStep takes a run id and a number of trials")
+		}
+		r, err := runs.get(args[:1])
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		n := min(max(args[1].Int(), 1), api.MaxTrials)
+		done, total := r.run.Step(n)
+		return fmt.Sprintf(`{"done":%d,"total":%d}`, done, total)
+	}))
+	add("toleranceResult", guard(func(args []js.Value) string {
+		r, err := runs.get(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		return string(r.run.ResultJSON())
+	}))
+	add("tolerancePanel", guard(func(args []js.Value) string {
+		r, err := runs.get(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		return string(render.EncodeAids(render.ToleranceOutput(r.run, r.panelID)))
+	}))
+	add("toleranceRelease", guard(func(args []js.Value) string {
+		if _, err := runs.get(args); err != nil {
+			return errorJSON(err.Error())
+		}
+		runs.release(args[0].Int())
+		return `{"released":true}`
 	}))
 	exited := false
 	add("exit", js.FuncOf(func(js.Value, []js.Value) any {
@@ -80,6 +147,50 @@ func guard(fn func(args []js.Value) string) js.Func {
 		return fn(args)
 	})
 }
+
+// toleranceRun is a tolerance study run in slices from the page, and the
+// id prefix of its panel.
+type toleranceRun struct {
+	run     *api.ToleranceRun
+	panelID string
+}
+
+// toleranceRuns holds the page's runs by id. A page releases a run when it
+// is done or cancelled; past maxRuns the oldest is dropped, so a page that
+// forgets cannot make the module grow without end.
+type toleranceRuns struct {
+	next int
+	byID map[int]*toleranceRun
+}
+
+const maxRuns = 8
+
+func (rs *toleranceRuns) add(r *toleranceRun) int {
+	rs.next++
+	rs.byID[rs.next] = r
+	for id := range rs.byID {
+		if len(rs.byID) <= maxRuns {
+			break
+		}
+		if id <= rs.next-maxRuns {
+			delete(rs.byID, id)
+		}
+	}
+	return rs.next
+}
+
+func (rs *toleranceRuns) get(args []js.Value) (*toleranceRun, error) {
+	if len(args) != 1 || args[0].Type() != js.TypeNumber {
+		return nil, fmt.Errorf("expected one argument, a tolerance run id")
+	}
+	r, ok := rs.byID[args[0].Int()]
+	if !ok {
+		return nil, fmt.Errorf("no tolerance run %d (a run is gone once released or cancelled)", args[0].Int())
+	}
+	return r, nil
+}
+
+func (rs *toleranceRuns) release(id int) { delete(rs.byID, id) }
 
 func oneString(args []js.Value) (string, error) {
 	if len(args) != 1 || args[0].Type() != js.TypeString {

@@ -4,6 +4,7 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"strings"
 	"syscall/js"
 	"testing"
@@ -80,6 +81,8 @@ func TestWrongArguments(t *testing.T) {
 		{"analyze", []any{"{}", "{}"}},
 		{"panel", []any{js.Null()}},
 		{"catalog", []any{"x"}},
+		{"circuit", nil},
+		{"circuit", []any{7}},
 	} {
 		m := call(t, z, tc.name, tc.args...)
 		if errorMessage(m) == "" {
@@ -169,5 +172,26 @@ func TestExitAndRelease(t *testing.T) {
 	release()
 	if !global.Get("zport").IsUndefined() {
 		t.Errorf("zport is still set after release")
+	}
+}
+
+func TestCircuit(t *testing.T) {
+	z, _ := setup(t)
+	m := call(t, z, "circuit", `{"circuit": "vsource Vin in gnd 1\nopamp U1 in out out\nport o out gnd\n", "ports": ["o"], "frequency": "1k", "offered": null}`)
+	ins, _ := m["inspection"].(map[string]any)
+	refs, _ := ins["references"].([]any)
+	if len(refs) != 1 || refs[0].(map[string]any)["name"] != "U1" {
+		t.Errorf("references = %v, want U1", ins["references"])
+	}
+	if f, _ := m["form"].(map[string]any); f["reference"] != "U1" {
+		t.Errorf("form = %v, want the reference chosen", m["form"])
+	}
+	if out, _ := m["output"].(map[string]any); !strings.Contains(fmt.Sprint(out["html"]), `data-quantity="zDirect"`) {
+		t.Errorf("output = %v, want a panel", out)
+	}
+	m = call(t, z, "circuit", `{"circuit": "resistor R1 a gnd 1k\nresistor R2 a\n", "frequency": "1k"}`)
+	errs, _ := m["inspection"].(map[string]any)["errors"].([]any)
+	if len(errs) != 1 || errs[0].(map[string]any)["line"] != 2.0 || m["output"] != nil {
+		t.Errorf("errors = %v, output = %v; want one error on line 2 and no panel", errs, m["output"])
 	}
 }

@@ -22,7 +22,7 @@ import (
 // This file holds the design aids' side of the contract: the request keys
 // "tolerance", "standardValues" and "sensitivity", their answers, and a
 // tolerance run in slices for the page (StartTolerance). The shapes are
-// documented in engine/aids/CONTRACT.md.
+// documented in DEVELOPERS.md, "Design aids in the JSON contract".
 
 // Limits of a tolerance request.
 const (
@@ -1037,6 +1037,9 @@ func (p *Prepared) standardValues(m *aids.Model) (*StandardValuesResult, error) 
 	}
 	if p.Stage != nil {
 		for i, r := range p.Stage.Ratios {
+			if m.Param(r.Num) < 0 || m.Param(r.Den) < 0 {
+				continue // an optional part left empty (a capload stage without R1 is a follower)
+			}
 			if err := addRatio(fmt.Sprintf("stage %s ratio %d", p.Stage.ID, i), RatioRequest{Num: r.Num, Den: r.Den, Plus1: r.Plus1, Title: r.Title}); err != nil {
 				return nil, err
 			}

@@ -53,6 +53,14 @@ func Body(err error) ErrorBody {
 	return ErrorBody{Message: err.Error()}
 }
 
+// sizeProblem refuses circuit text longer than MaxCircuitBytes.
+func sizeProblem(text string) *Problem {
+	if len(text) > MaxCircuitBytes {
+		return &Problem{Line: 1, Column: 1, Msg: fmt.Sprintf("the circuit text is %d KB; the limit is %d KB", len(text)>>10, MaxCircuitBytes>>10)}
+	}
+	return nil
+}
+
 // Prepared is a request resolved against its circuit, ready to analyze.
 type Prepared struct {
 	Req      Request
@@ -65,7 +73,20 @@ type Prepared struct {
 }
 
 // Prepare parses and resolves a request without analyzing it.
-func Prepare(req Request) (*Prepared, error) {
+func Prepare(req Request) (*Prepared, error) { return prepare(req, nil) }
+
+// PrepareParsed is Prepare for a circuit-text request whose text the
+// caller has parsed already: c must be what circuit.Parse(req.Circuit)
+// returned (InspectParsed gives it). It saves parsing the text twice when
+// a page both inspects and analyzes it on every edit.
+func PrepareParsed(req Request, c *circuit.Circuit) (*Prepared, error) {
+	if c == nil || req.Topology != "" {
+		return nil, fieldErr("circuit", "PrepareParsed needs circuit text and its parsed circuit")
+	}
+	return prepare(req, c)
+}
+
+func prepare(req Request, parsed *circuit.Circuit) (*Prepared, error) {
 	p := &Prepared{Req: req}
 	if (req.Circuit == "") == (req.Topology == "") {
 		return nil, fieldErr("circuit", "give exactly one of \"circuit\" (circuit text) and \"topology\" (a catalog stage ID)")
@@ -107,10 +128,13 @@ func Prepare(req Request) (*Prepared, error) {
 	} else if len(req.Params) > 0 {
 		return nil, fieldErr("params", "\"params\" goes with \"topology\"; for circuit text, edit the values in the text")
 	}
-	if len(text) > MaxCircuitBytes {
-		return nil, &Problem{Line: 1, Column: 1, Msg: fmt.Sprintf("the circuit text is %d KB; the limit is %d KB", len(text)>>10, MaxCircuitBytes>>10)}
+	if p := sizeProblem(text); p != nil {
+		return nil, p
 	}
-	c, err := circuit.Parse(text)
+	c, err := parsed, error(nil)
+	if c == nil {
+		c, err = circuit.Parse(text)
+	}
 	if err != nil {
 		var list circuit.ErrorList
 		if errors.As(err, &list) && len(list) > 0 {

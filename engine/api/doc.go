@@ -14,4 +14,10 @@
 // where a value is not finite, with a note saying why; it never carries NaN
 // or Inf. Bad input gives an ErrorResponse with the line and column in the
 // circuit text, or the name of the parameter or field at fault.
+//
+// Inspect lists what a piece of circuit text offers a page's pickers — the
+// reference candidates, the independent sources, the port lines and the
+// nodes — or every problem in it with its line and column; InspectParsed
+// and PrepareParsed let a page that does both on every edit parse the text
+// once.
 package api

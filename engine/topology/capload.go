@@ -50,6 +50,8 @@ var capload = &Topology{
 		"Riso without Cf leaves a gain error Riso/(Riso + RL) at the load and an output impedance of about Riso.",
 		"With Cf (in-loop), keep Rf·Cf several times (ro + Riso)·CL; too small a Cf brings the Riso·CL pole back into the loop.",
 	},
+	// With R1 left empty the stage is a follower and the ratio drops out.
+	Ratios:  []Ratio{{Num: "Rf", Den: "R1", Plus1: true, Title: "gain 1 + Rf/R1"}},
 	Circuit: caploadCircuit,
 	Forms:   caploadForms,
 }

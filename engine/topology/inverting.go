@@ -61,6 +61,7 @@ var inverting = &Topology{
 		"Loop bandwidth follows the noise gain 1 + R2/(Rs + R1); a gain of −1 has the loop bandwidth of a gain of +2.",
 		"Rp only cancels bias-current offset when it matches (Rs + R1) ∥ R2; a capacitor across it keeps its noise out of the band.",
 	},
+	Ratios:  []Ratio{{Num: "R2", Den: "R1", Title: "gain-setting ratio R2/R1 (the gain is −R2/(Rs + R1))"}},
 	Circuit: invertingCircuit,
 	Forms:   invertingForms,
 }

@@ -35,6 +35,7 @@ var noninverting = &Topology{
 		"The output impedance rises with frequency (inductive); with a capacitive load it resonates — check the margins with CL present.",
 		"A source with no DC path to gnd leaves the + input without bias current return; add a resistor to gnd.",
 	},
+	Ratios:  []Ratio{{Num: "R2", Den: "R1", Plus1: true, Title: "gain 1 + R2/R1"}},
 	Circuit: noninvertingCircuit,
 	Forms:   noninvertingForms,
 }

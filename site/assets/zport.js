@@ -20,6 +20,19 @@
 // In the single-file export, p=NAME comes first and selects the page.
 // A fragment without "=" is an ordinary in-page anchor and is left alone.
 //
+// The custom-circuit page's script (circuit.js, loaded after this one)
+// shares this file's engine and helpers through globalThis.zportSite:
+// onEngine(cb) runs cb(engine) once the engine is ready; copyText,
+// saveFile, hover and recomputed are the calculators' own; compress and
+// decompress are the c= encoding below; fragment() is the settings part
+// of the address and page() the page shown.
+//
+// The design aids (aids.js, loaded after this one) follow each calculator
+// through events on its element: zport:computed (detail: the panel
+// output) after every result, zport:link (detail: the form) when settings
+// came from the link, and zport:study from aids.js with its settings, which
+// join the form (Form.Study) and so the share link.
+//
 // Performance marks for the benchmark (go run ./build bench):
 // "zport-engine-ready" when the engine has started, "zport-first-live" when
 // the first panel computed by it is on the page, and a measure
@@ -32,6 +45,7 @@
   var engine = null;
   var calculators = [];
   var firstLive = false;
+  var readyCallbacks = []; // zportSite.onEngine
 
   // ---- the single-file export: one section per page, chosen by p= ----
 
@@ -131,6 +145,7 @@
     this.last = null;
     this.scheduled = false;
     this.lastHash = null;
+    this.study = null; // design-aid settings (aids.js), kept in the share link
     var self = this;
     this.form.addEventListener('submit', function (e) {
       e.preventDefault();
@@ -146,6 +161,11 @@
       self.copyLink();
     });
     hover(this.results);
+    // aids.js reports its settings; they join the form and so the link.
+    el.addEventListener('zport:study', function (e) {
+      self.study = e.detail || null;
+      self.schedule();
+    });
   }
 
   Calculator.prototype.inputs = function () {
@@ -162,6 +182,7 @@
       else if (n.indexOf('sweep.') === 0) f.sweep[n.slice(6)] = v;
       else f.params[n] = v;
     }
+    if (this.study) f.study = this.study;
     return f;
   };
 
@@ -216,6 +237,7 @@
         out = this.call({});
       } else if (out.form) {
         this.fill(out.form);
+        this.study = out.form.study || null;
       }
     } else {
       out = this.call({});
@@ -223,6 +245,9 @@
     // The address changes only when it held settings, or once the user
     // edits: an ordinary in-page anchor stays as it was.
     this.apply(out, performance.now(), !!frag);
+    if (frag && !out.error && out.form) {
+      this.el.dispatchEvent(new CustomEvent('zport:link', { detail: out.form }));
+    }
     var buttons = this.el.querySelectorAll('button[data-action]');
     for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
   };
@@ -253,14 +278,22 @@
     hover(this.results);
     this.updateCircuitLink();
     this.writeState(out.state, address && this.owner());
-    void this.results.offsetHeight; // lay the new panel out inside the measure
+    recomputed(this.results, t0);
+    // aids.js follows the calculator (after the measure: it is not part of it).
+    this.el.dispatchEvent(new CustomEvent('zport:computed', { detail: out }));
+  };
+
+  // recomputed closes the "zport-recompute" measure begun at t0 once the
+  // new panel in results is laid out, and marks the first live result.
+  function recomputed(results, t0) {
+    void results.offsetHeight; // lay the new panel out inside the measure
     var t1 = performance.now();
     performance.measure('zport-recompute', { start: t0, end: t1 });
     if (!firstLive) {
       firstLive = true;
       performance.mark('zport-first-live');
     }
-  };
+  }
 
   Calculator.prototype.clearMessages = function () {
     var inputs = this.inputs();
@@ -398,36 +431,48 @@
       this.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));
       return;
     }
-    var blob = new Blob([out.csv], { type: 'text/csv;charset=utf-8' });
-    var url = URL.createObjectURL(blob);
+    var name = 'zport-' + this.topology + '.csv';
+    saveFile(name, 'text/csv;charset=utf-8', out.csv);
+    this.say('CSV of the sweep saved as ' + name + '.');
+  };
+
+  // saveFile offers text as a download called name; nothing leaves the
+  // machine (a blob: URL of the page itself).
+  function saveFile(name, type, text) {
+    var url = URL.createObjectURL(new Blob([text], { type: type }));
     var a = document.createElement('a');
     a.href = url;
-    a.download = 'zport-' + this.topology + '.csv';
+    a.download = name;
     a.className = 'offscreen';
     document.body.appendChild(a);
     a.click();
     a.remove();
     setTimeout(function () { URL.revokeObjectURL(url); }, 30000);
-    this.say('CSV of the sweep saved as ' + a.download + '.');
-  };
+  }
 
   // The circuit page (custom.html) reads its circuit from the fragment key
   // c=: the circuit text as UTF-8, compressed with
   // CompressionStream('deflate-raw') and encoded as base64url without
-  // padding, e.g. custom.html#c=K0ktLlEozy_KSQEA.
+  // padding, e.g. custom.html#c=K0ktLlEozy_KSQEA. The link's data-state
+  // (written by the engine) adds the stage's reference, ports, gain and
+  // frequencies. In the single-file export the page is a section: #p=custom&c=….
   Calculator.prototype.updateCircuitLink = function () {
-    if (single) {
-      // custom.html is a file of its own, not part of the single-file export.
-      this.hideCircuitLink();
-      return;
-    }
     var a = this.results.querySelector('a.open-circuit');
     var pre = this.results.querySelector('pre.circuit-text');
-    if (!a || !pre || typeof CompressionStream !== 'function') return;
-    var text = pre.textContent;
-    var stream = new Blob([new TextEncoder().encode(text)]).stream().pipeThrough(new CompressionStream('deflate-raw'));
-    new Response(stream).arrayBuffer().then(function (buf) {
-      a.setAttribute('href', 'custom.html#c=' + base64url(new Uint8Array(buf)));
+    if (!a || !pre) return;
+    var page = 'custom.html#';
+    if (single) {
+      if (!document.getElementById('page-custom')) {
+        this.hideCircuitLink();
+        return;
+      }
+      page = '#p=custom&';
+      a.setAttribute('href', '#p=custom');
+    }
+    if (typeof CompressionStream !== 'function') return;
+    var state = a.getAttribute('data-state') || '';
+    compress(pre.textContent).then(function (c) {
+      a.setAttribute('href', page + 'c=' + c + (state ? '&' + state : ''));
     }, function () { /* the plain link still opens the page */ });
   };
 
@@ -443,9 +488,83 @@
     return btoa(bin).replace(/\+/g, '-').replace(/\//g, '_').replace(/=+$/, '');
   }
 
+  // compress is the c= encoding of text: a promise of the base64url string.
+  function compress(text) {
+    var stream = new Blob([new TextEncoder().encode(text)]).stream().pipeThrough(new CompressionStream('deflate-raw'));
+    return new Response(stream).arrayBuffer().then(function (buf) { return base64url(new Uint8Array(buf)); });
+  }
+
+  // decompress reads a c= value back into text. It refuses anything that
+  // is not base64url, does not inflate, inflates to more than maxBytes (a
+  // small link can hold a huge text: it stops reading there) or is not
+  // UTF-8, with an Error saying which.
+  function decompress(s, maxBytes) {
+    var bytes;
+    try {
+      if (!/^[A-Za-z0-9_-]*$/.test(s)) throw new Error('bad character');
+      var b64 = s.replace(/-/g, '+').replace(/_/g, '/');
+      while (b64.length % 4) b64 += '=';
+      bytes = decodeBase64(b64);
+    } catch (e) {
+      return Promise.reject(new Error('the circuit in the link is not valid base64url'));
+    }
+    if (typeof DecompressionStream !== 'function') return Promise.reject(new Error('this browser cannot decompress'));
+    var reader = new Blob([bytes]).stream().pipeThrough(new DecompressionStream('deflate-raw')).getReader();
+    var chunks = [], total = 0;
+    function next() {
+      return reader.read().then(function (r) {
+        if (r.done) {
+          var all = new Uint8Array(total), off = 0;
+          for (var i = 0; i < chunks.length; i++) {
+            all.set(chunks[i], off);
+            off += chunks[i].length;
+          }
+          try {
+            return new TextDecoder('utf-8', { fatal: true }).decode(all);
+          } catch (e) {
+            throw new Error('the circuit in the link is not UTF-8 text');
+          }
+        }
+        total += r.value.length;
+        if (total > maxBytes) {
+          reader.cancel();
+          throw new Error('the circuit in the link is longer than ' + Math.round(maxBytes / 1024) + ' KB');
+        }
+        chunks.push(r.value);
+        return next();
+      });
+    }
+    return next().catch(function (e) {
+      throw /^the circuit/.test(e.message) ? e : new Error('the circuit in the link is damaged (' + e.message + ')');
+    });
+  }
+
   function hover(el) {
     if (typeof window.zportPlotHover === 'function') window.zportPlotHover(el);
   }
+
+  // ---- what the circuit page shares ----
+
+  globalThis.zportSite = {
+    single: single,
+    onEngine: function (cb) {
+      if (engine) cb(engine);
+      else readyCallbacks.push(cb);
+    },
+    recomputed: recomputed,
+    copyText: copyText,
+    saveFile: saveFile,
+    hover: hover,
+    compress: compress,
+    decompress: decompress,
+    fragment: fragmentState,
+    // page is the page shown: in the single-file export, the section
+    // chosen by p=; otherwise the file's own name.
+    page: function () {
+      if (single) return hashPage() || 'index';
+      return (location.pathname.split('/').pop() || 'index.html').replace(/\.html$/, '');
+    }
+  };
 
   // ---- start ----
 
@@ -462,13 +581,16 @@
         if (c.owner() && location.hash !== c.lastHash && fragmentState()) c.start();
       }
     });
-    if (!calculators.length) return;
+    if (!calculators.length && !document.querySelector('[data-circuit-editor]')) return;
     setStatus('loading', statusText.loading);
     loadEngine().then(function (z) {
       engine = z;
       performance.mark('zport-engine-ready');
       setStatus('ready', statusText.ready);
       for (var j = 0; j < calculators.length; j++) calculators[j].start();
+      var cbs = readyCallbacks;
+      readyCallbacks = [];
+      for (var n = 0; n < cbs.length; n++) cbs[n](z);
     }, function (err) {
       setStatus('failed', 'The live engine could not start: ' + (err && err.message ? err.message : String(err)) +
         '. The results shown were computed when the page was built; the values cannot be edited here.');

@@ -17,6 +17,7 @@ import (
 	"time"
 
 	"github.com/chromedp/cdproto/network"
+	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/chromedp"
 
 	"zport/site"
@@ -74,14 +75,101 @@ func buildSite(dist, single string) error {
 }
 
 // start gives a browser for t (skipping or failing per package browser)
-// and fails t if the site did not build.
+// and fails t if the site did not build. Its tab carries a probe (see
+// installProbe) from the first navigation on.
 func start(t *testing.T) context.Context {
 	t.Helper()
 	ctx := browser.ForTest(t)
 	if buildErr != nil {
 		t.Fatalf("building the site: %v", buildErr)
 	}
-	return ctx
+	return installProbe(t, ctx)
+}
+
+// newTab opens another tab of the browser of ctx, with its own probe. It
+// closes when t ends.
+func newTab(t *testing.T, ctx context.Context) context.Context {
+	t.Helper()
+	tctx, cancel := chromedp.NewContext(ctx)
+	t.Cleanup(cancel)
+	return installProbe(t, tctx)
+}
+
+// probeScript runs in every document of a probed tab before the page's
+// own scripts (DevTools injects it, so the page's Content-Security-Policy
+// does not apply to it). It keeps the fragment the document was opened
+// with (window.__e2e.hash), records uncaught errors, rejected promises and
+// policy violations in window.__e2e.errors, and it marks the results
+// panels the HTML itself carries (pre-rendered at build time) with
+// data-e2e-prerendered once the document is parsed: readyState becomes
+// "interactive" before deferred scripts run, so before the engine can
+// have replaced any panel. A panel the engine rendered has no mark.
+const probeScript = `(function () {
+  var p = window.__e2e = { errors: [], prerendered: -1, hash: location.hash };
+  window.addEventListener('error', function (e) { p.errors.push('error: ' + e.message); });
+  window.addEventListener('unhandledrejection', function (e) { p.errors.push('unhandled rejection: ' + e.reason); });
+  document.addEventListener('securitypolicyviolation', function (e) { p.errors.push('csp: ' + e.violatedDirective + ' ' + e.blockedURI); });
+  document.addEventListener('readystatechange', function () {
+    if (document.readyState !== 'interactive') return;
+    var panels = document.querySelectorAll('[data-role="results"] > .panel');
+    for (var i = 0; i < panels.length; i++) panels[i].setAttribute('data-e2e-prerendered', '');
+    p.prerendered = panels.length;
+  });
+})();`
+
+// probe is what a tab's probe saw on the Go side: JavaScript dialogs
+// (alert, confirm, prompt), which it dismisses so the page cannot hang.
+type probe struct {
+	mu      sync.Mutex
+	dialogs []string
+}
+
+type probeKey struct{}
+
+// installProbe adds probeScript to every new document of the tab of ctx
+// and starts watching for dialogs; the returned context carries the probe.
+func installProbe(t *testing.T, ctx context.Context) context.Context {
+	t.Helper()
+	p := &probe{}
+	err := chromedp.Listen(ctx, func(ev any) {
+		if e, ok := ev.(*page.EventJavascriptDialogOpening); ok {
+			p.mu.Lock()
+			p.dialogs = append(p.dialogs, string(e.Type)+": "+e.Message)
+			p.mu.Unlock()
+			// Listen's callback must not send commands itself.
+			go chromedp.Call(ctx, page.HandleJavaScriptDialog, page.HandleJavaScriptDialogParams{Accept: false})
+		}
+	})
+	if err != nil {
+		t.Fatalf("listening to page events: %v", err)
+	}
+	if _, err := chromedp.Call(ctx, page.AddScriptToEvaluateOnNewDocument, page.AddScriptToEvaluateOnNewDocumentParams{Source: probeScript}); err != nil {
+		t.Fatalf("installing the probe: %v", err)
+	}
+	return context.WithValue(ctx, probeKey{}, p)
+}
+
+// dialogs returns the dialogs the pages of ctx's tab opened so far.
+func dialogs(ctx context.Context) []string {
+	p, _ := ctx.Value(probeKey{}).(*probe)
+	if p == nil {
+		return nil
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	return append([]string(nil), p.dialogs...)
+}
+
+// checkHealthy fails t when the current page reported an uncaught error
+// or a policy violation, or any page of the tab opened a dialog.
+func checkHealthy(t *testing.T, ctx context.Context) {
+	t.Helper()
+	if errs := eval[[]string](t, ctx, `window.__e2e ? window.__e2e.errors : ["the probe is not installed"]`); len(errs) > 0 {
+		t.Errorf("the page reported: %q", errs)
+	}
+	if d := dialogs(ctx); len(d) > 0 {
+		t.Errorf("the page opened dialogs: %q", d)
+	}
 }
 
 // fileURL is the file:// URL of a page of the built site ("inverting" →
@@ -151,6 +239,11 @@ func jsString(s string) string {
 	return string(b)
 }
 
+// waitFor is how long a test waits for the page to reach a state. Only a
+// failing test waits that long; it is generous because the machines the
+// tests run on are shared and at times heavily loaded.
+const waitFor = 30 * time.Second
+
 // poll evaluates cond (a JavaScript boolean expression) until it holds or
 // the timeout passes.
 func poll(t *testing.T, ctx context.Context, cond string, timeout time.Duration) {
@@ -205,12 +298,41 @@ func (r *requests) outside(base string) []string {
 }
 
 // screenshot writes a full-page PNG of the current page to dir/name.png
-// and returns its bytes.
-func screenshot(t *testing.T, ctx context.Context, dir, name string) []byte {
+// and returns its bytes. The viewport is stretched to the page's height for
+// the capture, and then set back: parts of the page below the window may
+// not be painted otherwise (the charts use content-visibility: auto). opts
+// are the viewport options in force (e.g. chromedp.EmulateMobile), kept
+// while stretching.
+func screenshot(t *testing.T, ctx context.Context, dir, name string, opts ...chromedp.EmulateViewportOption) []byte {
 	t.Helper()
-	buf, err := chromedp.Run(ctx, chromedp.FullScreenshot(90))
+	size := eval[[]int64](t, ctx, `[window.innerWidth, window.innerHeight]`)
+	w, h := size[0], size[1]
+	stretch := append([]chromedp.EmulateViewportOption{chromedp.EmulateScale(1)}, opts...)
+	// Parts rendered for the first time take their real height in place
+	// of their placeholder's, so the page's height is measured again
+	// until it settles.
+	for full, i := h, 0; i < 4; i++ {
+		// Two animation frames: one to lay out at the new size, one to paint.
+		if _, err := chromedp.Run(ctx, chromedp.Evaluate[bool](`new Promise(function (r) { requestAnimationFrame(function () { requestAnimationFrame(function () { r(true); }); }); })`, chromedp.EvalAwaitPromise)); err != nil {
+			t.Fatalf("waiting for a frame: %v", err)
+		}
+		// scrollHeight never falls below the viewport's height, so the
+		// root element's own box measures the page.
+		next := max(h, eval[int64](t, ctx, `Math.ceil(document.documentElement.getBoundingClientRect().height)`))
+		if next == full && i > 0 {
+			break
+		}
+		full = next
+		if err := chromedp.Do(ctx, chromedp.EmulateViewport(w, full, stretch...)); err != nil {
+			t.Fatalf("stretching the viewport: %v", err)
+		}
+	}
+	buf, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
 	if err != nil {
 		t.Fatalf("screenshot: %v", err)
+	}
+	if err := chromedp.Do(ctx, chromedp.EmulateViewport(w, h, stretch...)); err != nil {
+		t.Fatalf("restoring the viewport: %v", err)
 	}
 	if err := os.WriteFile(filepath.Join(dir, name+".png"), buf, 0o644); err != nil {
 		t.Fatal(err)

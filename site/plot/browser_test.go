@@ -1,3 +1,5 @@
+//go:build !js
+
 package plot
 
 import (
@@ -13,16 +15,14 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/chromedp/cdproto/input"
 	"github.com/chromedp/chromedp"
 	"github.com/chromedp/chromedp/kb"
 
 	"zport/engine/value"
+	zbrowser "zport/site/browser"
 )
-
-const chromium = "/usr/bin/chromium"
 
 // csp is the policy the site's pages use, plus style-src 'self' so the test
 // also covers a page that forbids inline styles (charts with NoStyle, the
@@ -61,22 +61,18 @@ func servePage(t *testing.T, body, css string) *httptest.Server {
 	return srv
 }
 
+// browser starts Chromium the project's way (package zport/site/browser:
+// its flags, and a loud skip or, with ZPORT_BROWSER=required, a failure
+// when it is missing), with the 760×900 viewport these tests measure in.
 func browser(t *testing.T) context.Context {
 	t.Helper()
 	if testing.Short() {
 		t.Skip("browser test skipped in -short mode")
 	}
-	if _, err := os.Stat(chromium); err != nil {
-		t.Skip("no Chromium at " + chromium)
+	ctx := zbrowser.ForTest(t)
+	if err := chromedp.Do(ctx, chromedp.EmulateViewport(760, 900)); err != nil {
+		t.Fatal(err)
 	}
-	parent, cancel := context.WithTimeout(context.Background(), 2*time.Minute)
-	t.Cleanup(cancel)
-	opts := append(chromedp.DefaultExecAllocatorOptions[:], chromedp.ExecPath(chromium),
-		chromedp.NoSandbox, chromedp.Headless, chromedp.DisableGPU, chromedp.WindowSize(760, 900))
-	actx, acancel := chromedp.NewExecAllocator(parent, opts...)
-	t.Cleanup(acancel)
-	ctx, ccancel := chromedp.NewContext(actx)
-	t.Cleanup(ccancel)
 	return ctx
 }
 

@@ -1,10 +1,11 @@
 // Package plot draws the charts of frequency-domain results as SVG: a
 // two-panel Bode chart (magnitude over phase on a shared log frequency
-// axis) and a histogram. The same code runs when the site is built, to put
-// pre-rendered charts into static pages, and inside the WebAssembly engine,
-// to redraw them as a user edits values, so it uses only the standard
-// library and zport/engine/value, whose Format writes every engineering
-// label ("10 kHz", "4.70 kΩ").
+// axis), a histogram (linear or log x axis) and a horizontal bar chart of
+// signed values (Bars, for rankings such as sensitivities). The same code
+// runs when the site is built, to put pre-rendered charts into static
+// pages, and inside the WebAssembly engine, to redraw them as a user edits
+// values, so it uses only the standard library and zport/engine/value,
+// whose Format writes every engineering label ("10 kHz", "4.70 kΩ").
 //
 // A chart is a value with exported fields; SVG, WriteTo and AppendSVG
 // render it:

@@ -23,6 +23,10 @@ type Histogram struct {
 	Edges   []float64
 	Counts  []int
 	Markers []Marker
+	// Log draws the x axis logarithmically, for bins equal in ratio (a
+	// spread over decades); every edge must then be above 0, and markers
+	// at or below 0 are left out.
+	Log     bool
 	Width   int // pixels; default 640
 	Height  int // pixels; default 320
 	NoStyle bool
@@ -52,6 +56,9 @@ func (h *Histogram) problem() string {
 		if i > 0 && !(e > h.Edges[i-1]) {
 			return fmt.Sprintf("invalid histogram: edge %d is not above edge %d", i, i-1)
 		}
+		if h.Log && !(e > 0) {
+			return fmt.Sprintf("invalid histogram: edge %d is not above 0 on a log axis", i)
+		}
 	}
 	if !finite(h.Edges[len(h.Edges)-1] - h.Edges[0]) {
 		return "invalid histogram: the edges span more than a float64 can hold"
@@ -70,10 +77,21 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	id := cleanID(h.ID, "zhist")
 	problem := h.problem()
 
+	// xc is the axis coordinate of a value: log10 of it on a log axis
+	// (NaN at or below 0), the value itself on a linear one.
+	xc := func(v float64) float64 {
+		if h.Log {
+			if !(v > 0) {
+				return math.NaN()
+			}
+			return math.Log10(v)
+		}
+		return v
+	}
 	lo, hi := 0.0, 1.0
 	total, maxC, fullest := 0, 0, -1
 	if problem == "" {
-		lo, hi = h.Edges[0], h.Edges[len(h.Edges)-1]
+		lo, hi = xc(h.Edges[0]), xc(h.Edges[len(h.Edges)-1])
 		for i, c := range h.Counts {
 			total += c
 			if c > maxC {
@@ -83,8 +101,10 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	}
 	for _, m := range h.Markers {
 		// A marker widens the range unless that would overflow it.
-		if l, u := min(lo, m.Freq), max(hi, m.Freq); finite(u - l) {
-			lo, hi = l, u
+		if v := xc(m.Freq); !math.IsNaN(v) {
+			if l, u := min(lo, v), max(hi, v); finite(u - l) {
+				lo, hi = l, u
+			}
 		}
 	}
 	if pad := 0.02 * (hi - lo); finite(lo-pad) && finite(hi+pad) {
@@ -116,11 +136,17 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	x0 := math.Round(outer + 16 + labelW + 10)
 	x1 := W - 16
 	xa := axis{lo: lo, hi: hi, p0: x0, p1: x1}
-	xa.ticks = engTicks(lo, hi, x1-x0, h.Unit)
+	ticks := func() []tick {
+		if h.Log {
+			return logTicks(lo, hi, xa.pxPerUnit(), 56, h.Unit)
+		}
+		return engTicks(lo, hi, x1-x0, h.Unit)
+	}
+	xa.ticks = ticks()
 	if over := overhang(&xa, W); over > 0 {
 		x1 -= over
 		xa.p1 = x1
-		xa.ticks = engTicks(lo, hi, x1-x0, h.Unit)
+		xa.ticks = ticks()
 	}
 
 	b := dst
@@ -159,9 +185,9 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 			if c == 0 {
 				continue
 			}
-			b = appendVLine(b, tenths(xa.px(h.Edges[i])), yb, tenths(cy.px(float64(c))))
+			b = appendVLine(b, tenths(xa.px(xc(h.Edges[i]))), yb, tenths(cy.px(float64(c))))
 			b = append(b, 'H')
-			b = appendTenths(b, tenths(xa.px(h.Edges[i+1])), true)
+			b = appendTenths(b, tenths(xa.px(xc(h.Edges[i+1]))), true)
 			b = append(b, 'V')
 			b = appendTenths(b, yb, true)
 			b = append(b, 'Z')
@@ -191,10 +217,10 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	var labels []byte
 	slot := 0
 	for _, m := range h.Markers {
-		if math.IsNaN(m.Freq) || math.IsInf(m.Freq, 0) {
+		if math.IsNaN(xc(m.Freq)) || math.IsInf(m.Freq, 0) {
 			continue
 		}
-		x := xa.px(m.Freq)
+		x := xa.px(xc(m.Freq))
 		b = append(b, `<path class="marker`...)
 		b = appendClassSuffix(b, "marker-", m.Class)
 		b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="3 3" d="`...)
@@ -243,6 +269,9 @@ func engTicks(lo, hi, px float64, unit string) []tick {
 				sig = min(max(sig, 1), 6)
 			}
 			t := tick{pos: v, label: value.Format(v, unit, sig), major: true}
+			if unit == "°" { // an angle takes no SI prefix: 0.25°, not 250 m°
+				t.label = linLabel(v, step) + "°"
+			}
 			widest = max(widest, textWidth(t.label, fontPx))
 			ticks = append(ticks, t)
 		}

@@ -8,6 +8,7 @@ package plot
 //	--trace-z, --trace-z0, --trace-t, --trace-g   colours of the named trace classes
 //	--zplot-c1 … --zplot-c6                         the palette used by trace position
 //	--zplot-marker, --zplot-hline, --zplot-bar      markers, reference lines, histogram bars
+//	--zplot-bar-neg                                 bars of negative values (Bars)
 //	--zplot-bg                                      the page background, for halos and the readout box
 //
 // Text, axes and grid follow currentColor. Every rule is scoped to .zplot.
@@ -39,6 +40,7 @@ const CSS = `.zplot{font-family:system-ui,sans-serif;font-size:12px}` +
 	`.zplot .halo{paint-order:stroke;stroke:var(--zplot-bg,Canvas);stroke-width:3px;stroke-linejoin:round}` +
 	`.zplot .note{font-style:italic;fill-opacity:.7}` +
 	`.zplot .bar{fill:var(--zplot-bar,#2a6fb0);fill-opacity:.45;stroke:var(--zplot-bar,#2a6fb0);stroke-width:1px}` +
+	`.zplot .bar-neg{fill:var(--zplot-bar-neg,#cf6a22);stroke:var(--zplot-bar-neg,#cf6a22)}` +
 	`.zplot:focus{outline:none}` +
 	`.zplot:focus-visible{outline:2px solid currentColor;outline-offset:2px}` +
 	`.zplot .zcur{pointer-events:none}` +

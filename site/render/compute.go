@@ -4,8 +4,10 @@ import (
 	"encoding/json"
 	"fmt"
 	"strings"
+	"time"
 
 	"zport/engine/api"
+	"zport/engine/circuit"
 )
 
 // Output is a rendered panel, or the error that stopped it.
@@ -14,18 +16,26 @@ type Output struct {
 	Markdown string `json:"markdown,omitempty"`
 	// CSV is the sweep as comma-separated values, when Form.CSV asked.
 	CSV string `json:"csv,omitempty"`
-	// State is the form as a URL fragment (topology forms only).
+	// State is the form as a URL fragment: a topology's (see Form.State),
+	// or a circuit's settings without its text (see Form.CircuitState).
 	State string `json:"state,omitempty"`
 	// Form is the form that was computed, with every default filled in;
 	// a page reading a fragment fills its inputs from it.
 	Form *Form `json:"form,omitempty"`
+	// SweepCut, when set, says that the sweep was shortened to fit
+	// Form.Budget.
+	SweepCut *SweepCut `json:"sweepCut,omitempty"`
 	// Error names the field at fault (Param) or the place in circuit text.
 	Error *api.ErrorBody `json:"error,omitempty"`
 }
 
 // Compute analyzes a form and renders its panel. It never panics: a panic
 // inside the engine or the renderer becomes an internal error in Output.
-func Compute(f Form) (out Output) {
+func Compute(f Form) Output { return compute(f, nil) }
+
+// compute is Compute; parsed, when not nil, is the form's circuit text
+// parsed already (see ComputeCircuit).
+func compute(f Form, parsed *circuit.Circuit) (out Output) {
 	defer func() {
 		if r := recover(); r != nil {
 			out = Output{Error: &api.ErrorBody{Message: fmt.Sprintf("internal error: %v (please report the settings that caused it)", r)}}
@@ -46,13 +56,19 @@ func Compute(f Form) (out Output) {
 			}
 			f = g
 		}
+	} else if f.Fragment != nil {
+		g, err := ReadCircuitFragment(*f.Fragment, f)
+		if err != nil {
+			return Output{Error: &api.ErrorBody{Param: FieldFragment, Message: err.Error()}}
+		}
+		f = g
 	}
 	f.Fragment = nil
 	req, bad := f.request()
 	if bad != nil {
 		return Output{Error: bad}
 	}
-	resp, err := api.Analyze(req)
+	resp, cut, err := analyzeWithin(req, time.Duration(f.Budget*float64(time.Millisecond)), parsed)
 	if err != nil {
 		body := api.Body(err)
 		return Output{Error: &body}
@@ -61,6 +77,7 @@ func Compute(f Form) (out Output) {
 		HTML:     Panel(resp, entry, f.ID),
 		Markdown: Markdown(resp, entry),
 		Form:     &f,
+		SweepCut: cut,
 	}
 	if f.CSV {
 		out.CSV = CSV(resp)
@@ -68,6 +85,8 @@ func Compute(f Form) (out Output) {
 	}
 	if entry != nil {
 		out.State = f.State(*entry)
+	} else {
+		out.State = f.CircuitState()
 	}
 	return out
 }

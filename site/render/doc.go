@@ -37,6 +37,21 @@
 // whose Param is "fragment", and the page falls back to its defaults with a
 // notice.
 //
+// # Circuits of the user's own
+//
+// A Form with Circuit set instead of Topology analyzes circuit text with
+// its Reference, Ports and Gain. The custom-circuit page sends every edit
+// as a CircuitRequest to ComputeCircuit, which parses the text once, lists
+// what it offers (api.Inspection) or every problem in it, fits the form's
+// choices to the text (Form.Fit: a reference or port that is gone is
+// replaced, a new port line is ticked) and analyzes; Form.Budget keeps the
+// sweep within a time budget, shortening it (Output.SweepCut) rather than
+// holding the page. Its URL fragment is the text compressed under c (by
+// the page's script) followed by Form.CircuitState — ref, port (one per
+// port), src, out, f, from, to, points — read back by ReadCircuitFragment
+// as strictly as a topology's. CircuitLinkState writes the same keys for a
+// topology's response, for its "open as an editable circuit" link.
+//
 // # HTML
 //
 // The panel is written by a small element writer in which every piece of
@@ -60,4 +75,30 @@
 // Hand-formula values carry data-closed-form (z0, tShort, tOpen, z,
 // agreement, g, gainAgreement, T) instead of data-quantity, so selectors
 // for the engine's numbers match exactly one element.
+//
+// # Design aids
+//
+// The "Design aids" section under each calculator (site/assets/aids.js)
+// is rendered here too, from an AidsInput: the circuit (a calculator's
+// Form, or an engine Request for a circuit of the page's own) and a Study,
+// the settings as typed. AidsForm renders the settings (the passive parts
+// with their tolerance inputs, the opamps' min–typ spreads, distribution,
+// seed, trials, targets, the standard-value series); AidsPanels the
+// standard values and the sensitivities; StartTolerance prepares the
+// tolerance study that the page steps in slices and ToleranceOutput
+// renders. A Study also travels in the URL fragment, as pairs whose keys
+// start with "aid." after the calculator's own (Study.State, ReadStudy):
+//
+//	aid.tol=J&aid.dist=normal&aid.seed=7&aid.n=2000&aid.tol.Rp=none&aid.a0.U1=100k&aid.t1=pm%3C45
+//
+// Each input of the settings carries data-param, the path of the contract
+// (DEVELOPERS.md, "Design aids in the JSON contract") that names it in the engine's errors
+// ("tolerance.parts.R1", "tolerance.targets[0].value", "standardValues.series"),
+// so a message lands beside its input. The panels' numbers carry data-aid
+// (tolerance, standard, sensitivity), data-quantity (z:PORT, phase:PORT,
+// r:PORT, g, pm; a part name for standard values; "target" and "ratio" with
+// data-index), data-stat (nominal, p0.1 … p99.9, min, max, cornerMin,
+// cornerMax; value, phase, error; misses, fraction …), data-parameter for a
+// sensitivity's parameter, data-variant for a standard-value variant, and
+// data-value, the engine's number in full.
 package render

@@ -39,6 +39,18 @@ type Form struct {
 	// topology's defaults in place of Params, Frequency and Sweep.
 	Fragment *string `json:"fragment,omitempty"`
 
+	// Study holds the design-aid settings, which travel in the URL
+	// fragment with the rest (keys starting "aid.", see Study.State); nil
+	// when the user has not set any.
+	Study *Study `json:"study,omitempty"`
+
+	// Budget, in milliseconds, bounds the time of the sweep: when the spot
+	// analysis shows that the sweep would take longer, it is shortened to
+	// fit (or left out) and Output.SweepCut says so. 0 means no bound. The
+	// custom-circuit page sets it, so that a large circuit cannot hold the
+	// page for long on every edit.
+	Budget float64 `json:"budget,omitempty"`
+
 	// CSV asks for the sweep as CSV in Output.CSV. Writing every value of a
 	// sweep in full precision costs more than drawing it, so a page asks
 	// only when the user wants the file.
@@ -225,6 +237,10 @@ func (f Form) State(e api.CatalogEntry) string {
 	add(keyFrom, f.Sweep.From)
 	add(keyTo, f.Sweep.To)
 	add(keyPoints, f.Sweep.Points)
+	if st := f.Study.State(); st != "" {
+		b.WriteByte('&')
+		b.WriteString(st)
+	}
 	return b.String()
 }
 
@@ -256,6 +272,7 @@ func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
 		known[p.Name] = true
 	}
 	seen := map[string]bool{}
+	var study *Study
 	for _, part := range strings.Split(frag, "&") {
 		if part == "" {
 			continue
@@ -264,22 +281,18 @@ func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
 		if !ok {
 			return base, &FragmentError{"a setting has no “=”"}
 		}
-		k, err1 := queryUnescape(rawKey)
-		v, err2 := queryUnescape(rawVal)
-		if err1 != nil || err2 != nil {
-			return base, &FragmentError{"a setting is not properly escaped"}
+		k, v, err := readPair(rawKey, rawVal, seen)
+		if err != nil {
+			return base, err
 		}
-		if !printable(k) || !printable(v) {
-			return base, &FragmentError{"a setting holds characters that are not allowed"}
-		}
-		if len(k) > maxFragmentValue || len(v) > maxFragmentValue {
-			return base, &FragmentError{"a setting is longer than " + strconv.Itoa(maxFragmentValue) + " characters"}
-		}
-		if seen[k] {
-			return base, &FragmentError{"the setting " + strconv.Quote(k) + " appears twice"}
-		}
-		seen[k] = true
 		switch {
+		case strings.HasPrefix(k, studyPrefix):
+			if study == nil {
+				study = &Study{}
+			}
+			if !study.readStudyKey(k, v) {
+				return base, &FragmentError{"unknown design-aid setting " + strconv.Quote(k)}
+			}
 		case k == keyPage:
 		case k == keyFrequency:
 			f.Frequency = v
@@ -294,6 +307,10 @@ func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
 		default:
 			return base, &FragmentError{"unknown setting " + strconv.Quote(k) + " for " + e.Title}
 		}
+	}
+	if study != nil {
+		s := study.compact()
+		f.Study = &s
 	}
 	return f, nil
 }

@@ -94,7 +94,10 @@ var superscripts = map[rune]string{'0': "⁰", '1': "¹", '2': "²", '3': "³", 
 
 // plain writes a dimensionless number with sig significant digits: fixed
 // point from 0.001 to 100 000, else mantissa × 10ⁿ; a typographic minus.
-func plain(v float64) string {
+func plain(v float64) string { return plainN(v, sig) }
+
+// plainN is plain with n significant digits.
+func plainN(v float64, sig int) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "—"
 	}

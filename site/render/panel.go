@@ -530,7 +530,9 @@ func (p *panel) circuit() {
 	w.open("p")
 	// The page's script fills in the fragment (c=…, see zport.js) when it
 	// can compress; without it the link opens the empty circuit page.
-	w.elem("a", "Open as an editable circuit", "class", "open-circuit", "href", "custom.html")
+	// data-state carries the reference, ports, gain and frequencies that
+	// the custom page needs to reproduce this analysis.
+	w.elem("a", "Open as an editable circuit", "class", "open-circuit", "href", "custom.html", "data-state", CircuitLinkState(p.resp))
 	w.close("p")
 	w.close("details")
 }

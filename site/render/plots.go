@@ -2,6 +2,8 @@ package render
 
 import (
 	"strconv"
+	"strings"
+	"unicode/utf8"
 
 	"zport/engine/api"
 	"zport/engine/value"
@@ -31,13 +33,9 @@ func (p *panel) charts() []plot.Bode {
 	}
 	var charts []plot.Bode
 	for i, ps := range s.Ports {
-		title := "|Z| and phase at port " + ps.Name
-		if t := p.portTitle(ps.Name); t != "" {
-			title += " (" + t + ")"
-		}
 		charts = append(charts, plot.Bode{
 			ID:      p.id + "-plot-port" + strconv.Itoa(i),
-			Title:   title,
+			Title:   portChartTitle(ps.Name, p.portTitle(ps.Name)),
 			Freq:    s.Frequency,
 			MagUnit: "Ω",
 			Traces: []plot.Trace{
@@ -91,6 +89,32 @@ func (p *panel) charts() []plot.Bode {
 		})
 	}
 	return charts
+}
+
+// maxChartTitle is the longest chart title, in characters, that fits on
+// one line of a 640-unit chart in a wide sans-serif (DejaVu Sans, Debian's
+// default, measured in Chromium: 76 characters fit, 98 were clipped). The
+// chart does not wrap its title.
+const maxChartTitle = 76
+
+// portChartTitle names a port's impedance chart with the port's
+// description when it fits, else with the description's main clause (the
+// text before a parenthesis inside it), else with the port's name alone;
+// the results table above always carries the whole description.
+func portChartTitle(name, desc string) string {
+	title := "|Z| and phase at port " + name
+	if desc == "" {
+		return title
+	}
+	if full := title + " (" + desc + ")"; utf8.RuneCountInString(full) <= maxChartTitle {
+		return full
+	}
+	if i := strings.Index(desc, " ("); i > 0 {
+		if short := title + " (" + desc[:i] + ")"; utf8.RuneCountInString(short) <= maxChartTitle {
+			return short
+		}
+	}
+	return title
 }
 
 func (p *panel) plots() {
