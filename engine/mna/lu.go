@@ -18,6 +18,7 @@ type LU struct {
 	rs, cs []float64 // row and column scale factors
 	work   []complex128
 	nz     []int
+	pos    []int32      // nonzero positions of the assembled matrix
 	inv    []complex128 // reciprocals of U's diagonal
 	minPiv float64
 	norm1  float64 // 1-norm of the equilibrated matrix
@@ -45,53 +46,58 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		lu.work = make([]complex128, n)
 		lu.nz = make([]int, 0, n)
 		lu.inv = make([]complex128, n)
+		lu.pos = make([]int32, 0, 4*n)
 	}
 	lu.inv = lu.inv[:n]
 	lu.piv, lu.rs, lu.cs, lu.work = lu.piv[:n], lu.rs[:n], lu.cs[:n], lu.work[:n]
 	// Equilibrate rows, then columns, to largest magnitude 1 (powers of two
-	// so the scaling itself is exact).
+	// so the scaling itself is exact). One pass over the whole matrix finds
+	// the nonzeros and the row maxima; the rest runs over the nonzeros only.
+	pos := lu.pos[:0]
 	for i := 0; i < n; i++ {
 		m := 0.0
 		row := a[i*n : i*n+n]
-		for _, v := range row {
-			if x := abs1(v); x > m {
-				m = x
+		for j, v := range row {
+			if v != 0 {
+				pos = append(pos, int32(i*n+j))
+				if x := abs1(v); x > m {
+					m = x
+				}
 			}
 		}
 		if m == 0 {
+			lu.pos = pos
 			return &Singular{Index: i, Kind: "row"}
 		}
-		s := pow2inv(m)
-		lu.rs[i] = s
-		for j, v := range row {
-			if v != 0 {
-				row[j] = complex(real(v)*s, imag(v)*s)
-			}
+		lu.rs[i] = pow2inv(m)
+	}
+	lu.pos = pos
+	cmax, csum := lu.cs, lu.work[:n] // work holds column sums (real parts) for now
+	for j := range cmax {
+		cmax[j] = 0
+		csum[j] = 0
+	}
+	for _, q := range pos {
+		i, j := int(q)/n, int(q)%n
+		x := abs1(a[q]) * lu.rs[i]
+		csum[j] += complex(x, 0)
+		if x > cmax[j] {
+			cmax[j] = x
 		}
 	}
 	lu.norm1 = 0
 	for j := 0; j < n; j++ {
-		m, sum := 0.0, 0.0
-		for i := j; i < n*n; i += n {
-			x := abs1(a[i])
-			sum += x
-			if x > m {
-				m = x
-			}
-		}
-		if m == 0 {
+		if cmax[j] == 0 {
 			return &Singular{Index: j, Kind: "column"}
 		}
-		s := pow2inv(m)
+		s := pow2inv(cmax[j])
+		lu.norm1 = math.Max(lu.norm1, real(csum[j])*s) // the 1-norm, for Cond
 		lu.cs[j] = s
-		lu.norm1 = math.Max(lu.norm1, sum*s) // the 1-norm, for Cond
-		if s != 1 {
-			for i := j; i < n*n; i += n {
-				if a[i] != 0 {
-					a[i] = complex(real(a[i])*s, imag(a[i])*s)
-				}
-			}
-		}
+	}
+	for _, q := range pos {
+		sc := lu.rs[int(q)/n] * lu.cs[int(q)%n]
+		v := a[q]
+		a[q] = complex(real(v)*sc, imag(v)*sc)
 	}
 	lu.minPiv = math.Inf(1)
 	for k := 0; k < n; k++ {
