@@ -655,17 +655,7 @@
   };
 
   Editor.prototype.setStale = function (stale) {
-    this.results.classList.toggle('is-stale', stale);
-    var note = el.querySelector('[data-role="stale"]');
-    if (stale && !note) {
-      note = document.createElement('p');
-      note.className = 'stale-note';
-      note.setAttribute('data-role', 'stale');
-      note.textContent = 'Out of date: these are the last good results. Correct the marked problem to update them.';
-      this.results.parentNode.insertBefore(note, this.results);
-    } else if (!stale && note) {
-      note.remove();
-    }
+    site.markStale(el, this.results, stale, 'problem');
     if (this.pendingNotice) {
       this.notice.textContent = this.pendingNotice;
       this.notice.hidden = false;

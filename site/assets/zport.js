@@ -326,18 +326,24 @@
     return String(s).replace(/["\\]/g, '');
   }
 
-  Calculator.prototype.setStale = function (stale) {
-    this.results.classList.toggle('is-stale', stale);
-    var note = this.el.querySelector('[data-role="stale"]');
+  // markStale marks results (inside host) as the last good ones, with a
+  // note saying what to correct, or clears the mark.
+  function markStale(host, results, stale, what) {
+    results.classList.toggle('is-stale', stale);
+    var note = host.querySelector('[data-role="stale"]');
     if (stale && !note) {
       note = document.createElement('p');
       note.className = 'stale-note';
       note.setAttribute('data-role', 'stale');
-      note.textContent = 'Out of date: these are the last good results. Correct the marked value to update them.';
-      this.results.parentNode.insertBefore(note, this.results);
+      note.textContent = 'Out of date: these are the last good results. Correct the marked ' + what + ' to update them.';
+      results.parentNode.insertBefore(note, results);
     } else if (!stale && note) {
       note.remove();
     }
+  }
+
+  Calculator.prototype.setStale = function (stale) {
+    markStale(this.el, this.results, stale, 'value');
     if (this.pendingNotice) {
       this.notice.textContent = this.pendingNotice;
       this.notice.hidden = false;
@@ -552,6 +558,7 @@
       else readyCallbacks.push(cb);
     },
     recomputed: recomputed,
+    markStale: markStale,
     copyText: copyText,
     saveFile: saveFile,
     hover: hover,
