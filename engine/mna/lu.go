@@ -19,6 +19,9 @@ type LU struct {
 	work   []complex128
 	nz     []int
 	pos    []int32      // nonzero positions of the assembled matrix
+	sym    *symbolic    // the structure of the last full factorization
+	full   int          // full factorizations so far
+	orig   []complex128 // the equilibrated matrix, while a refactor is tried
 	inv    []complex128 // reciprocals of U's diagonal
 	minPiv float64
 	norm1  float64 // 1-norm of the equilibrated matrix
@@ -99,6 +102,31 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		v := a[q]
 		a[q] = complex(real(v)*sc, imag(v)*sc)
 	}
+	if sym := lu.sym; sym != nil && sym.n == n && sym.covers(pos) {
+		// The same structure as last time: eliminate along the recorded
+		// nonzeros while the pivots fall as they did.
+		lu.orig = append(lu.orig[:0], a...)
+		if lu.refactor(a, n) {
+			return nil
+		}
+		copy(a, lu.orig)
+	}
+	if err := lu.eliminate(a, n); err != nil {
+		lu.sym = nil
+		return err
+	}
+	// The structure pays for itself only when the same system comes back
+	// (a sweep); a one-off factorization (a Monte Carlo trial) skips it.
+	lu.sym = nil
+	if lu.full > 0 {
+		lu.sym = symbolicOf(n, pos, lu.piv)
+	}
+	lu.full++
+	return nil
+}
+
+// eliminate factors the equilibrated a with partial pivoting.
+func (lu *LU) eliminate(a []complex128, n int) error {
 	lu.minPiv = math.Inf(1)
 	for k := 0; k < n; k++ {
 		p, pm := k, abs1(a[k*n+k])
@@ -148,6 +176,119 @@ func (lu *LU) Factor(a []complex128, n int) error {
 	return nil
 }
 
+// refactor eliminates a along the recorded structure when partial
+// pivoting picks the recorded pivot order again; it reports false (and the
+// caller runs the full elimination) as soon as it would not. So the result
+// is bit for bit what the full elimination gives, whatever was factored
+// before: only the search for nonzeros is saved, never a pivoting decision.
+func (lu *LU) refactor(a []complex128, n int) bool {
+	sym := lu.sym
+	lu.minPiv = math.Inf(1)
+	for k := 0; k < n; k++ {
+		p, pm := k, abs1(a[k*n+k])
+		for i := k + 1; i < n; i++ {
+			if v := a[i*n+k]; v != 0 {
+				if m := abs1(v); m > pm {
+					p, pm = i, m
+				}
+			}
+		}
+		if p != sym.piv[k] || pm <= PivotTolerance {
+			return false
+		}
+		lu.piv[k] = p
+		lu.minPiv = math.Min(lu.minPiv, pm)
+		if p != k {
+			rk, rp := a[k*n:k*n+n], a[p*n:p*n+n]
+			for j := range rk {
+				rk[j], rp[j] = rp[j], rk[j]
+			}
+		}
+		inv := recip(a[k*n+k])
+		lu.inv[k] = inv
+		rk := a[k*n : k*n+n]
+		uc := sym.ucols[k]
+		for _, i := range sym.lrows[k] {
+			ri := a[int(i)*n : int(i)*n+n]
+			l := ri[k]
+			if l == 0 {
+				continue
+			}
+			l *= inv
+			ri[k] = l
+			for _, j := range uc {
+				if u := rk[j]; u != 0 {
+					ri[j] -= l * u
+				}
+			}
+		}
+	}
+	return true
+}
+
+// symbolic is the structure of a factorization: the pattern it was made
+// for, its pivot order, and where L and U have nonzeros (fill included).
+type symbolic struct {
+	n       int
+	pattern []bool    // n×n: positions that may be nonzero in the matrix
+	piv     []int     // row interchanges, as LU.piv
+	lrows   [][]int32 // step k: rows below k with a nonzero in column k
+	ucols   [][]int32 // row k of U: columns after k that are nonzero
+	lcols   [][]int32 // row i of the final L: columns before i that are nonzero
+}
+
+// covers reports whether every position in pos is in the pattern.
+func (s *symbolic) covers(pos []int32) bool {
+	for _, q := range pos {
+		if !s.pattern[q] {
+			return false
+		}
+	}
+	return true
+}
+
+// symbolicOf runs the elimination on booleans: the pattern pos, the pivot
+// order piv, full-row interchanges as the numeric factorization makes them.
+func symbolicOf(n int, pos []int32, piv []int) *symbolic {
+	s := &symbolic{n: n, pattern: make([]bool, n*n), piv: append([]int(nil), piv...),
+		lrows: make([][]int32, n), ucols: make([][]int32, n), lcols: make([][]int32, n)}
+	b := make([]bool, n*n)
+	for _, q := range pos {
+		s.pattern[q] = true
+		b[q] = true
+	}
+	for k := 0; k < n; k++ {
+		if p := piv[k]; p != k {
+			rk, rp := b[k*n:k*n+n], b[p*n:p*n+n]
+			for j := range rk {
+				rk[j], rp[j] = rp[j], rk[j]
+			}
+		}
+		for j := k + 1; j < n; j++ {
+			if b[k*n+j] {
+				s.ucols[k] = append(s.ucols[k], int32(j))
+			}
+		}
+		for i := k + 1; i < n; i++ {
+			if !b[i*n+k] {
+				continue
+			}
+			s.lrows[k] = append(s.lrows[k], int32(i))
+			for _, j := range s.ucols[k] {
+				b[i*n+int(j)] = true
+			}
+		}
+	}
+	for i := 0; i < n; i++ {
+		for j := 0; j < i; j++ {
+			if b[i*n+j] {
+				s.lcols[i] = append(s.lcols[i], int32(j))
+			}
+		}
+	}
+	return s
+}
+
 // MinPivot is the smallest pivot magnitude of the last successful Factor,
 // relative to the equilibrated matrix: a rough measure of how close the
 // system came to singular.
@@ -156,7 +297,7 @@ func (lu *LU) MinPivot() float64 { return lu.minPiv }
 // SolveTo solves A·x = b into dst (len n), leaving b unchanged. dst and b
 // may be the same slice.
 func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
-	n, a, y := lu.n, lu.a, lu.work
+	n, y := lu.n, lu.work
 	for i := 0; i < n; i++ {
 		y[i] = b[i] * complex(lu.rs[i], 0)
 	}
@@ -165,6 +306,47 @@ func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
 			y[k], y[p] = y[p], y[k]
 		}
 	}
+	sym := lu.sym
+	if sym == nil {
+		lu.denseSolve(y)
+	} else {
+		lu.sparseSolve(y, sym)
+	}
+	for i := 0; i < n; i++ {
+		dst[i] = y[i] * complex(lu.cs[i], 0)
+	}
+	return dst
+}
+
+// sparseSolve runs the triangular solves along the recorded nonzeros.
+func (lu *LU) sparseSolve(y []complex128, sym *symbolic) {
+	n, a := lu.n, lu.a
+	for i := 1; i < n; i++ {
+		s := y[i]
+		row := a[i*n : i*n+n]
+		for _, j := range sym.lcols[i] {
+			if l := row[j]; l != 0 {
+				s -= l * y[j]
+			}
+		}
+		y[i] = s
+	}
+	for i := n - 1; i >= 0; i-- {
+		s := y[i]
+		row := a[i*n : i*n+n]
+		for _, j := range sym.ucols[i] {
+			if u := row[j]; u != 0 {
+				s -= u * y[j]
+			}
+		}
+		y[i] = s * lu.inv[i]
+	}
+}
+
+// denseSolve runs the triangular solves over the whole factor, skipping
+// zeros.
+func (lu *LU) denseSolve(y []complex128) {
+	n, a := lu.n, lu.a
 	for i := 1; i < n; i++ {
 		s := y[i]
 		row := a[i*n : i*n+i]
@@ -186,10 +368,6 @@ func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
 		}
 		y[i] = s * lu.inv[i]
 	}
-	for i := 0; i < n; i++ {
-		dst[i] = y[i] * complex(lu.cs[i], 0)
-	}
-	return dst
 }
 
 // recip is 1/z without the care Go's complex division takes for values
