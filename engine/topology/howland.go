@@ -178,7 +178,7 @@ func init() {
 		Reference: "U1",
 		Ports: []PortDef{
 			{Name: "out", Title: "load node P to ground (the load sees the rest; RL ∥ CL included when given)", A: "p", B: "gnd"},
-			{Name: "in", Title: "input, as the source sees it (through R_s and R1)", A: "in", B: "gnd"},
+			{Name: "in", Title: "input, as the source sees it (through Rs and R1)", A: "in", B: "gnd"},
 		},
 		Gain:      &GainDef{Source: "Vin", Output: "p", Unit: "V/V", Title: "load voltage per volt of Vin (load current per volt in the extras)"},
 		Frequency: 100,

@@ -147,7 +147,7 @@ func init() {
 		Params:    params,
 		Reference: "U1",
 		Ports: []PortDef{
-			{Name: "in", Title: "input, as the source sees it (through R_s and R1)", A: "in", B: "gnd"},
+			{Name: "in", Title: "input, as the source sees it (through Rs and R1)", A: "in", B: "gnd"},
 			{Name: "sum", Title: "summing node (the − input)", A: "sum", B: "gnd"},
 			{Name: "out", Title: "output", A: "out", B: "gnd"},
 		},
