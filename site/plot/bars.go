@@ -108,24 +108,14 @@ func (c *Bars) AppendSVG(dst []byte) []byte {
 	if b == nil {
 		b = make([]byte, 0, 2048+n*160)
 	}
-	b = append(b, `<svg xmlns="http://www.w3.org/2000/svg" class="zplot zplot-bars"`...)
-	b = appendAttr(b, "id", id)
-	b = appendViewBox(b, W, H)
-	b = append(b, ` role="img" aria-labelledby="`...)
-	b = append(b, id...)
-	b = append(b, `-title" aria-describedby="`...)
-	b = append(b, id...)
-	b = append(b, `-desc" font-family="system-ui,sans-serif" font-size="12" fill="currentColor">`...)
+	b = appendSVGStart(b, "zplot-bars", id, W, H)
+	b = append(b, '>')
 	title := c.Title
 	if title == "" {
 		title = "Bar chart"
 	}
 	b = appendTitleDesc(b, id, title, c.describe(n))
-	if !c.NoStyle {
-		b = append(b, "<style>"...)
-		b = append(b, CSS...)
-		b = append(b, "</style>"...)
-	}
+	b = appendStyle(b, c.NoStyle)
 
 	b = append(b, `<path class="grid" fill="none" stroke="currentColor" stroke-opacity=".16" d="`...)
 	for _, t := range xa.ticks {

@@ -237,14 +237,8 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	}
 
 	// Root element with the data the hover script reads.
-	b = append(b, `<svg xmlns="http://www.w3.org/2000/svg" class="zplot zplot-bode"`...)
-	b = appendAttr(b, "id", id)
-	b = appendViewBox(b, W, H)
-	b = append(b, ` role="img" aria-labelledby="`...)
-	b = append(b, id...)
-	b = append(b, `-title" aria-describedby="`...)
-	b = append(b, id...)
-	b = append(b, `-desc" font-family="system-ui,sans-serif" font-size="12" fill="currentColor" data-freq="`...)
+	b = appendSVGStart(b, "zplot-bode", id, W, H)
+	b = append(b, ` data-freq="`...)
 	for i, f := range c.Freq {
 		if i > 0 {
 			b = append(b, ' ')
@@ -276,11 +270,7 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		title = "Bode chart"
 	}
 	b = appendTitleDesc(b, id, title, c.describe(ser, lf0, lf1, nf))
-	if !c.NoStyle {
-		b = append(b, "<style>"...)
-		b = append(b, CSS...)
-		b = append(b, "</style>"...)
-	}
+	b = appendStyle(b, c.NoStyle)
 
 	// Grid and frames.
 	var major, minor []byte
@@ -715,6 +705,31 @@ func appendRange(b []byte, name string, top, bottom, lo, hi float64) []byte {
 	b = append(b, ' ')
 	b = appendSig6(b, hi)
 	return append(b, '"')
+}
+
+// appendSVGStart writes the root element's opening tag of a chart of the
+// given class, up to its attributes: the caller adds its own and the '>'.
+func appendSVGStart(b []byte, class, id string, w, h float64) []byte {
+	b = append(b, `<svg xmlns="http://www.w3.org/2000/svg" class="zplot `...)
+	b = append(b, class...)
+	b = append(b, '"')
+	b = appendAttr(b, "id", id)
+	b = appendViewBox(b, w, h)
+	b = append(b, ` role="img" aria-labelledby="`...)
+	b = append(b, id...)
+	b = append(b, `-title" aria-describedby="`...)
+	b = append(b, id...)
+	return append(b, `-desc" font-family="system-ui,sans-serif" font-size="12" fill="currentColor"`...)
+}
+
+// appendStyle embeds the default style sheet unless the page links it.
+func appendStyle(b []byte, noStyle bool) []byte {
+	if noStyle {
+		return b
+	}
+	b = append(b, "<style>"...)
+	b = append(b, CSS...)
+	return append(b, "</style>"...)
 }
 
 func appendTitleDesc(b []byte, id, title, desc string) []byte {

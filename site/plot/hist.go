@@ -153,24 +153,14 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	if b == nil {
 		b = make([]byte, 0, 4096+len(h.Counts)*24)
 	}
-	b = append(b, `<svg xmlns="http://www.w3.org/2000/svg" class="zplot zplot-hist"`...)
-	b = appendAttr(b, "id", id)
-	b = appendViewBox(b, W, H)
-	b = append(b, ` role="img" aria-labelledby="`...)
-	b = append(b, id...)
-	b = append(b, `-title" aria-describedby="`...)
-	b = append(b, id...)
-	b = append(b, `-desc" font-family="system-ui,sans-serif" font-size="12" fill="currentColor">`...)
+	b = appendSVGStart(b, "zplot-hist", id, W, H)
+	b = append(b, '>')
 	title := h.Title
 	if title == "" {
 		title = "Histogram"
 	}
 	b = appendTitleDesc(b, id, title, h.describe(problem, total, fullest))
-	if !h.NoStyle {
-		b = append(b, "<style>"...)
-		b = append(b, CSS...)
-		b = append(b, "</style>"...)
-	}
+	b = appendStyle(b, h.NoStyle)
 
 	b = append(b, `<path class="grid" fill="none" stroke="currentColor" stroke-opacity=".16" d="`...)
 	for _, t := range cy.ticks {

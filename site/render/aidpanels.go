@@ -174,13 +174,7 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 	w.close("div")
 	w.close("details")
 
-	if len(res.Notes) > 0 {
-		w.open("ul", "class", "aid-notes")
-		for _, n := range res.Notes {
-			w.elem("li", n)
-		}
-		w.close("ul")
-	}
+	aidNotes(&w, res.Notes)
 
 	qs := map[string]api.QuantitySpread{}
 	var shown []api.QuantitySpread
@@ -611,13 +605,7 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 		w.close("table")
 		w.close("div")
 	}
-	if len(res.Notes) > 0 {
-		w.open("ul", "class", "aid-notes")
-		for _, n := range res.Notes {
-			w.elem("li", n)
-		}
-		w.close("ul")
-	}
+	aidNotes(&w, res.Notes)
 	w.close("div")
 	return w.String()
 }
@@ -729,13 +717,7 @@ func SensitivityPanel(res *api.SensitivityResult, id string) string {
 		w.close("div")
 		w.close("section")
 	}
-	if len(res.Notes) > 0 {
-		w.open("ul", "class", "aid-notes")
-		for _, n := range res.Notes {
-			w.elem("li", n)
-		}
-		w.close("ul")
-	}
+	aidNotes(&w, res.Notes)
 	w.close("div")
 	return w.String()
 }
@@ -758,4 +740,16 @@ func sensText(x *float64) string {
 		return "≈ 0"
 	}
 	return plainN(*x, 4)
+}
+
+// aidNotes lists an aid's notes, if it has any.
+func aidNotes(w *writer, notes []string) {
+	if len(notes) == 0 {
+		return
+	}
+	w.open("ul", "class", "aid-notes")
+	for _, n := range notes {
+		w.elem("li", n)
+	}
+	w.close("ul")
 }
