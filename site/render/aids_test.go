@@ -3,7 +3,6 @@ package render
 import (
 	"encoding/json"
 	"encoding/xml"
-	"io"
 	"reflect"
 	"strconv"
 	"strings"
@@ -39,32 +38,7 @@ func parseLoose(t *testing.T, html string) []*element {
 	d.Strict = false
 	d.AutoClose = xml.HTMLAutoClose
 	d.Entity = xml.HTMLEntity
-	var all, stack []*element
-	for {
-		tok, err := d.Token()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			t.Fatalf("form is not well-formed: %v", err)
-		}
-		switch tok := tok.(type) {
-		case xml.StartElement:
-			e := &element{name: tok.Name.Local, attrs: map[string]string{}}
-			for _, a := range tok.Attr {
-				e.attrs[a.Name.Local] = a.Value
-			}
-			all = append(all, e)
-			stack = append(stack, e)
-		case xml.EndElement:
-			stack = stack[:len(stack)-1]
-		case xml.CharData:
-			for _, e := range stack {
-				e.text += string(tok)
-			}
-		}
-	}
-	return all
+	return elements(t, d)
 }
 
 // analyzeTolerance is the engine's one-shot answer to a tolerance key.

@@ -92,6 +92,13 @@ func parse(t *testing.T, html string) []*element {
 	d := xml.NewDecoder(strings.NewReader(html))
 	d.Strict = true
 	d.Entity = map[string]string{}
+	return elements(t, d)
+}
+
+// elements reads every element of d in document order, each with the text
+// it contains.
+func elements(t *testing.T, d *xml.Decoder) []*element {
+	t.Helper()
 	var all, stack []*element
 	for {
 		tok, err := d.Token()
@@ -99,7 +106,7 @@ func parse(t *testing.T, html string) []*element {
 			break
 		}
 		if err != nil {
-			t.Fatalf("panel is not well-formed: %v", err)
+			t.Fatalf("not well-formed: %v", err)
 		}
 		switch tok := tok.(type) {
 		case xml.StartElement:
