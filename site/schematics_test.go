@@ -8,7 +8,7 @@ import (
 	"testing"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 var svgTextRE = regexp.MustCompile(`<text [^>]*class="(label|node|port)"[^>]*>([^<]*)</text>`)
@@ -27,7 +27,7 @@ func TestSchematicsMatchCircuits(t *testing.T) {
 			params := map[string]string{}
 			for _, p := range e.Params {
 				if p.Optional && strings.TrimSpace(p.Default) == "" {
-					params[p.Name] = render.Syntax(math.Sqrt(math.Max(p.Min, 1e-15) * p.Max))
+					params[p.Name] = calc.Syntax(math.Sqrt(math.Max(p.Min, 1e-15) * p.Max))
 				}
 			}
 			resp, err := api.Analyze(api.Request{Topology: e.ID, Params: params, Frequency: e.Frequency})

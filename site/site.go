@@ -23,9 +23,9 @@ import (
 	"github.com/yuin/goldmark/text"
 
 	"zport/engine/api"
+	"zport/site/calc"
 	"zport/site/examples"
 	"zport/site/plot"
-	"zport/site/render"
 )
 
 // Sources holds the site as it is edited: content/ (Markdown, one file per
@@ -137,7 +137,8 @@ type pageData struct {
 	Name, Title string
 	Body        template.HTML
 	CSP         string
-	Engine      bool // the page holds a calculator and loads the engine
+	Engine      bool // the page holds a calculator or the editor and loads the engine and aids.js
+	Calculator  bool // the page holds a stage calculator and loads calculator.js
 	Editor      bool // the page holds the circuit editor and loads circuit.js
 	Hover       bool // plothover.js is part of the site
 	Single      bool
@@ -155,7 +156,7 @@ func newBuilder(opt Options) (*builder, error) {
 	b := &builder{src: src, catalog: api.Catalog()}
 	for _, e := range b.catalog {
 		for _, p := range e.Params {
-			for _, k := range render.ReservedKeys {
+			for _, k := range calc.ReservedKeys {
 				if p.Name == k {
 					return nil, fmt.Errorf("topology %s: parameter %q collides with the URL fragment's own key", e.ID, k)
 				}
@@ -183,11 +184,11 @@ func newBuilder(opt Options) (*builder, error) {
 			extension.Table,
 			&Blocks{
 				Catalog:   b.catalog,
-				Compute:   render.Compute,
+				Compute:   calc.Compute,
 				Schematic: b.schematic,
 				Templates: tmpl,
 			},
-			&Editor{Examples: examples.All(), Compute: render.Compute, Templates: tmpl},
+			&Editor{Examples: examples.All(), Compute: calc.Compute, Templates: tmpl},
 		),
 		goldmark.WithParserOptions(parser.WithAutoHeadingID()),
 	)
@@ -266,10 +267,11 @@ func (b *builder) schematic(id string) (template.HTML, bool) {
 
 // converted is one page's HTML body and facts about it.
 type converted struct {
-	Title  string
-	Body   template.HTML
-	Engine bool
-	Editor bool
+	Title      string
+	Body       template.HTML
+	Engine     bool
+	Calculator bool
+	Editor     bool
 }
 
 func (b *builder) convert(p pageSrc, single bool) (converted, error) {
@@ -286,7 +288,7 @@ func (b *builder) convert(p pageSrc, single bool) (converted, error) {
 				c.Title = plainText(n, p.Source)
 			}
 		case *Calculator:
-			c.Engine = true
+			c.Engine, c.Calculator = true, true
 		case *CircuitEditor:
 			c.Engine, c.Editor = true, true
 		}
@@ -372,7 +374,7 @@ func Build(opt Options) (Files, error) {
 	}
 	for _, p := range b.pages {
 		c := conv[p.Name]
-		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, CSP: CSP, Engine: c.Engine, Editor: c.Editor, Hover: b.hover, Home: PageLink("index", false)}
+		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, CSP: CSP, Engine: c.Engine, Calculator: c.Calculator, Editor: c.Editor, Hover: b.hover, Home: PageLink("index", false)}
 		d.Nav, d.Stages, d.Prev, d.Next = b.nav(p.Name, titles, false)
 		var out bytes.Buffer
 		if err := b.tmpl.ExecuteTemplate(&out, "page", d); err != nil {
@@ -433,14 +435,14 @@ func Single(opt Options) ([]byte, error) {
 		scripts = append(scripts, h)
 	}
 	scripts = append(scripts, zjs)
-	// aids.js, the design-aid sections, follows zport.js as in page.html.
-	if ajs, err := fs.ReadFile(b.src, "assets/aids.js"); err == nil {
-		scripts = append(scripts, ajs)
-	}
-	// circuit.js, the custom page's script, runs after zport.js, whose
-	// helpers it uses (as in the multi-file site).
-	if cjs, err := fs.ReadFile(b.src, "assets/circuit.js"); err == nil {
-		scripts = append(scripts, cjs)
+	// The page scripts follow zport.js, whose helpers they use, in the
+	// order of page.html.
+	for _, name := range []string{"calculator.js", "circuit.js", "aids.js"} {
+		js, err := fs.ReadFile(b.src, "assets/"+name)
+		if err != nil {
+			return nil, err
+		}
+		scripts = append(scripts, js)
 	}
 
 	var style, inline strings.Builder
@@ -478,7 +480,7 @@ func Single(opt Options) ([]byte, error) {
 	var sections []pageData
 	for _, p := range b.pages {
 		c := conv[p.Name]
-		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, Engine: c.Engine, Editor: c.Editor, Single: true, Hover: b.hover, Home: PageLink("index", true)}
+		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, Engine: c.Engine, Calculator: c.Calculator, Editor: c.Editor, Single: true, Hover: b.hover, Home: PageLink("index", true)}
 		d.Nav, d.Stages, d.Prev, d.Next = b.nav(p.Name, titles, true)
 		sections = append(sections, d)
 	}

@@ -8,7 +8,7 @@ import (
 	"syscall/js"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 func main() {
@@ -27,42 +27,23 @@ func register(global js.Value, exit func()) (release func()) {
 		funcs = append(funcs, fn)
 		obj.Set(name, fn)
 	}
-	add("analyze", guard(func(args []js.Value) string {
-		in, err := oneString(args)
-		if err != nil {
-			return errorJSON(err.Error())
-		}
-		out, _ := api.AnalyzeJSON([]byte(in))
-		return string(out)
-	}))
-	add("catalog", guard(func(args []js.Value) string {
-		if len(args) != 0 {
-			return errorJSON("zport.catalog takes no arguments")
-		}
-		b, err := json.Marshal(api.Catalog())
-		if err != nil {
-			return errorJSON("internal error: " + err.Error())
-		}
-		return string(b)
-	}))
 	add("circuit", guard(func(args []js.Value) string {
 		in, err := oneString(args)
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		return string(render.ComputeCircuitJSON([]byte(in)))
+		return string(calc.ComputeCircuitJSON([]byte(in)))
 	}))
 	add("panel", guard(func(args []js.Value) string {
 		in, err := oneString(args)
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		return string(render.ComputeJSON([]byte(in)))
+		return string(calc.ComputeJSON([]byte(in)))
 	}))
 	for name, fn := range map[string]func([]byte) []byte{
-		"aidsForm":   render.AidsFormJSON,
-		"aidsPanels": render.AidsPanelsJSON,
-		"aidsStudy":  render.StudyJSON,
+		"aidsForm":   calc.AidsFormJSON,
+		"aidsPanels": calc.AidsPanelsJSON,
 	} {
 		add(name, guard(func(args []js.Value) string {
 			in, err := oneString(args)
@@ -78,7 +59,7 @@ func register(global js.Value, exit func()) (release func()) {
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		run, id, errJSON := render.StartToleranceJSON([]byte(in))
+		run, id, errJSON := calc.StartToleranceJSON([]byte(in))
 		if run == nil {
 			return string(errJSON)
 		}
@@ -98,19 +79,12 @@ func register(global js.Value, exit func()) (release func()) {
 		done, total := r.run.Step(n)
 		return fmt.Sprintf(`{"done":%d,"total":%d}`, done, total)
 	}))
-	add("toleranceResult", guard(func(args []js.Value) string {
-		r, err := runs.get(args)
-		if err != nil {
-			return errorJSON(err.Error())
-		}
-		return string(r.run.ResultJSON())
-	}))
 	add("tolerancePanel", guard(func(args []js.Value) string {
 		r, err := runs.get(args)
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		return string(render.EncodeAids(render.ToleranceOutput(r.run, r.panelID)))
+		return string(calc.EncodeAids(calc.ToleranceOutput(r.run, r.panelID)))
 	}))
 	add("toleranceRelease", guard(func(args []js.Value) string {
 		if _, err := runs.get(args); err != nil {

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
+
+	"zport/engine/numeric"
 )
 
 // MaxFullCorners is the largest number of spreads whose every combination
@@ -80,7 +82,7 @@ func (c *corners) choose() error {
 		for q, qu := range mc.qs {
 			d := hi[q] - lo[q]
 			if qu.angular() {
-				d = wrap180(d)
+				d = numeric.Wrap180(d)
 			}
 			delta[q][j] = d
 		}

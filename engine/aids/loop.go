@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/floats"
 
 	"zport/engine/feedback"
+	"zport/engine/numeric"
 )
 
 // loop finds the governing phase margin of each variant of a circuit.
@@ -66,7 +67,7 @@ func newLoop(a *feedback.Analyzer, grid []float64) (*loop, feedback.MarginResult
 		k := crossing{fc: c.F, phase: c.PhaseMargin - 180}
 		tp, errp := a.ReturnRatio(c.F * math.Exp(d))
 		tm, errm := a.ReturnRatio(c.F * math.Exp(-d))
-		if errp == nil && errm == nil && finite(tp) && finite(tm) && tp != 0 && tm != 0 {
+		if errp == nil && errm == nil && numeric.Finite(tp) && numeric.Finite(tm) && tp != 0 && tm != 0 {
 			k.slope = (math.Log(cmplx.Abs(tp)) - math.Log(cmplx.Abs(tm))) / (2 * d)
 		}
 		if k.slope == 0 || math.IsNaN(k.slope) {
@@ -135,7 +136,7 @@ func (l *loop) sweep(a *feedback.Analyzer) (pm, fc float64) {
 func secant(a *feedback.Analyzer, c crossing) (pm, fc float64, ok bool) {
 	g := func(x float64) (complex128, float64, bool) {
 		t, err := a.ReturnRatio(math.Exp(x))
-		if err != nil || !finite(t) || t == 0 {
+		if err != nil || !numeric.Finite(t) || t == 0 {
 			return 0, 0, false
 		}
 		return t, math.Log(cmplx.Abs(t)), true
@@ -173,5 +174,5 @@ func secant(a *feedback.Analyzer, c crossing) (pm, fc float64, ok bool) {
 // nearest ref, the nominal crossover's unwrapped phase — the convention of
 // feedback.Margins, which unwraps from the lowest frequency.
 func pmOf(t complex128, ref float64) float64 {
-	return 180 + ref + wrap180(cmplx.Phase(t)*180/math.Pi-ref)
+	return 180 + ref + numeric.Wrap180(cmplx.Phase(t)*180/math.Pi-ref)
 }

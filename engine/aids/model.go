@@ -7,6 +7,7 @@ import (
 
 	"zport/engine/circuit"
 	"zport/engine/feedback"
+	"zport/engine/numeric"
 	"zport/engine/topology"
 )
 
@@ -398,13 +399,11 @@ func (e *evaluator) eval(x []float64, dst *Sample) error {
 func newSample(ports int) Sample { return Sample{Z: make([]complex128, ports)} }
 
 func finiteOr(a, b complex128) complex128 {
-	if finite(a) {
+	if numeric.Finite(a) {
 		return a
 	}
-	if finite(b) {
+	if numeric.Finite(b) {
 		return b
 	}
 	return cmplx.NaN()
 }
-
-func finite(z complex128) bool { return !cmplx.IsNaN(z) && !cmplx.IsInf(z) }

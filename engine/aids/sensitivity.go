@@ -6,6 +6,8 @@ import (
 	"math"
 	"math/cmplx"
 	"slices"
+
+	"zport/engine/numeric"
 )
 
 // DefaultStep is the step h in ln p of the sensitivity differences.
@@ -106,7 +108,7 @@ func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, er
 	diff := func(t target, plus, minus *Sample, k float64) complex128 {
 		a, b := read(t, plus), read(t, minus)
 		if t.kind == PhaseMargin {
-			return complex(wrap180(real(a)-real(b))/(2*k), 0)
+			return complex(numeric.Wrap180(real(a)-real(b))/(2*k), 0)
 		}
 		if a == 0 || b == 0 {
 			return cmplx.NaN()
@@ -147,7 +149,7 @@ func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, er
 			r2h := (4*d[1] - d[0]) / 3
 			e := SensitivityEntry{Param: j, Name: p.Name, Mag: real(rh), Phase: imag(rh),
 				MagErr: math.Abs(real(rh) - real(r2h)), PhaseErr: math.Abs(imag(rh) - imag(r2h))}
-			if !ok || !finite(rh) || !finite(r2h) {
+			if !ok || !numeric.Finite(rh) || !numeric.Finite(r2h) {
 				nan := math.NaN()
 				e.Mag, e.Phase, e.MagErr, e.PhaseErr = nan, nan, nan, nan
 			}

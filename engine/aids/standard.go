@@ -7,6 +7,7 @@ import (
 
 	"zport/engine/circuit"
 	"zport/engine/eseries"
+	"zport/engine/numeric"
 )
 
 // RatioPair is two parameters whose quotient Num/Den sets what a stage
@@ -70,7 +71,7 @@ type Compare struct {
 
 func compare(nom, snap complex128) Compare {
 	c := Compare{Nominal: nom, Snapped: snap, MagErr: math.NaN(), PhaseDiff: math.NaN()}
-	if finite(nom) && finite(snap) && nom != 0 {
+	if numeric.Finite(nom) && numeric.Finite(snap) && nom != 0 {
 		c.MagErr = cmplx.Abs(snap)/cmplx.Abs(nom) - 1
 		if snap != 0 {
 			c.PhaseDiff = cmplx.Phase(snap/nom) * 180 / math.Pi

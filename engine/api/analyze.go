@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"math/cmplx"
 
 	"strings"
 
@@ -13,6 +12,7 @@ import (
 
 	"zport/engine/circuit"
 	"zport/engine/feedback"
+	"zport/engine/numeric"
 	"zport/engine/topology"
 )
 
@@ -288,7 +288,7 @@ func (p *Prepared) Run() (*Response, error) {
 			resp.Notes = append(resp.Notes, n)
 		}
 	}
-	if err := p.runAids(resp); err != nil {
+	if err := p.runAnalyses(resp); err != nil {
 		return nil, err
 	}
 	if p.Stage != nil {
@@ -330,7 +330,7 @@ func sweepResult(grid []float64, pts []feedback.Point) *SweepResult {
 	}
 	arena := make([]Complex, 0, n*per)
 	c := func(z complex128) *Complex {
-		if !finite(z) {
+		if !numeric.Finite(z) {
 			return nil
 		}
 		arena = append(arena, Complex{real(z), imag(z)})
@@ -357,8 +357,6 @@ func sweepResult(grid []float64, pts []feedback.Point) *SweepResult {
 	}
 	return s
 }
-
-func finite(z complex128) bool { return !cmplx.IsNaN(z) && !cmplx.IsInf(z) }
 
 // fillSweepNames copies the port names of the spot result into the sweep.
 func (r *Response) fillSweepNames() {
@@ -432,7 +430,12 @@ func AnalyzeJSON(in []byte) (out []byte, ok bool) {
 	dec := json.NewDecoder(strings.NewReader(string(in)))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&req); err != nil {
-		out, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: "request is not valid JSON for this contract: " + err.Error()}})
+		body := ErrorBody{Message: "request is not valid JSON for this contract: " + err.Error()}
+		var p *Problem
+		if errors.As(err, &p) {
+			body = Body(err)
+		}
+		out, _ = json.Marshal(ErrorResponse{Error: body})
 		return out, false
 	}
 	resp, err := Analyze(req)

@@ -1,7 +1,6 @@
 package api
 
 import (
-	"encoding/json"
 	"math"
 	"math/cmplx"
 )
@@ -29,10 +28,9 @@ type Request struct {
 	// Sweep asks for the same quantities on a log-spaced grid.
 	Sweep *SweepSpec `json:"sweep,omitempty"`
 
-	// Design aids (see the DEVELOPERS.md contract section).
-	Tolerance      json.RawMessage `json:"tolerance,omitempty"`
-	StandardValues json.RawMessage `json:"standardValues,omitempty"`
-	Sensitivity    json.RawMessage `json:"sensitivity,omitempty"`
+	// analyses holds the options of every registered analysis asked for
+	// (the design aids, …), by key; see Analysis.
+	analyses map[string]any
 }
 
 // GainSpec names the input source and the output of a gain.
@@ -97,9 +95,9 @@ type Response struct {
 	Margins   *Margins      `json:"margins,omitempty"`
 	Topology  *TopologyEcho `json:"topology,omitempty"`
 
-	Tolerance      any `json:"tolerance,omitempty"`
-	StandardValues any `json:"standardValues,omitempty"`
-	Sensitivity    any `json:"sensitivity,omitempty"`
+	// analyses holds the answer of every registered analysis asked for,
+	// by key; see Analysis.
+	analyses map[string]any
 }
 
 // PortResult holds Blackman's terms for one port at one frequency.

@@ -7,7 +7,7 @@
 // escaped) by the engine in Go.
 //
 // On every edit, once per animation frame at most (never queued), one
-// engine call (zport.circuit, render.ComputeCircuit) parses the text once,
+// engine call (zport.circuit, calc.ComputeCircuit) parses the text once,
 // lists what it offers the pickers or every error with its line and
 // column, fits the pickers' choices to the text, and analyzes and renders
 // the panel. Errors are marked in the gutter at their line, underlined at
@@ -24,9 +24,12 @@
 // and "zport-recompute").
 //
 // URL fragment: c=<the text, deflate-raw, base64url> followed by the
-// settings the engine writes (render.Form.CircuitState), e.g.
+// settings the engine writes (calc.Form.CircuitState), e.g.
 //   #c=…&ref=U1&port=out&src=Vin&out=out&f=100k&from=10&to=100M&points=400
 // The same encoding is used by the stage pages' "open as circuit" links.
+//
+// The design aids (aids.js) follow the editor through the same events as
+// a stage calculator's: zport:computed, zport:link and zport:settings.
 (function () {
   'use strict';
 
@@ -34,7 +37,6 @@
   var el = document.querySelector('[data-circuit-editor]');
   if (!site || !el) return;
 
-  var engine = null;
   var MAX_URL = Number(el.getAttribute('data-max-url')) || 2000;
   var MAX_TEXT = Number(el.getAttribute('data-max-text')) || 262144;
   var MAX_LISTED = 60; // errors listed and marked (the parser stops after 50)
@@ -94,8 +96,9 @@
     this.preset = null; // an example's settings, for the next recompute
     this.fresh = false; // the text came from a link or a file
     this.saved = null; // the user's own text, kept when an example replaced it
-    this.lastHash = null;
     this.linkSeq = 0;
+    this.seq = 0; // the latest recompute; an older answer is dropped
+    this.outside = {}; // analyses' settings kept outside the form (aids.js)
     this.bootSeq = 0;
     this.metrics = null;
     this.wire();
@@ -182,6 +185,11 @@
     var saves = el.querySelectorAll('[data-action="save-file"]');
     for (var i = 0; i < saves.length; i++) saves[i].addEventListener('click', function () { self.saveText(); });
     this.fileInput.addEventListener('change', function () { self.openFile(); });
+    el.addEventListener('zport:settings', function (e) {
+      if (!e.detail || !e.detail.key) return;
+      self.outside[e.detail.key] = e.detail.values || {};
+      self.schedule();
+    });
     hashWatch(this);
   };
 
@@ -395,7 +403,7 @@
   };
 
   // offered is what the pickers show, for the engine to tell what an edit
-  // added (render.Offered).
+  // added (calc.Offered).
   Editor.prototype.offered = function () {
     var refs = [], ports = [];
     for (var i = 0; i < this.refSel.options.length; i++) if (this.refSel.options[i].value) refs.push(this.refSel.options[i].value);
@@ -470,7 +478,7 @@
     return input ? input.value : '';
   };
 
-  // values is the form as the engine's render.Form.
+  // values is the form as the engine's calc.Form.
   Editor.prototype.values = function () {
     var ports = [];
     var boxes = this.portBoxes();
@@ -482,6 +490,7 @@
       ports: ports,
       frequency: this.field('frequency'),
       sweep: { from: this.field('sweep.from'), to: this.field('sweep.to'), points: this.field('sweep.points') },
+      settings: Object.assign(site.settings(this.form), this.outside),
       id: this.id
     };
     if (this.srcSel.value) {
@@ -494,40 +503,21 @@
 
   // ---- the engine ----
 
-  // analyze is one edit (zport.circuit, render.ComputeCircuit): the text
-  // inspected once, the choices fitted to it, and the panel.
+  // analyze is one edit (zport.circuit, calc.ComputeCircuit): the text
+  // inspected once, the choices fitted to it, and the panel. A promise.
   Editor.prototype.analyze = function (req) {
-    var t0 = performance.now();
-    var raw = engine.circuit(JSON.stringify(req));
-    performance.measure('zport-engine-call', { start: t0, end: performance.now() });
-    var res;
-    try {
-      res = JSON.parse(raw);
-    } catch (e) {
-      res = { error: { message: 'the engine gave an unreadable answer' } };
-    }
-    if (!res.inspection) {
-      // The bridge itself refused (an error object): show it as a problem.
-      var err = res.error || { message: 'the engine gave no answer' };
-      res = { inspection: { references: [], sources: [], ports: [], nodes: [], errors: [{ line: 0, column: 0, message: err.message }] } };
-    }
-    return res;
-  };
-
-  // call is one panel request (zport.panel), for the CSV.
-  Editor.prototype.call = function (extra, base) {
-    var req = Object.assign({}, base);
-    for (var k in extra) req[k] = extra[k];
-    var text = engine.panel(JSON.stringify(req));
-    try {
-      return JSON.parse(text);
-    } catch (e) {
-      return { error: { message: 'the engine gave an unreadable answer' } };
-    }
+    return site.call('circuit', req).then(function (res) {
+      if (!res.inspection) {
+        // The bridge itself refused (an error object): show it as a problem.
+        var err = res.error || { message: 'the engine gave no answer' };
+        res = { inspection: { references: [], sources: [], ports: [], nodes: [], errors: [{ line: 0, column: 0, message: err.message }] } };
+      }
+      return res;
+    });
   };
 
   Editor.prototype.schedule = function () {
-    if (!engine || this.scheduled) return; // one pending update at most
+    if (!site.ready() || this.scheduled) return; // one pending update at most
     this.scheduled = true;
     var self = this;
     var run = function () {
@@ -543,8 +533,9 @@
   };
 
   // recompute analyzes the text with the pickers' choices (or an
-  // example's, or a link's) and shows the answer. It returns the engine's
-  // output, or null when the text itself has problems.
+  // example's, or a link's) and shows the answer. It returns a promise of
+  // the engine's output, or of null when the text itself has problems or
+  // a newer recompute has superseded this one.
   Editor.prototype.recompute = function (address, fragment) {
     var t0 = performance.now();
     // For tests and the benchmark: how many recomputes have run.
@@ -571,8 +562,16 @@
     req.budget = this.full ? 0 : BUDGET_MS;
     this.full = false;
     if (typeof fragment === 'string') req.fragment = fragment;
+    var seq = ++this.seq;
+    var self = this;
+    return this.analyze(req).then(function (res) {
+      if (seq !== self.seq) return null;
+      return self.show(res, req, t0, address, fragment);
+    });
+  };
 
-    var res = this.analyze(req);
+  // show puts one answer of the engine on the page.
+  Editor.prototype.show = function (res, req, t0, address, fragment) {
     var ins = res.inspection;
     var done = function (self, out) {
       self.lastCost = performance.now() - t0;
@@ -593,9 +592,7 @@
       this.setStale(true);
       return done(this, out);
     }
-    var tpl = document.createElement('template');
-    tpl.innerHTML = out.html; // rendered and escaped by the engine (Go)
-    this.results.replaceChildren(tpl.content);
+    site.insert(this.results, out.html); // rendered and escaped by the engine (Go)
     this.last = out;
     this.lastText = req.circuit; // the engine does not echo the text back
     this.setStale(false);
@@ -603,6 +600,9 @@
     site.hover(this.results);
     this.writeState(out.state, address);
     site.recomputed(this.results, t0);
+    // aids.js follows the editor; its form carries the text again.
+    var form = Object.assign({}, out.form, { circuit: req.circuit });
+    el.dispatchEvent(new CustomEvent('zport:computed', { detail: Object.assign({}, out, { form: form }) }));
     return done(this, out);
   };
 
@@ -627,10 +627,7 @@
   };
 
   Editor.prototype.clearMessages = function () {
-    var msgs = this.form.querySelectorAll('[data-role="msg"]');
-    for (var i = 0; i < msgs.length; i++) msgs[i].textContent = '';
-    var bad = this.form.querySelectorAll('[aria-invalid]');
-    for (var j = 0; j < bad.length; j++) bad[j].removeAttribute('aria-invalid');
+    site.clearFieldErrors(this.form);
     this.notice.hidden = true;
     this.notice.textContent = '';
   };
@@ -639,9 +636,9 @@
   // list of problems.
   Editor.prototype.showError = function (err) {
     var p = err.param || '';
+    if (site.showFieldError(this.form, err)) return;
     var input = null;
-    if (p === 'frequency' || p.indexOf('sweep.') === 0) input = this.form.querySelector('input[name="' + p + '"]');
-    else if (p === 'reference') input = this.refSel;
+    if (p === 'reference') input = this.refSel;
     else if (p.indexOf('ports') === 0) input = this.portBox;
     else if (p === 'gain.source' || p === 'gain.output') input = p === 'gain.source' ? this.srcSel : this.outSel;
     var box = input && input.closest('[data-field]');
@@ -684,14 +681,7 @@
       } else {
         self.linkNotice.hidden = true;
       }
-      if (address && shown() && location.hash !== h) {
-        self.lastHash = h;
-        try {
-          history.replaceState(null, '', h);
-        } catch (e) {
-          // Some browsers refuse history changes on file://; the link still works.
-        }
-      }
+      if (address && shown()) site.address(h, address === 'now');
     }, function () { /* no CompressionStream: the link stays as it was */ });
   };
 
@@ -700,7 +690,7 @@
   // a fragment pasted into the address bar).
   function hashWatch(ed) {
     window.addEventListener('hashchange', function () {
-      if (!engine || location.hash === ed.lastHash || !shown()) return;
+      if (!site.ready() || site.ownHash() || !shown()) return;
       if (/(^|&)c=/.test(site.fragment())) ed.boot();
     });
   }
@@ -729,7 +719,6 @@
         self.setText(text);
         self.fresh = true;
         self.markExample(true);
-        self.lastHash = location.hash;
         return parts.rest;
       }, function (err) {
         self.pendingNotice = 'The circuit in this link was not used (' + err.message + '). Showing the example instead.';
@@ -739,29 +728,35 @@
       ready = Promise.resolve(frag ? parts.rest : null);
     }
     ready.then(function (rest) {
-      site.onEngine(function (z) {
+      site.onEngine(function () {
         if (seq !== self.bootSeq) return;
-        engine = z;
         self.start(rest);
       });
     });
   };
 
   Editor.prototype.start = function (rest) {
-    var out;
-    if (typeof rest === 'string') {
-      out = this.recompute(true, rest);
-      if (out && out.error) {
-        this.pendingNotice = 'The settings in this link were not used (' + (out.error.param ? out.error.param + ': ' : '') +
+    var self = this;
+    var linked = typeof rest === 'string';
+    // A link's address is rewritten at once (a refused setting must not
+    // stay there); the user's edits, once they pause.
+    var done = this.recompute(linked ? 'now' : false, linked ? rest : undefined).then(function (out) {
+      if (linked && out && out.error) {
+        self.pendingNotice = 'The settings in this link were not used (' + (out.error.param ? out.error.param + ': ' : '') +
           out.error.message + '). Showing the circuit with its own choices instead.';
-        this.recompute(true);
+        return self.recompute('now');
       }
-    } else {
-      this.recompute(false);
-    }
-    var buttons = el.querySelectorAll('button[data-action]');
-    for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
-    el.setAttribute('data-live', 'true'); // the editor follows the engine from now on
+      if (linked && out && out.form) {
+        var form = Object.assign({}, out.form, { circuit: self.ta.value });
+        el.dispatchEvent(new CustomEvent('zport:link', { detail: form }));
+      }
+      return out;
+    });
+    done.then(function () {
+      var buttons = el.querySelectorAll('button[data-action]');
+      for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
+      el.setAttribute('data-live', 'true'); // the editor follows the engine from now on
+    });
   };
 
   // ---- examples, files ----
@@ -873,15 +868,18 @@
   };
 
   Editor.prototype.download = function () {
-    if (!this.last || !engine) return;
-    var out = this.call({ csv: true, circuit: this.lastText }, this.last.form);
-    if (out.error || !out.csv) {
-      this.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));
-      return;
-    }
-    var name = 'zport-' + (this.exampleSel.value || 'circuit') + '.csv';
-    site.saveFile(name, 'text/csv;charset=utf-8', out.csv);
-    this.say('CSV of the sweep saved as ' + name + '.');
+    if (!this.last || !site.ready()) return;
+    var self = this;
+    var req = Object.assign({}, this.last.form, { csv: true, circuit: this.lastText });
+    site.call('panel', req).then(function (out) {
+      if (out.error || !out.csv) {
+        self.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));
+        return;
+      }
+      var name = 'zport-' + (self.exampleSel.value || 'circuit') + '.csv';
+      site.saveFile(name, 'text/csv;charset=utf-8', out.csv);
+      self.say('CSV of the sweep saved as ' + name + '.');
+    });
   };
 
   new Editor().boot();

@@ -17,7 +17,7 @@ import (
 
 	"zport/engine/api"
 	"zport/engine/value"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // What a live calculator shows is held to the native engine: the same
@@ -47,8 +47,8 @@ func inputs(t *testing.T, ctx context.Context, id string) map[string]string {
 
 // form turns a calculator's inputs into the form the page sends the
 // engine.
-func form(id string, in map[string]string) render.Form {
-	f := render.Form{Topology: id, Params: map[string]string{}, ID: "calc-" + id}
+func form(id string, in map[string]string) calc.Form {
+	f := calc.Form{Topology: id, Params: map[string]string{}, ID: "calc-" + id}
 	for k, v := range in {
 		switch {
 		case k == "frequency":

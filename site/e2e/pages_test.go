@@ -7,7 +7,7 @@ import (
 	"testing"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // Every topology page of the catalog, opened from file://, goes live and
@@ -36,7 +36,7 @@ func checkTopologyPages(t *testing.T, ctx context.Context, url func(id string) s
 			// The inputs show the catalog's defaults, so the comparison
 			// below is with the defaults' analysis.
 			in := inputs(t, ctx, e.ID)
-			d := render.DefaultForm(e)
+			d := calc.DefaultForm(e)
 			for _, p := range e.Params {
 				if in[p.Name] != d.Params[p.Name] {
 					t.Errorf("input %s = %q, the catalog's default is %q", p.Name, in[p.Name], d.Params[p.Name])

@@ -11,7 +11,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // loadFresh opens u as a new document even when the tab already shows the
@@ -79,7 +79,7 @@ func TestShareLinkRoundTrips(t *testing.T) {
 	// A link followed on a page already open (only the fragment changes)
 	// loads its settings too.
 	e, _ := api.LookupEntry(id)
-	f := render.DefaultForm(e)
+	f := calc.DefaultForm(e)
 	f.Params["R1"] = "22k"
 	f.Frequency = "3k3"
 	next := "#" + f.State(e)
@@ -136,13 +136,13 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 	ctx := start(t)
 	const id = "inverting"
 	e, _ := api.LookupEntry(id)
-	defaults := "#" + render.DefaultForm(e).State(e)
+	defaults := "#" + calc.DefaultForm(e).State(e)
 	load(t, ctx, fileURL(id, ""))
 	scripts := eval[int](t, ctx, `document.scripts.length`)
 
 	check := func(t *testing.T, frag string) {
 		t.Helper()
-		msg := render.Compute(render.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
+		msg := calc.Compute(calc.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
 		if msg.Error == nil {
 			t.Fatalf("the native engine accepts the fragment %.80q", frag)
 		}
@@ -207,7 +207,7 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 
 // defaultInputs is what a calculator's inputs hold at the catalog defaults.
 func defaultInputs(e api.CatalogEntry) map[string]string {
-	d := render.DefaultForm(e)
+	d := calc.DefaultForm(e)
 	m := map[string]string{"frequency": d.Frequency, "sweep.from": d.Sweep.From, "sweep.to": d.Sweep.To, "sweep.points": d.Sweep.Points}
 	for k, v := range d.Params {
 		m[k] = v

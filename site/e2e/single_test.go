@@ -13,7 +13,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // singleURL is the file:// URL of the single-file export, with an
@@ -104,7 +104,7 @@ func TestSingleFileExport(t *testing.T) {
 
 	// A link to a section with settings opens them.
 	e := mustEntry(t, "transimpedance")
-	f := render.DefaultForm(e)
+	f := calc.DefaultForm(e)
 	f.Params["Rf"] = "470k"
 	f.Frequency = "20k"
 	loadFresh(t, ctx, singleURL("p=transimpedance&"+f.State(e)))

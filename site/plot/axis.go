@@ -96,8 +96,6 @@ func logTicks(lo, hi, pxPerDec, gap float64, unit string) []tick {
 	return ticks
 }
 
-func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
-
 func mod(a, b int) int { return ((a % b) + b) % b }
 
 // niceStep returns the smallest step of the form 1, 2 or 5 × 10^k that

@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 
+	"zport/engine/numeric"
 	"zport/engine/value"
 )
 
@@ -60,7 +61,7 @@ func (h *Histogram) problem() string {
 			return fmt.Sprintf("invalid histogram: edge %d is not above 0 on a log axis", i)
 		}
 	}
-	if !finite(h.Edges[len(h.Edges)-1] - h.Edges[0]) {
+	if !numeric.FiniteReal(h.Edges[len(h.Edges)-1] - h.Edges[0]) {
 		return "invalid histogram: the edges span more than a float64 can hold"
 	}
 	for i, c := range h.Counts {
@@ -102,12 +103,12 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	for _, m := range h.Markers {
 		// A marker widens the range unless that would overflow it.
 		if v := xc(m.Freq); !math.IsNaN(v) {
-			if l, u := min(lo, v), max(hi, v); finite(u - l) {
+			if l, u := min(lo, v), max(hi, v); numeric.FiniteReal(u - l) {
 				lo, hi = l, u
 			}
 		}
 	}
-	if pad := 0.02 * (hi - lo); finite(lo-pad) && finite(hi+pad) {
+	if pad := 0.02 * (hi - lo); numeric.FiniteReal(lo-pad) && numeric.FiniteReal(hi+pad) {
 		lo, hi = lo-pad, hi+pad
 	}
 

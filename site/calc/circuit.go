@@ -1,4 +1,4 @@
-package render
+package calc
 
 import (
 	"encoding/json"
@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"zport/engine/api"
+	"zport/site/fragment"
 )
 
 // Fragment keys of a circuit form (the custom-circuit page). The circuit
@@ -27,92 +28,52 @@ const maxFragmentPorts = 32
 
 // CircuitState writes the settings of a circuit form, everything but the
 // circuit text, as a URL fragment (without "#"): the reference, each port,
-// the gain's source and output, then the spot frequency and the sweep, e.g.
+// the gain's source and output, the spot frequency and the sweep, then the
+// analyses' settings, e.g.
 //
 //	ref=U1&port=out&port=in&src=Vin&out=out&f=100k&from=10&to=100M&points=400
 //
 // The page puts the compressed circuit text in front, under the key c.
 func (f Form) CircuitState() string {
-	var b strings.Builder
-	add := func(k, v string) {
-		if b.Len() > 0 {
-			b.WriteByte('&')
-		}
-		b.WriteString(queryEscape(k))
-		b.WriteByte('=')
-		b.WriteString(queryEscape(v))
-	}
+	var p fragment.Pairs
 	if f.Reference != "" {
-		add(keyReference, f.Reference)
+		p.Add(keyReference, f.Reference)
 	}
-	for _, p := range f.Ports {
-		add(keyPort, p)
+	for _, port := range f.Ports {
+		p.Add(keyPort, port)
 	}
 	if f.Gain != nil && f.Gain.Source != "" {
-		add(keySource, f.Gain.Source)
-		add(keyOutput, f.Gain.Output)
+		p.Add(keySource, f.Gain.Source)
+		p.Add(keyOutput, f.Gain.Output)
 	}
-	add(keyFrequency, f.Frequency)
-	add(keyFrom, f.Sweep.From)
-	add(keyTo, f.Sweep.To)
-	add(keyPoints, f.Sweep.Points)
-	return b.String()
+	f.analysisState(&p)
+	return p.Encode()
 }
 
 // ReadCircuitFragment reads a URL fragment written by CircuitState (with
 // or without "#") over base: settings the fragment leaves out keep base's
 // values; port keys, when present, replace base's ports; src and out come
 // together. Like ReadFragment, it refuses the whole fragment when any part
-// of it is malformed — an unknown or repeated key, bad escaping, an
-// over-long value, control characters — returning base unchanged. The
-// keys p (the single-file export's page) and c (the circuit text, read by
-// the page's script) are skipped.
+// of it is malformed or unknown, returning base unchanged. The keys p (the
+// single-file export's page) and c (the circuit text, read by the page's
+// script) are skipped.
 func ReadCircuitFragment(frag string, base Form) (Form, error) {
-	f := base
-	frag = strings.TrimPrefix(frag, "#")
-	if len(frag) > maxFragment {
-		return base, &FragmentError{"the link's settings are longer than " + strconv.Itoa(maxFragment) + " characters"}
+	pairs, err := fragment.Parse(frag, fragment.Repeatable(keyPort), fragment.Skip(keyCircuit, keyPage))
+	if err != nil {
+		return base, err
 	}
-	seen := map[string]bool{}
+	f := base
+	settings := settingsRead{}
 	var ports []string
 	var src, out *string
-	for _, part := range strings.Split(frag, "&") {
-		if part == "" {
-			continue
-		}
-		rawKey, rawVal, ok := strings.Cut(part, "=")
-		if !ok {
-			return base, &FragmentError{"a setting has no “=”"}
-		}
-		k, err := queryUnescape(rawKey)
-		if err != nil {
-			return base, err
-		}
-		if k == keyCircuit || k == keyPage {
-			continue
-		}
-		v, err := queryUnescape(rawVal)
-		if err != nil {
-			return base, err
-		}
-		if !printable(k) || !printable(v) {
-			return base, &FragmentError{"a setting holds characters that are not allowed"}
-		}
-		if len(k) > maxFragmentValue || len(v) > maxFragmentValue {
-			return base, &FragmentError{"a setting is longer than " + strconv.Itoa(maxFragmentValue) + " characters"}
-		}
-		if k == keyPort {
+	for _, pr := range pairs {
+		k, v := pr.Key, pr.Value
+		switch k {
+		case keyPort:
 			if len(ports) == maxFragmentPorts {
-				return base, &FragmentError{"the link lists more than " + strconv.Itoa(maxFragmentPorts) + " ports"}
+				return base, &fragment.Error{Key: k, Msg: "the link lists more than " + strconv.Itoa(maxFragmentPorts) + " ports"}
 			}
 			ports = append(ports, v)
-			continue
-		}
-		if seen[k] {
-			return base, &FragmentError{"the setting " + strconv.Quote(k) + " appears twice"}
-		}
-		seen[k] = true
-		switch k {
 		case keyReference:
 			f.Reference = v
 		case keySource:
@@ -128,11 +89,13 @@ func ReadCircuitFragment(frag string, base Form) (Form, error) {
 		case keyPoints:
 			f.Sweep.Points = v
 		default:
-			return base, &FragmentError{"unknown setting " + strconv.Quote(k) + " for a circuit"}
+			if !settings.read(k, v) {
+				return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for a circuit"}
+			}
 		}
 	}
 	if (src == nil) != (out == nil) {
-		return base, &FragmentError{"the gain needs both “src” and “out”"}
+		return base, &fragment.Error{Msg: "the gain needs both “src” and “out”"}
 	}
 	if ports != nil {
 		f.Ports = ports
@@ -143,6 +106,7 @@ func ReadCircuitFragment(frag string, base Form) (Form, error) {
 			f.Gain = &api.GainSpec{Source: *src, Output: *out}
 		}
 	}
+	f.Settings = settings.over(base.Settings)
 	return f, nil
 }
 

@@ -1,21 +1,19 @@
-package render
+package calc
 
 import (
-	"encoding/xml"
-	"io"
-	"math"
-	"math/cmplx"
 	"math/rand/v2"
 	"strconv"
 	"strings"
 	"testing"
 
 	"zport/engine/api"
+	"zport/site/fragment"
+	"zport/site/internal/sitetest"
 )
 
 // hostile is text a user could put where a port or part name goes; the
 // panel must show it as text.
-const hostile = `<img src=x onerror=alert(1)>`
+const hostile = sitetest.Hostile
 
 // sample is a response built by hand (values our own, not from any
 // circuit) with every section of the panel present, and hostile names in
@@ -77,61 +75,11 @@ func sample() *api.Response {
 	}
 }
 
-// element is one element of a parsed panel.
-type element struct {
-	name  string
-	attrs map[string]string
-	text  string
-}
-
-// parse reads the panel as XML: the writer closes every element and quotes
-// every attribute, so a panel that is not well-formed XML is a bug. It
-// returns every element in document order.
-func parse(t *testing.T, html string) []*element {
-	t.Helper()
-	d := xml.NewDecoder(strings.NewReader(html))
-	d.Strict = true
-	d.Entity = map[string]string{}
-	return elements(t, d)
-}
-
-// elements reads every element of d in document order, each with the text
-// it contains.
-func elements(t *testing.T, d *xml.Decoder) []*element {
-	t.Helper()
-	var all, stack []*element
-	for {
-		tok, err := d.Token()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			t.Fatalf("not well-formed: %v", err)
-		}
-		switch tok := tok.(type) {
-		case xml.StartElement:
-			e := &element{name: tok.Name.Local, attrs: map[string]string{}}
-			for _, a := range tok.Attr {
-				e.attrs[a.Name.Local] = a.Value
-			}
-			all = append(all, e)
-			stack = append(stack, e)
-		case xml.EndElement:
-			stack = stack[:len(stack)-1]
-		case xml.CharData:
-			for _, e := range stack {
-				e.text += string(tok)
-			}
-		}
-	}
-	return all
-}
-
 func TestPanelEscapesHostileText(t *testing.T) {
 	resp := sample()
 	entry := &api.CatalogEntry{ID: "t", Title: hostile, Ports: []api.PortInfo{{Name: hostile, Title: hostile}},
 		Gain: &api.GainInfo{Title: hostile}}
-	html := Panel(resp, entry, `x"><script>alert(1)</script>`)
+	html := Panel(&Form{ID: `x"><script>alert(1)</script>`}, entry, resp)
 	for _, bad := range []string{"<img", "<script", `onerror=alert(1)>`} {
 		if strings.Contains(html, bad) {
 			t.Errorf("panel contains %q unescaped", bad)
@@ -140,22 +88,22 @@ func TestPanelEscapesHostileText(t *testing.T) {
 	if !strings.Contains(html, "&lt;img src=x onerror=alert(1)&gt;") {
 		t.Errorf("the hostile name is not shown as text")
 	}
-	els := parse(t, html)
+	els := sitetest.Parse(t, html)
 	for _, e := range els {
-		for k := range e.attrs {
+		for k := range e.Attrs {
 			if strings.HasPrefix(k, "on") {
-				t.Errorf("element %s has an event handler attribute %s", e.name, k)
+				t.Errorf("element %s has an event handler attribute %s", e.Name, k)
 			}
 		}
-		if e.name == "img" || e.name == "script" {
-			t.Errorf("panel holds a %s element", e.name)
+		if e.Name == "img" || e.Name == "script" {
+			t.Errorf("panel holds a %s element", e.Name)
 		}
 	}
-	md := Markdown(resp, entry)
+	md := CopyText(&Form{}, entry, resp)
 	if strings.Count(md, "<") != strings.Count(md, `\<`) || !strings.Contains(md, `\<img`) {
 		t.Errorf("Markdown does not escape the hostile name:\n%s", md)
 	}
-	csv := CSV(resp)
+	csv := CSV(&Form{}, entry, resp)
 	head := strings.SplitN(csv, "\r\n", 2)[0]
 	if strings.Count(head, ",") != 1+2*(1+5+5+4)-1 {
 		t.Errorf("CSV header has %d commas outside quotes? header %q", strings.Count(head, ","), head)
@@ -164,11 +112,11 @@ func TestPanelEscapesHostileText(t *testing.T) {
 
 func TestPanelDataAttributes(t *testing.T) {
 	resp := sample()
-	els := parse(t, Panel(resp, nil, "p"))
-	find := func(port, q string) []*element {
-		var out []*element
+	els := sitetest.Parse(t, Panel(&Form{ID: "p"}, nil, resp))
+	find := func(port, q string) []*sitetest.Element {
+		var out []*sitetest.Element
 		for _, e := range els {
-			if e.attrs["data-quantity"] == q && e.attrs["data-port"] == port {
+			if e.Attrs["data-quantity"] == q && e.Attrs["data-port"] == port {
 				out = append(out, e)
 			}
 		}
@@ -181,17 +129,17 @@ func TestPanelDataAttributes(t *testing.T) {
 			t.Errorf("%s: %d elements, want exactly 1", q, len(got))
 			continue
 		}
-		re, err1 := strconv.ParseFloat(got[0].attrs["data-re"], 64)
-		im, err2 := strconv.ParseFloat(got[0].attrs["data-im"], 64)
+		re, err1 := strconv.ParseFloat(got[0].Attrs["data-re"], 64)
+		im, err2 := strconv.ParseFloat(got[0].Attrs["data-im"], 64)
 		if err1 != nil || err2 != nil || re != want.Re || im != want.Im {
-			t.Errorf("%s: data-re/data-im = %q/%q, want %v/%v exactly", q, got[0].attrs["data-re"], got[0].attrs["data-im"], want.Re, want.Im)
+			t.Errorf("%s: data-re/data-im = %q/%q, want %v/%v exactly", q, got[0].Attrs["data-re"], got[0].Attrs["data-im"], want.Re, want.Im)
 		}
 	}
-	if a := find(hostile, "agreement"); len(a) != 1 || a[0].attrs["data-value"] != "2.1e-15" {
+	if a := find(hostile, "agreement"); len(a) != 1 || a[0].Attrs["data-value"] != "2.1e-15" {
 		t.Errorf("agreement element: %v", a)
 	}
 	for _, q := range []string{"z0", "z", "zDirect"} {
-		if got := find("open", q); len(got) != 1 || got[0].attrs["data-null"] != "true" || !strings.Contains(got[0].text, "—") {
+		if got := find("open", q); len(got) != 1 || got[0].Attrs["data-null"] != "true" || !strings.Contains(got[0].Text, "—") {
 			t.Errorf("open port %s: want one null value shown as a dash, got %v", q, got)
 		}
 	}
@@ -200,22 +148,22 @@ func TestPanelDataAttributes(t *testing.T) {
 	}
 	for q, want := range map[string]string{"g0": "0.001", "gInf": "-4.7", "g": "-4.69", "gDirect": "-4.69", "T": "100"} {
 		got := find("", q)
-		if len(got) != 1 || got[0].attrs["data-re"] != want {
+		if len(got) != 1 || got[0].Attrs["data-re"] != want {
 			t.Errorf("%s: want one element with data-re %s, got %v", q, want, got)
 		}
 	}
 	for q, want := range map[string]string{"fc": "186000", "pm": "88.2", "gm": "43.9"} {
 		got := find("", q)
-		if len(got) != 1 || got[0].attrs["data-value"] != want {
+		if len(got) != 1 || got[0].Attrs["data-value"] != want {
 			t.Errorf("%s: want one element with data-value %s, got %v", q, want, got)
 		}
 	}
 	// Hand formulas are marked apart from the engine's values.
 	n := 0
 	for _, e := range els {
-		if e.attrs["data-closed-form"] != "" {
-			if e.attrs["data-quantity"] != "" {
-				t.Errorf("a hand-formula value also carries data-quantity=%s", e.attrs["data-quantity"])
+		if e.Attrs["data-closed-form"] != "" {
+			if e.Attrs["data-quantity"] != "" {
+				t.Errorf("a hand-formula value also carries data-quantity=%s", e.Attrs["data-quantity"])
 			}
 			n++
 		}
@@ -227,69 +175,18 @@ func TestPanelDataAttributes(t *testing.T) {
 	// forbids inline styles).
 	svgs := 0
 	for _, e := range els {
-		if e.name == "svg" {
+		if e.Name == "svg" {
 			svgs++
 		}
-		if e.name == "style" {
+		if e.Name == "style" {
 			t.Errorf("panel holds a style element")
 		}
-		if _, ok := e.attrs["style"]; ok {
-			t.Errorf("element %s has a style attribute", e.name)
+		if _, ok := e.Attrs["style"]; ok {
+			t.Errorf("element %s has a style attribute", e.Name)
 		}
 	}
 	if want := 2 + 1 + 1; svgs != want { // two ports, the loop, the gain
 		t.Errorf("%d charts, want %d", svgs, want)
-	}
-}
-
-func TestSeriesElement(t *testing.T) {
-	w := 2 * math.Pi * 1e3
-	for _, tc := range []struct {
-		z    complex128
-		f    float64
-		want string
-	}{
-		{complex(0.37, w*159e-6), 1e3, "370 mΩ + 159 µH"},
-		{complex(12e3, -1/(w*3.3e-9)), 1e3, "12.0 kΩ + 3.30 nF"},
-		{complex(1.5, w*2e-3), 1e3, "1.50 Ω + 2.00 mH"},
-		{complex(-375e3, w*10e-3), 1e3, "−375 kΩ + 10.0 mH"}, // a negative resistance stays negative
-		{complex(0, -1/(w*1e-6)), 1e3, "1.00 µF"},            // a pure reactance
-		{complex(4.7e3, 0), 1e3, "4.70 kΩ"},
-		{complex(4.7e3, 1), 0, "4.70 kΩ"},                  // no reactance at DC
-		{complex(74.3, -3.473e-3), 1e3, "74.3 Ω"},          // ∠ −0.0027°: a resistor
-		{complex(74.3, -74.3e-3), 1e3, "74.3 Ω + 2.14 mF"}, // ∠ −0.057°: shown
-		{cmplx.NaN(), 1e3, "—"},
-		{cmplx.Inf(), 1e3, "—"},
-	} {
-		if got := SeriesElement(tc.z, tc.f); got != tc.want {
-			t.Errorf("SeriesElement(%v, %g) = %q, want %q", tc.z, tc.f, got, tc.want)
-		}
-	}
-}
-
-func TestFormatting(t *testing.T) {
-	for _, tc := range []struct{ got, want string }{
-		{polar(complex(54935.77, -0.3), "Ω"), "54.94 kΩ ∠ 0.00°"}, // no "−0.00°"
-		{polar(complex(54935.77, -30), "Ω"), "54.94 kΩ ∠ −0.03°"},
-		{polar(complex(math.Copysign(0, -1), 0), ""), "0"},
-		{polar(complex(-4.273, 0.02293), "V/V"), "4.273 V/V ∠ 179.69°"},
-		{rect(complex(-4.273, 9.8e-21), "V/V"), "−4.273 + j0 V/V"},
-		{rect(complex(11e3, 47.64), "Ω"), "11.00 kΩ + j47.64 Ω"},
-		{rect(complex(0.8997, -186.3), ""), "0.8997 − j186.3"},
-		{plain(26077.6), "26078"},
-		{plain(143259.6), "1.433 × 10⁵"},
-		{plain(9.9996), "10.00"},
-		{plain(-0.00123), "−0.001230"},
-		{plain(2.3e-21), "2.300 × 10⁻²¹"},
-		{decibels(complex(186.3, 0)), "45.40 dB"},
-		{degrees(-89.724), "−89.72°"},
-		{Magnitude(1e16, "Ω"), "1.000 × 10¹⁶ Ω"},
-		{Magnitude(4700, "Ω"), "4.700 kΩ"},
-		{Magnitude(65.834, "°"), "65.83°"},
-	} {
-		if tc.got != tc.want {
-			t.Errorf("got %q, want %q", tc.got, tc.want)
-		}
 	}
 }
 
@@ -359,8 +256,8 @@ func TestFragmentRefused(t *testing.T) {
 		"R1=a%0Ab",
 		"R1=%FF",
 		"R1",
-		"R1=" + strings.Repeat("9", maxFragmentValue+1),
-		strings.Repeat("R1=1&", maxFragment/5+1),
+		"R1=" + strings.Repeat("9", fragment.MaxValue+1),
+		strings.Repeat("R1=1&", fragment.MaxLength/5+1),
 		"constructor=1",
 		"__proto__=1",
 	} {
@@ -426,19 +323,19 @@ func TestComputeCatalog(t *testing.T) {
 			if out.Error != nil {
 				t.Fatalf("defaults: %+v", out.Error)
 			}
-			els := parse(t, out.HTML)
+			els := sitetest.Parse(t, out.HTML)
 			for _, p := range e.Ports {
 				for _, q := range []string{"z0", "tShort", "tOpen", "zDirect"} {
 					found := false
 					for _, el := range els {
-						found = found || el.attrs["data-port"] == p.Name && el.attrs["data-quantity"] == q
+						found = found || el.Attrs["data-port"] == p.Name && el.Attrs["data-quantity"] == q
 					}
 					if !found {
 						t.Errorf("port %s: no %s value", p.Name, q)
 					}
 				}
 			}
-			if out.Markdown == "" || !strings.HasPrefix(out.CSV, "frequency_Hz,T_re,T_im,") {
+			if out.Markdown == "" || !strings.HasPrefix(out.CSV, "frequency_Hz,") || !strings.Contains(out.CSV, ",T_re,T_im") {
 				t.Errorf("Markdown or CSV missing")
 			}
 			if n := strings.Count(out.CSV, "\r\n"); n != e.Sweep.Points+1 {

@@ -1,4 +1,4 @@
-package render
+package calc
 
 import (
 	"encoding/json"
@@ -63,10 +63,29 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		}
 		f = g
 	}
+	if f.Fragment != nil {
+		// A link's settings of an analysis that runs only on request are
+		// checked now, not when the user next runs it.
+		for _, a := range Analyses {
+			if a.Check == nil || len(f.Settings[a.Key]) == 0 {
+				continue
+			}
+			if bad := a.Check(a.context(&f, entry, nil)); bad != nil {
+				return Output{Error: &api.ErrorBody{Param: FieldFragment, Message: bad.Param + ": " + bad.Message}}
+			}
+		}
+	}
 	f.Fragment = nil
 	req, bad := f.request()
 	if bad != nil {
 		return Output{Error: bad}
+	}
+	for _, a := range Analyses {
+		if a.Ask != nil {
+			if bad := a.Ask(&req, a.context(&f, entry, nil)); bad != nil {
+				return Output{Error: bad}
+			}
+		}
 	}
 	resp, cut, err := analyzeWithin(req, time.Duration(f.Budget*float64(time.Millisecond)), parsed)
 	if err != nil {
@@ -74,13 +93,13 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		return Output{Error: &body}
 	}
 	out = Output{
-		HTML:     Panel(resp, entry, f.ID),
-		Markdown: Markdown(resp, entry),
+		HTML:     Panel(&f, entry, resp),
+		Markdown: CopyText(&f, entry, resp),
 		Form:     &f,
 		SweepCut: cut,
 	}
 	if f.CSV {
-		out.CSV = CSV(resp)
+		out.CSV = CSV(&f, entry, resp)
 		f.CSV = false
 	}
 	if entry != nil {

@@ -1,9 +1,10 @@
-package render
+package calc
 
 import (
 	"testing"
 
 	"zport/engine/api"
+	"zport/site/view"
 )
 
 // BenchmarkCompute400 is one calculator update of the inverting stage at
@@ -40,34 +41,40 @@ func BenchmarkPanel400(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
+	f := DefaultForm(e)
+	f.ID = "c"
 	b.ReportAllocs()
 	for b.Loop() {
-		_ = Panel(resp, &e, "c")
-		_ = Markdown(resp, &e)
-		_ = CSV(resp)
+		_ = Panel(&f, &e, resp)
+		_ = CopyText(&f, &e, resp)
+		_ = CSV(&f, &e, resp)
 	}
 }
 
-// BenchmarkParts400 splits BenchmarkPanel400 into its parts.
+// BenchmarkParts400 splits BenchmarkPanel400 into its analyses' parts.
 func BenchmarkParts400(b *testing.B) {
 	e, _ := api.LookupEntry("inverting")
 	resp, _ := api.Analyze(api.Request{Topology: "inverting", Frequency: e.Frequency, Sweep: &e.Sweep})
+	f := DefaultForm(e)
 	b.Run("csv", func(b *testing.B) {
 		for b.Loop() {
-			_ = CSV(resp)
+			_ = CSV(&f, &e, resp)
 		}
 	})
-	b.Run("charts", func(b *testing.B) {
-		p := &panel{resp: resp, entry: &e, id: "c"}
-		for b.Loop() {
-			for _, c := range p.charts() {
-				_ = c.SVG()
+	for _, a := range Analyses {
+		if a.Section == nil {
+			continue
+		}
+		b.Run("section-"+a.Key, func(b *testing.B) {
+			for b.Loop() {
+				var w view.Writer
+				a.Section(&w, a.context(&f, &e, resp))
 			}
-		}
-	})
+		})
+	}
 	b.Run("markdown", func(b *testing.B) {
 		for b.Loop() {
-			_ = Markdown(resp, &e)
+			_ = CopyText(&f, &e, resp)
 		}
 	})
 }

@@ -1,16 +1,19 @@
-package render
+package view
 
 import (
+	"cmp"
 	"math"
 	"strconv"
 	"strings"
 
 	"zport/engine/api"
+	"zport/engine/numeric"
 	"zport/engine/value"
 	"zport/site/plot"
 )
 
-// The design-aid panels. Every number shown carries data-aid (tolerance,
+// The design-aid panels (see the package doc for their data attributes).
+// Every number shown carries data-aid (tolerance,
 // standard, sensitivity), data-quantity (the engine's quantity ID: z:PORT,
 // phase:PORT, r:PORT, g, pm — or a part name for standard values),
 // data-stat where one quantity has several numbers, and data-value with
@@ -22,31 +25,29 @@ import (
 func spreadFormat(unit string, mag, span float64) func(float64) string {
 	if unit == "°" {
 		d := 2
-		if span > 0 && finite(span) {
+		if span > 0 && numeric.FiniteReal(span) {
 			d = min(max(2, int(math.Ceil(-math.Log10(span)))+3), 9)
 		}
 		return func(v float64) string { return fixedDegrees(v, d) }
 	}
-	n := sig
-	if span > 0 && mag > 0 && finite(span) && finite(mag) {
-		n = min(max(sig, int(math.Ceil(math.Log10(mag/span)))+3), 12)
+	n := Sig
+	if span > 0 && mag > 0 && numeric.FiniteReal(span) && numeric.FiniteReal(mag) {
+		n = min(max(Sig, int(math.Ceil(math.Log10(mag/span)))+3), 12)
 	}
 	return func(v float64) string {
 		switch unit {
 		case "":
-			return plainN(v, n)
+			return PlainN(v, n)
 		case "V/V":
-			return plainN(v, n) + " V/V"
+			return PlainN(v, n) + " V/V"
 		}
 		s := value.Format(v, unit, n)
 		if strings.Contains(s, "×10^") {
-			s = plainN(v, n) + " " + unit
+			s = PlainN(v, n) + " " + unit
 		}
 		return s
 	}
 }
-
-func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 // fixedDegrees writes an angle with d decimals and a typographic minus.
 func fixedDegrees(v float64, d int) string {
@@ -60,13 +61,13 @@ func fixedDegrees(v float64, d int) string {
 // percent writes a relative change as a signed percentage with three
 // significant digits, e.g. "+2.59 %", "−8.51 %", "0 %".
 func percent(x float64) string {
-	if !finite(x) {
+	if !numeric.FiniteReal(x) {
 		return "—"
 	}
 	if x == 0 {
 		return "0 %"
 	}
-	s := plainN(x*100, 3) + " %"
+	s := PlainN(x*100, 3) + " %"
 	if x > 0 {
 		s = "+" + s
 	}
@@ -74,12 +75,12 @@ func percent(x float64) string {
 }
 
 // numSpan writes one number with its data attributes.
-func (w *writer) numSpan(text string, v *float64, attrs ...string) {
+func (w *Writer) NumSpan(text string, v *float64, attrs ...string) {
 	if v == nil {
-		w.elem("span", "—", append(append([]string{"class", "num"}, attrs...), "data-null", "true")...)
+		w.Elem("span", "—", append(append([]string{"class", "num"}, attrs...), "data-null", "true")...)
 		return
 	}
-	w.elem("span", text, append(append([]string{"class", "num"}, attrs...), "data-value", num(*v))...)
+	w.Elem("span", text, append(append([]string{"class", "num"}, attrs...), "data-value", Num(*v))...)
 }
 
 func deref(x *float64) float64 {
@@ -116,65 +117,65 @@ func relevant(q api.QuantitySpread, res *api.ToleranceResult) bool {
 // percentiles, Monte Carlo range and corner range, and a histogram of
 // each. id prefixes the element ids.
 func TolerancePanel(res *api.ToleranceResult, id string) string {
-	var w writer
-	w.open("div", "class", "aid-panel tol-panel", "id", id+"-tol-panel", "data-aid", "tolerance",
+	var w Writer
+	w.Open("div", "class", "aid-panel tol-panel", "id", id+"-tol-panel", "data-aid", "tolerance",
 		"data-seed", strconv.FormatUint(res.Seed, 10), "data-trials", strconv.Itoa(res.Trials),
 		"data-done", strconv.Itoa(res.Done), "data-distribution", res.Distribution)
-	w.open("p", "class", "aid-head")
+	w.Open("p", "class", "aid-head")
 	if res.Done < res.Trials {
-		w.text("Partial result: " + strconv.Itoa(res.Done) + " of " + strconv.Itoa(res.Trials) + " trials")
+		w.Text("Partial result: " + strconv.Itoa(res.Done) + " of " + strconv.Itoa(res.Trials) + " trials")
 	} else {
-		w.text(strconv.Itoa(res.Done) + " Monte Carlo trials")
+		w.Text(strconv.Itoa(res.Done) + " Monte Carlo trials")
 	}
-	w.text(" at " + value.Format(res.Frequency, "Hz", sig) + ", " + res.Distribution + " distribution")
+	w.Text(" at " + value.Format(res.Frequency, "Hz", Sig) + ", " + res.Distribution + " distribution")
 	if res.Distribution == "normal" {
-		w.text(" (tolerance = 3σ)")
+		w.Text(" (tolerance = 3σ)")
 	}
-	w.text(", seed " + strconv.FormatUint(res.Seed, 10))
+	w.Text(", seed " + strconv.FormatUint(res.Seed, 10))
 	if c := res.Corners; c != nil {
 		how := "all combinations"
 		if c.Method == "sensitivity" {
 			how = "two per quantity, chosen by the sign of each part’s effect"
 		}
-		w.text("; " + strconv.Itoa(c.Done) + " worst-case corners (" + how + ")")
+		w.Text("; " + strconv.Itoa(c.Done) + " worst-case corners (" + how + ")")
 	}
-	w.text(".")
+	w.Text(".")
 	if res.Failed > 0 {
-		w.text(" " + strconv.Itoa(res.Failed) + " trials could not be analyzed (see the notes).")
+		w.Text(" " + strconv.Itoa(res.Failed) + " trials could not be analyzed (see the notes).")
 	}
-	w.close("p")
+	w.Close("p")
 
-	w.open("details", "class", "aid-varied")
-	w.elem("summary", "What varied: "+strconv.Itoa(len(res.Parts))+" parameters")
-	w.open("div", "class", "table-wrap")
-	w.open("table", "class", "aid-small")
-	w.open("thead")
-	w.open("tr")
+	w.Open("details", "class", "aid-varied")
+	w.Elem("summary", "What varied: "+strconv.Itoa(len(res.Parts))+" parameters")
+	w.Open("div", "class", "table-wrap")
+	w.Open("table", "class", "aid-small")
+	w.Open("thead")
+	w.Open("tr")
 	for _, h := range []string{"Parameter", "Nominal", "Spread", "Low limit", "High limit"} {
-		w.elem("th", h, "scope", "col")
+		w.Elem("th", h, "scope", "col")
 	}
-	w.close("tr")
-	w.close("thead")
-	w.open("tbody")
+	w.Close("tr")
+	w.Close("thead")
+	w.Open("tbody")
 	for _, p := range res.Parts {
-		w.open("tr")
-		w.elem("th", p.Name, "scope", "row", "class", "port-name")
-		w.elem("td", magnitude(p.Nominal, p.Unit), "class", "num")
+		w.Open("tr")
+		w.Elem("th", p.Name, "scope", "row", "class", "port-name")
+		w.Elem("td", Magnitude(p.Nominal, p.Unit), "class", "num")
 		spread := "min–typ"
 		if p.Tolerance != nil {
-			spread = "±" + plainN(*p.Tolerance*100, 3) + " %"
+			spread = "±" + PlainN(*p.Tolerance*100, 3) + " %"
 		}
-		w.elem("td", spread)
-		w.elem("td", magnitude(p.Low, p.Unit), "class", "num")
-		w.elem("td", magnitude(p.High, p.Unit), "class", "num")
-		w.close("tr")
+		w.Elem("td", spread)
+		w.Elem("td", Magnitude(p.Low, p.Unit), "class", "num")
+		w.Elem("td", Magnitude(p.High, p.Unit), "class", "num")
+		w.Close("tr")
 	}
-	w.close("tbody")
-	w.close("table")
-	w.close("div")
-	w.close("details")
+	w.Close("tbody")
+	w.Close("table")
+	w.Close("div")
+	w.Close("details")
 
-	aidNotes(&w, res.Notes)
+	w.Notes("aid-notes", res.Notes)
 
 	qs := map[string]api.QuantitySpread{}
 	var shown []api.QuantitySpread
@@ -200,25 +201,25 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 	}
 
 	if len(res.Targets) > 0 {
-		w.open("div", "class", "table-wrap")
-		w.open("table", "class", "aid-small aid-targets-table")
-		w.elem("caption", "Targets: the fraction of trials that miss each")
+		w.Open("div", "class", "table-wrap")
+		w.Open("table", "class", "aid-small aid-targets-table")
+		w.Elem("caption", "Targets: the fraction of trials that miss each")
 		undefined := false
 		for _, tg := range res.Targets {
 			undefined = undefined || tg.Undefined > 0
 		}
-		w.open("thead")
-		w.open("tr")
+		w.Open("thead")
+		w.Open("tr")
 		heads := []string{"A trial misses when", "Misses", "Fraction"}
 		if undefined {
 			heads = append(heads, "Undefined")
 		}
 		for _, h := range heads {
-			w.elem("th", h, "scope", "col")
+			w.Elem("th", h, "scope", "col")
 		}
-		w.close("tr")
-		w.close("thead")
-		w.open("tbody")
+		w.Close("tr")
+		w.Close("thead")
+		w.Open("tbody")
 		for i, t := range res.Targets {
 			qid := t.Quantity
 			if t.Port != "" {
@@ -234,88 +235,88 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 			if t.Misses > 0 {
 				class = "miss-some"
 			}
-			w.open("tr", "class", class)
-			w.elem("th", title+op+magnitude(t.Value, q.Unit), "scope", "row")
-			w.open("td")
+			w.Open("tr", "class", class)
+			w.Elem("th", title+op+Magnitude(t.Value, q.Unit), "scope", "row")
+			w.Open("td")
 			misses := float64(t.Misses)
-			w.numSpan(strconv.Itoa(t.Misses)+" of "+strconv.Itoa(res.Done), &misses, "data-aid", "tolerance", "data-quantity", "target", "data-index", strconv.Itoa(i), "data-stat", "misses")
-			w.close("td")
-			w.open("td")
+			w.NumSpan(strconv.Itoa(t.Misses)+" of "+strconv.Itoa(res.Done), &misses, "data-aid", "tolerance", "data-quantity", "target", "data-index", strconv.Itoa(i), "data-stat", "misses")
+			w.Close("td")
+			w.Open("td")
 			frac := t.Fraction
-			w.numSpan(percentOf(frac), &frac, "data-aid", "tolerance", "data-quantity", "target", "data-index", strconv.Itoa(i), "data-stat", "fraction")
-			w.close("td")
+			w.NumSpan(percentOf(frac), &frac, "data-aid", "tolerance", "data-quantity", "target", "data-index", strconv.Itoa(i), "data-stat", "fraction")
+			w.Close("td")
 			if undefined {
-				w.elem("td", strconv.Itoa(t.Undefined), "class", "num")
+				w.Elem("td", strconv.Itoa(t.Undefined), "class", "num")
 			}
-			w.close("tr")
+			w.Close("tr")
 		}
-		w.close("tbody")
-		w.close("table")
-		w.close("div")
+		w.Close("tbody")
+		w.Close("table")
+		w.Close("div")
 	}
 
-	w.open("div", "class", "table-wrap")
-	w.open("table", "class", "results aid-table tol-table")
-	w.elem("caption", "Spread at "+value.Format(res.Frequency, "Hz", sig)+": percentiles over the trials, the Monte Carlo range, and the worst case by corners", "class", "offscreen")
-	w.open("thead")
-	w.open("tr")
-	w.elem("th", "Quantity", "scope", "col")
-	w.elem("th", "Nominal", "scope", "col")
+	w.Open("div", "class", "table-wrap")
+	w.Open("table", "class", "results aid-table tol-table")
+	w.Elem("caption", "Spread at "+value.Format(res.Frequency, "Hz", Sig)+": percentiles over the trials, the Monte Carlo range, and the worst case by corners", "class", "offscreen")
+	w.Open("thead")
+	w.Open("tr")
+	w.Elem("th", "Quantity", "scope", "col")
+	w.Elem("th", "Nominal", "scope", "col")
 	for _, p := range aidsPercentiles(res) {
-		w.elem("th", num(p)+" %", "scope", "col")
+		w.Elem("th", Num(p)+" %", "scope", "col")
 	}
-	w.open("th", "scope", "col")
-	w.text("Monte Carlo")
-	w.elem("span", "min … max", "class", "hint")
-	w.close("th")
-	w.open("th", "scope", "col")
-	w.text("Corners")
-	w.elem("span", "worst case min … max", "class", "hint")
-	w.close("th")
-	w.close("tr")
-	w.close("thead")
-	w.open("tbody")
+	w.Open("th", "scope", "col")
+	w.Text("Monte Carlo")
+	w.Elem("span", "min … max", "class", "hint")
+	w.Close("th")
+	w.Open("th", "scope", "col")
+	w.Text("Corners")
+	w.Elem("span", "worst case min … max", "class", "hint")
+	w.Close("th")
+	w.Close("tr")
+	w.Close("thead")
+	w.Open("tbody")
 	for _, q := range shown {
 		f := formats[q.ID]
 		attr := func(stat string) []string {
 			return []string{"data-aid", "tolerance", "data-quantity", q.ID, "data-stat", stat}
 		}
-		w.open("tr", "data-quantity-id", q.ID)
-		w.open("th", "scope", "row")
-		w.text(q.Title)
+		w.Open("tr", "data-quantity-id", q.ID)
+		w.Open("th", "scope", "row")
+		w.Text(q.Title)
 		if q.Undefined > 0 {
-			w.elem("span", strconv.Itoa(q.Undefined)+" trials undefined", "class", "hint")
+			w.Elem("span", strconv.Itoa(q.Undefined)+" trials undefined", "class", "hint")
 		}
-		w.close("th")
-		w.open("td", "data-label", "Nominal")
-		w.numSpan(f(deref(q.Nominal)), q.Nominal, attr("nominal")...)
-		w.close("td")
+		w.Close("th")
+		w.Open("td", "data-label", "Nominal")
+		w.NumSpan(f(deref(q.Nominal)), q.Nominal, attr("nominal")...)
+		w.Close("td")
 		for _, p := range q.Percentiles {
-			label := num(p.P) + " %"
-			w.open("td", "data-label", label)
-			w.numSpan(f(deref(p.Value)), p.Value, attr("p"+num(p.P))...)
-			w.close("td")
+			label := Num(p.P) + " %"
+			w.Open("td", "data-label", label)
+			w.NumSpan(f(deref(p.Value)), p.Value, attr("p"+Num(p.P))...)
+			w.Close("td")
 		}
-		w.open("td", "data-label", "Monte Carlo min … max", "class", "range-cell")
-		w.numSpan(f(deref(q.Min)), q.Min, attr("min")...)
-		w.numSpan(f(deref(q.Max)), q.Max, attr("max")...)
-		w.close("td")
-		w.open("td", "data-label", "Corners min … max", "class", "range-cell")
+		w.Open("td", "data-label", "Monte Carlo min … max", "class", "range-cell")
+		w.NumSpan(f(deref(q.Min)), q.Min, attr("min")...)
+		w.NumSpan(f(deref(q.Max)), q.Max, attr("max")...)
+		w.Close("td")
+		w.Open("td", "data-label", "Corners min … max", "class", "range-cell")
 		if c := q.Corners; c != nil {
-			w.numSpan(f(deref(c.Min)), c.Min, attr("cornerMin")...)
-			w.numSpan(f(deref(c.Max)), c.Max, attr("cornerMax")...)
+			w.NumSpan(f(deref(c.Min)), c.Min, attr("cornerMin")...)
+			w.NumSpan(f(deref(c.Max)), c.Max, attr("cornerMax")...)
 			cornerNote(&w, q)
 		} else {
-			w.elem("span", "not run", "class", "hint")
+			w.Elem("span", "not run", "class", "hint")
 		}
-		w.close("td")
-		w.close("tr")
+		w.Close("td")
+		w.Close("tr")
 	}
-	w.close("tbody")
-	w.close("table")
-	w.close("div")
+	w.Close("tbody")
+	w.Close("table")
+	w.Close("div")
 
-	w.open("div", "class", "plot-grid aid-hists")
+	w.Open("div", "class", "plot-grid aid-hists")
 	for i, q := range shown {
 		if q.Histogram == nil {
 			continue
@@ -344,12 +345,12 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 				h.Markers = append(h.Markers, plot.Marker{Freq: t.Value, Label: "target", Class: "target"})
 			}
 		}
-		w.open("figure", "class", "plot hist", "data-quantity-id", q.ID)
-		w.svg(h.SVG())
-		w.close("figure")
+		w.Open("figure", "class", "plot hist", "data-quantity-id", q.ID)
+		w.Raw(h.SVG())
+		w.Close("figure")
 	}
-	w.close("div")
-	w.close("div")
+	w.Close("div")
+	w.Close("div")
 	return w.String()
 }
 
@@ -370,19 +371,19 @@ func percentOf(x float64) string {
 	if x == 0 {
 		return "0 %"
 	}
-	return plainN(x*100, 3) + " %"
+	return PlainN(x*100, 3) + " %"
 }
 
 // cornerNote says how the Monte Carlo range sits in the corner range: how
 // much of the corner span it covers, and whether it reaches past a corner.
-func cornerNote(w *writer, q api.QuantitySpread) {
+func cornerNote(w *Writer, q api.QuantitySpread) {
 	c := q.Corners
 	if c == nil || c.Min == nil || c.Max == nil || q.Min == nil || q.Max == nil {
 		return
 	}
 	switch {
 	case c.MonteCarloBeyondMin || c.MonteCarloBeyondMax:
-		w.elem("span", "Monte Carlo reaches past them", "class", "hint corner-beyond",
+		w.Elem("span", "Monte Carlo reaches past them", "class", "hint corner-beyond",
 			"title", "The quantity is not monotonic in its parts, or normal draws passed the limits: the corners bound the worst case only of a quantity monotonic in each part.")
 	case *c.Max > *c.Min:
 		cover := (*q.Max - *q.Min) / (*c.Max - *c.Min)
@@ -390,7 +391,7 @@ func cornerNote(w *writer, q api.QuantitySpread) {
 		if c.MonteCarloShortMin || c.MonteCarloShortMax {
 			cls = "hint corner-short"
 		}
-		w.elem("span", "Monte Carlo spans "+plainN(math.Min(cover, 1)*100, 3)+" % of it", "class", cls,
+		w.Elem("span", "Monte Carlo spans "+PlainN(math.Min(cover, 1)*100, 3)+" % of it", "class", cls,
 			"title", "Random trials seldom put every part at a limit together: the corners are the extremes they miss.")
 	}
 }
@@ -408,70 +409,70 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 		}
 		return "Ω"
 	}
-	var w writer
-	w.open("div", "class", "aid-panel std-panel", "id", id+"-std-panel", "data-aid", "standard",
+	var w Writer
+	w.Open("div", "class", "aid-panel std-panel", "id", id+"-std-panel", "data-aid", "standard",
 		"data-series", res.Series, "data-capacitor-series", res.CapacitorSeries)
-	w.elem("p", "Resistors from "+res.Series+", capacitors from "+res.CapacitorSeries+" (IEC 60063); effects at "+value.Format(res.Frequency, "Hz", sig)+".", "class", "aid-head")
+	w.Elem("p", "Resistors from "+res.Series+", capacitors from "+res.CapacitorSeries+" (IEC 60063); effects at "+value.Format(res.Frequency, "Hz", Sig)+".", "class", "aid-head")
 
 	if len(res.Ratios) > 0 {
-		w.open("div", "class", "table-wrap")
-		w.open("table", "class", "aid-small std-ratios")
-		w.elem("caption", "Ratios realized by a pair of series values")
-		w.open("thead")
-		w.open("tr")
+		w.Open("div", "class", "table-wrap")
+		w.Open("table", "class", "aid-small std-ratios")
+		w.Elem("caption", "Ratios realized by a pair of series values")
+		w.Open("thead")
+		w.Open("tr")
 		for _, h := range []string{"Ratio", "Wanted gain", "Best pair", "Ratio error", "Gain set", "Gain error"} {
-			w.elem("th", h, "scope", "col")
+			w.Elem("th", h, "scope", "col")
 		}
-		w.close("tr")
-		w.close("thead")
-		w.open("tbody")
+		w.Close("tr")
+		w.Close("thead")
+		w.Open("tbody")
 		for i, r := range res.Ratios {
 			unit := unitOf(r.Num)
 			attrs := func(stat string) []string {
 				return []string{"data-aid", "standard", "data-quantity", "ratio", "data-index", strconv.Itoa(i), "data-stat", stat}
 			}
-			w.open("tr")
-			w.open("th", "scope", "row")
+			w.Open("tr")
+			w.Open("th", "scope", "row")
 			q := r.Num + "/" + r.Den
 			if r.Plus1 {
 				q = "1 + " + q
 			}
-			w.elem("span", q, "class", "port-name")
+			w.Elem("span", q, "class", "port-name")
 			if r.Title != "" {
-				w.elem("span", r.Title, "class", "hint")
+				w.Elem("span", r.Title, "class", "hint")
 			}
-			w.close("th")
+			w.Close("th")
 			wanted := r.Wanted
 			if r.Plus1 {
 				wanted++
 			}
-			w.open("td", "data-label", "Wanted")
-			w.numSpan(plainN(wanted, 5), &wanted, attrs("wanted")...)
-			w.close("td")
-			w.open("td", "data-label", "Best pair")
+			w.Open("td", "data-label", "Wanted")
+			w.NumSpan(PlainN(wanted, 5), &wanted, attrs("wanted")...)
+			w.Close("td")
+			w.Open("td", "data-label", "Best pair")
 			nv, dv := r.NumValue, r.DenValue
-			w.text(r.Num + " = ")
-			w.numSpan(magnitude(nv, unit), &nv, attrs("num")...)
-			w.text(", " + r.Den + " = ")
-			w.numSpan(magnitude(dv, unit), &dv, attrs("den")...)
-			w.close("td")
-			w.open("td", "data-label", "Ratio error")
+			w.Text(r.Num + " = ")
+			w.NumSpan(Magnitude(nv, unit), &nv, attrs("num")...)
+			w.Text(", " + r.Den + " = ")
+			w.NumSpan(Magnitude(dv, unit), &dv, attrs("den")...)
+			w.Close("td")
+			w.Open("td", "data-label", "Ratio error")
 			re := r.RelErr
-			w.numSpan(percent(re), &re, attrs("relErr")...)
-			w.close("td")
-			w.open("td", "data-label", "Gain set")
+			w.NumSpan(percent(re), &re, attrs("relErr")...)
+			w.Close("td")
+			w.Open("td", "data-label", "Gain set")
 			g := r.Gain
-			w.numSpan(plainN(g, 5), &g, attrs("gain")...)
-			w.close("td")
-			w.open("td", "data-label", "Gain error")
+			w.NumSpan(PlainN(g, 5), &g, attrs("gain")...)
+			w.Close("td")
+			w.Open("td", "data-label", "Gain error")
 			ge := r.GainRelErr
-			w.numSpan(percent(ge), &ge, attrs("gainRelErr")...)
-			w.close("td")
-			w.close("tr")
+			w.NumSpan(percent(ge), &ge, attrs("gainRelErr")...)
+			w.Close("td")
+			w.Close("tr")
 		}
-		w.close("tbody")
-		w.close("table")
-		w.close("div")
+		w.Close("tbody")
+		w.Close("table")
+		w.Close("div")
 	}
 
 	// Values: one row per part, one column per variant.
@@ -492,93 +493,93 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 	}
 	variantTitle := map[string]string{"nearest": "nearest value", "ratios": "with the ratio pairs"}
 	if len(names) > 0 {
-		w.open("div", "class", "table-wrap")
-		w.open("table", "class", "aid-small std-values")
-		w.elem("caption", "Series values per part")
-		w.open("thead")
-		w.open("tr")
-		w.elem("th", "Part", "scope", "col")
-		w.elem("th", "Nominal", "scope", "col")
+		w.Open("div", "class", "table-wrap")
+		w.Open("table", "class", "aid-small std-values")
+		w.Elem("caption", "Series values per part")
+		w.Open("thead")
+		w.Open("tr")
+		w.Elem("th", "Part", "scope", "col")
+		w.Elem("th", "Nominal", "scope", "col")
 		for _, v := range res.Variants {
-			w.elem("th", or(variantTitle[v.Name], v.Name), "scope", "col")
+			w.Elem("th", cmp.Or(variantTitle[v.Name], v.Name), "scope", "col")
 		}
-		w.close("tr")
-		w.close("thead")
-		w.open("tbody")
+		w.Close("tr")
+		w.Close("thead")
+		w.Open("tbody")
 		for _, n := range names {
 			cells := values[n]
-			w.open("tr")
-			w.elem("th", n, "scope", "row", "class", "port-name")
+			w.Open("tr")
+			w.Elem("th", n, "scope", "row", "class", "port-name")
 			nominal := 0.0
 			for _, c := range cells {
 				if c.set {
 					nominal = c.v.Nominal
 				}
 			}
-			w.elem("td", magnitude(nominal, unitOf(n)), "class", "num")
+			w.Elem("td", Magnitude(nominal, unitOf(n)), "class", "num")
 			for vi, c := range cells {
-				w.open("td", "data-label", or(variantTitle[res.Variants[vi].Name], res.Variants[vi].Name))
+				w.Open("td", "data-label", cmp.Or(variantTitle[res.Variants[vi].Name], res.Variants[vi].Name))
 				if !c.set {
-					w.text("—")
+					w.Text("—")
 				} else {
 					v := c.v.Value
-					w.numSpan(magnitude(v, unitOf(n))+" ("+c.v.Series+")", &v, "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "value")
+					w.NumSpan(Magnitude(v, unitOf(n))+" ("+c.v.Series+")", &v, "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "value")
 					ch := c.v.Change
-					w.elem("span", percent(ch), "class", "hint", "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "change", "data-value", num(ch))
+					w.Elem("span", percent(ch), "class", "hint", "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "change", "data-value", Num(ch))
 				}
-				w.close("td")
+				w.Close("td")
 			}
-			w.close("tr")
+			w.Close("tr")
 		}
-		w.close("tbody")
-		w.close("table")
-		w.close("div")
+		w.Close("tbody")
+		w.Close("table")
+		w.Close("div")
 	}
 
 	if len(res.Variants) > 0 {
-		w.open("div", "class", "table-wrap")
-		w.open("table", "class", "aid-small std-effects")
-		w.elem("caption", "What the series values do: change of each magnitude, and of its phase")
-		w.open("thead")
-		w.open("tr")
-		w.elem("th", "Quantity", "scope", "col")
-		w.elem("th", "Nominal", "scope", "col")
+		w.Open("div", "class", "table-wrap")
+		w.Open("table", "class", "aid-small std-effects")
+		w.Elem("caption", "What the series values do: change of each magnitude, and of its phase")
+		w.Open("thead")
+		w.Open("tr")
+		w.Elem("th", "Quantity", "scope", "col")
+		w.Elem("th", "Nominal", "scope", "col")
 		for _, v := range res.Variants {
-			w.elem("th", or(variantTitle[v.Name], v.Name), "scope", "col")
+			w.Elem("th", cmp.Or(variantTitle[v.Name], v.Name), "scope", "col")
 		}
-		w.close("tr")
-		w.close("thead")
-		w.open("tbody")
+		w.Close("tr")
+		w.Close("thead")
+		w.Open("tbody")
 		row := func(title, qid, unit string, pick func(v api.SnapVariant) *api.SnapCompare) {
 			first := pick(res.Variants[0])
 			if first == nil {
 				return
 			}
-			w.open("tr")
-			w.elem("th", title, "scope", "row")
-			w.open("td", "data-label", "Nominal")
+			w.Open("tr")
+			w.Elem("th", title, "scope", "row")
+			w.Open("td", "data-label", "Nominal")
 			if first.Nominal != nil {
-				w.text(polar(first.Nominal.Value(), unit))
+				w.Text(Polar(first.Nominal.Value(), unit))
 			} else {
-				w.text("—")
+				w.Text("—")
 			}
-			w.close("td")
+			w.Close("td")
 			for _, v := range res.Variants {
 				c := pick(v)
-				w.open("td", "data-label", or(variantTitle[v.Name], v.Name))
+				w.Open("td", "data-label", cmp.Or(variantTitle[v.Name], v.Name))
 				if c == nil {
-					w.text("—")
+					w.Text("—")
 				} else {
-					w.numSpan(percent(deref(c.MagnitudeError)), c.MagnitudeError, "data-aid", "standard", "data-variant", v.Name, "data-quantity", qid, "data-stat", "magnitudeError")
+					w.NumSpan(percent(deref(c.MagnitudeError)), c.MagnitudeError, "data-aid", "standard", "data-variant", v.Name, "data-quantity", qid, "data-stat", "magnitudeError")
 					pd := ""
 					if c.PhaseDifference != nil {
 						pd = "phase " + signedDegrees(*c.PhaseDifference)
 					}
-					w.elem("span", pd, "class", "hint")
+					w.Elem("span", pd, "class", "hint")
 				}
-				w.close("td")
+				w.Close("td")
 			}
-			w.close("tr")
+			w.Close("tr")
 		}
 		for i, p := range res.Variants[0].Ports {
 			i := i
@@ -591,22 +592,22 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 		}
 		row("gain", "g", "", func(v api.SnapVariant) *api.SnapCompare { return v.Gain })
 		if pm := res.Variants[0].NominalPhaseMargin; pm != nil {
-			w.open("tr")
-			w.elem("th", "phase margin", "scope", "row")
-			w.elem("td", degrees(*pm), "data-label", "Nominal")
+			w.Open("tr")
+			w.Elem("th", "phase margin", "scope", "row")
+			w.Elem("td", Degrees(*pm), "data-label", "Nominal")
 			for _, v := range res.Variants {
-				w.open("td", "data-label", or(variantTitle[v.Name], v.Name))
-				w.numSpan(degrees(deref(v.PhaseMargin)), v.PhaseMargin, "data-aid", "standard", "data-variant", v.Name, "data-quantity", "pm", "data-stat", "value")
-				w.close("td")
+				w.Open("td", "data-label", cmp.Or(variantTitle[v.Name], v.Name))
+				w.NumSpan(Degrees(deref(v.PhaseMargin)), v.PhaseMargin, "data-aid", "standard", "data-variant", v.Name, "data-quantity", "pm", "data-stat", "value")
+				w.Close("td")
 			}
-			w.close("tr")
+			w.Close("tr")
 		}
-		w.close("tbody")
-		w.close("table")
-		w.close("div")
+		w.Close("tbody")
+		w.Close("table")
+		w.Close("div")
 	}
-	aidNotes(&w, res.Notes)
-	w.close("div")
+	w.Notes("aid-notes", res.Notes)
+	w.Close("div")
 	return w.String()
 }
 
@@ -616,7 +617,7 @@ func signedDegrees(d float64) string {
 	if d == 0 {
 		return "0°"
 	}
-	s := plainN(d, 3) + "°"
+	s := PlainN(d, 3) + "°"
 	if d > 0 {
 		s = "+" + s
 	}
@@ -630,28 +631,28 @@ func signedDegrees(d float64) string {
 // parameter's sensitivity, largest first, beside a table of the same
 // numbers with their error estimates.
 func SensitivityPanel(res *api.SensitivityResult, id string) string {
-	var w writer
-	w.open("div", "class", "aid-panel sens-panel", "id", id+"-sens-panel", "data-aid", "sensitivity")
-	w.open("p", "class", "explain")
-	w.text("At " + value.Format(res.Frequency, "Hz", sig) + "; method: " + res.Method + ", h = " + plain(res.Step) + ". For the phase margin, the change in degrees per unit of ln p.")
-	w.close("p")
+	var w Writer
+	w.Open("div", "class", "aid-panel sens-panel", "id", id+"-sens-panel", "data-aid", "sensitivity")
+	w.Open("p", "class", "explain")
+	w.Text("At " + value.Format(res.Frequency, "Hz", Sig) + "; method: " + res.Method + ", h = " + Plain(res.Step) + ". For the phase margin, the change in degrees per unit of ln p.")
+	w.Close("p")
 	for qi, q := range res.Quantities {
 		h := id + "-sens-" + strconv.Itoa(qi) + "-h"
 		isPM := q.Quantity == "pm"
-		w.open("section", "class", "sens-q", "data-quantity-id", q.ID, "aria-labelledby", h)
-		w.open("h4", "id", h)
-		w.text(q.Title)
+		w.Open("section", "class", "sens-q", "data-quantity-id", q.ID, "aria-labelledby", h)
+		w.Open("h4", "id", h)
+		w.Text(q.Title)
 		switch {
 		case isPM && q.PhaseMargin != nil:
-			w.text(" (" + degrees(*q.PhaseMargin) + ")")
+			w.Text(" (" + Degrees(*q.PhaseMargin) + ")")
 		case q.Value != nil:
 			unit := "Ω"
 			if q.Quantity == "g" {
 				unit = ""
 			}
-			w.text(" (" + polar(q.Value.Value(), unit) + ")")
+			w.Text(" (" + Polar(q.Value.Value(), unit) + ")")
 		}
-		w.close("h4")
+		w.Close("h4")
 		sym := "∂ln|" + symbolOf(q) + "|/∂ln p"
 		if isPM {
 			sym = "∂PM/∂ln p (°)"
@@ -662,44 +663,44 @@ func SensitivityPanel(res *api.SensitivityResult, id string) string {
 			labels = append(labels, e.Parameter)
 			vals = append(vals, deref(e.Value))
 		}
-		w.open("div", "class", "sens-grid")
-		w.open("figure", "class", "plot bars")
+		w.Open("div", "class", "sens-grid")
+		w.Open("figure", "class", "plot bars")
 		bars := plot.Bars{ID: id + "-sens-bars-" + strconv.Itoa(qi), Title: q.Title + ": " + sym, XLabel: sym,
 			Labels: labels, Values: vals, Width: 420, NoStyle: true}
-		w.svg(bars.SVG())
-		w.close("figure")
-		w.open("div", "class", "table-wrap")
-		w.open("table", "class", "aid-small sens-table")
-		w.elem("caption", q.Title+": sensitivity to each parameter, largest first", "class", "offscreen")
-		w.open("thead")
-		w.open("tr")
-		w.elem("th", "Parameter", "scope", "col")
-		w.elem("th", "Nominal", "scope", "col")
-		w.elem("th", sym, "scope", "col")
+		w.Raw(bars.SVG())
+		w.Close("figure")
+		w.Open("div", "class", "table-wrap")
+		w.Open("table", "class", "aid-small sens-table")
+		w.Elem("caption", q.Title+": sensitivity to each parameter, largest first", "class", "offscreen")
+		w.Open("thead")
+		w.Open("tr")
+		w.Elem("th", "Parameter", "scope", "col")
+		w.Elem("th", "Nominal", "scope", "col")
+		w.Elem("th", sym, "scope", "col")
 		if !isPM {
-			w.elem("th", "∂∠"+symbolOf(q)+"/∂ln p (°)", "scope", "col")
+			w.Elem("th", "∂∠"+symbolOf(q)+"/∂ln p (°)", "scope", "col")
 		}
-		w.elem("th", "Error estimate", "scope", "col")
-		w.close("tr")
-		w.close("thead")
-		w.open("tbody")
+		w.Elem("th", "Error estimate", "scope", "col")
+		w.Close("tr")
+		w.Close("thead")
+		w.Open("tbody")
 		for _, e := range q.Entries {
 			attrs := []string{"data-aid", "sensitivity", "data-quantity", q.ID, "data-parameter", e.Parameter}
-			w.open("tr")
-			w.elem("th", e.Parameter, "scope", "row", "class", "port-name")
-			w.elem("td", magnitude(e.Nominal, e.Unit), "class", "num")
-			w.open("td")
-			w.numSpan(sensText(e.Value), e.Value, append(attrs, "data-stat", "value")...)
-			w.close("td")
+			w.Open("tr")
+			w.Elem("th", e.Parameter, "scope", "row", "class", "port-name")
+			w.Elem("td", Magnitude(e.Nominal, e.Unit), "class", "num")
+			w.Open("td")
+			w.NumSpan(sensText(e.Value), e.Value, append(attrs, "data-stat", "value")...)
+			w.Close("td")
 			if !isPM {
-				w.open("td")
-				w.numSpan(sensText(e.Phase), e.Phase, append(attrs, "data-stat", "phase")...)
-				w.close("td")
+				w.Open("td")
+				w.NumSpan(sensText(e.Phase), e.Phase, append(attrs, "data-stat", "phase")...)
+				w.Close("td")
 			}
-			w.open("td")
+			w.Open("td")
 			errText, errAttrs := "—", append(attrs, "data-stat", "error")
 			if e.Error != nil {
-				errText = plainN(*e.Error, 2)
+				errText = PlainN(*e.Error, 2)
 				// An estimate above 1 % of the value: the difference
 				// quotients straddle a fast change (a resonance, a pole
 				// near the spot frequency); read the value with care.
@@ -707,18 +708,18 @@ func SensitivityPanel(res *api.SensitivityResult, id string) string {
 					errAttrs = append(errAttrs, "title", "uncertain: the error estimate is above 1 % of the value", "data-poor", "true")
 				}
 			}
-			w.numSpan(errText, e.Error, errAttrs...)
-			w.close("td")
-			w.close("tr")
+			w.NumSpan(errText, e.Error, errAttrs...)
+			w.Close("td")
+			w.Close("tr")
 		}
-		w.close("tbody")
-		w.close("table")
-		w.close("div")
-		w.close("div")
-		w.close("section")
+		w.Close("tbody")
+		w.Close("table")
+		w.Close("div")
+		w.Close("div")
+		w.Close("section")
 	}
-	aidNotes(&w, res.Notes)
-	w.close("div")
+	w.Notes("aid-notes", res.Notes)
+	w.Close("div")
 	return w.String()
 }
 
@@ -739,17 +740,5 @@ func sensText(x *float64) string {
 	if math.Abs(*x) < 1e-9 {
 		return "≈ 0"
 	}
-	return plainN(*x, 4)
-}
-
-// aidNotes lists an aid's notes, if it has any.
-func aidNotes(w *writer, notes []string) {
-	if len(notes) == 0 {
-		return
-	}
-	w.open("ul", "class", "aid-notes")
-	for _, n := range notes {
-		w.elem("li", n)
-	}
-	w.close("ul")
+	return PlainN(*x, 4)
 }

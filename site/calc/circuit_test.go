@@ -1,4 +1,4 @@
-package render
+package calc
 
 import (
 	"reflect"
@@ -9,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"zport/engine/api"
+	"zport/site/fragment"
 )
 
 func TestCircuitStateRoundTrip(t *testing.T) {
@@ -54,11 +55,11 @@ func TestCircuitFragmentRefused(t *testing.T) {
 		"ref",
 		"ref=%zz",
 		"ref=%00",
-		"ref=" + strings.Repeat("x", maxFragmentValue+1),
+		"ref=" + strings.Repeat("x", fragment.MaxValue+1),
 		strings.Repeat("port=a&", maxFragmentPorts+1),
 		"src=Vin",
 		"out=o",
-		strings.Repeat("f", maxFragment+1),
+		strings.Repeat("f", fragment.MaxLength+1),
 	} {
 		got, err := ReadCircuitFragment(frag, base)
 		if err == nil {
@@ -106,7 +107,7 @@ func TestCircuitLinkReproducesTopology(t *testing.T) {
 			t.Fatalf("%s: %v", e.ID, err)
 		}
 		state := CircuitLinkState(want)
-		if !strings.Contains(state, "ref="+queryEscape(e.Reference)) {
+		if !strings.Contains(state, "ref="+fragment.Escape(e.Reference)) {
 			t.Errorf("%s: state %q lacks the reference", e.ID, state)
 		}
 		// The page starts from its own defaults and reads the link over them.
@@ -204,7 +205,7 @@ func TestComputeCircuit(t *testing.T) {
 	if out.Output == nil || out.Output.Error != nil || out.Form.Frequency != "2k" || out.Form.Gain == nil || out.Form.Fragment != nil {
 		t.Errorf("link: %+v", out.Form)
 	}
-	hostile := "ref=" + queryEscape(hostile)
+	hostile := "ref=" + fragment.Escape(hostile)
 	linked.Fragment = &hostile
 	out = ComputeCircuit(CircuitRequest{Form: linked})
 	if out.Output == nil || out.Output.Error == nil || out.Output.Error.Param != "reference" {

@@ -1,14 +1,15 @@
-package render
+package calc
 
 import (
+	"maps"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
-	"unicode"
-	"unicode/utf8"
 
 	"zport/engine/api"
 	"zport/engine/value"
+	"zport/site/fragment"
 )
 
 // Form is what a calculator's inputs hold, as typed.
@@ -39,10 +40,10 @@ type Form struct {
 	// topology's defaults in place of Params, Frequency and Sweep.
 	Fragment *string `json:"fragment,omitempty"`
 
-	// Study holds the design-aid settings, which travel in the URL
-	// fragment with the rest (keys starting "aid.", see Study.State); nil
-	// when the user has not set any.
-	Study *Study `json:"study,omitempty"`
+	// Settings holds each analysis's settings as typed, by the
+	// analysis's key (see Analysis); they travel in the URL fragment
+	// under the key's prefix ("aid.tol=J").
+	Settings map[string]Values `json:"settings,omitempty"`
 
 	// Budget, in milliseconds, bounds the time of the sweep: when the spot
 	// analysis shows that the sweep would take longer, it is shortened to
@@ -72,12 +73,6 @@ const (
 	FieldTo        = "sweep.to"
 	FieldPoints    = "sweep.points"
 	FieldFragment  = "fragment"
-)
-
-// Limits on a URL fragment: longer text is refused before it is read.
-const (
-	maxFragment      = 4096
-	maxFragmentValue = 64
 )
 
 // fragment keys for the form's own fields; p is reserved for the
@@ -219,80 +214,104 @@ func (f Form) request() (api.Request, *api.ErrorBody) {
 }
 
 // State writes the form of a topology as a URL fragment (without "#"):
-// every parameter in catalog order, then the spot frequency and sweep.
+// every parameter in catalog order, then the spot frequency and sweep,
+// then the analyses' settings (see Form.analysisState).
 func (f Form) State(e api.CatalogEntry) string {
-	var b strings.Builder
-	add := func(k, v string) {
-		if b.Len() > 0 {
-			b.WriteByte('&')
+	var p fragment.Pairs
+	for _, par := range e.Params {
+		p.Add(par.Name, f.Params[par.Name])
+	}
+	f.analysisState(&p)
+	return p.Encode()
+}
+
+// analysisState adds what every calculator has to p: the spot frequency,
+// the sweep, then each analysis's settings in the order of Analyses, each
+// under its key's prefix: the declared settings in their order where they
+// differ from the default, then the accepted ones in name order where they
+// are not empty.
+func (f Form) analysisState(p *fragment.Pairs) {
+	p.Add(keyFrequency, f.Frequency)
+	p.Add(keyFrom, f.Sweep.From)
+	p.Add(keyTo, f.Sweep.To)
+	p.Add(keyPoints, f.Sweep.Points)
+	for _, a := range Analyses {
+		v := f.Settings[a.Key]
+		if len(v) == 0 {
+			continue
 		}
-		b.WriteString(queryEscape(k))
-		b.WriteByte('=')
-		b.WriteString(queryEscape(v))
+		declared := map[string]bool{}
+		for _, st := range a.Settings {
+			declared[st.Name] = true
+			if x := v[st.Name]; strings.TrimSpace(x) != "" && x != st.Default {
+				p.Add(a.Field(st.Name), x)
+			}
+		}
+		for _, k := range slices.Sorted(maps.Keys(v)) {
+			if !declared[k] && v[k] != "" && a.accepts(k) {
+				p.Add(a.Field(k), v[k])
+			}
+		}
 	}
-	for _, p := range e.Params {
-		add(p.Name, f.Params[p.Name])
-	}
-	add(keyFrequency, f.Frequency)
-	add(keyFrom, f.Sweep.From)
-	add(keyTo, f.Sweep.To)
-	add(keyPoints, f.Sweep.Points)
-	if st := f.Study.State(); st != "" {
-		b.WriteByte('&')
-		b.WriteString(st)
-	}
-	return b.String()
 }
 
-// FragmentError is a URL fragment that could not be read.
-type FragmentError struct {
-	Msg string
+// settingsRead collects the analyses' settings of a fragment.
+type settingsRead map[string]Values
+
+// read takes one fragment pair that may be an analysis's setting: false
+// when the key names no analysis's setting.
+func (s settingsRead) read(k, v string) bool {
+	key, name, ok := strings.Cut(k, ".")
+	if !ok {
+		return false
+	}
+	a := byKey(key)
+	if a == nil || !a.accepts(name) {
+		return false
+	}
+	if s[key] == nil {
+		s[key] = Values{}
+	}
+	s[key][name] = v
+	return true
 }
 
-func (e *FragmentError) Error() string { return e.Msg }
+// over returns base's settings with those of every analysis that the
+// fragment had settings for replaced by the fragment's.
+func (s settingsRead) over(base map[string]Values) map[string]Values {
+	if len(s) == 0 {
+		return base
+	}
+	out := maps.Clone(base)
+	if out == nil {
+		out = map[string]Values{}
+	}
+	maps.Copy(out, s)
+	return out
+}
 
 // ReadFragment reads a URL fragment (with or without "#") written by State
 // over base, a form of topology e: settings the fragment leaves out keep
-// base's values. It refuses the whole fragment when any part of it is
-// malformed, returning base unchanged: the caller then keeps its defaults
-// and says why.
+// base's values, except the analyses' settings, which the fragment
+// replaces whole when it has any. It refuses the whole fragment when any
+// part of it is malformed (see package fragment) or unknown, returning
+// base unchanged: the caller then keeps its defaults and says why.
 func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
 	base = base.withDefaults(e)
+	pairs, err := fragment.Parse(frag)
+	if err != nil {
+		return base, err
+	}
 	f := base
-	f.Params = make(map[string]string, len(base.Params))
-	for k, v := range base.Params {
-		f.Params[k] = v
-	}
-	frag = strings.TrimPrefix(frag, "#")
-	if len(frag) > maxFragment {
-		return base, &FragmentError{"the link's settings are longer than " + strconv.Itoa(maxFragment) + " characters"}
-	}
+	f.Params = maps.Clone(base.Params)
+	settings := settingsRead{}
 	known := make(map[string]bool, len(e.Params))
 	for _, p := range e.Params {
 		known[p.Name] = true
 	}
-	seen := map[string]bool{}
-	var study *Study
-	for _, part := range strings.Split(frag, "&") {
-		if part == "" {
-			continue
-		}
-		rawKey, rawVal, ok := strings.Cut(part, "=")
-		if !ok {
-			return base, &FragmentError{"a setting has no “=”"}
-		}
-		k, v, err := readPair(rawKey, rawVal, seen)
-		if err != nil {
-			return base, err
-		}
+	for _, pr := range pairs {
+		k, v := pr.Key, pr.Value
 		switch {
-		case strings.HasPrefix(k, studyPrefix):
-			if study == nil {
-				study = &Study{}
-			}
-			if !study.readStudyKey(k, v) {
-				return base, &FragmentError{"unknown design-aid setting " + strconv.Quote(k)}
-			}
 		case k == keyPage:
 		case k == keyFrequency:
 			f.Frequency = v
@@ -304,92 +323,11 @@ func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
 			f.Sweep.Points = v
 		case known[k]:
 			f.Params[k] = v
+		case settings.read(k, v):
 		default:
-			return base, &FragmentError{"unknown setting " + strconv.Quote(k) + " for " + e.Title}
+			return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for " + e.Title}
 		}
 	}
-	if study != nil {
-		s := study.compact()
-		f.Study = &s
-	}
+	f.Settings = settings.over(base.Settings)
 	return f, nil
-}
-
-// printable reports whether s is valid UTF-8 free of control characters.
-func printable(s string) bool {
-	if !utf8.ValidString(s) {
-		return false
-	}
-	for _, r := range s {
-		if unicode.IsControl(r) || r == utf8.RuneError {
-			return false
-		}
-	}
-	return true
-}
-
-// queryEscape writes s form-encoded, as URLSearchParams reads it: letters,
-// digits and "-_.~" stay, a space becomes "+", every other byte %XX. It
-// stands in for net/url, which would bring net/netip into the WebAssembly
-// module.
-func queryEscape(s string) string {
-	const hex = "0123456789ABCDEF"
-	var b strings.Builder
-	for i := 0; i < len(s); i++ {
-		c := s[i]
-		switch {
-		case c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '-' || c == '_' || c == '.' || c == '~':
-			b.WriteByte(c)
-		case c == ' ':
-			b.WriteByte('+')
-		default:
-			b.WriteByte('%')
-			b.WriteByte(hex[c>>4])
-			b.WriteByte(hex[c&15])
-		}
-	}
-	return b.String()
-}
-
-// errEscape is a malformed %-escape.
-var errEscape = &FragmentError{"a setting is not properly escaped"}
-
-// queryUnescape reads a form-encoded string: "+" is a space, %XX a byte.
-func queryUnescape(s string) (string, error) {
-	if !strings.ContainsAny(s, "%+") {
-		return s, nil
-	}
-	var b strings.Builder
-	for i := 0; i < len(s); i++ {
-		switch c := s[i]; c {
-		case '+':
-			b.WriteByte(' ')
-		case '%':
-			if i+2 >= len(s) {
-				return "", errEscape
-			}
-			hi, ok1 := unhex(s[i+1])
-			lo, ok2 := unhex(s[i+2])
-			if !ok1 || !ok2 {
-				return "", errEscape
-			}
-			b.WriteByte(hi<<4 | lo)
-			i += 2
-		default:
-			b.WriteByte(c)
-		}
-	}
-	return b.String(), nil
-}
-
-func unhex(c byte) (byte, bool) {
-	switch {
-	case c >= '0' && c <= '9':
-		return c - '0', true
-	case c >= 'a' && c <= 'f':
-		return c - 'a' + 10, true
-	case c >= 'A' && c <= 'F':
-		return c - 'A' + 10, true
-	}
-	return 0, false
 }

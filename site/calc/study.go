@@ -1,8 +1,8 @@
-package render
+package calc
 
 import (
-	"encoding/json"
-	"sort"
+	"maps"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -65,49 +65,29 @@ const (
 	MaxTargets = 8
 )
 
-// Fragment keys of a study: every one starts with studyPrefix, which no
-// catalog parameter name can (they have no dot).
+// Setting names of a study: with the analysis's key, "aid.tol=J" in a
+// share link.
 const (
-	studyPrefix  = "aid."
-	keyTol       = "aid.tol"
-	keyPartTol   = "aid.tol." // + part name
-	keyA0Min     = "aid.a0."  // + opamp name
-	keyGBWMin    = "aid.gbw." // + opamp name
-	keyDist      = "aid.dist"
-	keySeed      = "aid.seed"
-	keyTrials    = "aid.n"
-	keyTarget    = "aid.t" // + 1 … MaxTargets
-	keySeries    = "aid.e"
-	keyCapSeries = "aid.ec"
+	keyTol       = "tol"
+	keyPartTol   = "tol." // + part name
+	keyA0Min     = "a0."  // + opamp name
+	keyGBWMin    = "gbw." // + opamp name
+	keyDist      = "dist"
+	keySeed      = "seed"
+	keyTrials    = "n"
+	keyTarget    = "t" // + 1 … MaxTargets
+	keySeries    = "e"
+	keyCapSeries = "ec"
 )
 
-// Empty reports whether the study holds no setting at all.
-func (s *Study) Empty() bool {
-	if s == nil {
-		return true
-	}
-	return s.Tolerance == "" && len(s.Parts) == 0 && len(s.Amps) == 0 && s.Distribution == "" &&
-		s.Seed == "" && s.Trials == "" && len(s.Targets) == 0 && s.Series == "" && s.CapSeries == ""
-}
-
-// State writes the study as URL fragment pairs (without "#" or a leading
-// "&"): fixed keys first, then per-part tolerances and opamp spreads in
-// name order, then the targets. Empty fields are left out.
-func (s *Study) State() string {
-	if s.Empty() {
-		return ""
-	}
-	var b strings.Builder
-	add := func(k, v string) {
-		if v == "" {
-			return
+// Values writes the study as the design aids' settings, leaving out empty
+// fields.
+func (s Study) Values() Values {
+	v := Values{}
+	add := func(k, x string) {
+		if x != "" {
+			v[k] = x
 		}
-		if b.Len() > 0 {
-			b.WriteByte('&')
-		}
-		b.WriteString(queryEscape(k))
-		b.WriteByte('=')
-		b.WriteString(queryEscape(v))
 	}
 	add(keyTol, s.Tolerance)
 	add(keyDist, s.Distribution)
@@ -115,20 +95,19 @@ func (s *Study) State() string {
 	add(keyTrials, s.Trials)
 	add(keySeries, s.Series)
 	add(keyCapSeries, s.CapSeries)
-	for _, name := range sortedNames(s.Parts) {
-		add(keyPartTol+name, s.Parts[name])
+	for name, x := range s.Parts {
+		add(keyPartTol+name, x)
 	}
-	for _, name := range sortedNames(s.Amps) {
-		add(keyA0Min+name, s.Amps[name].A0Min)
-		add(keyGBWMin+name, s.Amps[name].GBWMin)
+	for name, a := range s.Amps {
+		add(keyA0Min+name, a.A0Min)
+		add(keyGBWMin+name, a.GBWMin)
 	}
 	for i, t := range s.Targets {
-		if i >= MaxTargets {
-			break
+		if i < MaxTargets {
+			add(keyTarget+strconv.Itoa(i+1), t.String())
 		}
-		add(keyTarget+strconv.Itoa(i+1), t.String())
 	}
-	return b.String()
+	return v
 }
 
 // String writes a target as it goes into a share link: "pm<45",
@@ -164,95 +143,99 @@ func parseTarget(s string) (TargetStudy, bool) {
 	return t, t.Value != ""
 }
 
-// readStudyKey reads one fragment pair whose key starts with studyPrefix
-// into s; false when the key is not one of a study's.
-func (s *Study) readStudyKey(k, v string) bool {
-	named := func(prefix string) (string, bool) {
-		name, ok := strings.CutPrefix(k, prefix)
-		return name, ok && name != ""
+// targetIndex reads the number of a target's setting name, "t3" → 3.
+func targetIndex(name string) (int, bool) {
+	n, ok := strings.CutPrefix(name, keyTarget)
+	if !ok {
+		return 0, false
 	}
-	switch k {
-	case keyTol:
-		s.Tolerance = v
-	case keyDist:
-		s.Distribution = v
-	case keySeed:
-		s.Seed = v
-	case keyTrials:
-		s.Trials = v
-	case keySeries:
-		s.Series = v
-	case keyCapSeries:
-		s.CapSeries = v
-	default:
-		if name, ok := named(keyPartTol); ok {
-			if s.Parts == nil {
-				s.Parts = map[string]string{}
-			}
-			s.Parts[name] = v
-			return true
+	i, err := strconv.Atoi(n)
+	return i, err == nil && i >= 1 && i <= MaxTargets && strconv.Itoa(i) == n
+}
+
+// studyKey reports whether name is one of a study's settings.
+func studyKey(name string) bool {
+	switch name {
+	case keyTol, keyDist, keySeed, keyTrials, keySeries, keyCapSeries:
+		return true
+	}
+	for _, prefix := range []string{keyPartTol, keyA0Min, keyGBWMin} {
+		if rest, ok := strings.CutPrefix(name, prefix); ok {
+			return rest != ""
 		}
-		for _, f := range []struct {
-			prefix string
-			set    func(*AmpStudy)
-		}{{keyA0Min, func(a *AmpStudy) { a.A0Min = v }}, {keyGBWMin, func(a *AmpStudy) { a.GBWMin = v }}} {
-			if name, ok := named(f.prefix); ok {
+	}
+	_, ok := targetIndex(name)
+	return ok
+}
+
+// studyOf reads the design aids' settings into a Study. A setting it does
+// not know, or a target it cannot read, is an error naming it.
+func studyOf(v Values) (Study, *api.ErrorBody) {
+	var s Study
+	for _, name := range slices.Sorted(maps.Keys(v)) {
+		x := v[name]
+		bad := func(msg string) (Study, *api.ErrorBody) {
+			return Study{}, &api.ErrorBody{Param: aidsKey + "." + name, Message: msg}
+		}
+		switch name {
+		case keyTol:
+			s.Tolerance = x
+		case keyDist:
+			s.Distribution = x
+		case keySeed:
+			s.Seed = x
+		case keyTrials:
+			s.Trials = x
+		case keySeries:
+			s.Series = x
+		case keyCapSeries:
+			s.CapSeries = x
+		default:
+			if part, ok := strings.CutPrefix(name, keyPartTol); ok && part != "" {
+				if s.Parts == nil {
+					s.Parts = map[string]string{}
+				}
+				s.Parts[part] = x
+				continue
+			}
+			amp, a0 := strings.CutPrefix(name, keyA0Min)
+			if !a0 {
+				amp, _ = strings.CutPrefix(name, keyGBWMin)
+			}
+			if amp != name && amp != "" {
 				if s.Amps == nil {
 					s.Amps = map[string]AmpStudy{}
 				}
-				a := s.Amps[name]
-				f.set(&a)
-				s.Amps[name] = a
-				return true
+				as := s.Amps[amp]
+				if a0 {
+					as.A0Min = x
+				} else {
+					as.GBWMin = x
+				}
+				s.Amps[amp] = as
+				continue
 			}
-		}
-		n, ok := named(keyTarget)
-		if !ok {
-			return false
-		}
-		i, err := strconv.Atoi(n)
-		if err != nil || i < 1 || i > MaxTargets || strconv.Itoa(i) != n {
-			return false
-		}
-		t, ok := parseTarget(v)
-		if !ok {
-			return false
-		}
-		for len(s.Targets) < i {
-			s.Targets = append(s.Targets, TargetStudy{})
-		}
-		s.Targets[i-1] = t
-	}
-	return true
-}
-
-// ReadStudy reads the study pairs of a URL fragment (with or without "#");
-// pairs whose key does not start with "aid." are skipped, so a whole page
-// fragment may be given. Anything malformed refuses the whole study.
-func ReadStudy(frag string) (Study, error) {
-	var s Study
-	seen := map[string]bool{}
-	frag = strings.TrimPrefix(frag, "#")
-	if len(frag) > maxFragment {
-		return Study{}, &FragmentError{"the link's settings are longer than " + strconv.Itoa(maxFragment) + " characters"}
-	}
-	for _, part := range strings.Split(frag, "&") {
-		rawKey, rawVal, ok := strings.Cut(part, "=")
-		if !ok || !strings.HasPrefix(rawKey, studyPrefix) {
-			continue
-		}
-		k, v, err := readPair(rawKey, rawVal, seen)
-		if err != nil {
-			return Study{}, err
-		}
-		if !s.readStudyKey(k, v) {
-			return Study{}, &FragmentError{"unknown design-aid setting " + strconv.Quote(k)}
+			i, ok := targetIndex(name)
+			if !ok {
+				return bad("not a design-aid setting")
+			}
+			if x == "" {
+				continue
+			}
+			t, ok := parseTarget(x)
+			if !ok {
+				return bad("a target is written quantity, < or >, and a value: pm<45, z:out>1k")
+			}
+			for len(s.Targets) < i {
+				s.Targets = append(s.Targets, TargetStudy{})
+			}
+			s.Targets[i-1] = t
 		}
 	}
 	return s.compact(), nil
 }
 
-// compact drops targets left empty by a link that skipped a number.
+// compact drops targets left empty by settings that skipped a number.
 func (s Study) compact() Study {
 	var ts []TargetStudy
 	for _, t := range s.Targets {
@@ -262,36 +245,6 @@ func (s Study) compact() Study {
 	}
 	s.Targets = ts
 	return s
-}
-
-// readPair unescapes and checks one key=value pair of a fragment, as
-// ReadFragment does for every pair.
-func readPair(rawKey, rawVal string, seen map[string]bool) (k, v string, err error) {
-	k, err1 := queryUnescape(rawKey)
-	v, err2 := queryUnescape(rawVal)
-	if err1 != nil || err2 != nil {
-		return "", "", &FragmentError{"a setting is not properly escaped"}
-	}
-	if !printable(k) || !printable(v) {
-		return "", "", &FragmentError{"a setting holds characters that are not allowed"}
-	}
-	if len(k) > maxFragmentValue || len(v) > maxFragmentValue {
-		return "", "", &FragmentError{"a setting is longer than " + strconv.Itoa(maxFragmentValue) + " characters"}
-	}
-	if seen[k] {
-		return "", "", &FragmentError{"the setting " + strconv.Quote(k) + " appears twice"}
-	}
-	seen[k] = true
-	return k, v, nil
-}
-
-func sortedNames[V any](m map[string]V) []string {
-	names := make([]string, 0, len(m))
-	for k := range m {
-		names = append(names, k)
-	}
-	sort.Strings(names)
-	return names
 }
 
 // Field paths of the study's own checks; the engine names the others.
@@ -310,15 +263,15 @@ func TargetField(i int, field string) string {
 // DEVELOPERS.md, "Design aids in the JSON contract"). The seed, trial count, distribution and target
 // values are checked here, each error naming its field; the parts,
 // tolerances and spreads are checked by the engine, which names them too.
-func (s Study) ToleranceKey() (json.RawMessage, *api.ErrorBody) {
-	bad := func(field, msg string) (json.RawMessage, *api.ErrorBody) {
+func (s Study) ToleranceKey() (*api.ToleranceRequest, *api.ErrorBody) {
+	bad := func(field, msg string) (*api.ToleranceRequest, *api.ErrorBody) {
 		return nil, &api.ErrorBody{Param: field, Message: msg}
 	}
 	tr := api.ToleranceRequest{Default: strings.TrimSpace(s.Tolerance)}
 	if tr.Default == "" {
 		tr.Default = DefaultTolerance
 	}
-	for _, name := range sortedNames(s.Parts) {
+	for _, name := range slices.Sorted(maps.Keys(s.Parts)) {
 		if v := strings.TrimSpace(s.Parts[name]); v != "" {
 			if tr.Parts == nil {
 				tr.Parts = map[string]string{}
@@ -326,7 +279,7 @@ func (s Study) ToleranceKey() (json.RawMessage, *api.ErrorBody) {
 			tr.Parts[name] = v
 		}
 	}
-	for _, name := range sortedNames(s.Amps) {
+	for _, name := range slices.Sorted(maps.Keys(s.Amps)) {
 		a := AmpStudy{A0Min: strings.TrimSpace(s.Amps[name].A0Min), GBWMin: strings.TrimSpace(s.Amps[name].GBWMin)}
 		if a != (AmpStudy{}) {
 			if tr.Amps == nil {
@@ -375,18 +328,12 @@ func (s Study) ToleranceKey() (json.RawMessage, *api.ErrorBody) {
 		}
 		tr.Targets = append(tr.Targets, api.TargetRequest{Quantity: tg.Quantity, Port: tg.Port, Op: tg.Op, Value: v})
 	}
-	b, err := json.Marshal(tr)
-	if err != nil {
-		return bad("tolerance", "internal error: "+err.Error())
-	}
-	return b, nil
+	return &tr, nil
 }
 
 // StandardKey converts the study into the engine's "standardValues" key:
 // the series, every resistor and capacitor of the default set, and the
 // stage's own ratios.
-func (s Study) StandardKey() json.RawMessage {
-	sv := api.StandardValuesRequest{Series: strings.TrimSpace(s.Series), CapacitorSeries: strings.TrimSpace(s.CapSeries)}
-	b, _ := json.Marshal(sv) // strings only: cannot fail
-	return b
+func (s Study) StandardKey() *api.StandardValuesRequest {
+	return &api.StandardValuesRequest{Series: strings.TrimSpace(s.Series), CapacitorSeries: strings.TrimSpace(s.CapSeries)}
 }

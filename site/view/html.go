@@ -1,11 +1,11 @@
-package render
+package view
 
 import "strings"
 
 // writer builds HTML in which text and attribute values are always escaped.
 // Element and attribute names come from this package's code only, never from
 // data; raw markup enters only through svg, for the plot package's output.
-type writer struct {
+type Writer struct {
 	b strings.Builder
 }
 
@@ -13,7 +13,7 @@ type writer struct {
 // escaped, and a name given with an empty value and a trailing "?" (e.g.
 // "hidden?") is written as a bare boolean attribute when the value is
 // non-empty and omitted otherwise.
-func (w *writer) open(tag string, attrs ...string) {
+func (w *Writer) Open(tag string, attrs ...string) {
 	w.b.WriteByte('<')
 	w.b.WriteString(tag)
 	for i := 0; i+1 < len(attrs); i += 2 {
@@ -35,30 +35,30 @@ func (w *writer) open(tag string, attrs ...string) {
 }
 
 // close writes an end tag.
-func (w *writer) close(tag string) {
+func (w *Writer) Close(tag string) {
 	w.b.WriteString("</")
 	w.b.WriteString(tag)
 	w.b.WriteByte('>')
 }
 
 // text writes escaped text.
-func (w *writer) text(s string) {
+func (w *Writer) Text(s string) {
 	w.b.WriteString(escape(s))
 }
 
 // elem writes a whole element holding escaped text.
-func (w *writer) elem(tag, text string, attrs ...string) {
-	w.open(tag, attrs...)
-	w.text(text)
-	w.close(tag)
+func (w *Writer) Elem(tag, text string, attrs ...string) {
+	w.Open(tag, attrs...)
+	w.Text(text)
+	w.Close(tag)
 }
 
 // svg inserts markup produced by package plot, which escapes its own text.
-func (w *writer) svg(markup string) {
+func (w *Writer) Raw(markup string) {
 	w.b.WriteString(markup)
 }
 
-func (w *writer) String() string { return w.b.String() }
+func (w *Writer) String() string { return w.b.String() }
 
 // escape replaces the five characters that are markup in text or in a
 // quoted attribute value. It stands in for html.EscapeString, whose package

@@ -1,4 +1,4 @@
-package render
+package view
 
 import (
 	"math"
@@ -10,7 +10,7 @@ import (
 )
 
 // sig is the number of significant digits the panel shows.
-const sig = 4
+const Sig = 4
 
 // negligible is the relative size below which one part of an impedance is
 // left out when naming its equivalent series element: a part that leaves
@@ -27,11 +27,11 @@ const rounding = 1e-13
 
 // num writes x in the shortest form that reads back to the same float64;
 // it is what data-re, data-im and data-value hold.
-func num(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+func Num(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
 // degrees writes an angle in degrees with two decimals and a typographic
 // minus, e.g. "−12.34°".
-func degrees(d float64) string {
+func Degrees(d float64) string {
 	if math.IsNaN(d) || math.IsInf(d, 0) {
 		return "—"
 	}
@@ -44,7 +44,7 @@ func degrees(d float64) string {
 
 // phase is the argument of z in degrees.
 // A zero part counts as +0, so that −0 + j0 does not read as 180°.
-func phase(z complex128) float64 {
+func Phase(z complex128) float64 {
 	re, im := real(z), imag(z)
 	if re == 0 {
 		re = 0
@@ -56,34 +56,32 @@ func phase(z complex128) float64 {
 }
 
 // polar writes z as magnitude ∠ phase, e.g. "54.94 kΩ ∠ −0.01°".
-func polar(z complex128, unit string) string {
+func Polar(z complex128, unit string) string {
 	m := cmplx.Abs(z)
 	if m == 0 {
-		return magnitude(0, unit)
+		return Magnitude(0, unit)
 	}
-	return magnitude(m, unit) + " ∠ " + degrees(phase(z))
+	return Magnitude(m, unit) + " ∠ " + Degrees(Phase(z))
 }
 
 // Magnitude writes a real value in unit as the panel shows it: with an SI
 // prefix for a physical unit ("4.700 kΩ"), as a plain number for a ratio
 // ("" or "V/V"), where a prefix such as the m of "986.0m" reads badly, in
 // degrees for "°" and decibels for "dB".
-func Magnitude(v float64, unit string) string { return magnitude(v, unit) }
-
-func magnitude(v float64, unit string) string {
+func Magnitude(v float64, unit string) string {
 	switch unit {
 	case "":
-		return plain(v)
+		return Plain(v)
 	case "V/V":
-		return plain(v) + " V/V"
+		return Plain(v) + " V/V"
 	case "°":
-		return degrees(v)
+		return Degrees(v)
 	case "dB":
-		return dB(v)
+		return DB(v)
 	}
-	s := value.Format(v, unit, sig)
+	s := value.Format(v, unit, Sig)
 	if strings.Contains(s, "×10^") { // beyond the SI prefixes
-		s = plain(v) + " " + unit
+		s = Plain(v) + " " + unit
 	}
 	return s
 }
@@ -94,10 +92,10 @@ var superscripts = map[rune]string{'0': "⁰", '1': "¹", '2': "²", '3': "³", 
 
 // plain writes a dimensionless number with sig significant digits: fixed
 // point from 0.001 to 100 000, else mantissa × 10ⁿ; a typographic minus.
-func plain(v float64) string { return plainN(v, sig) }
+func Plain(v float64) string { return PlainN(v, Sig) }
 
-// plainN is plain with n significant digits.
-func plainN(v float64, sig int) string {
+// PlainN is Plain with n significant digits.
+func PlainN(v float64, n int) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "—"
 	}
@@ -108,7 +106,7 @@ func plainN(v float64, sig int) string {
 	var s string
 	if a >= 1e-3 && a < 1e5 {
 		e := int(math.Floor(math.Log10(a)))
-		d := sig - 1 - e
+		d := n - 1 - e
 		if d < 0 {
 			d = 0
 		}
@@ -117,7 +115,7 @@ func plainN(v float64, sig int) string {
 			s = strconv.FormatFloat(a, 'f', d-1, 64) // 9.9996 rounds to 10.000
 		}
 	} else {
-		m := strconv.FormatFloat(a, 'e', sig-1, 64)
+		m := strconv.FormatFloat(a, 'e', n-1, 64)
 		i := strings.IndexByte(m, 'e')
 		exp, _ := strconv.Atoi(m[i+1:])
 		var b strings.Builder
@@ -133,7 +131,7 @@ func plainN(v float64, sig int) string {
 }
 
 // dB writes a level in decibels with two decimals, e.g. "−3.01 dB".
-func dB(x float64) string {
+func DB(x float64) string {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
 		return "—"
 	}
@@ -147,7 +145,7 @@ func dB(x float64) string {
 // rect writes z as real ± j imaginary, each part with its own prefix and
 // the unit, e.g. "54.94 kΩ − j3.210 Ω". A ratio ("" or V/V) is written
 // without prefixes, the unit once at the end: "−4.700 − j0.001230 V/V".
-func rect(z complex128, unit string) string {
+func Rect(z complex128, unit string) string {
 	re, im := real(z), imag(z)
 	m := cmplx.Abs(z)
 	if math.Abs(re) <= rounding*m {
@@ -162,22 +160,22 @@ func rect(z complex128, unit string) string {
 	}
 	switch unit {
 	case "", "V/V":
-		s := plain(re) + sign + plain(math.Abs(im))
+		s := Plain(re) + sign + Plain(math.Abs(im))
 		if unit != "" {
 			s += " " + unit
 		}
 		return s
 	}
-	return value.Format(re, unit, sig) + sign + value.Format(math.Abs(im), unit, sig)
+	return value.Format(re, unit, Sig) + sign + value.Format(math.Abs(im), unit, Sig)
 }
 
 // decibels writes 20·log10|z|, e.g. "88.33 dB".
-func decibels(z complex128) string {
+func Decibels(z complex128) string {
 	m := cmplx.Abs(z)
 	if m == 0 {
 		return "−∞ dB"
 	}
-	return dB(20 * math.Log10(m))
+	return DB(20 * math.Log10(m))
 }
 
 // SeriesElement names the two-element series circuit that has impedance z
@@ -211,7 +209,7 @@ func SeriesElement(z complex128, f float64) string {
 
 // sci writes a small positive ratio such as an agreement as mantissa and
 // power of ten for display, e.g. ("2.1", "−15") for 2.1e-15.
-func sci(x float64) (mant, exp string) {
+func Sci(x float64) (mant, exp string) {
 	if x == 0 {
 		return "0", ""
 	}
