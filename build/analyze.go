@@ -12,8 +12,9 @@ import (
 const MaxRequestBytes = 4 << 20
 
 // runAnalyze reads one request from in and writes the response to out. Bad
-// input writes the error object to out and "L:C: message" to errOut, and
-// returns exit status 1.
+// input writes the error object to out and "L:C: message" to errOut (a line
+// for each problem of circuit text that has several), and returns exit
+// status 1.
 func runAnalyze(in io.Reader, out, errOut io.Writer) int {
 	data, err := io.ReadAll(io.LimitReader(in, MaxRequestBytes+1))
 	if err == nil && len(data) > MaxRequestBytes {
@@ -30,11 +31,17 @@ func runAnalyze(in io.Reader, out, errOut io.Writer) int {
 	if !ok {
 		var e api.ErrorResponse
 		_ = json.Unmarshal(resp, &e)
-		where := fmt.Sprintf("%d:%d", e.Error.Line, e.Error.Column)
-		if e.Error.Param != "" {
-			where += ": " + e.Error.Param
+		all := e.Error.Errors
+		if len(all) == 0 {
+			all = []api.ErrorBody{e.Error}
 		}
-		fmt.Fprintf(errOut, "%s: %s\n", where, e.Error.Message)
+		for _, b := range all {
+			where := fmt.Sprintf("%d:%d", b.Line, b.Column)
+			if b.Param != "" {
+				where += ": " + b.Param
+			}
+			fmt.Fprintf(errOut, "%s: %s\n", where, b.Message)
+		}
 		return 1
 	}
 	return 0

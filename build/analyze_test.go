@@ -57,3 +57,41 @@ func TestAnalyzeCommandErrors(t *testing.T) {
 		}
 	}
 }
+
+// Circuit text with several problems: every one is reported, in the
+// error object and on stderr, each with its line and column.
+func TestAnalyzeCommandReportsEveryProblem(t *testing.T) {
+	req := `{"circuit": "resistor R1 a gnd 4k7k\nresistor R2 a\ncapacitor C1 a gnd -1p\n", "reference": "U1", "frequency": 1}`
+	var out, errOut bytes.Buffer
+	if code := runAnalyze(strings.NewReader(req), &out, &errOut); code != 1 {
+		t.Fatalf("exit %d, want 1", code)
+	}
+	var e api.ErrorResponse
+	if err := json.Unmarshal(out.Bytes(), &e); err != nil {
+		t.Fatal(err)
+	}
+	if len(e.Error.Errors) != 3 || e.Error.Errors[0].Line != 1 || e.Error.Errors[1].Line != 2 || e.Error.Errors[2].Line != 3 {
+		t.Errorf("errors %+v, want one on each of lines 1, 2 and 3", e.Error.Errors)
+	}
+	lines := strings.Split(strings.TrimSpace(errOut.String()), "\n")
+	if len(lines) != 3 || !strings.HasPrefix(lines[0], "1:22: ") || !strings.HasPrefix(lines[1], "2:") || !strings.HasPrefix(lines[2], "3:") {
+		t.Errorf("stderr %q, want three located lines", errOut.String())
+	}
+}
+
+// A circuit that cannot be solved names the nodes and parts it is traced
+// to in the error object, not only in its message.
+func TestAnalyzeCommandNamesSingularParts(t *testing.T) {
+	req := `{"circuit": "vsource V1 a gnd 1\nvsource V2 a gnd 2\nvcvs E1 b gnd sense=a,gnd gain=1\nresistor R1 b gnd 1k\n", "reference": "E1", "frequency": 1}`
+	var out, errOut bytes.Buffer
+	if code := runAnalyze(strings.NewReader(req), &out, &errOut); code != 1 {
+		t.Fatalf("exit %d, want 1", code)
+	}
+	var e api.ErrorResponse
+	if err := json.Unmarshal(out.Bytes(), &e); err != nil {
+		t.Fatal(err)
+	}
+	if strings.Join(e.Error.Parts, ",") != "V1,V2" {
+		t.Errorf("parts %v in %s, want V1, V2 (a loop of voltage sources)", e.Error.Parts, out.String())
+	}
+}

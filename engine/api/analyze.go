@@ -23,12 +23,19 @@ const MaxPoints = 5000
 const MaxCircuitBytes = 256 << 10
 
 // Problem is an error with a place: a circuit line and column, or a named
-// parameter or request field.
+// parameter or request field. Err, when set, is its cause (a
+// *feedback.SingularError naming nodes and parts), kept for errors.As; More
+// lists the further problems of circuit text that has several.
 type Problem struct {
 	Line, Column int
 	Param        string
 	Msg          string
+	Err          error
+	More         []*Problem
 }
+
+// Unwrap returns the cause.
+func (p *Problem) Unwrap() error { return p.Err }
 
 func (p *Problem) Error() string {
 	if p.Line > 0 {
@@ -44,13 +51,28 @@ func fieldErr(field, format string, args ...any) *Problem {
 	return &Problem{Param: field, Msg: fmt.Sprintf(format, args...)}
 }
 
-// Body converts any error from Analyze into the wire error body.
+// Body converts any error from Analyze into the wire error body: its place,
+// the nodes and parts a singular circuit is traced to, and every problem
+// of circuit text that has several.
 func Body(err error) ErrorBody {
+	var b ErrorBody
 	var p *Problem
 	if errors.As(err, &p) {
-		return ErrorBody{Line: p.Line, Column: p.Column, Param: p.Param, Message: p.Msg}
+		b = ErrorBody{Line: p.Line, Column: p.Column, Param: p.Param, Message: p.Msg}
+		if len(p.More) > 0 {
+			b.Errors = append(b.Errors, ErrorBody{Line: p.Line, Column: p.Column, Message: p.Msg})
+			for _, m := range p.More {
+				b.Errors = append(b.Errors, ErrorBody{Line: m.Line, Column: m.Column, Message: m.Msg})
+			}
+		}
+	} else {
+		b = ErrorBody{Message: err.Error()}
 	}
-	return ErrorBody{Message: err.Error()}
+	var se *feedback.SingularError
+	if errors.As(err, &se) {
+		b.Nodes, b.Parts = se.Nodes, se.Parts
+	}
+	return b
 }
 
 // sizeProblem refuses circuit text longer than MaxCircuitBytes.
@@ -138,11 +160,11 @@ func prepare(req Request, parsed *circuit.Circuit) (*Prepared, error) {
 	if err != nil {
 		var list circuit.ErrorList
 		if errors.As(err, &list) && len(list) > 0 {
-			msg := list[0].Msg
-			if len(list) > 1 {
-				msg += fmt.Sprintf(" (and %d more problems)", len(list)-1)
+			p := &Problem{Line: list[0].Line, Column: list[0].Column, Msg: list[0].Msg}
+			for _, e := range list[1:] {
+				p.More = append(p.More, &Problem{Line: e.Line, Column: e.Column, Msg: e.Msg})
 			}
-			return nil, &Problem{Line: list[0].Line, Column: list[0].Column, Msg: msg}
+			return nil, p
 		}
 		return nil, err
 	}
@@ -254,7 +276,7 @@ func (p *Prepared) Run() (*Response, error) {
 	pt, err := a.At(p.Req.Frequency)
 	a.Condition = false
 	if err != nil {
-		return nil, &Problem{Msg: err.Error()}
+		return nil, &Problem{Msg: err.Error(), Err: err}
 	}
 	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), Notes: []string{}, Condition: F(pt.Cond)}
 	for i, pr := range pt.Ports {
@@ -269,7 +291,7 @@ func (p *Prepared) Run() (*Response, error) {
 		grid := floats.LogSpan(make([]float64, s.Points), s.From, s.To)
 		pts, err := a.Sweep(grid)
 		if err != nil {
-			return nil, &Problem{Msg: err.Error()}
+			return nil, &Problem{Msg: err.Error(), Err: err}
 		}
 		resp.Sweep = sweepResult(grid, pts)
 		resp.fillSweepNames()

@@ -288,7 +288,7 @@ func (p *Prepared) startTolerance(m *aids.Model, tr *ToleranceRequest) (*Toleran
 	}
 	mc, err := aids.NewMonteCarlo(m, spreads, opt)
 	if err != nil {
-		return nil, &Problem{Msg: err.Error()}
+		return nil, &Problem{Msg: err.Error(), Err: err}
 	}
 	run := &ToleranceRun{mc: mc, m: m, bins: tr.Bins, parts: parts, reqs: tr.Targets}
 	for i, t := range tr.Targets {

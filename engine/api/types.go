@@ -250,10 +250,16 @@ type ErrorResponse struct {
 
 // ErrorBody locates a problem: Line and Column (1-based) in the circuit
 // text when it came from there, else zero; Param names the topology
-// parameter or request field at fault.
+// parameter or request field at fault. A circuit that cannot be solved
+// names the Nodes and Parts it is traced to; circuit text with several
+// problems lists every one in Errors, the first of them also in the
+// body's own fields.
 type ErrorBody struct {
-	Line    int    `json:"line"`
-	Column  int    `json:"column"`
-	Param   string `json:"param,omitempty"`
-	Message string `json:"message"`
+	Line    int         `json:"line"`
+	Column  int         `json:"column"`
+	Param   string      `json:"param,omitempty"`
+	Message string      `json:"message"`
+	Nodes   []string    `json:"nodes,omitempty"`
+	Parts   []string    `json:"parts,omitempty"`
+	Errors  []ErrorBody `json:"errors,omitempty"`
 }

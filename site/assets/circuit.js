@@ -309,13 +309,7 @@
         li.setAttribute('data-line', e.line);
         if (!marked[e.line]) {
           marked[e.line] = true;
-          var mk = document.createElement('div');
-          mk.className = 'gutter-mark';
-          mk.setAttribute('data-line', e.line);
-          mk.title = 'line ' + e.line + ': ' + e.message;
-          mk.style.top = (m.top + (e.line - 1) * m.lh) + 'px';
-          mk.style.height = m.lh + 'px';
-          this.marks.appendChild(mk);
+          this.gutterMark(e, m);
         }
         this.underline(text, e, m);
       } else {
@@ -328,6 +322,36 @@
       extra.className = 'more';
       extra.textContent = more;
       this.errorList.appendChild(extra);
+    }
+  };
+
+  // gutterMark marks an error's line in the gutter.
+  Editor.prototype.gutterMark = function (e, m) {
+    var mk = document.createElement('div');
+    mk.className = 'gutter-mark';
+    mk.setAttribute('data-line', e.line);
+    mk.title = 'line ' + e.line + ': ' + e.message;
+    mk.style.top = (m.top + (e.line - 1) * m.lh) + 'px';
+    mk.style.height = m.lh + 'px';
+    this.marks.appendChild(mk);
+  };
+
+  // markParts marks the lines of the parts an engine error names (a loop
+  // of voltage sources, a node nothing ties down): the part's name is the
+  // second word of its line.
+  Editor.prototype.markParts = function (names, message) {
+    if (!names || !names.length) return;
+    var want = {};
+    for (var i = 0; i < names.length; i++) want[names[i]] = true;
+    var m = this.measure();
+    var text = this.ta.value;
+    var lines = text.split('\n');
+    for (var n = 0; n < lines.length; n++) {
+      var words = lines[n].replace(/#.*/, '').trim().split(/\s+/);
+      if (words.length < 2 || !want[words[1]]) continue;
+      var e = { line: n + 1, column: lines[n].indexOf(words[1]) + 1, message: message };
+      this.gutterMark(e, m);
+      this.underline(text, e, m);
     }
   };
 
@@ -648,7 +672,8 @@
       msg.textContent = err.message;
       return;
     }
-    this.showProblems([err]);
+    this.showProblems(err.errors && err.errors.length ? err.errors : [err]);
+    this.markParts(err.parts, err.message);
   };
 
   Editor.prototype.setStale = function (stale) {

@@ -1027,3 +1027,22 @@ func TestCustomScreenshots(t *testing.T) {
 	}
 	t.Logf("screenshots in %s", dir)
 }
+
+// A circuit the engine cannot solve names the parts it is traced to; the
+// editor marks their lines (a loop of two voltage sources here).
+func TestCustomSingularMarksParts(t *testing.T) {
+	ctx := start(t)
+	edLoad(t, ctx, fileURL("custom", ""))
+	edSetText(t, ctx, "vsource V1 a gnd 1\nvsource V2 a gnd 2\nvcvs E1 b gnd sense=a,gnd gain=1\nresistor R1 b gnd 1k\nport p b gnd\n")
+	g := eval[geometry](t, ctx, geometryJS)
+	if fmt.Sprint(g.MarkLines) != "[1 2]" {
+		t.Errorf("gutter marks on lines %v, want 1 and 2 (V1 and V2)", g.MarkLines)
+	}
+	if len(g.Listed) != 1 || !strings.Contains(g.Listed[0], "V1") {
+		t.Errorf("listed %q, want the engine's message naming V1 and V2", g.Listed)
+	}
+	if !edStale(t, ctx) {
+		t.Error("the results are not marked stale")
+	}
+	checkHealthy(t, ctx)
+}
