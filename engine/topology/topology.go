@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strings"
 
+	"zport/engine/circuit"
 	"zport/engine/value"
 )
 
@@ -49,6 +50,17 @@ type Sweep struct {
 // Values holds a stage's parsed parameters; an absent optional parameter
 // has no key.
 type Values map[string]float64
+
+// TemperatureKey is the key under which Values may carry the analysis
+// temperature in kelvin. It is the request's setting, not a parameter of
+// the stage: a stage whose circuit has transistors given by their bias
+// reads it with Kelvin, so that its closed forms use the VT = kT/q at which
+// its generated text is parsed.
+const TemperatureKey = "temperature"
+
+// Kelvin returns the analysis temperature v carries, or
+// circuit.DefaultTemperature.
+func (v Values) Kelvin() float64 { return v.Or(TemperatureKey, circuit.DefaultTemperature) }
 
 // Has reports whether the optional parameter name is present.
 func (v Values) Has(name string) bool { _, ok := v[name]; return ok }
