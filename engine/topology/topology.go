@@ -24,6 +24,9 @@ type Param struct {
 	// absent is infinite). Values omits them.
 	Optional bool
 	Group    string // "amplifier", "network", "source", "load"
+	// Decibels: a dimensionless gain that may also be typed in decibels,
+	// 20·log10 of the gain (100dB is 1e5; value.ParseGain).
+	Decibels bool
 }
 
 // PortDef is a port of the generated circuit.
@@ -224,7 +227,13 @@ func (t *Topology) Values(params map[string]string) (Values, error) {
 			}
 			return nil, &ParamError{p.Name, fmt.Sprintf("%s (%s) needs a value", p.Symbol, p.Meaning)}
 		}
-		x, err := value.Parse(s, p.Unit)
+		var x float64
+		var err error
+		if p.Decibels {
+			x, err = value.ParseGain(s)
+		} else {
+			x, err = value.Parse(s, p.Unit)
+		}
 		if err != nil {
 			var se *value.SyntaxError
 			msg := err.Error()
