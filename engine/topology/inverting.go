@@ -387,27 +387,27 @@ func opmWith(v Values, set map[string]float64, drop ...string) Values {
 // engine refining each crossing between grid points.
 func opmMarginGrid() []float64 { return floats.LogSpan(make([]float64, 701), 1e-2, 1e12) }
 
-// opmLoop analyzes the loop of circuit text (reference U1) and returns its
-// margins, evaluated by the engine itself. Extras use it on variants of a
-// stage (a different Cf, Riso removed …); it never goes through Forms, so it
-// cannot recurse.
-func opmLoop(text string) (feedback.MarginResult, *feedback.Analyzer, error) {
-	c, err := circuit.Parse(text)
+// loopMargins analyzes the loop of circuit text for the reference ref,
+// parsed at kelvin, and returns its margins, evaluated by the engine
+// itself. Extras use it on variants of a stage (a different Cf, Riso
+// removed …); it never goes through Forms, so it cannot recurse.
+func loopMargins(text, ref string, kelvin float64) (feedback.MarginResult, error) {
+	c, err := circuit.ParseWith(text, circuit.Options{Temperature: kelvin})
 	if err != nil {
-		return feedback.MarginResult{}, nil, err
+		return feedback.MarginResult{}, err
 	}
-	a, err := feedback.New(c, "U1", nil, nil)
+	a, err := feedback.New(c, ref, nil, nil)
 	if err != nil {
-		return feedback.MarginResult{}, nil, err
+		return feedback.MarginResult{}, err
 	}
 	grid := opmMarginGrid()
 	T := make([]complex128, len(grid))
 	for i, f := range grid {
 		if T[i], err = a.ReturnRatio(f); err != nil {
-			return feedback.MarginResult{}, nil, err
+			return feedback.MarginResult{}, err
 		}
 	}
-	return feedback.Margins(grid, T, a.ReturnRatio), a, nil
+	return feedback.Margins(grid, T, a.ReturnRatio), nil
 }
 
 // opmMarginExtras reports the governing phase margin and crossover of a
@@ -415,7 +415,7 @@ func opmLoop(text string) (feedback.MarginResult, *feedback.Analyzer, error) {
 // variant cannot be analyzed).
 func opmMarginExtras(text, label, note, source string) []Extra {
 	pm, fc := math.NaN(), math.NaN()
-	if m, _, err := opmLoop(text); err == nil {
+	if m, err := loopMargins(text, "U1", circuit.DefaultTemperature); err == nil {
 		pm, fc = m.PhaseMargin, m.Crossover
 	}
 	return []Extra{

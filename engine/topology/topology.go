@@ -154,7 +154,7 @@ var catalog []*Topology
 func register(t *Topology) { catalog = append(catalog, t) }
 
 // order fixes the catalog's order on every page.
-var order = []string{"inverting", "noninverting", "follower", "transimpedance", "difference", "howland", "integrator", "capload", "degenerated", "shuntfeedback"}
+var order = []string{"inverting", "noninverting", "follower", "transimpedance", "difference", "howland", "integrator", "capload", "degenerated", "shuntfeedback", "boostedcascode", "emitterfollower", "miller"}
 
 // Catalog returns the stages in catalog order.
 func Catalog() []*Topology {
