@@ -53,6 +53,7 @@ func (p *panel) write() {
 	p.gain()
 	p.loop()
 	p.extras()
+	p.devices()
 	p.notes()
 	p.plots()
 	p.circuit()
