@@ -223,7 +223,7 @@ func init() {
 			{Name: "Cgs2", Symbol: "C_gs2", Meaning: "gate-source capacitance of M2 (empty: none)", Unit: "F", Default: "50f", Min: 1e-18, Max: 1e-9, Optional: true, Group: "amplifier"},
 			{Name: "Cgd2", Symbol: "C_gd2", Meaning: "gate-drain capacitance of M2 (empty: none)", Unit: "F", Default: "5f", Min: 1e-18, Max: 1e-9, Optional: true, Group: "amplifier"},
 			{Name: "Ab", Symbol: "A_b", Meaning: "booster DC gain (as a ratio, or in dB: 60dB)", Unit: "", Default: "1000", Min: 1e-3, Max: 1e8, Group: "amplifier", Decibels: true},
-			{Name: "gbwb", Symbol: "GBW_b", Meaning: "booster gain-bandwidth product, first pole at GBW_b/A_b (empty: flat gain)", Unit: "Hz", Default: "200M", Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
+			{Name: "gbwb", Symbol: "GBW_b", Meaning: "booster gain-bandwidth product, its first pole at this over the booster gain (empty: flat gain)", Unit: "Hz", Default: "200M", Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
 			{Name: "Cx", Symbol: "C_x", Meaning: "capacitance from x to gnd: M1's drain, M2's source, the booster's input (empty: none)", Unit: "F", Default: "20f", Min: 1e-18, Max: 1e-9, Optional: true, Group: "network"},
 			{Name: "RL", Symbol: "R_L", Meaning: "load resistance at the drain to AC ground (empty: none, the port shows the sink alone)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e15, Optional: true, Group: "load"},
 			{Name: "CL", Symbol: "C_L", Meaning: "load capacitance at the drain (empty: none)", Unit: "F", Default: "", Min: 1e-18, Max: 1e-6, Optional: true, Group: "load"},

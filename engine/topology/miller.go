@@ -219,8 +219,8 @@ func mlExtras(v Values) []Extra {
 	hz := func(w float64) float64 { return w / (2 * math.Pi) }
 	x := []Extra{
 		{Name: "open-loop DC gain A0", Value: a0, Unit: "V/V", Note: fmt.Sprintf("%.4g dB", 20*math.Log10(math.Abs(a0))), Source: cfSrcDerived},
-		{Name: "first stage: Gs = transconductance, R1 = output resistance", Value: r1, Unit: "Ω",
-			Note: "R1 = 1/Ys(0) ≈ ro2 ∥ ro4; Gs(0) = " + cfShow(real(gs0), "S") + " ≈ gm1", Source: cfSrcDerived},
+		{Name: "first stage's output resistance R1 = 1/Ys(0)", Value: r1, Unit: "Ω",
+			Note: "≈ ro2 ∥ ro4; its transconductance Gs(0) = " + cfShow(real(gs0), "S") + " ≈ gm1", Source: cfSrcDerived},
 	}
 	mag := func(i int) float64 {
 		if i < len(poles) {

@@ -25,18 +25,23 @@ func (p *panel) devices() {
 	h := p.id + "-devices-h"
 	w.open("section", "class", "block devices", "aria-labelledby", h)
 	w.elem("h3", "Transistors", "id", h)
+	byKind := map[string][]api.Device{}
+	for _, d := range r.Devices {
+		byKind[d.Kind] = append(byKind[d.Kind], d)
+	}
+	var models []string
+	if len(byKind["bjt"]) > 0 {
+		models = append(models, "a bjt is the hybrid-π model, gm = IC/VT, rπ = β0/gm, ro = VA/IC, Cπ = gm/(2π·fT) − Cμ")
+	}
+	if len(byKind["mos"]) > 0 {
+		models = append(models, "a mos has gm = 2·ID/Vov, ro = 1/(λ·ID)")
+	}
 	w.open("p", "class", "explain")
 	w.text("The small-signal model each transistor line gives at its bias, at " + value.Format(r.Temperature, "K", sig) +
-		" (VT = kT/q = " + value.Format(circuit.ThermalVoltage(r.Temperature), "V", sig) + "): a bjt is the hybrid-π model, gm = IC/VT, rπ = β0/gm, ro = VA/IC, Cπ = gm/(2π·fT) − Cμ; a mos gm = 2·ID/Vov, ro = 1/(λ·ID).")
+		" (VT = kT/q = " + value.Format(circuit.ThermalVoltage(r.Temperature), "V", sig) + "): " + strings.Join(models, "; ") + ".")
 	w.close("p")
 	for _, kind := range []string{"bjt", "mos"} {
-		var ds []api.Device
-		for _, d := range r.Devices {
-			if d.Kind == kind {
-				ds = append(ds, d)
-			}
-		}
-		if len(ds) > 0 {
+		if ds := byKind[kind]; len(ds) > 0 {
 			p.deviceTable(kind, ds)
 		}
 	}
