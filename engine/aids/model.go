@@ -15,8 +15,8 @@ import (
 type Field int
 
 // The numbers of a part a Param can be: its Value (resistance,
-// capacitance, inductance or controlled-source gain) or one of an opamp's
-// model numbers.
+// capacitance, inductance, controlled-source gain or a transistor's gm) or
+// one of an opamp's model numbers.
 const (
 	FieldValue Field = iota
 	FieldA0
@@ -25,9 +25,11 @@ const (
 	FieldRid
 	FieldRcm
 	FieldRo
+	FieldCid
+	FieldCcm
 )
 
-var fieldNames = [...]string{"value", "a0", "gbw", "p2", "rid", "rcm", "ro"}
+var fieldNames = [...]string{"value", "a0", "gbw", "p2", "rid", "rcm", "ro", "cid", "ccm"}
 
 func (f Field) String() string {
 	if f < 0 || int(f) >= len(fieldNames) {
@@ -53,7 +55,8 @@ const (
 // Param is one number of a circuit that the design aids may vary.
 type Param struct {
 	// Name is the part name ("R1") for a part's value, "U1.a0" for an
-	// opamp's model number, or the topology parameter's name.
+	// opamp's model number, "Q1.gm" for a transistor's transconductance, or
+	// the topology parameter's name.
 	Name    string
 	Unit    string // "Ω", "F", "H", "Hz", "S", "" …
 	Nominal float64
@@ -127,7 +130,8 @@ func (m *Model) Param(name string) int {
 
 // CircuitParams lists every number of c that the design aids can vary:
 // the value of each resistor, capacitor, inductor and controlled source,
-// and each opamp's a0 and, where present, gbw, p2, rid, rcm and ro.
+// each opamp's a0 and, where present, gbw, p2, rid, rcm, ro, cid and ccm,
+// and each transistor's gm (its other values held).
 // Independent sources are left out: a linear analysis's impedances and
 // gains do not depend on them.
 func CircuitParams(c *circuit.Circuit) []Param {
@@ -142,6 +146,9 @@ func CircuitParams(c *circuit.Circuit) []Param {
 				ps = append(ps, Param{Name: p.Name, Unit: kindUnit[p.Kind], Nominal: p.Value, Class: Other,
 					Kind: p.Kind, Part: i, Field: FieldValue})
 			}
+		case circuit.BJT, circuit.MOS:
+			ps = append(ps, Param{Name: p.Name + ".gm", Unit: "S", Nominal: p.Value, Class: Other,
+				Kind: p.Kind, Part: i, Field: FieldValue})
 		case circuit.OpAmp:
 			a := p.Amp
 			for _, f := range []struct {
@@ -150,7 +157,8 @@ func CircuitParams(c *circuit.Circuit) []Param {
 				unit  string
 				class Class
 			}{{FieldA0, a.A0, "", AmpSpread}, {FieldGBW, a.GBW, "Hz", AmpSpread}, {FieldP2, a.P2, "Hz", Other},
-				{FieldRid, a.Rid, "Ω", Other}, {FieldRcm, a.Rcm, "Ω", Other}, {FieldRo, a.Ro, "Ω", Other}} {
+				{FieldRid, a.Rid, "Ω", Other}, {FieldRcm, a.Rcm, "Ω", Other}, {FieldRo, a.Ro, "Ω", Other},
+				{FieldCid, a.Cid, "F", Other}, {FieldCcm, a.Ccm, "F", Other}} {
 				if f.v > 0 {
 					ps = append(ps, Param{Name: p.Name + "." + f.field.String(), Unit: f.unit, Nominal: f.v,
 						Class: f.class, Kind: circuit.OpAmp, Part: i, Field: f.field})
@@ -167,7 +175,7 @@ var kindUnit = map[circuit.Kind]string{circuit.Resistor: "Ω", circuit.Capacitor
 var unitKind = map[string]circuit.Kind{"Ω": circuit.Resistor, "F": circuit.Capacitor, "H": circuit.Inductor}
 
 // ampFields maps a stage's op-amp parameter names to the opamp's fields.
-var ampFields = map[string]Field{"a0": FieldA0, "gbw": FieldGBW, "p2": FieldP2, "rid": FieldRid, "rcm": FieldRcm, "ro": FieldRo}
+var ampFields = map[string]Field{"a0": FieldA0, "gbw": FieldGBW, "p2": FieldP2, "rid": FieldRid, "rcm": FieldRcm, "ro": FieldRo, "cid": FieldCid, "ccm": FieldCcm}
 
 // StageParams lists the parameters of stage t at values v as Params of c,
 // the circuit that t.Circuit(v) parses to. Each parameter is located as one
@@ -217,7 +225,7 @@ func StageParams(t *topology.Topology, v topology.Values, c *circuit.Circuit) (p
 		for i, p := range params {
 			w[p.Name] = x[i]
 		}
-		c2, err := circuit.Parse(t.Circuit(w))
+		c2, err := circuit.ParseWith(t.Circuit(w), circuit.Options{Temperature: c.Temperature})
 		if err != nil {
 			return nil, err
 		}
@@ -237,7 +245,7 @@ func locatedRight(t *topology.Topology, v topology.Values, c *circuit.Circuit, p
 	}
 	moved := p.Nominal * 1.0625
 	w[p.Name] = moved
-	c2, err := circuit.Parse(t.Circuit(w))
+	c2, err := circuit.ParseWith(t.Circuit(w), circuit.Options{Temperature: c.Temperature})
 	if err != nil || len(c2.Parts) != len(c.Parts) || len(c2.Nodes) != len(c.Nodes) {
 		return false
 	}
@@ -249,6 +257,9 @@ func locatedRight(t *topology.Topology, v topology.Values, c *circuit.Circuit, p
 			return false
 		}
 		if a.Amp != nil && *a.Amp != *b.Amp {
+			return false
+		}
+		if (a.Dev == nil) != (b.Dev == nil) || a.Dev != nil && *a.Dev != *b.Dev {
 			return false
 		}
 		if len(a.Nodes) != len(b.Nodes) {
@@ -293,6 +304,10 @@ func getField(p *circuit.Part, f Field) float64 {
 		return p.Amp.Rcm
 	case FieldRo:
 		return p.Amp.Ro
+	case FieldCid:
+		return p.Amp.Cid
+	case FieldCcm:
+		return p.Amp.Ccm
 	}
 	panic("aids: unknown field")
 }
@@ -313,6 +328,10 @@ func setField(p *circuit.Part, f Field, x float64) {
 		p.Amp.Rcm = x
 	case FieldRo:
 		p.Amp.Ro = x
+	case FieldCid:
+		p.Amp.Cid = x
+	case FieldCcm:
+		p.Amp.Ccm = x
 	default:
 		panic("aids: unknown field")
 	}

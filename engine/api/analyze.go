@@ -100,7 +100,8 @@ func Prepare(req Request) (*Prepared, error) { return prepare(req, nil) }
 // PrepareParsed is Prepare for a circuit-text request whose text the
 // caller has parsed already: c must be what circuit.Parse(req.Circuit)
 // returned (InspectParsed gives it). It saves parsing the text twice when
-// a page both inspects and analyzes it on every edit.
+// a page both inspects and analyzes it on every edit; a c parsed at another
+// temperature than the request's is parsed again.
 func PrepareParsed(req Request, c *circuit.Circuit) (*Prepared, error) {
 	if c == nil || req.Topology != "" {
 		return nil, fieldErr("circuit", "PrepareParsed needs circuit text and its parsed circuit")
@@ -112,6 +113,10 @@ func prepare(req Request, parsed *circuit.Circuit) (*Prepared, error) {
 	p := &Prepared{Req: req}
 	if (req.Circuit == "") == (req.Topology == "") {
 		return nil, fieldErr("circuit", "give exactly one of \"circuit\" (circuit text) and \"topology\" (a catalog stage ID)")
+	}
+	kelvin, err := req.temperature()
+	if err != nil {
+		return nil, err
 	}
 	text := req.Circuit
 	ref := req.Reference
@@ -134,6 +139,7 @@ func prepare(req Request, parsed *circuit.Circuit) (*Prepared, error) {
 			}
 			return nil, err
 		}
+		v[topology.TemperatureKey] = kelvin
 		p.Stage, p.Values = t, v
 		text = t.Circuit(v)
 		if ref == "" {
@@ -153,9 +159,9 @@ func prepare(req Request, parsed *circuit.Circuit) (*Prepared, error) {
 	if p := sizeProblem(text); p != nil {
 		return nil, p
 	}
-	c, err := parsed, error(nil)
-	if c == nil {
-		c, err = circuit.Parse(text)
+	c := parsed
+	if c == nil || c.Temperature != kelvin {
+		c, err = circuit.ParseWith(text, circuit.Options{Temperature: kelvin})
 	}
 	if err != nil {
 		var list circuit.ErrorList
@@ -278,7 +284,8 @@ func (p *Prepared) Run() (*Response, error) {
 	if err != nil {
 		return nil, &Problem{Msg: err.Error(), Err: err}
 	}
-	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), Notes: []string{}, Condition: F(pt.Cond)}
+	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), Notes: []string{}, Condition: F(pt.Cond),
+		Temperature: p.Circuit.Temperature, Devices: devices(p.Circuit)}
 	for i, pr := range pt.Ports {
 		resp.Ports = append(resp.Ports, portResult(a, i, pr))
 	}
@@ -411,7 +418,13 @@ func margins(m feedback.MarginResult) *Margins {
 
 func (p *Prepared) echo() *TopologyEcho {
 	t := p.Stage
-	e := &TopologyEcho{ID: t.ID, Title: t.Title, Params: map[string]float64(p.Values), Circuit: p.Text,
+	params := map[string]float64{}
+	for k, x := range p.Values {
+		if k != topology.TemperatureKey { // the request's setting, echoed as the response's temperature
+			params[k] = x
+		}
+	}
+	e := &TopologyEcho{ID: t.ID, Title: t.Title, Params: params, Circuit: p.Text,
 		Reference: p.Req.Reference, Ports: p.PortDefs}
 	if g := p.Analyzer.Gain; g != nil {
 		e.Gain = &GainSpec{Source: g.SourceName, Output: g.OutputName}

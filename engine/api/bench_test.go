@@ -19,6 +19,9 @@ func benchStage(b *testing.B, id string) {
 	}
 }
 
-func BenchmarkInverting3Port400(b *testing.B)      { benchStage(b, "inverting") }
-func BenchmarkTransimpedance2Port400(b *testing.B) { benchStage(b, "transimpedance") }
-func BenchmarkDifference3Port400(b *testing.B)     { benchStage(b, "difference") }
+func BenchmarkInverting3Port400(b *testing.B)       { benchStage(b, "inverting") }
+func BenchmarkTransimpedance2Port400(b *testing.B)  { benchStage(b, "transimpedance") }
+func BenchmarkDifference3Port400(b *testing.B)      { benchStage(b, "difference") }
+func BenchmarkBoostedCascode2Port400(b *testing.B)  { benchStage(b, "boostedcascode") }
+func BenchmarkEmitterFollower2Port400(b *testing.B) { benchStage(b, "emitterfollower") }
+func BenchmarkMiller2Port400(b *testing.B)          { benchStage(b, "miller") }

@@ -27,6 +27,10 @@ type Request struct {
 	Gain *GainSpec `json:"gain,omitempty"`
 	// Sweep asks for the same quantities on a log-spaced grid.
 	Sweep *SweepSpec `json:"sweep,omitempty"`
+	// Temperature is the analysis temperature in kelvin (absent: 300 K,
+	// above 0 and at most 1000 K): transistors given by their bias derive
+	// VT = kT/q from it, and a noise analysis uses the same setting.
+	Temperature *float64 `json:"temperature,omitempty"`
 
 	// analyses holds the options of every registered analysis asked for
 	// (the design aids, …), by key; see Analysis.
@@ -94,6 +98,11 @@ type Response struct {
 	Sweep     *SweepResult  `json:"sweep,omitempty"`
 	Margins   *Margins      `json:"margins,omitempty"`
 	Topology  *TopologyEcho `json:"topology,omitempty"`
+	// Temperature is the analysis temperature used, in kelvin.
+	Temperature float64 `json:"temperature"`
+	// Devices lists the circuit's transistors with the small-signal values
+	// derived for them (absent when there are none).
+	Devices []Device `json:"devices,omitempty"`
 
 	// analyses holds the answer of every registered analysis asked for,
 	// by key; see Analysis.

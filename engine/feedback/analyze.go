@@ -130,7 +130,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 		return nil, fmt.Errorf("reference %q: no part of that name (choose one of: %s)", reference, strings.Join(c.References(), ", "))
 	}
 	if !p.Kind.Controlled() {
-		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source or an opamp (one of: %s)", reference, p.Kind, strings.Join(c.References(), ", "))
+		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source, an opamp or a transistor (one of: %s)", reference, p.Kind, strings.Join(c.References(), ", "))
 	}
 	sys := mna.New(c)
 	a := &Analyzer{C: c, Sys: sys, Ports: ports, Gain: gain, slots: map[string]*slot{}}

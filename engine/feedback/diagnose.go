@@ -93,10 +93,16 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 			if p.Amp.Rid > 0 {
 				uf.union(p.Nodes[0], p.Nodes[1])
 			}
-			if p.Amp.Rcm > 0 {
+			if p.Amp.Rcm > 0 || p.Amp.Ccm > 0 && !dc {
 				uf.union(p.Nodes[0], circuit.Gnd)
 				uf.union(p.Nodes[1], circuit.Gnd)
 			}
+			if p.Amp.Cid > 0 && !dc {
+				uf.union(p.Nodes[0], p.Nodes[1])
+			}
+			continue
+		case circuit.BJT, circuit.MOS:
+			transistorTies(uf, p, dc, i == refIdx && !cfg.RefGain)
 			continue
 		}
 		uf.union(p.Nodes[0], p.Nodes[1])
@@ -104,6 +110,7 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 	if cfg.Short != nil {
 		uf.union(cfg.Short[0], cfg.Short[1])
 	}
+	sourceTies(uf, c, refIdx, cfg.RefGain)
 	var floating []string
 	for n := 1; n < len(c.Nodes); n++ {
 		if uf.find(n) != uf.find(circuit.Gnd) {
@@ -166,6 +173,61 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 		vf.union(e.a, e.b)
 	}
 	return nil
+}
+
+// transistorTies joins what a transistor's passive parts join: for a bjt,
+// B to E through rb and rπ (always present), C to E through ro, and B to C
+// through Cμ when f > 0; for a mos, D to S through ro, G to S and G to D
+// through Cgs and Cgd when f > 0, and D to S through a diode connection
+// (gate on drain) of its working transconductance. The gate itself draws
+// no current, so a gate that nothing else reaches floats.
+func transistorTies(uf uf, p circuit.Part, dc, gainOff bool) {
+	d := p.Dev
+	n0, n1, n2 := p.Nodes[0], p.Nodes[1], p.Nodes[2]
+	if d.Ro > 0 {
+		uf.union(n0, n2)
+	}
+	switch p.Kind {
+	case circuit.BJT:
+		uf.union(n1, n2)
+		if d.Cmu > 0 && !dc {
+			uf.union(n1, n0)
+		}
+	case circuit.MOS:
+		if d.Cgs > 0 && !dc {
+			uf.union(n1, n2)
+		}
+		if d.Cgd > 0 && !dc {
+			uf.union(n1, n0)
+		}
+		if n0 == n1 && !gainOff {
+			uf.union(n0, n2)
+		}
+	}
+}
+
+// sourceTies adds the ties of the mos transconductances: gm·v(G, S) fixes
+// the source's voltage once the gate's is fixed (a source follower), and
+// gmb·v(B, S) likewise through the bulk — but never the other way, since
+// the gate and the bulk draw no current. Repeated until nothing changes,
+// for chains of followers.
+func sourceTies(u uf, c *circuit.Circuit, refIdx int, refGain bool) {
+	for changed := true; changed; {
+		changed = false
+		for i, p := range c.Parts {
+			if p.Kind != circuit.MOS {
+				continue
+			}
+			s := p.Nodes[2]
+			for _, ctl := range []int{p.Nodes[1], p.Dev.Bulk} {
+				on := ctl == p.Nodes[1] && !(i == refIdx && !refGain) || ctl == p.Dev.Bulk && p.Dev.Gmb > 0
+				if on && u.find(ctl) == u.find(circuit.Gnd) && u.find(s) != u.find(circuit.Gnd) {
+					u.union(s, ctl)
+					changed = true
+				}
+			}
+		}
+	}
 }
 
 func contains(l []string, s string) bool {

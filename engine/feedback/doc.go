@@ -3,7 +3,8 @@
 // ratio of a chosen reference element, the asymptotic gain model, and the
 // stability margins of the loop.
 //
-// The reference element is a controlled source or an opamp of the circuit.
+// The reference element is a controlled source, an opamp or a transistor
+// (its transconductance) of the circuit.
 // Its return ratio T is found the way Bode defined it: zero every
 // independent source, replace the reference's controlled output by an
 // independent source of the same kind with test value 1, and take

@@ -38,8 +38,8 @@ type System struct {
 	Nodes int
 	// Branch maps a part index to its branch-current unknown, or −1.
 	Branch []int
-	// Internal names the internal nodes (an opamp's node behind ro), indexed
-	// from len(C.Nodes)-1.
+	// Internal names the internal nodes (an opamp's node behind ro, a bjt's
+	// base behind rb), indexed from len(C.Nodes)-1.
 	Internal []string
 
 	g, c     []entry
@@ -65,6 +65,11 @@ func New(c *circuit.Circuit) *System {
 		if p.Kind == circuit.OpAmp && p.Amp.Ro > 0 {
 			inner[i] = nodes
 			s.Internal = append(s.Internal, p.Name+".o")
+			nodes++
+		}
+		if p.Kind == circuit.BJT && p.Dev.Rb > 0 {
+			inner[i] = nodes
+			s.Internal = append(s.Internal, p.Name+".b")
 			nodes++
 		}
 	}
@@ -136,6 +141,63 @@ func New(c *circuit.Circuit) *System {
 			s.branchV(src, -1, br)
 			ctl := Control{Part: i, R: []Term{{br, 1}}}
 			ctl.C0 = pair(plus, minus, 1)
+			s.ctrlOf[i] = len(s.Controls)
+			s.Controls = append(s.Controls, ctl)
+			if p.Amp.Cid > 0 {
+				s.conductance(&s.c, plus, minus, p.Amp.Cid)
+			}
+			if p.Amp.Ccm > 0 {
+				s.conductance(&s.c, plus, -1, p.Amp.Ccm)
+				s.conductance(&s.c, minus, -1, p.Amp.Ccm)
+			}
+		case circuit.BJT:
+			// Hybrid-π: gm·v(B′, E) drawn from C into E, the reference's
+			// rank-one term; rπ, Cπ across B′–E, Cμ across B′–C, ro across
+			// C–E, rb from B to the internal base B′ when present.
+			c, b, e := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1]), NodeVar(p.Nodes[2])
+			d := p.Dev
+			bi := b
+			if inner[i] >= 0 {
+				bi = inner[i]
+				s.conductance(&s.g, b, bi, 1/d.Rb)
+			}
+			s.conductance(&s.g, bi, e, 1/d.Rpi)
+			if d.Ro > 0 {
+				s.conductance(&s.g, c, e, 1/d.Ro)
+			}
+			if d.Cpi > 0 {
+				s.conductance(&s.c, bi, e, d.Cpi)
+			}
+			if d.Cmu > 0 {
+				s.conductance(&s.c, bi, c, d.Cmu)
+			}
+			ctl := Control{Part: i, R: pair(e, c, 1), C0: pair(bi, e, 1)}
+			s.ctrlOf[i] = len(s.Controls)
+			s.Controls = append(s.Controls, ctl)
+		case circuit.MOS:
+			// gm·v(G, S) drawn from D into S, the reference's rank-one
+			// term; ro across D–S, Cgs, Cgd; the body transconductance
+			// gmb·v(B, S) is never a reference, so it is stamped as fixed
+			// entries of G (rows count currents leaving a node).
+			dn, g, sn := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1]), NodeVar(p.Nodes[2])
+			d := p.Dev
+			if d.Ro > 0 {
+				s.conductance(&s.g, dn, sn, 1/d.Ro)
+			}
+			if d.Cgs > 0 {
+				s.conductance(&s.c, g, sn, d.Cgs)
+			}
+			if d.Cgd > 0 {
+				s.conductance(&s.c, g, dn, d.Cgd)
+			}
+			if d.Gmb > 0 {
+				bulk := NodeVar(d.Bulk)
+				s.add(&s.g, dn, bulk, d.Gmb)
+				s.add(&s.g, dn, sn, -d.Gmb)
+				s.add(&s.g, sn, bulk, -d.Gmb)
+				s.add(&s.g, sn, sn, d.Gmb)
+			}
+			ctl := Control{Part: i, R: pair(sn, dn, 1), C0: pair(g, sn, 1)}
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
 		}

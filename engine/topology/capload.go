@@ -103,7 +103,7 @@ func opmBridge(y1, y2, y3, y4, y5 complex128) (yin, tp, tq complex128) {
 // input sees R1 and rcm to gnd and rid to the + input, tied to gnd through
 // ypg; vd = −k·Vfb.
 func caploadForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	a := m.gain(f)
 	s := opmS(f)
 	yl := opmYL(v, s)
@@ -182,7 +182,7 @@ func caploadForms(v Values, f float64) Forms {
 		outZ0 = "Z₀ = ZL ∥ (bridged T: Riso to the pin, ro from the pin to gnd, ya pin to − input, yb load to − input, Yn − input to gnd)"
 	}
 	return Forms{
-		T:    opmF(T, tText, opmSrcLoop),
+		T:    opmF(T, tText+opmCapNote, opmSrcLoop),
 		Gain: opmGain(gInf, g0, T, "G∞ = rcm/(Rs + rcm)·Vout/Vfb|vd=0 = rcm/(Rs + rcm)·[(Yn₁ + ya + yb) + Riso·ya·yb]/[ya(1 + Riso(YL + yb)) + yb], Yn₁ = 1/R1 + 1/rcm", "G₀ = Zp/(Rs + Zp)·Zfb/(rid + Zfb)·(Vout/Vfb with the gain at zero)"),
 		Ports: []PortForms{
 			{Name: "out",

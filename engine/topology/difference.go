@@ -50,11 +50,12 @@ func cfF(x complex128, text, src string) *Formula {
 var cfNaN = cmplx.NaN()
 
 // cfAmp is the op-amp model every op-amp stage uses, read from Values; a
-// zero gbw, p2, rid or rcm means absent.
-type cfAmp struct{ a0, gbw, p2, rid, rcm, ro float64 }
+// zero gbw, p2, rid, rcm, cid or ccm means absent.
+type cfAmp struct{ a0, gbw, p2, rid, rcm, ro, cid, ccm float64 }
 
 func cfAmpOf(v Values) cfAmp {
-	return cfAmp{a0: v["a0"], gbw: v.Or("gbw", 0), p2: v.Or("p2", 0), rid: v.Or("rid", 0), rcm: v.Or("rcm", 0), ro: v["ro"]}
+	return cfAmp{a0: v["a0"], gbw: v.Or("gbw", 0), p2: v.Or("p2", 0), rid: v.Or("rid", 0), rcm: v.Or("rcm", 0), ro: v["ro"],
+		cid: v.Or("cid", 0), ccm: v.Or("ccm", 0)}
 }
 
 // gain is the open-loop gain A(s) = a0/((1 + s/ω1)(1 + s/ω2)) with
@@ -70,19 +71,22 @@ func (m cfAmp) gain(f float64) complex128 {
 	return g
 }
 
-// gd and gc are the conductances of rid and rcm (0 when absent).
-func (m cfAmp) gd() complex128 {
+// gd and gc are the input admittances at s: 1/rid + s·cid between the
+// inputs and 1/rcm + s·ccm from each to gnd (absent parts add nothing).
+func (m cfAmp) gd(s complex128) complex128 {
+	y := s * complex(m.cid, 0)
 	if m.rid > 0 {
-		return cfG(m.rid)
+		y += cfG(m.rid)
 	}
-	return 0
+	return y
 }
 
-func (m cfAmp) gc() complex128 {
+func (m cfAmp) gc(s complex128) complex128 {
+	y := s * complex(m.ccm, 0)
 	if m.rcm > 0 {
-		return cfG(m.rcm)
+		y += cfG(m.rcm)
 	}
-	return 0
+	return y
 }
 
 // line writes the opamp line of the circuit text.
@@ -103,19 +107,26 @@ func (m cfAmp) line(name, plus, minus, out string) string {
 	if m.ro > 0 {
 		opts = append(opts, "ro="+value.Exact(m.ro))
 	}
+	if m.cid > 0 {
+		opts = append(opts, "cid="+value.Exact(m.cid))
+	}
+	if m.ccm > 0 {
+		opts = append(opts, "ccm="+value.Exact(m.ccm))
+	}
 	return fmt.Sprintf("opamp    %s %s %s %s %s\n", name, plus, minus, out, strings.Join(opts, " "))
 }
 
 // cfAmpParams is the full op-amp model's parameter set with the stage's
-// defaults (a0, gbw, rid, ro; p2 and rcm default to absent).
+// defaults (a0, gbw, rid, ro; p2, rcm, cid and ccm default to absent).
 func cfAmpParams(a0, gbw, rid, ro string) []Param {
 	return []Param{
-		{Name: "a0", Symbol: "a₀", Meaning: "open-loop DC gain", Unit: "", Default: a0, Min: 1, Max: 1e12, Group: "amplifier"},
+		{Name: "a0", Symbol: "a₀", Meaning: "open-loop DC gain (as a ratio, or in dB: 100dB)", Unit: "", Default: a0, Min: 1, Max: 1e12, Group: "amplifier", Decibels: true},
 		{Name: "gbw", Symbol: "GBW", Meaning: "gain-bandwidth product (first open-loop pole at GBW/a₀; empty: no pole)", Unit: "Hz", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
 		{Name: "p2", Symbol: "f_p2", Meaning: "second open-loop pole (empty: none)", Unit: "Hz", Default: "", Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
 		{Name: "rid", Symbol: "r_id", Meaning: "differential input resistance (empty: infinite)", Unit: "Ω", Default: rid, Min: 1, Max: 1e15, Optional: true, Group: "amplifier"},
 		{Name: "rcm", Symbol: "r_cm", Meaning: "common-mode input resistance, each input to ground (empty: infinite)", Unit: "Ω", Default: "", Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
 		{Name: "ro", Symbol: "r_o", Meaning: "open-loop output resistance", Unit: "Ω", Default: ro, Min: 0, Max: 1e6, Group: "amplifier"},
+		opmCid, opmCcm,
 	}
 }
 
@@ -192,7 +203,7 @@ func diffNetOf(v Values, f float64) diffNet {
 	return diffNet{
 		G1: cfG(v.Or("Rs1", 0) + v["R1"]), G2: cfG(v["R2"]),
 		G3: cfG(v.Or("Rs2", 0) + v["R3"]), G4: cfG(v["R4"]),
-		Gd: m.gd(), Gc: m.gc(), YL: cfLoad(v, s), A: m.gain(f), ro: m.ro,
+		Gd: m.gd(s), Gc: m.gc(s), YL: cfLoad(v, s), A: m.gain(f), ro: m.ro,
 	}
 }
 
@@ -233,7 +244,7 @@ func diffForms(v Values, f float64) Forms {
 	a, b, _ := d.abc()
 	ro := complex(d.ro, 0)
 	defs := "a = G3+G4+G_cm+G_id, b = G1+G2+G_cm+G_id, c = 1 + r_o(Y_L+G2), G1 = 1/(R_s1+R1), G3 = 1/(R_s2+R3), " +
-		"G_id = 1/r_id, G_cm = 1/r_cm, Y_L = 1/R_L + sC_L, Δ₀ = a(b·c − r_o·G2²) − G_id²·c"
+		"G_id = 1/r_id + s·c_id, G_cm = 1/r_cm + s·c_cm (the op amp's input admittances), Y_L = 1/R_L + sC_L, Δ₀ = a(b·c − r_o·G2²) − G_id²·c"
 	var out Forms
 	out.T = cfF(T, "T = A(s)·G2·(G3 + G4 + G_cm)/Δ₀; "+defs+" (ideal limit: T = A·R1/(R1+R2))", cfSrcDerived)
 

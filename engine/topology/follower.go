@@ -62,7 +62,7 @@ func followerCircuit(v Values) string {
 // gnd through ypg (Rs ∥ rcm with the source zeroed, rcm with the input port
 // open). vd = −k·Vpin with k = (Rs ∥ rcm)/(rid + Rs ∥ rcm).
 func followerForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	a := m.gain(f)
 	yl := opmYL(v, opmS(f))
 	rs := complex(v.Or("Rs", 0), 0)
@@ -111,7 +111,7 @@ func followerForms(v Values, f float64) Forms {
 		tOpen = nil
 	}
 	return Forms{
-		T:    opmF(T, tText, opmSrcLoop),
+		T:    opmF(T, tText+opmCapNote, opmSrcLoop),
 		Gain: opmGain(gInf, g0, T, "G∞ = rcm/(Rs + rcm)·ZL/(Riso + ZL)", "G₀ = Zp/(Rs + Zp)·Zpin/(rid + Zpin)·ZL/(Riso + ZL), Zpin = ro ∥ rcm ∥ (Riso + ZL), Zp = rcm ∥ (rid + Zpin)"),
 		Ports: []PortForms{
 			{Name: "in",

@@ -66,7 +66,7 @@ func howNetOf(v Values, f float64) howNet {
 	m := cfAmpOf(v)
 	return howNet{
 		G1: cfG(v.Or("Rs", 0) + v["R1"]), G2: cfG(v["R2"]), G3: cfG(v["R3"]), G4: cfG(v["R4"]),
-		Gd: m.gd(), Gc: m.gc(), YL: cfLoad(v, cfS(f)), A: m.gain(f), ro: m.ro,
+		Gd: m.gd(cfS(f)), Gc: m.gc(cfS(f)), YL: cfLoad(v, cfS(f)), A: m.gain(f), ro: m.ro,
 	}
 }
 
@@ -100,6 +100,7 @@ func howForms(v Values, f float64) Forms {
 	h := howNetOf(v, f)
 	T := h.T()
 	defs := "a = G1+Y_L+G_cm+G2+G_id, b = G3+G_cm+G4+G_id, c = 1 + r_o(G2+G4), G1 = 1/(R_s+R1), Y_L = 1/R_L + sC_L, " +
+		"G_id = 1/r_id + s·c_id, G_cm = 1/r_cm + s·c_cm (the op amp's input admittances), " +
 		"Δ₀ = a(b·c − r_o·G4²) − G_id²·c − 2r_o·G_id·G2·G4 − r_o·b·G2²"
 	var out Forms
 	out.T = cfF(T, "T = A(s)·[G4(G1+Y_L+G_cm) − G2(G3+G_cm)]/Δ₀; "+defs+

@@ -22,6 +22,9 @@ import (
 // Closed forms of these stages are written in admittances: an absent rid or
 // rcm is a zero conductance and a part shorted out is an infinite admittance,
 // so one expression covers every combination of present and absent parts.
+// The input capacitances enter the same way: the differential input is the
+// admittance 1/rid + s·cid and each common-mode one 1/rcm + s·ccm, so every
+// formula written with rid and rcm holds with cid and ccm beside them.
 
 func init() { register(inverting) }
 
@@ -89,7 +92,7 @@ func invertingCircuit(v Values) string {
 // rid + (Rp ∥ rcm) and rcm to gnd, and R2 to the output; vd = −k·Vn with
 // k = rid/(rid + Rp ∥ rcm).
 func invertingForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	s := opmS(f)
 	a := m.gain(f)
 	ra := v.Or("Rs", 0) + v["R1"]
@@ -118,7 +121,7 @@ func invertingForms(v Values, f float64) Forms {
 
 	kText := "k = rid/(rid + Rp ∥ rcm) (1 with Rp absent or rid infinite)"
 	zn := "Zn = (Rs + R1) ∥ rcm ∥ (rid + Rp ∥ rcm)"
-	tText := "T = a·k·Zn/(Zn + R2)·Zo′/(Zo′ + ro), " + kText + ", " + zn + ", Zo′ = ZL ∥ (R2 + Zn), ZL = RL ∥ 1/(sCL)"
+	tText := "T = a·k·Zn/(Zn + R2)·Zo′/(Zo′ + ro), " + kText + ", " + zn + ", Zo′ = ZL ∥ (R2 + Zn), ZL = RL ∥ 1/(sCL)" + opmCapNote
 	return Forms{
 		T:    opmF(T, tText, opmSrcLoop),
 		Gain: opmGain(gInf, g0, T, "G∞ = −R2/(Rs + R1)", "G₀ = Zx/(Rs + R1 + Zx)·Zq/(R2 + Zq), Zx = rcm ∥ (rid + Rp ∥ rcm) ∥ (R2 + Zq), Zq = ro ∥ ZL"),
@@ -160,24 +163,35 @@ const (
 // opmInf is the admittance of a short.
 var opmInf = complex(math.Inf(1), 0)
 
-// opmAmp is the op-amp model of a stage's Values.
+// opmAmp is the op-amp model of a stage's Values at one frequency.
 type opmAmp struct {
-	amp      circuit.Amp // the engine's own model, for A(s)
-	gid, gcm complex128  // 1/rid and 1/rcm; 0 when absent (infinite)
+	amp circuit.Amp // the engine's own model, for A(s)
+	// gid and gcm are the input admittances 1/rid + s·cid and
+	// 1/rcm + s·ccm; 0 when the parts are absent.
+	gid, gcm complex128
 	ro       complex128
 }
 
-func opmAmpOf(v Values) opmAmp {
-	m := opmAmp{amp: circuit.Amp{A0: v["a0"], GBW: v.Or("gbw", 0), P2: v.Or("p2", 0), Rid: v.Or("rid", 0), Rcm: v.Or("rcm", 0), Ro: v["ro"]}}
+// opmAmpAt is the op-amp model of v at frequency f.
+func opmAmpAt(v Values, f float64) opmAmp {
+	m := opmAmp{amp: circuit.Amp{A0: v["a0"], GBW: v.Or("gbw", 0), P2: v.Or("p2", 0), Rid: v.Or("rid", 0), Rcm: v.Or("rcm", 0), Ro: v["ro"],
+		Cid: v.Or("cid", 0), Ccm: v.Or("ccm", 0)}}
+	s := opmS(f)
 	if v.Has("rid") {
 		m.gid = complex(1/v["rid"], 0)
 	}
 	if v.Has("rcm") {
 		m.gcm = complex(1/v["rcm"], 0)
 	}
+	m.gid += s * complex(m.amp.Cid, 0)
+	m.gcm += s * complex(m.amp.Ccm, 0)
 	m.ro = complex(v["ro"], 0)
 	return m
 }
+
+// opmCapNote says how the formulas' rid and rcm read with the input
+// capacitances present.
+const opmCapNote = "; with the input capacitances, read rid as rid ∥ 1/(s·cid) and rcm as rcm ∥ 1/(s·ccm) throughout [derived: the same node equations with admittances]"
 
 // gain is the open-loop gain A(j2πf), by the engine's own Amp.Gain so the
 // pole placement is defined in one place.
@@ -263,14 +277,21 @@ func opmGain(gInf, g0, T complex128, infText, zeroText string) *Formula {
 // an optional parameter absent by default).
 func opmAmpParams(a0, gbw, p2, rid, rcm, ro string) []Param {
 	return []Param{
-		{Name: "a0", Symbol: "a₀", Meaning: "op-amp DC open-loop gain", Unit: "", Default: a0, Min: 10, Max: 1e10, Group: "amplifier"},
+		{Name: "a0", Symbol: "a₀", Meaning: "op-amp DC open-loop gain (as a ratio, or in dB: 100dB)", Unit: "", Default: a0, Min: 10, Max: 1e10, Group: "amplifier", Decibels: true},
 		{Name: "gbw", Symbol: "GBW", Meaning: "gain-bandwidth product, first pole at gbw/a0 (empty: no pole)", Unit: "Hz", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
 		{Name: "p2", Symbol: "p₂", Meaning: "second open-loop pole (empty: none)", Unit: "Hz", Default: p2, Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
 		{Name: "rid", Symbol: "r_id", Meaning: "differential input resistance (empty: infinite)", Unit: "Ω", Default: rid, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
 		{Name: "rcm", Symbol: "r_cm", Meaning: "common-mode input resistance, each input to gnd (empty: infinite)", Unit: "Ω", Default: rcm, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
 		{Name: "ro", Symbol: "r_o", Meaning: "open-loop output resistance", Unit: "Ω", Default: ro, Min: 1e-3, Max: 1e6, Group: "amplifier"},
+		opmCid, opmCcm,
 	}
 }
+
+// The op amp's input capacitances, absent by default in every stage.
+var (
+	opmCid = Param{Name: "cid", Symbol: "c_id", Meaning: "differential input capacitance, between the inputs (empty: none)", Unit: "F", Default: "", Min: 1e-16, Max: 1e-6, Optional: true, Group: "amplifier"}
+	opmCcm = Param{Name: "ccm", Symbol: "c_cm", Meaning: "common-mode input capacitance, each input to gnd (empty: none)", Unit: "F", Default: "", Min: 1e-16, Max: 1e-6, Optional: true, Group: "amplifier"}
+)
 
 func opmRs(def string) Param {
 	return Param{Name: "Rs", Symbol: "R_s", Meaning: "source resistance (empty: ideal source)", Unit: "Ω", Default: def, Min: 1e-3, Max: 1e10, Optional: true, Group: "source"}
@@ -315,7 +336,7 @@ func (b *opmText) part(kind, name, n1, n2, val string) {
 func (b *opmText) opamp(v Values, plus, minus, out string) {
 	b.comment("Op amp U1: + input, − input, output; open-loop gain a0/((1 + s/ω1)(1 + s/ω2)), ω1 = 2π·gbw/a0, ω2 = 2π·p2")
 	opts := []string{"a0=" + value.Exact(v["a0"])}
-	for _, k := range []string{"gbw", "p2", "rid", "rcm", "ro"} {
+	for _, k := range []string{"gbw", "p2", "rid", "rcm", "ro", "cid", "ccm"} {
 		if v.Has(k) {
 			opts = append(opts, k+"="+value.Exact(v[k]))
 		}
@@ -366,27 +387,27 @@ func opmWith(v Values, set map[string]float64, drop ...string) Values {
 // engine refining each crossing between grid points.
 func opmMarginGrid() []float64 { return floats.LogSpan(make([]float64, 701), 1e-2, 1e12) }
 
-// opmLoop analyzes the loop of circuit text (reference U1) and returns its
-// margins, evaluated by the engine itself. Extras use it on variants of a
-// stage (a different Cf, Riso removed …); it never goes through Forms, so it
-// cannot recurse.
-func opmLoop(text string) (feedback.MarginResult, *feedback.Analyzer, error) {
-	c, err := circuit.Parse(text)
+// loopMargins analyzes the loop of circuit text for the reference ref,
+// parsed at kelvin, and returns its margins, evaluated by the engine
+// itself. Extras use it on variants of a stage (a different Cf, Riso
+// removed …); it never goes through Forms, so it cannot recurse.
+func loopMargins(text, ref string, kelvin float64) (feedback.MarginResult, error) {
+	c, err := circuit.ParseWith(text, circuit.Options{Temperature: kelvin})
 	if err != nil {
-		return feedback.MarginResult{}, nil, err
+		return feedback.MarginResult{}, err
 	}
-	a, err := feedback.New(c, "U1", nil, nil)
+	a, err := feedback.New(c, ref, nil, nil)
 	if err != nil {
-		return feedback.MarginResult{}, nil, err
+		return feedback.MarginResult{}, err
 	}
 	grid := opmMarginGrid()
 	T := make([]complex128, len(grid))
 	for i, f := range grid {
 		if T[i], err = a.ReturnRatio(f); err != nil {
-			return feedback.MarginResult{}, nil, err
+			return feedback.MarginResult{}, err
 		}
 	}
-	return feedback.Margins(grid, T, a.ReturnRatio), a, nil
+	return feedback.Margins(grid, T, a.ReturnRatio), nil
 }
 
 // opmMarginExtras reports the governing phase margin and crossover of a
@@ -394,7 +415,7 @@ func opmLoop(text string) (feedback.MarginResult, *feedback.Analyzer, error) {
 // variant cannot be analyzed).
 func opmMarginExtras(text, label, note, source string) []Extra {
 	pm, fc := math.NaN(), math.NaN()
-	if m, _, err := opmLoop(text); err == nil {
+	if m, err := loopMargins(text, "U1", circuit.DefaultTemperature); err == nil {
 		pm, fc = m.PhaseMargin, m.Crossover
 	}
 	return []Extra{

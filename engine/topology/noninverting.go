@@ -58,7 +58,7 @@ func noninvertingCircuit(v Values) string {
 // with the source zeroed; rcm alone with the input port open); vd = −k·Vn with
 // k = (Rs ∥ rcm)/(rid + Rs ∥ rcm).
 func noninvertingForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	a := m.gain(f)
 	r2 := complex(v["R2"], 0)
 	g1 := complex(1/v["R1"], 0)
@@ -97,7 +97,7 @@ func noninvertingForms(v Values, f float64) Forms {
 		tOpen = nil
 	}
 	return Forms{
-		T:    opmF(T, "T = a·k·Zn/(Zn + R2)·Zo′/(Zo′ + ro), "+kText+", "+zn+", Zo′ = ZL ∥ (R2 + Zn), ZL = RL ∥ 1/(sCL)", opmSrcLoop),
+		T:    opmF(T, "T = a·k·Zn/(Zn + R2)·Zo′/(Zo′ + ro), "+kText+", "+zn+", Zo′ = ZL ∥ (R2 + Zn), ZL = RL ∥ 1/(sCL)"+opmCapNote, opmSrcLoop),
 		Gain: opmGain(gInf, g0, T, "G∞ = (1 + R2/R1 + R2/rcm)·rcm/(Rs + rcm)", "G₀ = Zp/(Rs + Zp)·Zn₀/(rid + Zn₀)·Zq/(R2 + Zq), Zq = ro ∥ ZL, Zn₀ = R1 ∥ rcm ∥ (R2 + Zq), Zp = rcm ∥ (rid + Zn₀)"),
 		Ports: []PortForms{
 			{Name: "in",

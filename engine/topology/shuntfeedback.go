@@ -1,6 +1,7 @@
 package topology
 
 import (
+	"zport/engine/circuit"
 	"zport/engine/value"
 
 	"fmt"
@@ -8,21 +9,11 @@ import (
 	"strings"
 )
 
-// Exact SI defining constants (BIPM, The International System of Units, 9th
-// ed., 2019; REFERENCES.md §6).
-const (
-	cfBoltzmann = 1.380649e-23    // J/K
-	cfCharge    = 1.602176634e-19 // C
-)
-
-// cfThermalVoltage is kT/q at temperature tK kelvin.
-func cfThermalVoltage(tK float64) float64 { return cfBoltzmann * tK / cfCharge }
-
 // sfBias holds the hybrid-π parameters computed from the bias.
 type sfBias struct{ vt, gm, rpi, ro float64 } // ro = 0: no Early effect
 
 func sfBiasOf(v Values) sfBias {
-	b := sfBias{vt: cfThermalVoltage(v["T"])}
+	b := sfBias{vt: circuit.ThermalVoltage(v["T"])}
 	b.gm = v["IC"] / b.vt
 	b.rpi = v["beta"] / b.gm
 	if v.Has("VA") {

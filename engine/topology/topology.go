@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strings"
 
+	"zport/engine/circuit"
 	"zport/engine/value"
 )
 
@@ -23,6 +24,9 @@ type Param struct {
 	// absent is infinite). Values omits them.
 	Optional bool
 	Group    string // "amplifier", "network", "source", "load"
+	// Decibels: a dimensionless gain that may also be typed in decibels,
+	// 20·log10 of the gain (100dB is 1e5; value.ParseGain).
+	Decibels bool
 }
 
 // PortDef is a port of the generated circuit.
@@ -49,6 +53,17 @@ type Sweep struct {
 // Values holds a stage's parsed parameters; an absent optional parameter
 // has no key.
 type Values map[string]float64
+
+// TemperatureKey is the key under which Values may carry the analysis
+// temperature in kelvin. It is the request's setting, not a parameter of
+// the stage: a stage whose circuit has transistors given by their bias
+// reads it with Kelvin, so that its closed forms use the VT = kT/q at which
+// its generated text is parsed.
+const TemperatureKey = "temperature"
+
+// Kelvin returns the analysis temperature v carries, or
+// circuit.DefaultTemperature.
+func (v Values) Kelvin() float64 { return v.Or(TemperatureKey, circuit.DefaultTemperature) }
 
 // Has reports whether the optional parameter name is present.
 func (v Values) Has(name string) bool { _, ok := v[name]; return ok }
@@ -139,7 +154,7 @@ var catalog []*Topology
 func register(t *Topology) { catalog = append(catalog, t) }
 
 // order fixes the catalog's order on every page.
-var order = []string{"inverting", "noninverting", "follower", "transimpedance", "difference", "howland", "integrator", "capload", "degenerated", "shuntfeedback"}
+var order = []string{"inverting", "noninverting", "follower", "transimpedance", "difference", "howland", "integrator", "capload", "degenerated", "shuntfeedback", "boostedcascode", "emitterfollower", "miller"}
 
 // Catalog returns the stages in catalog order.
 func Catalog() []*Topology {
@@ -212,7 +227,13 @@ func (t *Topology) Values(params map[string]string) (Values, error) {
 			}
 			return nil, &ParamError{p.Name, fmt.Sprintf("%s (%s) needs a value", p.Symbol, p.Meaning)}
 		}
-		x, err := value.Parse(s, p.Unit)
+		var x float64
+		var err error
+		if p.Decibels {
+			x, err = value.ParseGain(s)
+		} else {
+			x, err = value.Parse(s, p.Unit)
+		}
 		if err != nil {
 			var se *value.SyntaxError
 			msg := err.Error()

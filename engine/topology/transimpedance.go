@@ -30,7 +30,7 @@ var transimpedance = &Topology{
 	Params: append([]Param{
 		{Name: "Rsh", Symbol: "R_sh", Meaning: "sensor shunt resistance (empty: none)", Unit: "Ω", Default: "500M", Min: 1, Max: 1e15, Optional: true, Group: "source"},
 		{Name: "Cd", Symbol: "C_d", Meaning: "sensor capacitance (empty: none)", Unit: "F", Default: "20p", Min: 1e-15, Max: 1e-6, Optional: true, Group: "source"},
-		{Name: "Cin", Symbol: "C_in", Meaning: "op-amp input capacitance, − input to gnd (empty: none)", Unit: "F", Default: "4p", Min: 1e-15, Max: 1e-6, Optional: true, Group: "amplifier"},
+		{Name: "Cin", Symbol: "C_in", Meaning: "input capacitance at the − input to gnd, besides the model's ccm and cid: the op amp's, or board and wiring (empty: none)", Unit: "F", Default: "4p", Min: 1e-15, Max: 1e-6, Optional: true, Group: "amplifier"},
 		{Name: "Rf", Symbol: "R_f", Meaning: "feedback (transimpedance) resistor", Unit: "Ω", Default: "1M", Min: 1, Max: 1e12, Group: "network"},
 		{Name: "Cf", Symbol: "C_f", Meaning: "feedback capacitor across Rf (empty: none)", Unit: "F", Default: "1p", Min: 1e-16, Max: 1e-3, Optional: true, Group: "network"},
 	}, append(opmAmpParams("1M", "10M", "60M", "1T", "1T", "50"), opmLoad("10k", "50p")...)...),
@@ -78,10 +78,11 @@ func transimpedanceCircuit(v Values) string {
 }
 
 // transimpedanceForms: + input grounded, so vd = −Vsum; the summing node
-// sees Zi = Rsh ∥ 1/(s(Cd + Cin)) ∥ rcm ∥ rid to gnd and Zf = Rf ∥ 1/(sCf) to
-// the output.
+// sees Zi = Rsh ∥ 1/(s(Cd + Cin + ccm + cid)) ∥ rcm ∥ rid to gnd (the op
+// amp's input admittances carry ccm and cid) and Zf = Rf ∥ 1/(sCf) to the
+// output.
 func transimpedanceForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	a := m.gain(f)
 	s := opmS(f)
 	yl := opmYL(v, s)
@@ -97,7 +98,7 @@ func transimpedanceForms(v Values, f float64) Forms {
 	z0in := 1 / (yi + opmSeries(yf, yq))
 	g0 := z0in * yf / (yf + yq)
 
-	zi := "Zi = Rsh ∥ 1/(s(Cd + Cin)) ∥ rcm ∥ rid"
+	zi := "Zi = Rsh ∥ 1/(s(Cd + Cin + ccm + cid)) ∥ rcm ∥ rid"
 	return Forms{
 		T:    opmF(T, "T = a·Zi/(Zi + Zf)·Zo′/(Zo′ + ro), "+zi+", Zf = Rf ∥ 1/(sCf), Zo′ = ZL ∥ (Zf + Zi); with no load: a·Zi/(Zi + Zf + ro) [derived here from the node equations]", opmSrcLoop),
 		Gain: opmGain(-zf, g0, T, "G∞ = −Zf", "G₀ = [Zi ∥ (Zf + Zq)]·Zq/(Zf + Zq), Zq = ro ∥ ZL"),
@@ -126,14 +127,15 @@ const (
 )
 
 // transimpedanceExtras suggests Cf by the approximate 45° rule and the exact
-// Butterworth formula, with Ci the whole summing-node capacitance Cd + Cin
-// (the other parts at the node, Rsh, rid and rcm, are resistive), and
+// Butterworth formula, with Ci the whole summing-node capacitance
+// Cd + Cin + ccm + cid (the + input is grounded, so cid too goes to gnd; the
+// other parts at the node, Rsh, rid and rcm, are resistive), and
 // reports what each actually gives on this stage's full model: the engine
 // analyzes the stage with that Cf substituted.
 func transimpedanceExtras(v Values) []Extra {
-	ci := v.Or("Cd", 0) + v.Or("Cin", 0)
+	ci := tiaCi(v)
 	rf := v["Rf"]
-	x := []Extra{{Name: "Ci (summing-node capacitance)", Value: ci, Unit: "F", Note: "Cd + Cin: the capacitance from the summing node to gnd that the Cf formulas use (Rsh, rid, rcm are resistive and left out)", Source: opmSrcNodal}}
+	x := []Extra{{Name: "Ci (summing-node capacitance)", Value: ci, Unit: "F", Note: "Cd + Cin + ccm + cid: the capacitance from the summing node to gnd that the Cf formulas use (Rsh, rid, rcm are resistive and left out)", Source: opmSrcNodal}}
 	if !v.Has("gbw") {
 		x = append(x, Extra{Name: "Cf suggestions", Value: math.NaN(), Note: "need gbw: with no first pole the formulas for Cf and Rf/(2π·gbw) have no meaning"})
 		return x
@@ -154,17 +156,23 @@ func transimpedanceExtras(v Values) []Extra {
 	return x
 }
 
+// tiaCi is the summing node's capacitance to gnd: the sensor's Cd, the
+// extra Cin, and the op amp's ccm and cid (its + input is grounded).
+func tiaCi(v Values) float64 {
+	return v.Or("Cd", 0) + v.Or("Cin", 0) + v.Or("ccm", 0) + v.Or("cid", 0)
+}
+
 // tiaCfExtras reports Cf, the Q it gives on the ideal model, and the phase
 // margin, crossover and closed-loop −3 dB frequency the engine finds on the
 // stage with that Cf.
 func tiaCfExtras(v Values, label string, cf float64, formula, source string) []Extra {
-	rf, ci := v["Rf"], v.Or("Cd", 0)+v.Or("Cin", 0)
+	rf, ci := v["Rf"], tiaCi(v)
 	wt := 2 * math.Pi * v["gbw"]
 	q := math.Sqrt(rf*(ci+cf)/wt) / (rf*cf + 1/wt)
 	w := opmWith(v, map[string]float64{"Cf": cf})
 	text := transimpedanceCircuit(w)
 	out := []Extra{
-		{Name: "Cf (" + label + ")", Value: cf, Unit: "F", Note: formula + ", Ci = Cd + Cin", Source: source},
+		{Name: "Cf (" + label + ")", Value: cf, Unit: "F", Note: formula + ", Ci = Cd + Cin + ccm + cid", Source: source},
 		{Name: "Q with Cf (" + label + ")", Value: q, Unit: "", Note: "Q = √(Rf(Ci + Cf)/ωt)/(Rf·Cf + 1/ωt), on the ideal model a = ωt/s, no ro, no load", Source: tiaSrcBW},
 	}
 	out = append(out, opmMarginExtras(text, "with Cf ("+label+")", "the stage's full model with this Cf", opmSrcEngine)...)

@@ -59,6 +59,9 @@ func Parse(text, unit string) (float64, error) {
 		}
 	}
 	body := s[:end]
+	if hint := megHint(text, body); hint != nil {
+		return 0, hint
+	}
 	i := 0
 	if i < len(body) && (body[i] == '+' || body[i] == '-') {
 		i++
@@ -168,6 +171,26 @@ func finite(text string, v float64) (float64, error) {
 		return 0, &SyntaxError{Text: text, Msg: fmt.Sprintf("value %q is out of range", text)}
 	}
 	return v, nil
+}
+
+// megHint catches the habit of writing mega as "meg" (1meg, 50MEG, 2Meg):
+// SI prefixes are case-sensitive and have no "meg", and 1meg would
+// otherwise read as 1 milli followed by junk. It returns nil when body is
+// not a plain number followed by "meg" in any case.
+func megHint(text, body string) *SyntaxError {
+	if len(body) < 4 || !strings.EqualFold(body[len(body)-3:], "meg") {
+		return nil
+	}
+	num := body[:len(body)-3]
+	for i := 0; i < len(num); i++ {
+		if c := num[i]; !(c >= '0' && c <= '9' || c == '.' || c == '+' || c == '-') {
+			return nil
+		}
+	}
+	if _, err := strconv.ParseFloat(num, 64); err != nil {
+		return nil
+	}
+	return &SyntaxError{Text: text, Offset: len(num), Msg: fmt.Sprintf("M is mega and m is milli (SI); did you mean %sM?", num)}
 }
 
 // rest returns the leading rune of s, for messages.

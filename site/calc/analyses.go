@@ -16,6 +16,7 @@ func init() {
 		&gain,
 		&loop,
 		&designValues,
+		&devices,
 		&engineNotes,
 		&generated,
 		&designAids,

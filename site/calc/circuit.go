@@ -176,7 +176,7 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 	if len(ins.References) == 0 {
 		f.Circuit, f.Fragment = "", nil
 		out.Form = &f
-		out.Output = &Output{Error: &api.ErrorBody{Param: "reference", Message: "the circuit has no controlled source (vcvs, vccs, ccvs, cccs) or opamp; " +
+		out.Output = &Output{Error: &api.ErrorBody{Param: "reference", Message: "the circuit has no controlled source (vcvs, vccs, ccvs, cccs), opamp or transistor (bjt, mos); " +
 			"Blackman’s formula needs one as its reference element"}}
 		return out
 	}

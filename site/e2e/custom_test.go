@@ -123,7 +123,7 @@ type edValue struct {
 const edValuesJS = `(function (root) {
   return Array.from(document.querySelectorAll(root + ' [data-role="results"] [data-quantity]')).map(function (e) {
     var d = e.dataset;
-    var key = d.quantity === 'extra' ? 'extra:' + d.name : (d.port ? d.port + '/' : '') + d.quantity;
+    var key = d.quantity === 'extra' ? 'extra:' + d.name : d.quantity === 'device' ? 'device:' + d.part + '/' + d.name : (d.port ? d.port + '/' : '') + d.quantity;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true' };
   });
 })`
@@ -161,6 +161,9 @@ func edExpected(resp *api.Response) (complexes map[string]*api.Complex, reals ma
 	}
 	if m := resp.Margins; m != nil {
 		reals["fc"], reals["pm"], reals["gm"] = m.Crossover, m.PhaseMargin, m.GainMargin
+	}
+	for k, v := range deviceValues(resp) {
+		reals[k] = v
 	}
 	return complexes, reals
 }

@@ -91,6 +91,9 @@ var edits = []struct{ id, param, value string }{
 	{"capload", "gbw", "10M"},
 	{"degenerated", "gm", "2m"},
 	{"shuntfeedback", "IC", "2m"},
+	{"boostedcascode", "Ab", "2000"},
+	{"emitterfollower", "IC", "3m"},
+	{"miller", "Rz", "1k"},
 }
 
 // Typing a value (key by key) updates every port row and every chart, and

@@ -102,7 +102,7 @@ func native(t *testing.T, id string, in map[string]string) *api.Response {
 
 // shown is one value on the page, as its element's data attributes give it.
 type shown struct {
-	Key   string `json:"key"` // "port/quantity", "quantity", "closed:port/quantity", "extra:name"
+	Key   string `json:"key"` // "port/quantity", "quantity", "closed:port/quantity", "extra:name", "device:part/name"
 	Re    string `json:"re"`
 	Im    string `json:"im"`
 	Value string `json:"value"`
@@ -118,6 +118,7 @@ func shownValues(t *testing.T, ctx context.Context, id string) []shown {
   return Array.from(root.querySelectorAll('[data-quantity], [data-closed-form]')).map(function (e) {
     var d = e.dataset, key;
     if (d.quantity === 'extra') key = 'extra:' + d.name;
+    else if (d.quantity === 'device') key = 'device:' + d.part + '/' + d.name;
     else if (d.quantity) key = (d.port ? d.port + '/' : '') + d.quantity;
     else key = 'closed:' + (d.port ? d.port + '/' : '') + d.closedForm;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true', text: e.textContent };
@@ -166,6 +167,9 @@ func expected(resp *api.Response) map[string]want {
 		v := m.Verdict
 		w["verdict"] = want{text: &v, kind: 't'}
 	}
+	for k, v := range deviceValues(resp) {
+		x(k, v, false)
+	}
 	if top := resp.Topology; top != nil {
 		for _, e := range top.Extras {
 			x("extra:"+e.Name, e.Value, false)
@@ -211,6 +215,30 @@ func expected(resp *api.Response) map[string]want {
 		}
 	}
 	return w
+}
+
+// deviceValues lists the transistor values the panel's Transistors section
+// shows, keyed "device:PART/name" as the page's data-part and data-name
+// give them.
+func deviceValues(resp *api.Response) map[string]*float64 {
+	out := map[string]*float64{}
+	for _, d := range resp.Devices {
+		fields := map[string]*float64{"gm": &d.Gm, "ro": d.Ro}
+		switch d.Kind {
+		case "bjt":
+			for k, v := range map[string]*float64{"rpi": d.Rpi, "cpi": d.Cpi, "cmu": d.Cmu, "rb": d.Rb, "ic": d.Ic, "ib": d.Ib, "beta": d.Beta} {
+				fields[k] = v
+			}
+		case "mos":
+			for k, v := range map[string]*float64{"cgs": d.Cgs, "cgd": d.Cgd, "gmb": d.Gmb, "id": d.Id, "vov": d.Vov, "gamma": d.Gamma} {
+				fields[k] = v
+			}
+		}
+		for k, v := range fields {
+			out["device:"+d.Name+"/"+k] = v
+		}
+	}
+	return out
 }
 
 func relDiff(a, b complex128) float64 {

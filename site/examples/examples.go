@@ -36,7 +36,7 @@ type Example struct {
 // All returns the examples in the order the page lists them. The first is
 // the one the page opens with.
 func All() []Example {
-	return []Example{twoPole, cable, degenerated, twoStage, currentFeedback}
+	return []Example{twoPole, cable, degenerated, twoStage, currentFeedback, commonEmitter}
 }
 
 // Lookup returns the example called id.
@@ -217,4 +217,30 @@ port      inv  inv  gnd                        # the inverting input
 	Ports:     []string{"out", "inv"},
 	Gain:      &api.GainSpec{Source: "Vin", Output: "out"},
 	Frequency: "1M", From: "1k", To: "1G", Points: "400",
+}
+
+var commonEmitter = Example{
+	ID:    "ce",
+	Title: "Common-emitter stage written with a bjt line",
+	Scenario: "The first gain stage of a hobby audio-band preamplifier: a bipolar transistor at 1 mA with an unbypassed " +
+		"220 Ω emitter resistor for linearity and a 4.7 kΩ collector load, driven from a 1 kΩ source, with 10 pF of wiring " +
+		"and next-stage input at the collector.",
+	Look: "The bjt line derives the hybrid-π model from the bias (the Transistors section lists gm, rπ, ro and Cπ); its " +
+		"transconductance is the reference. The emitter resistor is series feedback: at the collector it multiplies ro, at the base " +
+		"it adds (1 + β0)·RE. Change ic= and watch every value move with gm = IC/VT; delete va= to see ro become infinite.",
+	Text: `# Common-emitter stage written with a bjt line (invented
+# scenario): 1 mA, an unbypassed 220 Ω emitter resistor.
+vsource   Vs   src  gnd  1
+resistor  Rs   src  b    1k                     # the source
+bjt       Q1   c    b    e    ic=1m beta=150 va=80 ft=400M cmu=0.6p rb=100
+resistor  RE   e    gnd  220                    # emitter degeneration
+resistor  RC   c    gnd  4.7k                   # collector load
+capacitor CL   c    gnd  10p                    # wiring, next stage
+port      out  c    gnd
+port      in   src  gnd                         # what the source sees
+`,
+	Reference: "Q1",
+	Ports:     []string{"out", "in"},
+	Gain:      &api.GainSpec{Source: "Vs", Output: "c"},
+	Frequency: "10k", From: "10", To: "1G", Points: "400",
 }

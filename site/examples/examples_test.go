@@ -330,6 +330,35 @@ func TestCurrentFeedbackClosedForm(t *testing.T) {
 	}
 }
 
+// The common-emitter example at DC (CL open), against the degenerated
+// transistor's output resistance with base resistance (P. R. Gray, P. J.
+// Hurst, S. H. Lewis, R. G. Meyer, 5th ed., ch. 3 [memory]; derived here by
+// KCL at the emitter): with Re′ = RE ∥ (rπ + Rs + rb),
+//
+//	R_Q = Re′ + ro·[1 + gm·Re′·rπ/(rπ + Rs + rb)],
+//
+// the collector port shows RC ∥ R_Q; gm = IC/VT with VT = kT/q from the
+// exact SI constants (BIPM SI Brochure, 9th ed., 2019), rπ = β0/gm,
+// ro = VA/IC (the hybrid-π model, GHLM ch. 1 [memory]). The input port
+// (Rs included) at DC is Rs + rb + rπ + (1 + β0)·RE when ro is removed
+// (delete va=) [same references].
+func TestCommonEmitterClosedForm(t *testing.T) {
+	const ic, beta, va, rs, rb, re, rc = 1e-3, 150.0, 80.0, 1e3, 100.0, 220.0, 4.7e3
+	gm := ic / (1.380649e-23 * 300 / 1.602176634e-19)
+	rpi, ro := beta/gm, va/ic
+	rep := 1 / (1/re + 1/(rpi+rs+rb))
+	rq := rep + ro*(1+gm*rep*rpi/(rpi+rs+rb))
+	r := at(t, commonEmitter.Text, "Q1", []string{"out"}, nil, 0)
+	near(t, "out at DC", port(t, r, "out").Z, complex(rc*rq/(rc+rq), 0), r)
+	if math.Abs(r.Devices[0].Gm-gm) > 1e-15*gm {
+		t.Errorf("gm %v, want %v", r.Devices[0].Gm, gm)
+	}
+
+	noEarly := strings.Replace(commonEmitter.Text, " va=80", "", 1)
+	r = at(t, noEarly, "Q1", []string{"in"}, nil, 0)
+	near(t, "in at DC without ro", port(t, r, "in").Z, complex(rs+rb+rpi+(1+beta)*re, 0), r)
+}
+
 // Request carries everything the example names.
 func TestRequest(t *testing.T) {
 	req := twoStage.Request()
