@@ -25,6 +25,7 @@ type LU struct {
 	inv    []complex128 // reciprocals of U's diagonal
 	minPiv float64
 	norm1  float64 // 1-norm of the equilibrated matrix
+	spare  []complex128
 }
 
 // Singular reports a failed factorization: the equilibrated matrix has a
@@ -368,6 +369,81 @@ func (lu *LU) denseSolve(y []complex128) {
 		}
 		y[i] = s * lu.inv[i]
 	}
+}
+
+// SolveTransTo solves Aᵀ·x = b (the transpose, not the conjugate
+// transpose) into dst (len n), leaving b unchanged; dst and b may be the
+// same slice. It is the adjoint solve that error bounds of read-outs ℓᵀx
+// need: with Aᵀ·y = ℓ, the error of ℓᵀx is yᵀ(A·x_exact − A·x).
+func (lu *LU) SolveTransTo(dst, b []complex128) []complex128 {
+	// A = Dr⁻¹·Pᵀ·L·U·Dc⁻¹, so Uᵀ·Lᵀ·(P·Dr⁻¹·x) = Dc·b.
+	n, a, v := lu.n, lu.a, lu.work
+	for i := 0; i < n; i++ {
+		v[i] = b[i] * complex(lu.cs[i], 0)
+	}
+	sym := lu.sym
+	// Uᵀ is lower triangular: finish each unknown, then push it into the
+	// later rows along row i of U.
+	for i := 0; i < n; i++ {
+		w := v[i] * lu.inv[i]
+		v[i] = w
+		if w == 0 {
+			continue
+		}
+		row := a[i*n : i*n+n]
+		if sym != nil {
+			for _, j := range sym.ucols[i] {
+				if u := row[j]; u != 0 {
+					v[j] -= u * w
+				}
+			}
+			continue
+		}
+		for j := i + 1; j < n; j++ {
+			if u := row[j]; u != 0 {
+				v[j] -= u * w
+			}
+		}
+	}
+	// Lᵀ is unit upper triangular: from the last unknown up, pushing along
+	// row i of L.
+	for i := n - 1; i > 0; i-- {
+		z := v[i]
+		if z == 0 {
+			continue
+		}
+		row := a[i*n : i*n+n]
+		if sym != nil {
+			for _, j := range sym.lcols[i] {
+				if l := row[j]; l != 0 {
+					v[j] -= l * z
+				}
+			}
+			continue
+		}
+		for j := 0; j < i; j++ {
+			if l := row[j]; l != 0 {
+				v[j] -= l * z
+			}
+		}
+	}
+	for k := n - 1; k >= 0; k-- {
+		if p := lu.piv[k]; p != k {
+			v[k], v[p] = v[p], v[k]
+		}
+	}
+	for i := 0; i < n; i++ {
+		dst[i] = v[i] * complex(lu.rs[i], 0)
+	}
+	return dst
+}
+
+// work2 is scratch of length n for callers of SolveTo within the package.
+func (lu *LU) work2(n int) []complex128 {
+	if cap(lu.spare) < n {
+		lu.spare = make([]complex128, n)
+	}
+	return lu.spare[:n]
 }
 
 // recip is 1/z without the care Go's complex division takes for values

@@ -4,14 +4,14 @@ import (
 	"math"
 
 	"zport/engine/circuit"
+	"zport/engine/dd"
 )
 
 type entry struct {
 	i, j int
 	v    float64
+	lo   float64 // v + lo is the coefficient in double-double (a conductance 1/R)
 }
-
-type sparse []entry // entries with j unused: (index, coefficient)
 
 // Control is one controlled source written as k(s)·r·c(s)ᵀ.
 type Control struct {
@@ -21,10 +21,12 @@ type Control struct {
 	R, C0, C1 []Term
 }
 
-// Term is one coefficient of a sparse vector.
+// Term is one coefficient of a sparse vector: V, or V + Lo in
+// double-double where V is rounded (a sensed resistor's 1/R).
 type Term struct {
-	I int
-	V float64
+	I  int
+	V  float64
+	Lo float64
 }
 
 // System holds a circuit's equations in a form quick to assemble at any
@@ -85,9 +87,9 @@ func New(c *circuit.Circuit) *System {
 		br := s.Branch[i]
 		switch p.Kind {
 		case circuit.Resistor:
-			s.conductance(&s.g, a, b, 1/p.Value)
+			s.conductance(&s.g, a, b, dd.Recip(p.Value))
 		case circuit.Capacitor:
-			s.conductance(&s.c, a, b, p.Value)
+			s.conductance(&s.c, a, b, dd.F(p.Value))
 		case circuit.Inductor:
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
@@ -100,7 +102,7 @@ func New(c *circuit.Circuit) *System {
 		case circuit.VCVS, circuit.CCVS:
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
-			ctl := Control{Part: i, R: []Term{{br, 1}}}
+			ctl := Control{Part: i, R: []Term{{I: br, V: 1}}}
 			s.control(&ctl, p)
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
@@ -109,10 +111,10 @@ func New(c *circuit.Circuit) *System {
 			// count currents leaving a node, so the injection is −1 at TO.
 			var r []Term
 			if b >= 0 {
-				r = append(r, Term{b, 1})
+				r = append(r, Term{I: b, V: 1})
 			}
 			if a >= 0 {
-				r = append(r, Term{a, -1})
+				r = append(r, Term{I: a, V: -1})
 			}
 			ctl := Control{Part: i, R: r}
 			s.control(&ctl, p)
@@ -121,21 +123,21 @@ func New(c *circuit.Circuit) *System {
 		case circuit.OpAmp:
 			plus, minus, out := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1]), NodeVar(p.Nodes[2])
 			if p.Amp.Rid > 0 {
-				s.conductance(&s.g, plus, minus, 1/p.Amp.Rid)
+				s.conductance(&s.g, plus, minus, dd.Recip(p.Amp.Rid))
 			}
 			if p.Amp.Rcm > 0 {
-				s.conductance(&s.g, plus, -1, 1/p.Amp.Rcm)
-				s.conductance(&s.g, minus, -1, 1/p.Amp.Rcm)
+				s.conductance(&s.g, plus, -1, dd.Recip(p.Amp.Rcm))
+				s.conductance(&s.g, minus, -1, dd.Recip(p.Amp.Rcm))
 			}
 			src := out
 			if inner[i] >= 0 {
 				src = inner[i]
-				s.conductance(&s.g, src, out, 1/p.Amp.Ro)
+				s.conductance(&s.g, src, out, dd.Recip(p.Amp.Ro))
 			}
 			s.branchKCL(src, -1, br)
 			s.branchV(src, -1, br)
-			ctl := Control{Part: i, R: []Term{{br, 1}}}
-			ctl.C0 = pair(plus, minus, 1)
+			ctl := Control{Part: i, R: []Term{{I: br, V: 1}}}
+			ctl.C0 = pair(plus, minus, dd.F(1))
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
 		}
@@ -146,13 +148,13 @@ func New(c *circuit.Circuit) *System {
 // ControlOf returns the index in Controls of part i's gain term, or −1.
 func (s *System) ControlOf(part int) int { return s.ctrlOf[part] }
 
-func pair(a, b int, v float64) []Term {
+func pair(a, b int, v dd.Float) []Term {
 	var t []Term
 	if a >= 0 {
-		t = append(t, Term{a, v})
+		t = append(t, Term{a, v.Hi, v.Lo})
 	}
 	if b >= 0 {
-		t = append(t, Term{b, -v})
+		t = append(t, Term{b, -v.Hi, -v.Lo})
 	}
 	return t
 }
@@ -160,7 +162,7 @@ func pair(a, b int, v float64) []Term {
 func (s *System) control(ctl *Control, p circuit.Part) {
 	switch p.Kind {
 	case circuit.VCVS, circuit.VCCS:
-		ctl.C0 = pair(NodeVar(p.Ctrl[0]), NodeVar(p.Ctrl[1]), 1)
+		ctl.C0 = pair(NodeVar(p.Ctrl[0]), NodeVar(p.Ctrl[1]), dd.F(1))
 	case circuit.CCVS, circuit.CCCS:
 		ctl.C0, ctl.C1 = s.Current(p.Sense)
 	}
@@ -173,24 +175,26 @@ func (s *System) Current(i int) (c0, c1 []Term) {
 	a, b := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1])
 	switch p.Kind {
 	case circuit.Resistor:
-		return pair(a, b, 1/p.Value), nil
+		return pair(a, b, dd.Recip(p.Value)), nil
 	case circuit.Capacitor:
-		return nil, pair(a, b, p.Value)
+		return nil, pair(a, b, dd.F(p.Value))
 	}
-	return []Term{{s.Branch[i], 1}}, nil
+	return []Term{{I: s.Branch[i], V: 1}}, nil
 }
 
-func (s *System) add(list *[]entry, i, j int, v float64) {
+func (s *System) add(list *[]entry, i, j int, v float64) { s.addDD(list, i, j, dd.F(v)) }
+
+func (s *System) addDD(list *[]entry, i, j int, v dd.Float) {
 	if i >= 0 && j >= 0 {
-		*list = append(*list, entry{i, j, v})
+		*list = append(*list, entry{i, j, v.Hi, v.Lo})
 	}
 }
 
-func (s *System) conductance(list *[]entry, a, b int, g float64) {
-	s.add(list, a, a, g)
-	s.add(list, b, b, g)
-	s.add(list, a, b, -g)
-	s.add(list, b, a, -g)
+func (s *System) conductance(list *[]entry, a, b int, g dd.Float) {
+	s.addDD(list, a, a, g)
+	s.addDD(list, b, b, g)
+	s.addDD(list, a, b, g.Neg())
+	s.addDD(list, b, a, g.Neg())
 }
 
 // branchKCL adds the branch current leaving node a and entering node b.
