@@ -31,7 +31,7 @@ resistor Rx o2 o3 100
 capacitor Cx o3 gnd 47p
 `
 
-func benchAnalyzer(b *testing.B, text string, ports [][3]string, gain *[3]string) *feedback.Analyzer {
+func benchAnalyzer(b testing.TB, text string, ports [][3]string, gain *[3]string) *feedback.Analyzer {
 	c, err := circuit.Parse(text)
 	if err != nil {
 		b.Fatal(err)
