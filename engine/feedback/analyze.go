@@ -150,6 +150,7 @@ type Analyzer struct {
 	sxd    []dd.Complex
 	sw     []float64
 	smag   []float64
+	srnd   []float64
 	balls  [4]ball
 	sbd    []dd.Complex
 	sy     [2][]complex128
@@ -236,6 +237,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	a.sbd = make([]dd.Complex, sys.N+1)
 	a.sw = make([]float64, sys.N+1)
 	a.smag = make([]float64, sys.N+1)
+	a.srnd = make([]float64, sys.N+1)
 	return a, nil
 }
 
@@ -434,7 +436,7 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	}
 	// det(full matrix) = det(matrix at zero gain)·(1 + T): where 1 + T is
 	// zero within its bound, the full circuit is singular.
-	closed := zeroWithin(T.one)
+	closed := loopZero(T)
 	if !okK && !closed {
 		return Point{}, a.explain(errK, cfgK, "")
 	}
@@ -551,6 +553,13 @@ func (a *Analyzer) gainTargets(G0, cs, vr, cr, k ball, T ratio, G, GInf ball) []
 	return t
 }
 
+// loopZero reports whether 1 + T is zero within its bound, with T known
+// well enough (six digits) for that to mean something; a T known worse
+// leaves 1 + T unknown, and what divides by it gets no bound.
+func loopZero(t ratio) bool {
+	return zeroWithin(t.one) && t.one.e <= 1e-6*math.Max(1, cmplx.Abs(t.T.v))
+}
+
 // zeroWithin reports whether b is a value with a bound that contains zero
 // (an unbounded value is not: it is unknown, not zero).
 func zeroWithin(b ball) bool { return b.ok() && !math.IsInf(b.e, 1) && b.covers() }
@@ -635,16 +644,20 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		} else {
 			To = T
 		}
+	} else if numeric(errOpen0) {
+		note("%s: port %s: Z₀ and T open cannot be computed: %v", hz(f), p.Name, a.explain(errOpen0, mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}, "with the port open and the reference gain at zero"))
 	} else {
 		note("%s: port %s: with the reference gain at zero nothing connects the open port (%v), so Z₀ is infinite and T open is not finite", hz(f), p.Name, a.explain(errOpen0, mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}, "with the port open and the reference gain at zero"))
 	}
 	// det(open port, full gain) = det(open port, zero gain)·(1 + T open).
-	openSingular := zeroWithin(To.one)
+	openSingular := loopZero(To)
 	switch {
 	case openSingular:
 		note("%s: port %s: 1 + T open = 0 within its error bound, so with the port open the full circuit is singular and has no direct impedance", hz(f), p.Name)
 	case okOpenK && len(p.Drivers) > 0 || !closed && len(p.Drivers) == 0:
 		ZD = read(openK)
+	case numeric(errOpenK):
+		note("%s: port %s: the direct impedance cannot be computed: %v", hz(f), p.Name, a.explain(errOpenK, mna.Config{F: f, Ref: a.ref, RefGain: true, Removed: p.Drivers}, "with the port open"))
 	default:
 		note("%s: port %s: with the port open the full circuit has no solution, so the direct impedance is infinite", hz(f), p.Name)
 	}
@@ -672,7 +685,7 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 	case Z0.ok() && Ts.T.ok() && To.T.ok():
 		den := To.one
 		switch {
-		case zeroWithin(den):
+		case loopZero(To):
 			note("%s: port %s: 1 + T open = 0 within its error bound, so the impedance is infinite; its admittance is given instead", hz(f), p.Name)
 			Y = den.div(Z0.mul(Ts.one))
 		default:
@@ -680,6 +693,13 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		}
 	}
 	return res
+}
+
+// numeric reports whether err is a factorization that failed on its
+// values (a pivot), not on the circuit's structure.
+func numeric(err error) bool {
+	var ms *mna.Singular
+	return errors.As(err, &ms)
 }
 
 // holding describes the parts that hold a port at zero impedance: ideal

@@ -27,8 +27,9 @@ import (
 // Beside its bound each value carries its sensitivity s = |y|ᵀ(|b| + S·|x|):
 // how far it can move when every coefficient of the equations moves by one
 // part in 1 (to first order). s/|v| is the value's condition number — the
-// componentwise one, counted part by part — and it is what limits any
-// solver: refinement brings the error down to about s·2⁻¹⁰⁰.
+// componentwise one, counted part by part. It bounds what refinement
+// leaves, about s·2⁻¹⁰⁰, and usually far less: the bound after refinement
+// counts the rounding of the double-double residual as it happened.
 
 // tolRefine is the relative bound above which a read-out asks for
 // refinement: below it, at least 12 digits are certain.
@@ -156,6 +157,17 @@ func bounds(y []complex128, w, mag []float64) (e, s float64) {
 	return 2 * e, s
 }
 
+// dotAbs is |y|ᵀv.
+func dotAbs(y []complex128, v []float64) float64 {
+	s := 0.0
+	for i, vi := range v {
+		if vi != 0 {
+			s += abs1(y[i]) * vi
+		}
+	}
+	return s
+}
+
 func abs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) }
 
 // eval solves slot s's equations for b and returns the read-outs ids as
@@ -245,7 +257,7 @@ func (a *Analyzer) refine(s *slot, b []complex128, ids []int, out []ball, tgt []
 	p := a.prec
 	bb := b[:n]
 	xd := a.sxd[:n]
-	w, mag := a.sw[:n], a.smag[:n]
+	w, mag, rnd := a.sw[:n], a.smag[:n], a.srnd[:n]
 	ys := a.ys[:len(ids)]
 	ls := a.ls[:len(ids)]
 	for k, id := range ids {
@@ -257,13 +269,13 @@ func (a *Analyzer) refine(s *slot, b []complex128, ids []int, out []ball, tgt []
 	if tier == 2 {
 		mna.ToDD(xd, a.sx[:n])
 	}
-	// good: every bound meets its target, or is down to its floor.
-	g := p.GammaDD()
+	// good: every bound meets its target, or is down to its floor, what
+	// the double-double residual's own rounding allows.
 	good := func(w []float64) bool {
 		for k, id := range ids {
 			v := ls[k].Apply(xd).Complex128()
-			e, sens := bounds(ys[k], w, mag)
-			if e > a.target(id, v, k, tgt) && e > 2*g*sens {
+			e, _ := bounds(ys[k], w, mag)
+			if e > a.target(id, v, k, tgt) && e > 4*dotAbs(ys[k], rnd) {
 				return false
 			}
 		}
@@ -275,7 +287,7 @@ func (a *Analyzer) refine(s *slot, b []complex128, ids []int, out []ball, tgt []
 		// 10⁻³ it contracts fast, and the adjoints it gave are good to
 		// about as much, which the factor 2 of the bounds covers; beyond,
 		// the double-double factorization takes over.
-		rep := p.Refine(&s.lu, s.act, bb, xd, w, mag, false, 0, 4, good)
+		rep := p.Refine(&s.lu, s.act, bb, xd, w, mag, rnd, false, 0, 4, good)
 		if rep.First > 1e-3 || !good(w) {
 			tier = 3
 		}
@@ -305,7 +317,7 @@ func (a *Analyzer) refine(s *slot, b []complex128, ids []int, out []ball, tgt []
 			}
 			ys[k] = roundDD(a.sy[k][:n], ludd.SolveTransTo(bd, bd))
 		}
-		rep := p.Refine(ludd, s.act, bb, xd, w, mag, false, 0, 3, good)
+		rep := p.Refine(ludd, s.act, bb, xd, w, mag, rnd, false, 0, 3, good)
 		if !good(w) && !(rep.Last <= 1e-10) {
 			for k, l := range ls {
 				d := l.Apply(xd)

@@ -44,7 +44,7 @@ func (a *Analyzer) explain(err error, cfg mna.Config, context string) error {
 	if s.Index >= 0 && s.Index < len(c.Nodes)-1 {
 		where = fmt.Sprintf(" (near node %s)", c.Nodes[s.Index+1])
 	}
-	return &SingularError{F: cfg.F, Msg: fmt.Sprintf("the circuit equations are singular at %s%s%s: controlled-source gains or part values cancel exactly, or impedances so unlike meet at one node (say 1 mΩ in series with 1 TΩ) that double precision cannot tell them apart; change one of them", fmtHz(cfg.F), ctx, where)}
+	return &SingularError{F: cfg.F, Msg: fmt.Sprintf("the circuit equations are singular at %s%s%s: controlled-source gains or part values cancel exactly, or impedances so unlike meet at one node (say 1 mΩ beside 10³⁰ Ω) that even double-double arithmetic, with some 32 digits, cannot tell them apart; change one of them", fmtHz(cfg.F), ctx, where)}
 }
 
 // structure checks the circuit's graph under cfg for the two ways a

@@ -41,6 +41,7 @@ type Precise struct {
 	dx  []complex128
 	dxd []dd.Complex
 	mag []float64
+	rnd []float64
 }
 
 // stamp is one coefficient of a controlled source's rank-one term.
@@ -83,6 +84,7 @@ func NewPrecise(s *System) *Precise {
 	p.dx = make([]complex128, n)
 	p.dxd = make([]dd.Complex, n)
 	p.mag = make([]float64, n)
+	p.rnd = make([]float64, n)
 	return p
 }
 
@@ -91,13 +93,6 @@ func NewPrecise(s *System) *Precise {
 // coefficient to float64, with room.
 func (p *Precise) Gamma() float64 { return float64(p.rows+4) * dd.U * 1.25 }
 
-// GammaDD is the same for the compensated residual of Residual: the
-// γ²ₙ of Ogita, Rump and Oishi for n terms, plus the coefficients' own
-// error (within 32·2⁻¹⁰⁶ of the exact ones), with room.
-func (p *Precise) GammaDD() float64 {
-	n := float64(p.rows + 2)
-	return (2*n*n + 64) * dd.U2
-}
 
 // At sets the frequency.
 func (p *Precise) At(f float64) {
@@ -265,14 +260,17 @@ func (l Functional) Apply(x []dd.Complex) dd.Complex {
 
 // Residual writes r = b − A·x (or b − Aᵀ·x when trans) for the
 // configuration of act at the frequency of the last At, from the parts'
-// double-double coefficients, and mag = |b| + S·|x|, where S sums the
+// double-double coefficients; mag = |b| + S·|x|, where S sums the
 // magnitudes of the coefficients that meet in each matrix entry (|·| is
-// |Re| + |Im| throughout). Each product is formed exactly (TwoProd) and
-// summed with its error carried beside the sum (TwoSum): the compensated
-// dot product of Ogita, Rump and Oishi (SIAM J. Sci. Comput. 26(6), 2005),
-// as accurate as a sum in twice the precision, so the computed r is within
-// GammaDD·mag of the exact residual.
-func (p *Precise) Residual(r []dd.Complex, mag []float64, act *Active, b []complex128, x []dd.Complex, trans bool) {
+// |Re| + |Im| throughout); and rnd, a bound on |r − (b − A·x)| for the
+// exact coefficients. Each product is formed exactly (TwoProd) and summed
+// with its error carried beside the sum (TwoSum): the compensated dot
+// product of Ogita, Rump and Oishi (SIAM J. Sci. Comput. 26(6), 2005), as
+// accurate as a sum in twice the precision. rnd is a posteriori: what the
+// float64 sum of the carried errors can have rounded, plus what the
+// coefficients' double-double values are off (nothing for a ±1, a few
+// 2⁻¹⁰⁶ of the rest), so it is zero where the sum cancels exactly.
+func (p *Precise) Residual(r []dd.Complex, mag, rnd []float64, act *Active, b []complex128, x []dd.Complex, trans bool) {
 	s := p.s
 	acc := p.acc[:act.N]
 	for i := range acc {
@@ -285,8 +283,13 @@ func (p *Precise) Residual(r []dd.Complex, mag []float64, act *Active, b []compl
 			i, j = j, i
 		}
 		xj := &x[j]
-		acc[i].subReal(t.v, s.g[t.k].lo, xj)
-		mag[i] += math.Abs(t.v) * (math.Abs(xj.Re.Hi) + math.Abs(xj.Im.Hi))
+		lo := s.g[t.k].lo
+		acc[i].subReal(t.v, lo, xj)
+		m := math.Abs(t.v) * (math.Abs(xj.Re.Hi) + math.Abs(xj.Im.Hi))
+		mag[i] += m
+		if lo != 0 {
+			acc[i].coef += 4 * dd.U2 * m // a conductance from dd.Recip
+		}
 	}
 	if p.f != 0 {
 		for _, t := range act.c {
@@ -297,7 +300,9 @@ func (p *Precise) Residual(r []dd.Complex, mag []float64, act *Active, b []compl
 			a := p.cw[t.k] // the coefficient is j·a
 			xj := &x[j]
 			acc[i].subImag(a.Hi, a.Lo, xj)
-			mag[i] += math.Abs(a.Hi) * (math.Abs(xj.Re.Hi) + math.Abs(xj.Im.Hi))
+			m := math.Abs(a.Hi) * (math.Abs(xj.Re.Hi) + math.Abs(xj.Im.Hi))
+			mag[i] += m
+			acc[i].coef += 8 * dd.U2 * m // ω·C from 2π, f and C
 		}
 	}
 	for _, t := range act.k {
@@ -310,7 +315,9 @@ func (p *Precise) Residual(r []dd.Complex, mag []float64, act *Active, b []compl
 		v := &st.v
 		acc[i].subReal(v.Re.Hi, v.Re.Lo, xj)
 		acc[i].subImag(v.Im.Hi, v.Im.Lo, xj)
-		mag[i] += abs1(st.d) * (math.Abs(xj.Re.Hi) + math.Abs(xj.Im.Hi))
+		m := abs1(st.d) * (math.Abs(xj.Re.Hi) + math.Abs(xj.Im.Hi))
+		mag[i] += m
+		acc[i].coef += 64 * dd.U2 * m // a gain through GainDD and the sensed values
 	}
 	for _, t := range act.unit {
 		i, j := t.i, t.j
@@ -321,27 +328,34 @@ func (p *Precise) Residual(r []dd.Complex, mag []float64, act *Active, b []compl
 		acc[i].subReal(t.v, 0, xj)
 		mag[i] += math.Abs(xj.Re.Hi) + math.Abs(xj.Im.Hi)
 	}
+	g := float64(3*p.rows+6) * dd.U
 	for i, a := range acc {
-		re, rl := fastSum(a.re, a.rc)
-		im, il := fastSum(a.im, a.ic)
+		re, rl := dd.TwoSum(a.re, a.rc)
+		im, il := dd.TwoSum(a.im, a.ic)
 		r[i] = dd.Complex{Re: dd.Float{Hi: re, Lo: rl}, Im: dd.Float{Hi: im, Lo: il}}
+		// The carried errors were summed in float64.
+		rnd[i] = g*a.comp + a.coef
 	}
 }
 
 // dot2 accumulates a complex sum as float64 sums with their rounding
-// errors carried apart.
-type dot2 struct{ re, rc, im, ic float64 }
+// errors carried apart; comp sums the magnitudes of what went into the
+// carried errors, coef what the coefficients' errors can add.
+type dot2 struct{ re, rc, im, ic, comp, coef float64 }
 
 // subReal subtracts (ah + al)·x for a real double-double coefficient.
 func (d *dot2) subReal(ah, al float64, x *dd.Complex) {
 	p, e := dd.TwoProd(ah, x.Re.Hi)
 	s, q := dd.TwoSum(d.re, -p)
 	d.re = s
-	d.rc += q - e - (ah*x.Re.Lo + al*x.Re.Hi)
-	p, e = dd.TwoProd(ah, x.Im.Hi)
-	s, q = dd.TwoSum(d.im, -p)
+	t := ah*x.Re.Lo + al*x.Re.Hi + al*x.Re.Lo
+	d.rc += q - e - t
+	p2, e2 := dd.TwoProd(ah, x.Im.Hi)
+	s, q2 := dd.TwoSum(d.im, -p2)
 	d.im = s
-	d.ic += q - e - (ah*x.Im.Lo + al*x.Im.Hi)
+	t2 := ah*x.Im.Lo + al*x.Im.Hi + al*x.Im.Lo
+	d.ic += q2 - e2 - t2
+	d.comp += math.Abs(q) + math.Abs(e) + math.Abs(t) + math.Abs(q2) + math.Abs(e2) + math.Abs(t2)
 }
 
 // subImag subtracts j·(ah + al)·x.
@@ -350,18 +364,16 @@ func (d *dot2) subImag(ah, al float64, x *dd.Complex) {
 	p, e := dd.TwoProd(ah, x.Im.Hi)
 	s, q := dd.TwoSum(d.re, p)
 	d.re = s
-	d.rc += q + e + (ah*x.Im.Lo + al*x.Im.Hi)
-	p, e = dd.TwoProd(ah, x.Re.Hi)
-	s, q = dd.TwoSum(d.im, -p)
+	t := ah*x.Im.Lo + al*x.Im.Hi + al*x.Im.Lo
+	d.rc += q + e + t
+	p2, e2 := dd.TwoProd(ah, x.Re.Hi)
+	s, q2 := dd.TwoSum(d.im, -p2)
 	d.im = s
-	d.ic += q - e - (ah*x.Re.Lo + al*x.Re.Hi)
+	t2 := ah*x.Re.Lo + al*x.Re.Hi + al*x.Re.Lo
+	d.ic += q2 - e2 - t2
+	d.comp += math.Abs(q) + math.Abs(e) + math.Abs(t) + math.Abs(q2) + math.Abs(e2) + math.Abs(t2)
 }
 
-// fastSum renormalizes s + c into a double-double.
-func fastSum(s, c float64) (float64, float64) {
-	h := s + c
-	return h, c - (h - s)
-}
 
 // ResidualBound writes w, a componentwise bound on the exact residual
 // |b − A·x| of a float64 x: the residual computed in float64 from the
@@ -499,12 +511,13 @@ func (lu *LU) correct(d, r []dd.Complex, trans bool) {
 // corrections, or — when w is not nil — as soon as good(w) holds, w being
 // the componentwise bound on the exact residual of the current x (from the
 // double-double residual, as ResidualBound gives it from a float64 one).
-// With w not nil, w and mag (|b| + S·|x|) describe the x returned.
-func (p *Precise) Refine(c Corrector, act *Active, b []complex128, x []dd.Complex, w, mag []float64, trans bool, tol float64, maxSteps int, good func(w []float64) bool) Refinement {
+// With w not nil, w, mag (|b| + S·|x|) and rnd (what of w is the
+// residual's own rounding, see Residual) describe the x returned.
+func (p *Precise) Refine(c Corrector, act *Active, b []complex128, x []dd.Complex, w, mag, rnd []float64, trans bool, tol float64, maxSteps int, good func(w []float64) bool) Refinement {
 	n := act.N
 	var rep Refinement
 	if mag == nil {
-		mag = p.mag
+		mag, rnd = p.mag, p.rnd
 	}
 	prev := math.Inf(1)
 	done := false
@@ -512,11 +525,10 @@ func (p *Precise) Refine(c Corrector, act *Active, b []complex128, x []dd.Comple
 		if w == nil && (done || step == maxSteps) {
 			return rep
 		}
-		p.Residual(p.r, mag, act, b, x, trans)
+		p.Residual(p.r, mag, rnd, act, b, x, trans)
 		if w != nil {
-			g := p.GammaDD()
 			for i := 0; i < n; i++ {
-				w[i] = p.r[i].Abs1()*(1+4*dd.U) + g*mag[i]
+				w[i] = p.r[i].Abs1()*(1+4*dd.U) + rnd[i]
 			}
 			if good != nil && good(w) {
 				rep.Converged = rep.Ratio < 0.5

@@ -63,11 +63,12 @@ func TestResidualMatchesAssembly(t *testing.T) {
 		x := make([]dd.Complex, n)
 		r := make([]dd.Complex, n)
 		mag := make([]float64, n)
+		rnd := make([]float64, n)
 		for _, trans := range []bool{false, true} {
 			for j := 0; j < n; j++ {
 				clear(x)
 				x[j] = dd.C(-1)
-				p.Residual(r, mag, act, b, x, trans)
+				p.Residual(r, mag, rnd, act, b, x, trans)
 				for i := 0; i < n; i++ {
 					want, wantDD := a[i*n+j], add[i*n+j]
 					if trans {
@@ -131,11 +132,12 @@ func TestRefineRecoversAbsorbedConductance(t *testing.T) {
 			e0 := cmplx.Abs(x0[NodeVar(src)]/want - 1)
 			w := make([]float64, n)
 			mag := make([]float64, n)
+			rnd := make([]float64, n)
 			x := ToDD(make([]dd.Complex, n), x0)
-			rep := p.Refine(&lu, act, b, x, w, mag, trans, 1e-30, 20, nil)
+			rep := p.Refine(&lu, act, b, x, w, mag, rnd, trans, 1e-30, 20, nil)
 			e1 := cmplx.Abs(x[NodeVar(src)].Complex128()/want - 1)
 			xd := ToDD(make([]dd.Complex, n), x0)
-			repD := p.Refine(&ludd, act, b, xd, w, mag, trans, 1e-30, 5, nil)
+			repD := p.Refine(&ludd, act, b, xd, w, mag, rnd, trans, 1e-30, 5, nil)
 			e2 := cmplx.Abs(xd[NodeVar(src)].Complex128()/want - 1)
 			t.Logf("f = %g Hz, trans %v: unrefined %.2g; with the LU %.2g (%d steps, contraction %.2g); with LUDD %.2g (%d steps)", f, trans, e0, e1, rep.Steps, rep.Ratio, e2, repD.Steps)
 			if e2 > 4e-16 {
