@@ -93,7 +93,6 @@ func NewPrecise(s *System) *Precise {
 // coefficient to float64, with room.
 func (p *Precise) Gamma() float64 { return float64(p.rows+4) * dd.U * 1.25 }
 
-
 // At sets the frequency.
 func (p *Precise) At(f float64) {
 	if p.set && p.f == f {
@@ -373,7 +372,6 @@ func (d *dot2) subImag(ah, al float64, x *dd.Complex) {
 	d.ic += q2 - e2 - t2
 	d.comp += math.Abs(q) + math.Abs(e) + math.Abs(t) + math.Abs(q2) + math.Abs(e2) + math.Abs(t2)
 }
-
 
 // ResidualBound writes w, a componentwise bound on the exact residual
 // |b − A·x| of a float64 x: the residual computed in float64 from the
