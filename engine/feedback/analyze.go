@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"slices"
 	"strings"
 
 	"zport/engine/circuit"
@@ -142,17 +143,23 @@ type Analyzer struct {
 	r     []complex128 // reference injection, length Sys.N+1
 	bufs  [4][]complex128
 
-	prec   *mna.Precise
-	fns    []mna.Functional // the read-outs by id; fns[readCtl] changes with the frequency
-	ys     [2][]complex128  // refine's work space
-	ls     [2]mna.Functional
-	sx     []complex128 // eval's work space, length Sys.N+1
-	sxd    []dd.Complex
-	sw     []float64
-	smag   []float64
-	srnd   []float64
-	balls  [4]ball
-	sbd    []dd.Complex
+	prec     *mna.Precise
+	fns      []mna.Functional // the read-outs by id; fns[readCtl] changes with the frequency
+	same     []int            // the first read-out with the same functional, by id
+	ys       [2][]complex128  // refine's work space
+	ls       [2]mna.Functional
+	sx       []complex128 // eval's work space, length Sys.N+1
+	sr, sd   []complex128
+	sxd      []dd.Complex
+	sw       []float64
+	smag     []float64
+	srnd     []float64
+	balls    [4]ball
+	sbd      []dd.Complex
+	noteVals []struct {
+		v complex128
+		e float64
+	}
 	sy     [2][]complex128
 	portID [1]int
 	k      dd.Complex // the reference's gain at the current frequency
@@ -229,10 +236,22 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	if gain != nil {
 		a.fns[readOut] = mna.NodePair(gain.OutA, gain.OutB)
 	}
+	a.same = make([]int, len(a.fns))
 	for i, p := range a.Ports {
 		a.fns[readPort+i] = mna.NodePair(p.A, p.B)
 	}
+	for i := range a.same {
+		a.same[i] = i
+		for j := readOut; j < i; j++ {
+			if i >= readOut && slices.Equal(a.fns[i], a.fns[j]) {
+				a.same[i] = a.same[j]
+				break
+			}
+		}
+	}
 	a.sx = make([]complex128, sys.N+1)
+	a.sr = make([]complex128, sys.N+1)
+	a.sd = make([]complex128, sys.N+1)
 	a.sxd = make([]dd.Complex, sys.N+1)
 	a.sbd = make([]dd.Complex, sys.N+1)
 	a.sw = make([]float64, sys.N+1)
@@ -517,10 +536,7 @@ func (a *Analyzer) gainModel(G0, cs, vr, cr, k ball, T ratio, closed bool) (G, G
 // the absolute bounds its terms need for 12: [cr, vr, g₀, cs], the order
 // of the two solves. Each term gets a quarter of the result's budget.
 func (a *Analyzer) gainTargets(G0, cs, vr, cr, k ball, T ratio, G, GInf ball) []float64 {
-	short := func(r ball) bool {
-		return r.ok() && !math.IsInf(r.e, 1) && r.e > tolRefine*cmplx.Abs(r.v) && !r.covers()
-	}
-	if !short(G) && !short(GInf) || !G0.ok() || !cs.ok() || !vr.ok() || !cr.ok() {
+	if !shortOf(G) && !shortOf(GInf) || !G0.ok() || !cs.ok() || !vr.ok() || !cr.ok() {
 		return nil
 	}
 	t := []float64{math.Inf(1), math.Inf(1), math.Inf(1), math.Inf(1)}
@@ -530,7 +546,7 @@ func (a *Analyzer) gainTargets(G0, cs, vr, cr, k ball, T ratio, G, GInf ball) []
 		}
 	}
 	abs := cmplx.Abs
-	if short(GInf) {
+	if shortOf(GInf) {
 		E := tolRefine * abs(GInf.v) / 4
 		q := abs(vr.v) * abs(cs.v) / abs(cr.v)
 		lower(2, E)
@@ -540,7 +556,7 @@ func (a *Analyzer) gainTargets(G0, cs, vr, cr, k ball, T ratio, G, GInf ball) []
 			lower(3, E*abs(cs.v)/q)
 		}
 	}
-	if short(G) {
+	if shortOf(G) {
 		E := tolRefine * abs(G.v) / 4
 		p := abs(k.v) * abs(vr.v) * abs(cs.v) / abs(T.one.v)
 		lower(2, E)
@@ -560,14 +576,18 @@ func loopZero(t ratio) bool {
 	return zeroWithin(t.one) && t.one.e <= 1e-6*math.Max(1, cmplx.Abs(t.T.v))
 }
 
+// shortOf reports whether b, a formula's result, has fewer than 12
+// certain digits though it has a bound and is not zero within it.
+func shortOf(b ball) bool {
+	return b.ok() && !math.IsInf(b.e, 1) && b.e > tolRefine*cmplx.Abs(b.v) && !b.covers()
+}
+
 // zeroWithin reports whether b is a value with a bound that contains zero
 // (an unbounded value is not: it is unknown, not zero).
 func zeroWithin(b ball) bool { return b.ok() && !math.IsInf(b.e, 1) && b.covers() }
 
-func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T ratio, closed bool, note func(string, ...any)) (res PortResult) {
+func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T ratio, closed bool, note func(string, ...any)) PortResult {
 	p := &a.Ports[pi]
-	res = PortResult{Z0: nan, TShort: nan, TOpen: nan, Z: nan, ZDirect: nan, Y: nan, Agreement: math.NaN(),
-		Err: PortErrors{math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()}}
 	bp := a.bufs[1]
 	clear(bp)
 	if v := mna.NodeVar(p.A); v >= 0 {
@@ -577,30 +597,8 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		bp[v] = -1
 	}
 	id := readPort + pi
-	one := a.balls[:1]
-	// read solves slot s for the port current and returns the port voltage.
-	ids := a.portID[:]
-	ids[0] = id
-	read := func(s *slot) ball {
-		a.eval(s, bp, ids, one, nil)
-		return one[0]
-	}
-	// returned solves slot s for the test injection and returns T there.
-	returned := func(s *slot) ratio {
-		a.eval(s, a.r, readIDs[:1], one, nil)
-		return a.ratioOf(one[0])
-	}
 	Z0, Z, ZD, Y := nanBall, nanBall, nanBall, nanBall
 	Ts, To := nanRatio, nanRatio
-	defer func() {
-		res.Z0, res.Err.Z0, res.Sens.Z0 = Z0.v, Z0.e, Z0.s
-		res.TShort, res.Err.TShort, res.Sens.TShort = Ts.T.v, Ts.T.e, Ts.T.s
-		res.TOpen, res.Err.TOpen, res.Sens.TOpen = To.T.v, To.T.e, To.T.s
-		res.Z, res.Err.Z, res.Sens.Z = Z.v, Z.e, Z.s
-		res.ZDirect, res.Err.ZDirect, res.Sens.ZDirect = ZD.v, ZD.e, ZD.s
-		res.Y, res.Err.Y, res.Sens.Y = Y.v, Y.e, Y.s
-		res.Agreement = relDiff(res.Z, res.ZDirect)
-	}()
 	held := p.HeldBy
 	if f == 0 && len(p.HeldAtDC) > 0 {
 		held = p.HeldAtDC
@@ -610,10 +608,10 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		// its residue shows as the agreement.
 		Z0, Z, To = exact(0), exact(0), T
 		if !closed {
-			ZD = read(baseK)
+			ZD = a.read(baseK, bp, id, nil)
 		}
 		note("%s: port %s is %s: its impedance is exactly 0, and T short is undefined", hz(f), p.Name, a.holding(held, f))
-		return res
+		return portOf(Z0, Ts, To, Z, ZD, Y)
 	}
 	var open0, openK, short0 *slot
 	var errOpen0, errOpenK, errShort0 error
@@ -634,13 +632,13 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		cfg := mna.Config{F: f, Ref: a.ref, Short: &[2]int{p.A, p.B}}
 		short0, errShort0 = a.factor(p.key("short0"), cfg)
 		if okShort0 = a.usable(short0, errShort0); okShort0 {
-			Ts = returned(short0)
+			Ts = a.returned(short0, nil)
 		}
 	}
 	if okOpen0 {
-		Z0 = read(open0)
+		Z0 = a.read(open0, bp, id, nil)
 		if len(p.Drivers) > 0 {
-			To = returned(open0)
+			To = a.returned(open0, nil)
 		} else {
 			To = T
 		}
@@ -655,7 +653,7 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 	case openSingular:
 		note("%s: port %s: 1 + T open = 0 within its error bound, so with the port open the full circuit is singular and has no direct impedance", hz(f), p.Name)
 	case okOpenK && len(p.Drivers) > 0 || !closed && len(p.Drivers) == 0:
-		ZD = read(openK)
+		ZD = a.read(openK, bp, id, nil)
 	case numeric(errOpenK):
 		note("%s: port %s: the direct impedance cannot be computed: %v", hz(f), p.Name, a.explain(errOpenK, mna.Config{F: f, Ref: a.ref, RefGain: true, Removed: p.Drivers}, "with the port open"))
 	default:
@@ -690,9 +688,54 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 			Y = den.div(Z0.mul(Ts.one))
 		default:
 			Z = Z0.mul(Ts.one).div(den)
+			if !shortOf(Z) {
+				break
+			}
+			// Fewer than 12 digits from terms that each have 12: give
+			// each a third of Z's budget and evaluate again.
+			E := tolRefine / 3
+			if t := E * cmplx.Abs(Z0.v); Z0.e > t {
+				Z0 = a.read(open0, bp, id, []float64{t})
+			}
+			shortS, openS := short0, open0
+			if len(p.Drivers) > 0 {
+				shortS = base0
+			} else {
+				openS = base0
+			}
+			if t := E * cmplx.Abs(Ts.one.v) / a.kAbs; Ts.one.e > E*cmplx.Abs(Ts.one.v) && okShort0 {
+				Ts = a.returned(shortS, []float64{t})
+			}
+			if t := E * cmplx.Abs(To.one.v) / a.kAbs; To.one.e > E*cmplx.Abs(To.one.v) {
+				To = a.returned(openS, []float64{t})
+			}
+			Z = Z0.mul(Ts.one).div(To.one)
 		}
 	}
+	return portOf(Z0, Ts, To, Z, ZD, Y)
+}
+
+// portOf writes a port's values and their bounds.
+func portOf(Z0 ball, Ts, To ratio, Z, ZD, Y ball) PortResult {
+	res := PortResult{Z0: Z0.v, TShort: Ts.T.v, TOpen: To.T.v, Z: Z.v, ZDirect: ZD.v, Y: Y.v,
+		Err:  PortErrors{Z0.e, Ts.T.e, To.T.e, Z.e, ZD.e, Y.e},
+		Sens: PortErrors{Z0.s, Ts.T.s, To.T.s, Z.s, ZD.s, Y.s}}
+	res.Agreement = relDiff(res.Z, res.ZDirect)
 	return res
+}
+
+// read solves slot s for the port current bp and returns port id's
+// voltage; tgt, when not nil, is an absolute bound asked of it.
+func (a *Analyzer) read(s *slot, bp []complex128, id int, tgt []float64) ball {
+	a.portID[0] = id
+	a.eval(s, bp, a.portID[:], a.balls[:1], tgt)
+	return a.balls[0]
+}
+
+// returned solves slot s for the test injection and returns T there.
+func (a *Analyzer) returned(s *slot, tgt []float64) ratio {
+	a.eval(s, a.r, readIDs[:1], a.balls[:1], tgt)
+	return a.ratioOf(a.balls[0])
 }
 
 // numeric reports whether err is a factorization that failed on its
@@ -726,35 +769,59 @@ func (a *Analyzer) holding(names []string, f float64) string {
 // noteDigits notes the values of pt that are not known to 12 digits, and
 // those that cannot be trusted at all.
 func (a *Analyzer) noteDigits(pt *Point, note func(string, ...any)) {
-	var few, lost []string
-	check := func(name string, v complex128, e float64) {
+	// The values in a fixed order, names built only when a note needs them.
+	type val struct {
+		v complex128
+		e float64
+	}
+	vals := a.noteVals[:0]
+	vals = append(vals, val{pt.T, pt.TErr})
+	if g := pt.Gain; g != nil {
+		vals = append(vals, val{g.G0, g.Err.G0}, val{g.GInf, g.Err.GInf}, val{g.G, g.Err.G}, val{g.GDirect, g.Err.GDirect})
+	}
+	for _, pr := range pt.Ports {
+		vals = append(vals, val{pr.Z0, pr.Err.Z0}, val{pr.TShort, pr.Err.TShort}, val{pr.TOpen, pr.Err.TOpen},
+			val{pr.Z, pr.Err.Z}, val{pr.Y, pr.Err.Y}, val{pr.ZDirect, pr.Err.ZDirect})
+	}
+	a.noteVals = vals
+	// digits is −1 for a value to leave out, −2 for one without a bound.
+	digits := func(x val) int {
 		switch {
-		case !finite(v) || math.IsNaN(e):
-		case math.IsInf(e, 1):
-			lost = append(lost, name)
-		case e >= cmplx.Abs(v) || e == 0:
+		case !finite(x.v) || math.IsNaN(x.e):
+		case math.IsInf(x.e, 1):
+			return -2
+		case x.e >= mna.Abs(x.v) || x.e == 0:
 			// Zero within its bound (shown as such), or exact.
 		default:
-			if d := certainDigits(v, e); d < 12 {
-				few = append(few, fmt.Sprintf("%s (%d)", name, d))
+			if d := certainDigits(x.v, x.e); d < 12 {
+				return d
 			}
 		}
+		return -1
 	}
-	check("T", pt.T, pt.TErr)
-	if g := pt.Gain; g != nil {
-		check("g₀", g.G0, g.Err.G0)
-		check("g∞", g.GInf, g.Err.GInf)
-		check("g", g.G, g.Err.G)
-		check("g direct", g.GDirect, g.Err.GDirect)
+	any := false
+	for _, x := range vals {
+		any = any || digits(x) != -1
 	}
-	for i, pr := range pt.Ports {
+	if !any {
+		return
+	}
+	names := []string{"T"}
+	if pt.Gain != nil {
+		names = append(names, "g₀", "g∞", "g", "g direct")
+	}
+	for i := range pt.Ports {
 		at := " at " + a.Ports[i].Name
-		check("Z₀"+at, pr.Z0, pr.Err.Z0)
-		check("T short"+at, pr.TShort, pr.Err.TShort)
-		check("T open"+at, pr.TOpen, pr.Err.TOpen)
-		check("Z"+at, pr.Z, pr.Err.Z)
-		check("Y"+at, pr.Y, pr.Err.Y)
-		check("Z direct"+at, pr.ZDirect, pr.Err.ZDirect)
+		names = append(names, "Z₀"+at, "T short"+at, "T open"+at, "Z"+at, "Y"+at, "Z direct"+at)
+	}
+	var few, lost []string
+	for i, x := range vals {
+		switch d := digits(x); {
+		case d == -2:
+			lost = append(lost, names[i])
+		case d >= 0:
+			few = append(few, fmt.Sprintf("%s (%d)", names[i], d))
+		}
 	}
 	if len(lost) > 0 {
 		note("%s: these values cannot be trusted, not even to their first digit: their equations are singular to working precision even after refinement (condition beyond 10¹⁶): %s", hz(pt.F), strings.Join(lost, ", "))

@@ -121,3 +121,34 @@ func BenchmarkSpot50NodeLadder(b *testing.B) {
 		}
 	}
 }
+
+// wellConditioned is an inverting stage with everyday values (invented):
+// source resistance, gain-setting pair with a feedback capacitor, an opamp
+// with two poles, rid and ro, and an RC load. No value it reports needs
+// refinement, so its sweep measures what the error bounds cost.
+const wellConditioned = `
+vsource Vin src gnd 1
+resistor Rs src in 600
+resistor R1 in sum 10k
+resistor R2 out sum 47k
+capacitor Cf out sum 10p
+opamp U1 gnd sum oi a0=200k gbw=10M p2=50M rid=1M ro=50
+resistor Riso oi out 10
+capacitor CL out gnd 100p
+resistor RL out gnd 10k
+`
+
+var portsWell = [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}
+
+func BenchmarkSweepWellConditioned400(b *testing.B) {
+	benchSweep(b, wellConditioned, portsWell, &[3]string{"Vin", "out"}, 400)
+}
+
+// electrometer is the electrometer-input buffer of
+// TestElectrometerInputSweep: every point's input impedance needs
+// refinement, many of them the double-double factorization.
+const electrometer = "vsource Vin src gnd 1\nresistor Rs src in 50\nopamp U1 in out out a0=1e6 gbw=10M rid=1T\nresistor RL out gnd 10k\n"
+
+func BenchmarkSweepElectrometer400(b *testing.B) {
+	benchSweep(b, electrometer, [][3]string{{"in", "src", "gnd"}}, &[3]string{"Vin", "out"}, 400)
+}

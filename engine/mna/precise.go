@@ -46,8 +46,9 @@ type Precise struct {
 
 // stamp is one coefficient of a controlled source's rank-one term.
 type stamp struct {
-	v dd.Complex
-	d complex128 // v rounded
+	v   dd.Complex
+	d   complex128 // v rounded
+	abs float64    // |d|
 }
 
 // NewPrecise returns the double-double view of s; call At before use.
@@ -88,11 +89,6 @@ func NewPrecise(s *System) *Precise {
 	return p
 }
 
-// Gamma is the relative bound used by ResidualBound: the rounding of a
-// float64 residual of the longest row's terms, plus the rounding of each
-// coefficient to float64, with room.
-func (p *Precise) Gamma() float64 { return float64(p.rows+4) * dd.U * 1.25 }
-
 // At sets the frequency.
 func (p *Precise) At(f float64) {
 	if p.set && p.f == f {
@@ -112,11 +108,11 @@ func (p *Precise) At(f float64) {
 			kr := k.Scale(dd.Float{Hi: r.V, Lo: r.Lo})
 			for _, c := range ctl.C0 {
 				v := kr.Scale(dd.Float{Hi: c.V, Lo: c.Lo})
-				p.ctl = append(p.ctl, stamp{v, v.Complex128()})
+				p.ctl = append(p.ctl, stamp{v, v.Complex128(), Abs(v.Complex128())})
 			}
 			for _, c := range ctl.C1 {
 				v := kr.Scale(w.Mul(dd.Float{Hi: c.V, Lo: c.Lo})).MulJ()
-				p.ctl = append(p.ctl, stamp{v, v.Complex128()})
+				p.ctl = append(p.ctl, stamp{v, v.Complex128(), Abs(v.Complex128())})
 			}
 		}
 	}
@@ -150,7 +146,16 @@ type Active struct {
 	k    []aterm // k: the index of the controlled-source term in Precise
 	unit []aterm // v: a removed branch's 1, a port short's ±1
 	ax   []float64
+	// gamma is, row by row, the relative bound ResidualBound puts on its
+	// float64 residual, in moduli: a sum of m terms rounds by at most
+	// (m−1)·2⁻⁵³ of the sum of their magnitudes, each product by 2⁻⁵³
+	// (2√2 of them for a complex one), each coefficient rounded to float64
+	// by 2⁻⁵⁴; with room.
+	gamma []float64
 }
+
+// Gamma returns the relative bounds of ResidualBound, row by row.
+func (a *Active) Gamma() []float64 { return a.gamma }
 
 // aterm is one coefficient of an Active: row, column, where to find it.
 type aterm struct {
@@ -193,6 +198,21 @@ func (p *Precise) Active(cfg Config) *Active {
 		br := int32(s.Branch[pi])
 		a.unit = append(a.unit, aterm{br, br, 0, 1})
 	}
+	defer func() {
+		terms := make([]int, a.N)
+		for _, l := range [][]aterm{a.g, a.c, a.unit} {
+			for _, t := range l {
+				terms[t.i]++
+			}
+		}
+		for _, t := range a.k {
+			terms[t.i] += 3 // a complex product rounds by up to 2√2 units
+		}
+		a.gamma = make([]float64, a.N)
+		for i, m := range terms {
+			a.gamma[i] = float64(m+2) * dd.U * 1.01
+		}
+	}()
 	if cfg.Short != nil {
 		x, y, br := int32(NodeVar(cfg.Short[0])), int32(NodeVar(cfg.Short[1])), int32(s.N)
 		if x >= 0 {
@@ -376,17 +396,17 @@ func (d *dot2) subImag(ah, al float64, x *dd.Complex) {
 // ResidualBound writes w, a componentwise bound on the exact residual
 // |b − A·x| of a float64 x: the residual computed in float64 from the
 // parts' coefficients, plus what that computation and the rounding of the
-// coefficients to float64 can hide, Gamma·(|b| + S·|x|); mag receives
+// coefficients to float64 can hide, γ·(|b| + S·|x|) row by row; mag receives
 // |b| + S·|x|. It costs one pass over the parts, several times cheaper
 // than Residual: it is the check that decides whether a solution needs
-// refining.
-func (p *Precise) ResidualBound(w, mag []float64, act *Active, b, x []complex128) {
+// refining. The float64 residual itself is left in r.
+func (p *Precise) ResidualBound(w, mag []float64, r []complex128, act *Active, b, x []complex128) {
 	n := act.N
-	r, ax := p.rd[:n], act.ax[:n]
+	r, ax := r[:n], act.ax[:n]
 	for i := range r {
 		r[i] = b[i]
-		mag[i] = abs1(b[i])
-		ax[i] = abs1(x[i])
+		mag[i] = Abs(b[i])
+		ax[i] = Abs(x[i])
 	}
 	for _, t := range act.g {
 		xj := x[t.j]
@@ -404,16 +424,23 @@ func (p *Precise) ResidualBound(w, mag []float64, act *Active, b, x []complex128
 	for _, t := range act.k {
 		st := &p.ctl[t.k]
 		r[t.i] -= st.d * x[t.j]
-		mag[t.i] += abs1(st.d) * ax[t.j]
+		mag[t.i] += st.abs * ax[t.j]
 	}
 	for _, t := range act.unit {
 		r[t.i] -= complex(t.v, 0) * x[t.j]
 		mag[t.i] += ax[t.j]
 	}
-	g := p.Gamma()
-	for i := range r {
-		w[i] = abs1(r[i])*(1+4*dd.U) + g*mag[i]
+	for i, g := range act.gamma {
+		w[i] = Abs(r[i])*(1+4*dd.U) + g*mag[i]
 	}
+}
+
+// Abs is |z|, computed as √(re² + im²): without math.Hypot's guard
+// against overflow, which values met in circuit equations never need,
+// and within two units of rounding.
+func Abs(z complex128) float64 {
+	re, im := real(z), imag(z)
+	return math.Sqrt(re*re + im*im)
 }
 
 // AssembleDD writes the matrix of act (its transpose when trans) in
