@@ -1,6 +1,11 @@
 package api
 
-import "zport/engine/feedback"
+import (
+	"math"
+	"math/cmplx"
+
+	"zport/engine/feedback"
+)
 
 // bound converts an error bound to the wire: nil for a value that is not
 // finite (v) or a bound that cannot be given (+Inf).
@@ -13,7 +18,8 @@ func bound(v complex128, e float64) *float64 {
 
 func portErrors(pr feedback.PortResult) PortErrors {
 	e := PortErrors{Z0: bound(pr.Z0, pr.Err.Z0), TShort: bound(pr.TShort, pr.Err.TShort), TOpen: bound(pr.TOpen, pr.Err.TOpen),
-		Z: bound(pr.Z, pr.Err.Z), ZDirect: bound(pr.ZDirect, pr.Err.ZDirect)}
+		Z: bound(pr.Z, pr.Err.Z), ZDirect: bound(pr.ZDirect, pr.Err.ZDirect),
+		Agreement: agreementBound(pr.Z, pr.Err.Z, pr.ZDirect, pr.Err.ZDirect)}
 	if !finite(pr.Z) {
 		e.Y = bound(pr.Y, pr.Err.Y)
 	}
@@ -21,7 +27,22 @@ func portErrors(pr feedback.PortResult) PortErrors {
 }
 
 func gainErrors(g *feedback.GainResult) GainErrors {
-	return GainErrors{G0: bound(g.G0, g.Err.G0), GInf: bound(g.GInf, g.Err.GInf), G: bound(g.G, g.Err.G), GDirect: bound(g.GDirect, g.Err.GDirect)}
+	return GainErrors{G0: bound(g.G0, g.Err.G0), GInf: bound(g.GInf, g.Err.GInf), G: bound(g.G, g.Err.G), GDirect: bound(g.GDirect, g.Err.GDirect),
+		Agreement: agreementBound(g.G, g.Err.G, g.GDirect, g.Err.GDirect)}
+}
+
+// agreementBound is how large the agreement of a and b (see
+// PortResult.Agreement) can come out when their exact values are equal:
+// (ea + eb) over the larger magnitude, or absolute where one is exactly 0.
+func agreementBound(a complex128, ea float64, b complex128, eb float64) *float64 {
+	if !finite(a) || !finite(b) {
+		return nil
+	}
+	e := ea + eb
+	if a != 0 && b != 0 {
+		e /= math.Max(cmplx.Abs(a), cmplx.Abs(b))
+	}
+	return F(e)
 }
 
 // sweepErrors fills the sweep's error arrays from pts, from one backing

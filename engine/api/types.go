@@ -145,6 +145,10 @@ type PortErrors struct {
 	Z       *float64 `json:"z"`
 	ZDirect *float64 `json:"zDirect"`
 	Y       *float64 `json:"y,omitempty"`
+	// Agreement bounds what the two values' errors allow the agreement to
+	// be when the exact values agree (as Blackman's formula says they do):
+	// an agreement within it is zero within rounding.
+	Agreement *float64 `json:"agreement"`
 }
 
 // GainResult holds the asymptotic gain model's terms at one frequency.
@@ -167,6 +171,8 @@ type GainErrors struct {
 	GInf    *float64 `json:"gInf"`
 	G       *float64 `json:"g"`
 	GDirect *float64 `json:"gDirect"`
+	// Agreement is as PortErrors.Agreement, for g and g direct.
+	Agreement *float64 `json:"agreement"`
 }
 
 // SweepResult holds the same quantities over the grid, index for index.

@@ -73,6 +73,24 @@ func percent(x float64) string {
 	return s
 }
 
+// within writes x as percent does, but "0 %" where x is within its error
+// bound: a change the arithmetic cannot tell from none (the pair is exact,
+// the snapped part equals the nominal one), never digits of rounding.
+func within(x float64, bound *float64) string {
+	if bound != nil && math.Abs(x) <= *bound {
+		return percent(0)
+	}
+	return percent(x)
+}
+
+// boundAttrs adds data-error to attrs when there is a bound.
+func boundAttrs(bound *float64, attrs ...string) []string {
+	if bound != nil {
+		attrs = append(attrs, "data-error", num(*bound))
+	}
+	return attrs
+}
+
 // numSpan writes one number with its data attributes.
 func (w *writer) numSpan(text string, v *float64, attrs ...string) {
 	if v == nil {
@@ -193,7 +211,7 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 			}
 		}
 		span := hi - lo
-		if q.Percentiles != nil && len(q.Percentiles) == 5 && q.Percentiles[0].Value != nil && q.Percentiles[4].Value != nil {
+		if len(q.Percentiles) == 5 && q.Percentiles[0].Value != nil && q.Percentiles[4].Value != nil {
 			span = *q.Percentiles[4].Value - *q.Percentiles[0].Value
 		}
 		formats[q.ID] = spreadFormat(q.Unit, mag, span)
@@ -457,7 +475,7 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 			w.close("td")
 			w.open("td", "data-label", "Ratio error")
 			re := r.RelErr
-			w.numSpan(percent(re), &re, attrs("relErr")...)
+			w.numSpan(within(re, r.Errors.RelErr), &re, boundAttrs(r.Errors.RelErr, attrs("relErr")...)...)
 			w.close("td")
 			w.open("td", "data-label", "Gain set")
 			g := r.Gain
@@ -465,7 +483,7 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 			w.close("td")
 			w.open("td", "data-label", "Gain error")
 			ge := r.GainRelErr
-			w.numSpan(percent(ge), &ge, attrs("gainRelErr")...)
+			w.numSpan(within(ge, r.Errors.GainRelErr), &ge, boundAttrs(r.Errors.GainRelErr, attrs("gainRelErr")...)...)
 			w.close("td")
 			w.close("tr")
 		}
@@ -524,7 +542,7 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 					v := c.v.Value
 					w.numSpan(magnitude(v, unitOf(n))+" ("+c.v.Series+")", &v, "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "value")
 					ch := c.v.Change
-					w.elem("span", percent(ch), "class", "hint", "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "change", "data-value", num(ch))
+					w.elem("span", within(ch, c.v.Errors.Change), boundAttrs(c.v.Errors.Change, "class", "hint", "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "change", "data-value", num(ch))...)
 				}
 				w.close("td")
 			}
@@ -569,10 +587,14 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 				if c == nil {
 					w.text("—")
 				} else {
-					w.numSpan(percent(deref(c.MagnitudeError)), c.MagnitudeError, "data-aid", "standard", "data-variant", v.Name, "data-quantity", qid, "data-stat", "magnitudeError")
+					w.numSpan(within(deref(c.MagnitudeError), c.Errors.MagnitudeError), c.MagnitudeError, boundAttrs(c.Errors.MagnitudeError, "data-aid", "standard", "data-variant", v.Name, "data-quantity", qid, "data-stat", "magnitudeError")...)
 					pd := ""
-					if c.PhaseDifference != nil {
-						pd = "phase " + signedDegrees(*c.PhaseDifference)
+					if d := c.PhaseDifference; d != nil {
+						if b := c.Errors.PhaseDifference; b != nil && math.Abs(*d) <= *b {
+							pd = "phase " + signedDegrees(0)
+						} else {
+							pd = "phase " + signedDegrees(*d)
+						}
 					}
 					w.elem("span", pd, "class", "hint")
 				}

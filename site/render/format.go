@@ -56,12 +56,26 @@ func phase(z complex128) float64 {
 }
 
 // polar writes z as magnitude ∠ phase, e.g. "54.94 kΩ ∠ −0.01°".
-func polar(z complex128, unit string) string {
+func polar(z complex128, unit string) string { return polarN(z, unit, sig) }
+
+// polarN is polar with n significant digits in the magnitude (at most
+// sig: fewer where fewer are certain).
+func polarN(z complex128, unit string, n int) string {
 	m := cmplx.Abs(z)
 	if m == 0 {
 		return magnitude(0, unit)
 	}
-	return magnitude(m, unit) + " ∠ " + degrees(phase(z))
+	return magnitudeN(m, unit, n) + " ∠ " + degrees(phase(z))
+}
+
+// certainDigits is the number of significant digits of z that the error
+// bound e leaves certain, ⌊−log₁₀(e/|z|)⌋, at least 1 (a value with none
+// is shown as zero within its bound instead).
+func certainDigits(z complex128, e float64) int {
+	if e == 0 {
+		return 16
+	}
+	return max(1, int(math.Floor(-math.Log10(e/cmplx.Abs(z)))))
 }
 
 // Magnitude writes a real value in unit as the panel shows it: with an SI
@@ -70,20 +84,23 @@ func polar(z complex128, unit string) string {
 // degrees for "°" and decibels for "dB".
 func Magnitude(v float64, unit string) string { return magnitude(v, unit) }
 
-func magnitude(v float64, unit string) string {
+func magnitude(v float64, unit string) string { return magnitudeN(v, unit, sig) }
+
+// magnitudeN is magnitude with n significant digits.
+func magnitudeN(v float64, unit string, n int) string {
 	switch unit {
 	case "":
-		return plain(v)
+		return plainN(v, n)
 	case "V/V":
-		return plain(v) + " V/V"
+		return plainN(v, n) + " V/V"
 	case "°":
 		return degrees(v)
 	case "dB":
 		return dB(v)
 	}
-	s := value.Format(v, unit, sig)
+	s := value.Format(v, unit, n)
 	if strings.Contains(s, "×10^") { // beyond the SI prefixes
-		s = plain(v) + " " + unit
+		s = plainN(v, n) + " " + unit
 	}
 	return s
 }
@@ -147,28 +164,42 @@ func dB(x float64) string {
 // rect writes z as real ± j imaginary, each part with its own prefix and
 // the unit, e.g. "54.94 kΩ − j3.210 Ω". A ratio ("" or V/V) is written
 // without prefixes, the unit once at the end: "−4.700 − j0.001230 V/V".
-func rect(z complex128, unit string) string {
+func rect(z complex128, unit string) string { return rectN(z, unit, sig, 0) }
+
+// rectN is rect with n significant digits, and a part within the error
+// bound e written as zero.
+func rectN(z complex128, unit string, n int, e float64) string {
 	re, im := real(z), imag(z)
 	m := cmplx.Abs(z)
-	if math.Abs(re) <= rounding*m {
+	if math.Abs(re) <= math.Max(rounding*m, e) {
 		re = 0
 	}
-	if math.Abs(im) <= rounding*m {
+	if math.Abs(im) <= math.Max(rounding*m, e) {
 		im = 0
 	}
 	sign := " + j"
 	if im < 0 {
 		sign = " − j"
 	}
+	// Each part shows the digits the bound leaves it.
+	nr, ni := n, n
+	if e > 0 {
+		if re != 0 {
+			nr = min(n, certainDigits(complex(re, 0), e))
+		}
+		if im != 0 {
+			ni = min(n, certainDigits(complex(im, 0), e))
+		}
+	}
 	switch unit {
 	case "", "V/V":
-		s := plain(re) + sign + plain(math.Abs(im))
+		s := plainN(re, nr) + sign + plainN(math.Abs(im), ni)
 		if unit != "" {
 			s += " " + unit
 		}
 		return s
 	}
-	return value.Format(re, unit, sig) + sign + value.Format(math.Abs(im), unit, sig)
+	return value.Format(re, unit, nr) + sign + value.Format(math.Abs(im), unit, ni)
 }
 
 // decibels writes 20·log10|z|, e.g. "88.33 dB".

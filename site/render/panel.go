@@ -34,6 +34,17 @@ type cval struct {
 	attrs    []string
 	impedant bool // show the equivalent series element
 	dB       bool // show 20·log10|z|
+	// bounded marks an engine value, whose error bound is err: nil then
+	// means that no bound could be given (the notes say why). A closed
+	// form has none and is shown as it is.
+	bounded bool
+	err     *float64
+}
+
+// engine returns c as an engine value with error bound err.
+func (c cval) engine(err *float64) cval {
+	c.bounded, c.err = true, err
+	return c
 }
 
 func (p *panel) write() {
@@ -72,20 +83,48 @@ func (p *panel) value(c cval) {
 	}
 	z := c.z.Value()
 	attrs = append(attrs, "data-re", num(c.z.Re), "data-im", num(c.z.Im))
+	digits, e := sig, 0.0
+	switch {
+	case c.bounded && c.err == nil:
+		attrs[1] = "cv untrusted"
+		w.open("span", attrs...)
+		w.elem("span", polar(z, c.unit), "class", "polar")
+		w.elem("span", "cannot be trusted; see the notes", "class", "hint")
+		w.close("span")
+		return
+	case c.bounded:
+		e = *c.err
+		attrs = append(attrs, "data-error", num(e))
+		if e >= cmplx.Abs(z) {
+			// Zero within its bound: an exact zero where the structure
+			// makes it one (a bound of 0), else zero below the bound —
+			// never the digits of rounding noise.
+			w.open("span", attrs...)
+			w.elem("span", magnitude(0, c.unit), "class", "polar")
+			if e > 0 {
+				w.elem("span", "below ±"+magnitude(e, c.unit), "class", "rect bound")
+			}
+			w.close("span")
+			return
+		}
+		digits = min(sig, certainDigits(z, e))
+	}
 	w.open("span", attrs...)
-	w.elem("span", polar(z, c.unit), "class", "polar")
+	w.elem("span", polarN(z, c.unit, digits), "class", "polar")
 	if c.dB {
 		w.elem("span", decibels(z), "class", "db")
 	}
-	w.elem("span", rect(z, c.unit), "class", "rect")
+	w.elem("span", rectN(z, c.unit, digits, e), "class", "rect")
 	if c.impedant {
 		w.elem("span", SeriesElement(z, p.resp.Frequency), "class", "series", "title", "equivalent series element at "+value.Format(p.resp.Frequency, "Hz", sig))
 	}
 	w.close("span")
 }
 
-// ratio writes a relative difference such as an agreement.
-func (p *panel) ratio(x *float64, attrs ...string) {
+// ratio writes a relative difference such as an agreement; bound, when
+// not nil, is what the values' error bounds allow it to be, and an
+// agreement within that is zero within rounding.
+func (p *panel) ratio(x, bound *float64, attrs ...string) {
 	w := &p.w
 	if x == nil {
 		w.open("span", append(append([]string{"class", "agree"}, attrs...), "data-null", "true")...)
@@ -94,8 +133,27 @@ func (p *panel) ratio(x *float64, attrs ...string) {
 		return
 	}
 	class := "agree"
-	if *x > 1e-6 {
+	if *x > 1e-6 && (bound == nil || *x > *bound) {
 		class = "agree poor"
+	}
+	if bound != nil {
+		attrs = append(attrs, "data-error", num(*bound))
+		if *x <= *bound {
+			w.open("span", append(append([]string{"class", class}, attrs...), "data-value", num(*x))...)
+			w.text("0")
+			if *bound > 0 {
+				mant, exp := sci(*bound)
+				w.open("span", "class", "hint bound")
+				w.text("below ±" + mant)
+				if exp != "" {
+					w.text(" × 10")
+					w.elem("sup", exp)
+				}
+				w.close("span")
+			}
+			w.close("span")
+			return
+		}
 	}
 	w.open("span", append(append([]string{"class", class}, attrs...), "data-value", num(*x))...)
 	mant, exp := sci(*x)
@@ -176,19 +234,19 @@ func (p *panel) ports() {
 		}
 		w.elem("span", pr.A+" – "+pr.B, "class", "hint nodes")
 		w.close("th")
-		p.cell("Z₀", cval{z: pr.Z0, unit: "Ω", impedant: true, attrs: []string{"data-port", pr.Name, "data-quantity", "z0"}})
-		p.cell("T short", cval{z: pr.TShort, attrs: []string{"data-port", pr.Name, "data-quantity", "tShort"}})
-		p.cell("T open", cval{z: pr.TOpen, attrs: []string{"data-port", pr.Name, "data-quantity", "tOpen"}})
+		p.cell("Z₀", cval{z: pr.Z0, unit: "Ω", impedant: true, attrs: []string{"data-port", pr.Name, "data-quantity", "z0"}}.engine(pr.Errors.Z0))
+		p.cell("T short", cval{z: pr.TShort, attrs: []string{"data-port", pr.Name, "data-quantity", "tShort"}}.engine(pr.Errors.TShort))
+		p.cell("T open", cval{z: pr.TOpen, attrs: []string{"data-port", pr.Name, "data-quantity", "tOpen"}}.engine(pr.Errors.TOpen))
 		w.open("td", "data-label", "Z")
-		p.value(cval{z: pr.Z, unit: "Ω", impedant: true, attrs: []string{"data-port", pr.Name, "data-quantity", "z"}})
+		p.value(cval{z: pr.Z, unit: "Ω", impedant: true, attrs: []string{"data-port", pr.Name, "data-quantity", "z"}}.engine(pr.Errors.Z))
 		if pr.Z == nil && pr.Y != nil {
 			w.elem("span", "Z is not finite here; the admittance is", "class", "hint")
-			p.value(cval{z: pr.Y, unit: "S", attrs: []string{"data-port", pr.Name, "data-quantity", "y"}})
+			p.value(cval{z: pr.Y, unit: "S", attrs: []string{"data-port", pr.Name, "data-quantity", "y"}}.engine(pr.Errors.Y))
 		}
 		w.close("td")
-		p.cell("Z direct", cval{z: pr.ZDirect, unit: "Ω", impedant: true, attrs: []string{"data-port", pr.Name, "data-quantity", "zDirect"}})
+		p.cell("Z direct", cval{z: pr.ZDirect, unit: "Ω", impedant: true, attrs: []string{"data-port", pr.Name, "data-quantity", "zDirect"}}.engine(pr.Errors.ZDirect))
 		w.open("td", "data-label", "Agreement")
-		p.ratio(pr.Agreement, "data-port", pr.Name, "data-quantity", "agreement")
+		p.ratio(pr.Agreement, pr.Errors.Agreement, "data-port", pr.Name, "data-quantity", "agreement")
 		w.close("td")
 		w.close("tr")
 		if f := p.portForms(pr.Name); f != nil {
@@ -235,7 +293,7 @@ func (p *panel) closedRow(pr api.PortResult, f *api.PortFormulas) {
 	if f.Z != nil && f.Z.Value != nil && pr.Z != nil {
 		d = api.F(relDiff(f.Z.Value.Value(), pr.Z.Value()))
 	}
-	p.ratio(d, "data-port", pr.Name, "data-closed-form", "agreement", "title", "|Z hand − Z| / |Z|")
+	p.ratio(d, nil, "data-port", pr.Name, "data-closed-form", "agreement", "title", "|Z hand − Z| / |Z|")
 	w.close("td")
 	w.close("tr")
 }
@@ -323,12 +381,12 @@ func (p *panel) gain() {
 	w.open("tr", "class", "engine")
 	w.elem("th", "engine", "scope", "row")
 	unit := g.Unit
-	p.cell("g₀", cval{z: g.G0, unit: unit, dB: unit == "V/V", attrs: []string{"data-quantity", "g0"}})
-	p.cell("g∞", cval{z: g.GInf, unit: unit, dB: unit == "V/V", attrs: []string{"data-quantity", "gInf"}})
-	p.cell("g", cval{z: g.G, unit: unit, dB: unit == "V/V", attrs: []string{"data-quantity", "g"}})
-	p.cell("g direct", cval{z: g.GDirect, unit: unit, dB: unit == "V/V", attrs: []string{"data-quantity", "gDirect"}})
+	p.cell("g₀", cval{z: g.G0, unit: unit, dB: unit == "V/V", attrs: []string{"data-quantity", "g0"}}.engine(g.Errors.G0))
+	p.cell("g∞", cval{z: g.GInf, unit: unit, dB: unit == "V/V", attrs: []string{"data-quantity", "gInf"}}.engine(g.Errors.GInf))
+	p.cell("g", cval{z: g.G, unit: unit, dB: unit == "V/V", attrs: []string{"data-quantity", "g"}}.engine(g.Errors.G))
+	p.cell("g direct", cval{z: g.GDirect, unit: unit, dB: unit == "V/V", attrs: []string{"data-quantity", "gDirect"}}.engine(g.Errors.GDirect))
 	w.open("td", "data-label", "Agreement")
-	p.ratio(g.Agreement, "data-quantity", "gainAgreement")
+	p.ratio(g.Agreement, g.Errors.Agreement, "data-quantity", "gainAgreement")
 	w.close("td")
 	w.close("tr")
 	if t := p.resp.Topology; t != nil && t.ClosedForm != nil && t.ClosedForm.Gain != nil {
@@ -349,7 +407,7 @@ func (p *panel) gain() {
 		if f.Value != nil && g.G != nil {
 			d = api.F(relDiff(f.Value.Value(), g.G.Value()))
 		}
-		p.ratio(d, "data-closed-form", "gainAgreement", "title", "|g hand − g| / |g|")
+		p.ratio(d, nil, "data-closed-form", "gainAgreement", "title", "|g hand − g| / |g|")
 		w.close("td")
 		w.close("tr")
 	}
@@ -393,7 +451,7 @@ func (p *panel) loop() {
 	w.text("Return ratio T at " + value.Format(r.Frequency, "Hz", sig))
 	w.close("dt")
 	w.open("dd")
-	p.value(cval{z: r.ReturnRatio, dB: true, attrs: []string{"data-quantity", "T"}})
+	p.value(cval{z: r.ReturnRatio, dB: true, attrs: []string{"data-quantity", "T"}}.engine(r.ReturnRatioError))
 	w.close("dd")
 	w.close("div")
 
