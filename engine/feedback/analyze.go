@@ -141,7 +141,7 @@ type Analyzer struct {
 	slots map[string]*slot
 	used  []*slot      // factored during the current At
 	r     []complex128 // reference injection, length Sys.N+1
-	bufs  [4][]complex128
+	buf   []complex128 // a right-hand side: the gain source, a port current
 
 	prec     *mna.Precise
 	fns      []mna.Functional // the read-outs by id; fns[readCtl] changes with the frequency
@@ -181,7 +181,6 @@ type slot struct {
 	structErr   *SingularError
 	checked, dc bool
 
-	key   string
 	act   *mna.Active // the configuration's coefficients, for residuals
 	adj   []adjoint   // adjoint solutions by read-out, at f
 	ludd  mna.LUDD    // the double-double factorization, made when needed
@@ -228,9 +227,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	}
 	a.r = make([]complex128, sys.N+1)
 	mna.Scatter(a.r, sys.Controls[a.ref].R)
-	for i := range a.bufs {
-		a.bufs[i] = make([]complex128, sys.N+1)
-	}
+	a.buf = make([]complex128, sys.N+1)
 	a.prec = mna.NewPrecise(sys)
 	a.fns = make([]mna.Functional, readPort+len(a.Ports))
 	if gain != nil {
@@ -325,7 +322,7 @@ func drivers(c *circuit.Circuit, pa, pb int) []int {
 func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
 	s := a.slots[key]
 	if s == nil {
-		s = &slot{key: key}
+		s = &slot{}
 		a.slots[key] = s
 	}
 	if s.ok && s.f == cfg.F {
@@ -464,7 +461,7 @@ func (a *Analyzer) At(f float64) (Point, error) {
 		gr := &GainResult{G0: nan, GInf: nan, G: nan, GDirect: nan, Agreement: math.NaN(),
 			Err: GainErrors{math.NaN(), math.NaN(), math.NaN(), math.NaN()}}
 		gr.Sens = gr.Err
-		b := a.bufs[1]
+		b := a.buf
 		a.sourceVector(b[:a.Sys.N])
 		G0, GInf, G, GD := nanBall, nanBall, nanBall, nanBall
 		out := a.balls[:2]
@@ -588,7 +585,7 @@ func zeroWithin(b ball) bool { return b.ok() && !math.IsInf(b.e, 1) && b.covers(
 
 func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T ratio, closed bool, note func(string, ...any)) PortResult {
 	p := &a.Ports[pi]
-	bp := a.bufs[1]
+	bp := a.buf
 	clear(bp)
 	if v := mna.NodeVar(p.A); v >= 0 {
 		bp[v] = 1

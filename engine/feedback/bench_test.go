@@ -2,6 +2,7 @@ package feedback_test
 
 import (
 	"fmt"
+	"math"
 	"strings"
 	"testing"
 
@@ -73,7 +74,14 @@ func BenchmarkSpot10Node2Port(b *testing.B) {
 }
 
 func benchSweep(b *testing.B, text string, ports [][3]string, gain *[3]string, n int) {
+	benchSweepTol(b, text, ports, gain, n, 0)
+}
+
+// benchSweepTol is benchSweep with Analyzer.Tol = tol: +Inf computes every
+// bound but refines nothing, the cost of the checks alone.
+func benchSweepTol(b *testing.B, text string, ports [][3]string, gain *[3]string, n int, tol float64) {
 	a := benchAnalyzer(b, text, ports, gain)
+	a.Tol = tol
 	grid := floats.LogSpan(make([]float64, n), 10, 100e6)
 	b.ReportAllocs()
 	for b.Loop() {
@@ -151,4 +159,16 @@ const electrometer = "vsource Vin src gnd 1\nresistor Rs src in 50\nopamp U1 in 
 
 func BenchmarkSweepElectrometer400(b *testing.B) {
 	benchSweep(b, electrometer, [][3]string{{"in", "src", "gnd"}}, &[3]string{"Vin", "out"}, 400)
+}
+
+func BenchmarkSweepWellConditioned400Unrefined(b *testing.B) {
+	benchSweepTol(b, wellConditioned, portsWell, &[3]string{"Vin", "out"}, 400, math.Inf(1))
+}
+
+func BenchmarkSweep10Node2Port400Unrefined(b *testing.B) {
+	benchSweepTol(b, bench10, ports10, &[3]string{"Vin", "o2"}, 400, math.Inf(1))
+}
+
+func BenchmarkSweepElectrometer400Unrefined(b *testing.B) {
+	benchSweepTol(b, electrometer, [][3]string{{"in", "src", "gnd"}}, &[3]string{"Vin", "out"}, 400, math.Inf(1))
 }

@@ -23,8 +23,7 @@ type LU struct {
 	full   int          // full factorizations so far
 	orig   []complex128 // the equilibrated matrix, while a refactor is tried
 	inv    []complex128 // reciprocals of U's diagonal
-	minPiv float64
-	norm1  float64 // 1-norm of the equilibrated matrix
+	norm1  float64      // 1-norm of the equilibrated matrix
 	spare  []complex128
 }
 
@@ -128,7 +127,6 @@ func (lu *LU) Factor(a []complex128, n int) error {
 
 // eliminate factors the equilibrated a with partial pivoting.
 func (lu *LU) eliminate(a []complex128, n int) error {
-	lu.minPiv = math.Inf(1)
 	for k := 0; k < n; k++ {
 		p, pm := k, abs1(a[k*n+k])
 		for i := k + 1; i < n; i++ {
@@ -142,7 +140,6 @@ func (lu *LU) eliminate(a []complex128, n int) error {
 		if pm <= PivotTolerance {
 			return &Singular{Index: k, Kind: "pivot"}
 		}
-		lu.minPiv = math.Min(lu.minPiv, pm)
 		if p != k {
 			rk, rp := a[k*n:k*n+n], a[p*n:p*n+n]
 			for j := range rk {
@@ -184,7 +181,6 @@ func (lu *LU) eliminate(a []complex128, n int) error {
 // before: only the search for nonzeros is saved, never a pivoting decision.
 func (lu *LU) refactor(a []complex128, n int) bool {
 	sym := lu.sym
-	lu.minPiv = math.Inf(1)
 	for k := 0; k < n; k++ {
 		p, pm := k, abs1(a[k*n+k])
 		for i := k + 1; i < n; i++ {
@@ -198,7 +194,6 @@ func (lu *LU) refactor(a []complex128, n int) bool {
 			return false
 		}
 		lu.piv[k] = p
-		lu.minPiv = math.Min(lu.minPiv, pm)
 		if p != k {
 			rk, rp := a[k*n:k*n+n], a[p*n:p*n+n]
 			for j := range rk {
@@ -289,11 +284,6 @@ func symbolicOf(n int, pos []int32, piv []int) *symbolic {
 	}
 	return s
 }
-
-// MinPivot is the smallest pivot magnitude of the last successful Factor,
-// relative to the equilibrated matrix: a rough measure of how close the
-// system came to singular.
-func (lu *LU) MinPivot() float64 { return lu.minPiv }
 
 // SolveTo solves A·x = b into dst (len n), leaving b unchanged. dst and b
 // may be the same slice.

@@ -291,25 +291,6 @@ func (s *System) Assemble(dst []complex128, cfg Config) []complex128 {
 	return dst
 }
 
-// Dot returns tᵀx for a sparse t.
-func Dot(t []Term, x []complex128) complex128 {
-	var s complex128
-	for _, e := range t {
-		s += complex(e.V, 0) * x[e.I]
-	}
-	return s
-}
-
-// ControlSignal returns the control signal c(s)ᵀx of Controls[ci].
-func (s *System) ControlSignal(ci int, f float64, x []complex128) complex128 {
-	ctl := s.Controls[ci]
-	v := Dot(ctl.C0, x)
-	if len(ctl.C1) > 0 {
-		v += complex(0, 2*math.Pi*f) * Dot(ctl.C1, x)
-	}
-	return v
-}
-
 // Scatter writes t into the dense vector dst (after clearing it).
 func Scatter(dst []complex128, t []Term) {
 	clear(dst)
