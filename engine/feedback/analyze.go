@@ -355,7 +355,7 @@ func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
 func (a *Analyzer) setFrequency(f float64) {
 	a.prec.At(f)
 	a.fns[readCtl] = a.prec.Control(a.fns[readCtl][:0], a.ref)
-	a.k = mna.GainDD(&a.C.Parts[a.Ref], f)
+	a.k = a.prec.Gain(a.ref)
 	a.kAbs = cmplx.Abs(a.k.Complex128())
 }
 
@@ -475,7 +475,7 @@ func (a *Analyzer) At(f float64) (Point, error) {
 			a.eval(base0, b, readIDs2[:], out, nil)
 			var cs ball
 			G0, cs = out[0], out[1]
-			G, GInf = a.gainModel(G0, cs, vr, cr, k, T, closed)
+			G, GInf = a.gainModel(G0, cs, vr, cr, k, T, closed, false)
 			// Where a formula cancels (g∞ ≪ g₀), its terms need more
 			// than their own 12 digits: ask for what the result needs,
 			// and evaluate again.
@@ -485,7 +485,7 @@ func (a *Analyzer) At(f float64) (Point, error) {
 				T2 := a.ratioOf(cr)
 				a.eval(base0, b, readIDs2[:], out, t[2:4])
 				G0, cs = out[0], out[1]
-				G, GInf = a.gainModel(G0, cs, vr, cr, k, T2, closed)
+				G, GInf = a.gainModel(G0, cs, vr, cr, k, T2, closed, true)
 			}
 			if zeroWithin(cr) {
 				note("%s: T is zero within its error bound: the reference's control signal does not respond to its output, so g∞ is not defined", hz(f))
@@ -514,17 +514,23 @@ func (a *Analyzer) At(f float64) (Point, error) {
 // gainModel returns the asymptotic gain model's g and g∞ from g₀, the
 // control signal cs and output vr of the source's and the test
 // injection's solutions at zero reference gain, the returned signal cr and
-// T. g∞ is NaN where T is zero within its bound, g where 1 + T is.
-func (a *Analyzer) gainModel(G0, cs, vr, cr, k ball, T ratio, closed bool) (G, GInf ball) {
+// T. g∞ is NaN where T is zero within its bound, g where 1 + T is. With
+// precise, the products and quotients keep double-double midpoints, for
+// when g₀ and the feedback term nearly cancel.
+func (a *Analyzer) gainModel(G0, cs, vr, cr, k ball, T ratio, closed, precise bool) (G, GInf ball) {
 	G, GInf = nanBall, nanBall
+	mul, div := ball.mulF, ball.divF
+	if precise {
+		mul, div = ball.mul, ball.div
+	}
 	// G = G∞·T/(1+T) + G₀/(1+T), written as G₀ + k·vr·cs/(1+T) (the same
 	// expression), so that a vanishing T needs no division by the
 	// returned signal.
 	if !closed {
-		G = G0.add(k.mul(vr).mul(cs).div(T.one))
+		G = G0.add(div(mul(mul(k, vr), cs), T.one))
 	}
 	if !zeroWithin(cr) {
-		GInf = G0.sub(vr.mul(cs).div(cr))
+		GInf = G0.sub(div(mul(vr, cs), cr))
 	}
 	return G, GInf
 }
@@ -682,9 +688,9 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		switch {
 		case loopZero(To):
 			note("%s: port %s: 1 + T open = 0 within its error bound, so the impedance is infinite; its admittance is given instead", hz(f), p.Name)
-			Y = den.div(Z0.mul(Ts.one))
+			Y = den.divF(Z0.mulF(Ts.one))
 		default:
-			Z = Z0.mul(Ts.one).div(den)
+			Z = Z0.mulF(Ts.one).divF(den)
 			if !shortOf(Z) {
 				break
 			}
@@ -706,7 +712,7 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 			if t := E * cmplx.Abs(To.one.v) / a.kAbs; To.one.e > E*cmplx.Abs(To.one.v) {
 				To = a.returned(openS, []float64{t})
 			}
-			Z = Z0.mul(Ts.one).div(To.one)
+			Z = Z0.mulF(Ts.one).divF(To.one)
 		}
 	}
 	return portOf(Z0, Ts, To, Z, ZD, Y)

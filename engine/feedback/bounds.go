@@ -69,7 +69,9 @@ func mk(d dd.Complex, e, s, ulps float64) ball {
 
 // The operations run their midpoints in double-double (a few units of
 // 2⁻¹⁰⁶, counted as one u below with ample room), so a sum that cancels
-// keeps the digits its inputs have.
+// keeps the digits its inputs have. mul and div have float64 variants,
+// mulF and divF, for where nothing cancels after them: they count their
+// own rounding and that of their inputs' midpoints instead.
 func (a ball) add(b ball) ball { return mk(a.d.Add(b.d), a.e+b.e, a.s+b.s, 1) }
 
 func (a ball) sub(b ball) ball { return mk(a.d.Sub(b.d), a.e+b.e, a.s+b.s, 1) }
@@ -77,6 +79,12 @@ func (a ball) sub(b ball) ball { return mk(a.d.Sub(b.d), a.e+b.e, a.s+b.s, 1) }
 func (a ball) mul(b ball) ball {
 	ma, mb := mna.Abs(a.v), mna.Abs(b.v)
 	return mk(a.d.Mul(b.d), ma*b.e+mb*a.e+a.e*b.e, ma*b.s+mb*a.s, 1)
+}
+
+func (a ball) mulF(b ball) ball {
+	ma, mb := mna.Abs(a.v), mna.Abs(b.v)
+	v := a.v * b.v
+	return ball{v, dd.C(v), ma*b.e + mb*a.e + a.e*b.e + 6*u*ma*mb, ma*b.s + mb*a.s}
 }
 
 // div returns a/b; its bound is +Inf when b's ball contains zero.
@@ -89,6 +97,16 @@ func (a ball) div(b ball) ball {
 		return ball{v, q, math.Inf(1), s}
 	}
 	return mk(q, (a.e+mv*b.e)/(mb-b.e), s, 1)
+}
+
+func (a ball) divF(b ball) ball {
+	v := a.v / b.v
+	mb, mv := mna.Abs(b.v), mna.Abs(v)
+	s := (a.s + mv*b.s) / mb
+	if !(b.e < mb) {
+		return ball{v, dd.C(v), math.Inf(1), s}
+	}
+	return ball{v, dd.C(v), (a.e+mv*b.e)/(mb-b.e) + 8*u*mv, s}
 }
 
 // ratio is a return ratio T = −k·c with 1 + T.

@@ -28,12 +28,13 @@ var twoPi = dd.Float{Hi: 6.283185307179586, Lo: 2.4492935982947064e-16}
 //
 // A Precise is not safe for concurrent use.
 type Precise struct {
-	s    *System
-	f    float64
-	set  bool
-	cw   []dd.Float // ω times each c entry
-	ctl  []stamp    // the controlled sources' terms at f, in an order fixed by s
-	rows int        // the most terms one row of A·x sums, for rounding bounds
+	s     *System
+	f     float64
+	set   bool
+	cw    []dd.Float   // ω times each c entry
+	ctl   []stamp      // the controlled sources' terms at f, in an order fixed by s
+	gains []dd.Complex // each control's gain k(f)
+	rows  int          // the most terms one row of A·x sums, for rounding bounds
 
 	r   []dd.Complex
 	acc []dot2
@@ -102,8 +103,11 @@ func (p *Precise) At(f float64) {
 		p.cw = append(p.cw, w.MulF(e.v))
 	}
 	p.ctl = p.ctl[:0]
+	p.gains = p.gains[:0]
 	for _, ctl := range s.Controls {
-		k := GainDD(&s.C.Parts[ctl.Part], f).Neg()
+		g := gainDD(&s.C.Parts[ctl.Part], f)
+		p.gains = append(p.gains, g)
+		k := g.Neg()
 		for _, r := range ctl.R {
 			kr := k.Scale(dd.Float{Hi: r.V, Lo: r.Lo})
 			for _, c := range ctl.C0 {
@@ -118,8 +122,12 @@ func (p *Precise) At(f float64) {
 	}
 }
 
-// GainDD is Part.Gain in double-double.
-func GainDD(p *circuit.Part, f float64) dd.Complex {
+// Gain returns Controls[ci]'s gain k at the frequency of the last At, in
+// double-double.
+func (p *Precise) Gain(ci int) dd.Complex { return p.gains[ci] }
+
+// gainDD is Part.Gain in double-double.
+func gainDD(p *circuit.Part, f float64) dd.Complex {
 	if p.Kind != circuit.OpAmp {
 		return dd.Complex{Re: dd.F(p.Value)}
 	}
@@ -336,7 +344,7 @@ func (p *Precise) Residual(r []dd.Complex, mag, rnd []float64, act *Active, b []
 		acc[i].subImag(v.Im.Hi, v.Im.Lo, xj)
 		m := abs1(st.d) * (math.Abs(xj.Re.Hi) + math.Abs(xj.Im.Hi))
 		mag[i] += m
-		acc[i].coef += 64 * dd.U2 * m // a gain through GainDD and the sensed values
+		acc[i].coef += 64 * dd.U2 * m // a gain through gainDD and the sensed values
 	}
 	for _, t := range act.unit {
 		i, j := t.i, t.j
