@@ -435,9 +435,8 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	if !okK && !ok0 {
 		return Point{}, a.explain(errK, cfgK, "")
 	}
-	var se *SingularError
-	if errors.As(errK, &se) {
-		return Point{}, errK
+	if errK != nil && !numeric(errK) {
+		return Point{}, errK // the structure itself, named by factor
 	}
 	k := ball{a.k.Complex128(), a.k, 64 * dd.U2 * a.kAbs, a.kAbs}
 	T, cr, vr := nanRatio, nanBall, nanBall
@@ -662,8 +661,13 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 	default:
 		note("%s: port %s: with the port open the full circuit has no solution, so the direct impedance is infinite", hz(f), p.Name)
 	}
-	var loop *SingularError
-	shortLoop := errors.As(errShort0, &loop) && len(loop.Parts) > 0
+	var loopParts []string // the voltage-forcing parts a short across the port closes a loop with
+	if errShort0 != nil {
+		if se, ok := errShort0.(*SingularError); ok {
+			loopParts = se.Parts
+		}
+	}
+	shortLoop := len(loopParts) > 0
 	if !okShort0 && !shortLoop && !zeroWithin(Z0) {
 		note("%s: port %s: with the port shorted and the reference gain at zero the circuit has no solution, so T short is not finite", hz(f), p.Name)
 	}
@@ -674,7 +678,7 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		what := "an ideal voltage source drives the port"
 		if shortLoop {
 			var held []string
-			for _, n := range loop.Parts {
+			for _, n := range loopParts {
 				if n != "the port short" {
 					held = append(held, n)
 				}
@@ -793,8 +797,8 @@ func (a *Analyzer) noteDigits(pt *Point, note func(string, ...any)) {
 		case !finite(x.v) || math.IsNaN(x.e):
 		case math.IsInf(x.e, 1):
 			return -2
-		case x.e >= mna.Abs(x.v) || x.e == 0:
-			// Zero within its bound (shown as such), or exact.
+		case x.e >= mna.Abs(x.v) || x.e <= 1e-12*mna.Abs(x.v):
+			// Zero within its bound (shown as such), exact, or 12 digits.
 		default:
 			if d := certainDigits(x.v, x.e); d < 12 {
 				return d

@@ -19,6 +19,7 @@ type LU struct {
 	work   []complex128
 	nz     []int
 	pos    []int32      // nonzero positions of the assembled matrix
+	rowEnd []int        // where each row's nonzeros end in pos
 	sym    *symbolic    // the structure of the last full factorization
 	full   int          // full factorizations so far
 	orig   []complex128 // the equilibrated matrix, while a refactor is tried
@@ -57,6 +58,10 @@ func (lu *LU) Factor(a []complex128, n int) error {
 	// so the scaling itself is exact). One pass over the whole matrix finds
 	// the nonzeros and the row maxima; the rest runs over the nonzeros only.
 	pos := lu.pos[:0]
+	if cap(lu.rowEnd) < n {
+		lu.rowEnd = make([]int, n)
+	}
+	rowEnd := lu.rowEnd[:n] // pos[rowEnd[i-1]:rowEnd[i]] are row i's
 	for i := 0; i < n; i++ {
 		m := 0.0
 		row := a[i*n : i*n+n]
@@ -68,6 +73,7 @@ func (lu *LU) Factor(a []complex128, n int) error {
 				}
 			}
 		}
+		rowEnd[i] = len(pos)
 		if m == 0 {
 			lu.pos = pos
 			return &Singular{Index: i, Kind: "row"}
@@ -80,13 +86,18 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		cmax[j] = 0
 		csum[j] = 0
 	}
-	for _, q := range pos {
-		i, j := int(q)/n, int(q)%n
-		x := abs1(a[q]) * lu.rs[i]
-		csum[j] += complex(x, 0)
-		if x > cmax[j] {
-			cmax[j] = x
+	start := 0
+	for i, end := range rowEnd {
+		ri, base := lu.rs[i], i*n
+		for _, q := range pos[start:end] {
+			j := int(q) - base
+			x := abs1(a[q]) * ri
+			csum[j] += complex(x, 0)
+			if x > cmax[j] {
+				cmax[j] = x
+			}
 		}
+		start = end
 	}
 	lu.norm1 = 0
 	for j := 0; j < n; j++ {
@@ -97,10 +108,15 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		lu.norm1 = math.Max(lu.norm1, real(csum[j])*s) // the 1-norm, for Cond
 		lu.cs[j] = s
 	}
-	for _, q := range pos {
-		sc := lu.rs[int(q)/n] * lu.cs[int(q)%n]
-		v := a[q]
-		a[q] = complex(real(v)*sc, imag(v)*sc)
+	start = 0
+	for i, end := range rowEnd {
+		ri, base := lu.rs[i], i*n
+		for _, q := range pos[start:end] {
+			sc := ri * lu.cs[int(q)-base]
+			v := a[q]
+			a[q] = complex(real(v)*sc, imag(v)*sc)
+		}
+		start = end
 	}
 	if sym := lu.sym; sym != nil && sym.n == n && sym.covers(pos) {
 		// The same structure as last time: eliminate along the recorded
@@ -548,8 +564,14 @@ func abs1(v complex128) float64 {
 	return r + i
 }
 
-// pow2inv returns the power of two nearest 1/m.
+// pow2inv returns the power of two 2^(1−e) for 2^(e−1) ≤ m < 2^e, so
+// that m·pow2inv(m) lies in [1, 2).
 func pow2inv(m float64) float64 {
+	// For a normal m with biased exponent E, e = E − 1022 and the result's
+	// biased exponent is 2046 − E; outside that range, the general way.
+	if E := int(math.Float64bits(m)>>52) & 0x7ff; E > 0 && E < 2046 {
+		return math.Float64frombits(uint64(2046-E) << 52)
+	}
 	_, e := math.Frexp(m)
 	return math.Ldexp(1, -e+1)
 }

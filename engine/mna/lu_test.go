@@ -287,3 +287,19 @@ func TestSolveTrans(t *testing.T) {
 		t.Errorf("only %d of 30 systems could be checked", checked)
 	}
 }
+
+// pow2inv's bit-level path against the general one (math.Frexp and
+// math.Ldexp) over the whole exponent range, subnormals included.
+func TestPow2inv(t *testing.T) {
+	rng := rand.New(rand.NewPCG(2, 2))
+	for k := 0; k < 100000; k++ {
+		m := math.Float64frombits(rng.Uint64() &^ (1 << 63))
+		if math.IsInf(m, 0) || math.IsNaN(m) || m == 0 {
+			continue
+		}
+		_, e := math.Frexp(m)
+		if got, want := pow2inv(m), math.Ldexp(1, -e+1); got != want {
+			t.Fatalf("pow2inv(%g) = %g, want %g", m, got, want)
+		}
+	}
+}

@@ -165,10 +165,11 @@ type Active struct {
 // Gamma returns the relative bounds of ResidualBound, row by row.
 func (a *Active) Gamma() []float64 { return a.gamma }
 
-// aterm is one coefficient of an Active: row, column, where to find it.
+// aterm is one coefficient of an Active: row, column, where to find it,
+// its value and magnitude where they do not change with the frequency.
 type aterm struct {
 	i, j, k int32
-	v       float64
+	v, abs  float64
 }
 
 // Active returns cfg's set of coefficients (independent of cfg.F).
@@ -182,12 +183,12 @@ func (p *Precise) Active(cfg Config) *Active {
 	}
 	for k, e := range s.g {
 		if !skip[e.i] && !skip[e.j] {
-			a.g = append(a.g, aterm{int32(e.i), int32(e.j), int32(k), e.v})
+			a.g = append(a.g, aterm{int32(e.i), int32(e.j), int32(k), e.v, math.Abs(e.v)})
 		}
 	}
 	for k, e := range s.c {
 		if !skip[e.i] && !skip[e.j] {
-			a.c = append(a.c, aterm{int32(e.i), int32(e.j), int32(k), e.v})
+			a.c = append(a.c, aterm{int32(e.i), int32(e.j), int32(k), e.v, math.Abs(e.v)})
 		}
 	}
 	// The control terms in the order At writes them.
@@ -196,7 +197,7 @@ func (p *Precise) Active(cfg Config) *Active {
 		for _, r := range ctl.R {
 			for _, c := range append(append([]Term(nil), ctl.C0...), ctl.C1...) {
 				if !(ci == cfg.Ref && !cfg.RefGain) && !skip[r.I] && !skip[c.I] {
-					a.k = append(a.k, aterm{int32(r.I), int32(c.I), int32(k), 0})
+					a.k = append(a.k, aterm{int32(r.I), int32(c.I), int32(k), 0, 0})
 				}
 				k++
 			}
@@ -204,7 +205,7 @@ func (p *Precise) Active(cfg Config) *Active {
 	}
 	for _, pi := range cfg.Removed {
 		br := int32(s.Branch[pi])
-		a.unit = append(a.unit, aterm{br, br, 0, 1})
+		a.unit = append(a.unit, aterm{br, br, 0, 1, 1})
 	}
 	defer func() {
 		terms := make([]int, a.N)
@@ -224,10 +225,10 @@ func (p *Precise) Active(cfg Config) *Active {
 	if cfg.Short != nil {
 		x, y, br := int32(NodeVar(cfg.Short[0])), int32(NodeVar(cfg.Short[1])), int32(s.N)
 		if x >= 0 {
-			a.unit = append(a.unit, aterm{x, br, 0, 1}, aterm{br, x, 0, 1})
+			a.unit = append(a.unit, aterm{x, br, 0, 1, 1}, aterm{br, x, 0, 1, 1})
 		}
 		if y >= 0 {
-			a.unit = append(a.unit, aterm{y, br, 0, -1}, aterm{br, y, 0, -1})
+			a.unit = append(a.unit, aterm{y, br, 0, -1, 1}, aterm{br, y, 0, -1, 1})
 		}
 	}
 	return a
@@ -419,7 +420,7 @@ func (p *Precise) ResidualBound(w, mag []float64, r []complex128, act *Active, b
 	for _, t := range act.g {
 		xj := x[t.j]
 		r[t.i] -= complex(t.v*real(xj), t.v*imag(xj))
-		mag[t.i] += math.Abs(t.v) * ax[t.j]
+		mag[t.i] += t.abs * ax[t.j]
 	}
 	if p.f != 0 {
 		cw := p.cw
