@@ -157,6 +157,20 @@ func (a *Analyzer) adjoint(s *slot, id int) []complex128 {
 	return ad.y
 }
 
+// setAdjoint caches y as the adjoint of read-out id on slot s.
+func (a *Analyzer) setAdjoint(s *slot, id int, y []complex128) {
+	id = a.same[id]
+	for len(s.adj) <= id {
+		s.adj = append(s.adj, adjoint{})
+	}
+	ad := &s.adj[id]
+	if ad.ok && ad.f == s.f {
+		return
+	}
+	ad.y = append(ad.y[:0], y...)
+	ad.f, ad.ok = s.f, true
+}
+
 // adjoint is a cached adjoint solution.
 type adjoint struct {
 	y  []complex128
@@ -221,6 +235,12 @@ func (a *Analyzer) eval(s *slot, b []complex128, ids []int, out []ball, tgt []fl
 	n := s.act.N
 	x, r := a.sx[:n], a.sr[:n]
 	s.lu.SolveTo(x, b[:n])
+	if len(ids) == 1 && ids[0] >= readPort && s.act.Symmetric() {
+		// A port's current read as its voltage, on symmetric equations (no
+		// controlled source acting: a passive network, or one opamp at
+		// zero gain): the adjoint is the solution itself.
+		a.setAdjoint(s, ids[0], x)
+	}
 	w, mag := a.sw[:n], a.smag[:n]
 	for pass := 0; ; pass++ {
 		a.prec.ResidualBound(w, mag, r, s.act, b[:n], x)

@@ -162,6 +162,12 @@ type Active struct {
 	gamma []float64
 }
 
+// Symmetric reports whether the matrix of the Active is symmetric: no
+// controlled source acts in it (conductances, capacitances, inductances,
+// and the ±1 of branch currents, removed branches and shorts, are
+// symmetric as New writes them).
+func (a *Active) Symmetric() bool { return len(a.k) == 0 }
+
 // Gamma returns the relative bounds of ResidualBound, row by row.
 func (a *Active) Gamma() []float64 { return a.gamma }
 

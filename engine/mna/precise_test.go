@@ -158,3 +158,33 @@ func TestRefineRecoversAbsorbedConductance(t *testing.T) {
 		}
 	}
 }
+
+// Symmetric says so exactly when the assembled matrix is: a network of
+// passive parts and sources with its one controlled source at zero gain
+// (invented circuit), open, driver removed, or shorted.
+func TestActiveSymmetric(t *testing.T) {
+	c, err := circuit.Parse("vsource V1 in gnd 1\nresistor R1 in a 1k\ncapacitor C1 a gnd 1n\ninductor L1 a b 1m\nopamp U1 b o o a0=1e5 rid=1M rcm=1G ro=50\nresistor R2 o b 10k\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := New(c)
+	p := NewPrecise(s)
+	a, _ := c.Node("a")
+	v1, _ := c.PartIndex("V1")
+	for _, cfg := range []Config{
+		{F: 1e3, Ref: 0}, {F: 0, Ref: 0}, {F: 1e3, Ref: 0, Removed: []int{v1}}, {F: 1e3, Ref: 0, Short: &[2]int{a, circuit.Gnd}},
+		{F: 1e3, Ref: 0, RefGain: true},
+	} {
+		m := s.Assemble(nil, cfg)
+		n := s.Size(cfg)
+		sym := true
+		for i := 0; i < n; i++ {
+			for j := 0; j < i; j++ {
+				sym = sym && m[i*n+j] == m[j*n+i]
+			}
+		}
+		if got := p.Active(cfg).Symmetric(); got != sym {
+			t.Errorf("%+v: Symmetric() = %v, the matrix is symmetric: %v", cfg, got, sym)
+		}
+	}
+}
