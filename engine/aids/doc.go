@@ -96,8 +96,10 @@
 // about that many per cent), the phase sensitivity ∂∠Q/∂ln p in degrees,
 // and ∂PM/∂ln p in degrees, sorted by size. Each is a central difference of
 // ln Q in ln p at steps 2h, h and h/2 (h = 10⁻³), Richardson-extrapolated,
-// with an error estimate from the two extrapolations; the tests hold it to
-// closed forms to better than 10⁻⁸ relative.
+// with an error estimate from the two extrapolations plus what the values'
+// own error bounds can contribute (the values are refined to about 15
+// digits for this); the tests hold it to closed forms to better than 10⁻⁸
+// relative.
 //
 // # Standard values
 //

@@ -347,6 +347,9 @@ type Sample struct {
 	// PM and FC are the governing phase margin (degrees) and its
 	// crossover (Hz), NaN when the loop was not tracked or has none.
 	PM, FC float64
+	// ZErr and GErr bound the errors of Z and G (see feedback.PortErrors).
+	ZErr []float64
+	GErr float64
 }
 
 // evaluator turns parameter values into Samples. It owns a scratch copy of
@@ -354,6 +357,7 @@ type Sample struct {
 // not safe for concurrent use.
 type evaluator struct {
 	m     *Model
+	tol   float64 // feedback.Analyzer.Tol for every evaluation
 	c     *circuit.Circuit
 	ports []feedback.Port
 	loop  *loop // nil: phase margin not tracked
@@ -385,16 +389,20 @@ func (e *evaluator) analyzer(x []float64) (*feedback.Analyzer, error) {
 	for i := range e.ports {
 		e.ports[i].Drivers, e.ports[i].HeldBy = nil, nil
 	}
-	return feedback.New(c, e.m.Reference, e.ports, e.m.Gain)
+	a, err := feedback.New(c, e.m.Reference, e.ports, e.m.Gain)
+	if err == nil {
+		a.Tol = e.tol
+	}
+	return a, err
 }
 
 // eval analyzes the circuit at values x into dst (whose Z must have one
 // entry per port).
 func (e *evaluator) eval(x []float64, dst *Sample) error {
 	for i := range dst.Z {
-		dst.Z[i] = cmplx.NaN()
+		dst.Z[i], dst.ZErr[i] = cmplx.NaN(), math.NaN()
 	}
-	dst.G, dst.PM, dst.FC = cmplx.NaN(), math.NaN(), math.NaN()
+	dst.G, dst.GErr, dst.PM, dst.FC = cmplx.NaN(), math.NaN(), math.NaN(), math.NaN()
 	a, err := e.analyzer(x)
 	if err != nil {
 		return err
@@ -404,10 +412,10 @@ func (e *evaluator) eval(x []float64, dst *Sample) error {
 		return err
 	}
 	for i, pr := range pt.Ports {
-		dst.Z[i] = finiteOr(pr.Z, pr.ZDirect)
+		dst.Z[i], dst.ZErr[i] = finiteOr(pr.Z, pr.Err.Z, pr.ZDirect, pr.Err.ZDirect)
 	}
-	if pt.Gain != nil {
-		dst.G = finiteOr(pt.Gain.G, pt.Gain.GDirect)
+	if g := pt.Gain; g != nil {
+		dst.G, dst.GErr = finiteOr(g.G, g.Err.G, g.GDirect, g.Err.GDirect)
 	}
 	if e.loop != nil {
 		dst.PM, dst.FC = e.loop.margin(a)
@@ -415,14 +423,18 @@ func (e *evaluator) eval(x []float64, dst *Sample) error {
 	return nil
 }
 
-func newSample(ports int) Sample { return Sample{Z: make([]complex128, ports)} }
+func newSample(ports int) Sample {
+	return Sample{Z: make([]complex128, ports), ZErr: make([]float64, ports)}
+}
 
-func finiteOr(a, b complex128) complex128 {
+// finiteOr returns a with its bound ea when a is finite, else b with eb,
+// else NaN.
+func finiteOr(a complex128, ea float64, b complex128, eb float64) (complex128, float64) {
 	if numeric.Finite(a) {
-		return a
+		return a, ea
 	}
 	if numeric.Finite(b) {
-		return b
+		return b, eb
 	}
-	return cmplx.NaN()
+	return cmplx.NaN(), math.NaN()
 }

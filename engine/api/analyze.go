@@ -284,7 +284,7 @@ func (p *Prepared) Run() (*Response, error) {
 	if err != nil {
 		return nil, &Problem{Msg: err.Error(), Err: err}
 	}
-	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), Notes: []string{}, Condition: F(pt.Cond),
+	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), ReturnRatioError: bound(pt.T, pt.TErr), Notes: []string{}, Condition: F(pt.Cond),
 		Temperature: p.Circuit.Temperature, Devices: devices(p.Circuit)}
 	for i, pr := range pt.Ports {
 		resp.Ports = append(resp.Ports, portResult(a, i, pr))
@@ -301,6 +301,7 @@ func (p *Prepared) Run() (*Response, error) {
 			return nil, &Problem{Msg: err.Error(), Err: err}
 		}
 		resp.Sweep = sweepResult(grid, pts)
+		sweepErrors(resp.Sweep, pts)
 		resp.fillSweepNames()
 		T := make([]complex128, len(pts))
 		for i := range pts {
@@ -331,7 +332,7 @@ func portResult(a *feedback.Analyzer, i int, pr feedback.PortResult) PortResult 
 	out := PortResult{
 		Name: port.Name, A: a.C.Nodes[port.A], B: a.C.Nodes[port.B],
 		Z0: C(pr.Z0), TShort: C(pr.TShort), TOpen: C(pr.TOpen), Z: C(pr.Z), ZDirect: C(pr.ZDirect),
-		Agreement: F(pr.Agreement),
+		Agreement: F(pr.Agreement), Errors: portErrors(pr),
 	}
 	if out.Z == nil {
 		out.Y = C(pr.Y)
@@ -342,7 +343,7 @@ func portResult(a *feedback.Analyzer, i int, pr feedback.PortResult) PortResult 
 func (p *Prepared) gainResult(g *feedback.GainResult) *GainResult {
 	spec := p.Analyzer.Gain
 	return &GainResult{Source: spec.SourceName, Output: spec.OutputName, Unit: spec.Unit(p.Circuit),
-		G0: C(g.G0), GInf: C(g.GInf), G: C(g.G), GDirect: C(g.GDirect), Agreement: F(g.Agreement)}
+		G0: C(g.G0), GInf: C(g.GInf), G: C(g.G), GDirect: C(g.GDirect), Agreement: F(g.Agreement), Errors: gainErrors(g)}
 }
 
 func sweepResult(grid []float64, pts []feedback.Point) *SweepResult {

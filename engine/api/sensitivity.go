@@ -107,7 +107,7 @@ func (p *Prepared) sensitivity(m *aids.Model, sr *SensitivityRequest) (*Sensitiv
 		return nil, &Problem{Msg: err.Error(), Err: err}
 	}
 	out := &SensitivityResult{Frequency: m.Frequency, Step: res.Step, Quantities: []SensitivityQuantity{}, Notes: append([]string{}, res.Notes...),
-		Method: "central differences of ln Q in ln p at steps 2h, h and h/2, Richardson-extrapolated; error = |R(h) − R(2h)|"}
+		Method: "central differences of ln Q in ln p at steps 2h, h and h/2, Richardson-extrapolated; error = |R(h) − R(2h)| + what the values' error bounds allow"}
 	for _, q := range res.Quantities {
 		sq := SensitivityQuantity{ID: q.ID, Quantity: q.Kind.String(), Title: q.Title, Entries: []SensitivityEntry{}}
 		if q.Port >= 0 {

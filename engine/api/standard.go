@@ -71,6 +71,16 @@ type RatioResult struct {
 	// its relative error against the wanted gain.
 	Gain       float64 `json:"gain"`
 	GainRelErr float64 `json:"gainRelErr"`
+	// Errors bounds RelErr and GainRelErr: what the binary representation
+	// of the decimal values and the arithmetic can put into them. One
+	// within its bound is zero (the pair is exact).
+	Errors RatioErrors `json:"errors"`
+}
+
+// RatioErrors bounds a RatioResult's errors.
+type RatioErrors struct {
+	RelErr     *float64 `json:"relErr"`
+	GainRelErr *float64 `json:"gainRelErr"`
 }
 
 // SnapVariant is the circuit analyzed with one set of series values.
@@ -90,6 +100,13 @@ type SnappedValue struct {
 	Nominal float64 `json:"nominal"`
 	Value   float64 `json:"value"`
 	Change  float64 `json:"change"` // value/nominal − 1
+	// Errors bounds Change, as RatioErrors do.
+	Errors SnappedErrors `json:"errors"`
+}
+
+// SnappedErrors bounds a SnappedValue's change.
+type SnappedErrors struct {
+	Change *float64 `json:"change"`
 }
 
 // SnapCompare sets a snapped result beside the nominal one.
@@ -99,6 +116,15 @@ type SnapCompare struct {
 	Snapped *Complex `json:"snapped"`
 	// MagnitudeError is |snapped|/|nominal| − 1; PhaseDifference is
 	// ∠snapped − ∠nominal in degrees.
+	MagnitudeError  *float64 `json:"magnitudeError"`
+	PhaseDifference *float64 `json:"phaseDifference"`
+	// Errors bounds both, from the two analyses' error bounds: a change
+	// within its bound is none the engine can resolve.
+	Errors CompareErrors `json:"errors"`
+}
+
+// CompareErrors bounds a SnapCompare's differences.
+type CompareErrors struct {
 	MagnitudeError  *float64 `json:"magnitudeError"`
 	PhaseDifference *float64 `json:"phaseDifference"`
 }
@@ -241,15 +267,23 @@ func (p *Prepared) standardValues(m *aids.Model, sv *StandardValuesRequest) (*St
 	for _, r := range res.Ratios {
 		out.Ratios = append(out.Ratios, RatioResult{Title: r.Title, Num: r.NumName, Den: r.DenName, Plus1: r.Plus1, Series: r.Series,
 			Min: r.Lo, Max: r.Hi, Wanted: r.Wanted, NumValue: r.NumValue, DenValue: r.DenValue, RelErr: r.RelErr,
-			Gain: r.Gain, GainRelErr: r.GainRelErr})
+			Gain: r.Gain, GainRelErr: r.GainRelErr,
+			// Each decimal value is within 2⁻⁵⁴ of its binary one, and
+			// each of the three or four operations rounds by as much.
+			Errors: RatioErrors{RelErr: F(4 * 0x1p-53 * (1 + r.RelErr)), GainRelErr: F(6 * 0x1p-53 * (1 + r.GainRelErr))}})
 	}
 	cmp := func(name string, c aids.Compare) SnapCompare {
-		return SnapCompare{Name: name, Nominal: C(c.Nominal), Snapped: C(c.Snapped), MagnitudeError: F(c.MagErr), PhaseDifference: F(c.PhaseDiff)}
+		return SnapCompare{Name: name, Nominal: C(c.Nominal), Snapped: C(c.Snapped), MagnitudeError: F(c.MagErr), PhaseDifference: F(c.PhaseDiff),
+			Errors: CompareErrors{MagnitudeError: F(c.MagErrBound), PhaseDifference: F(c.PhaseDiffBound)}}
 	}
 	for _, v := range res.Variants {
 		sv := SnapVariant{Name: v.Name, Values: []SnappedValue{}, Ports: []SnapCompare{}, PhaseMargin: F(v.PM), NominalPhaseMargin: F(v.NominalPM)}
 		for _, x := range v.Values {
-			sv.Values = append(sv.Values, SnappedValue{Name: x.Name, Series: x.Series, Nominal: x.Nominal, Value: x.Value, Change: x.Value/x.Nominal - 1})
+			q := x.Value / x.Nominal
+			// The series value and the nominal are decimals within 2⁻⁵⁴ of
+			// their binary values; the quotient rounds by as much.
+			sv.Values = append(sv.Values, SnappedValue{Name: x.Name, Series: x.Series, Nominal: x.Nominal, Value: x.Value, Change: q - 1,
+				Errors: SnappedErrors{Change: F(2 * 0x1p-53 * q)}})
 		}
 		for i, c := range v.Ports {
 			sv.Ports = append(sv.Ports, cmp(m.Ports[i].Name, c))

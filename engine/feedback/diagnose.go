@@ -3,6 +3,7 @@ package feedback
 import (
 	"errors"
 	"fmt"
+	"slices"
 	"sort"
 	"strings"
 
@@ -44,7 +45,7 @@ func (a *Analyzer) explain(err error, cfg mna.Config, context string) error {
 	if s.Index >= 0 && s.Index < len(c.Nodes)-1 {
 		where = fmt.Sprintf(" (near node %s)", c.Nodes[s.Index+1])
 	}
-	return &SingularError{F: cfg.F, Msg: fmt.Sprintf("the circuit equations are singular at %s%s%s: controlled-source gains or part values cancel exactly, or impedances so unlike meet at one node (say 1 mΩ in series with 1 TΩ) that double precision cannot tell them apart; change one of them", fmtHz(cfg.F), ctx, where)}
+	return &SingularError{F: cfg.F, Msg: fmt.Sprintf("the circuit equations are singular at %s%s%s: controlled-source gains or part values cancel exactly, or impedances so unlike meet at one node (say 1 mΩ beside 10³⁰ Ω) that even double-double arithmetic, with some 32 digits, cannot tell them apart; change one of them", fmtHz(cfg.F), ctx, where)}
 }
 
 // structure checks the circuit's graph under cfg for the two ways a
@@ -121,7 +122,7 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 		if dc {
 			var caps []string
 			for _, p := range c.Parts {
-				if p.Kind == circuit.Capacitor && (contains(floating, c.Nodes[p.Nodes[0]]) || contains(floating, c.Nodes[p.Nodes[1]])) {
+				if p.Kind == circuit.Capacitor && (slices.Contains(floating, c.Nodes[p.Nodes[0]]) || slices.Contains(floating, c.Nodes[p.Nodes[1]])) {
 					caps = append(caps, p.Name)
 				}
 			}
@@ -228,15 +229,6 @@ func sourceTies(u uf, c *circuit.Circuit, refIdx int, refGain bool) {
 			}
 		}
 	}
-}
-
-func contains(l []string, s string) bool {
-	for _, x := range l {
-		if x == s {
-			return true
-		}
-	}
-	return false
 }
 
 func plural(n int, one, many string) string {

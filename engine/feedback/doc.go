@@ -37,4 +37,15 @@
 // Quantities that are not finite at a frequency (an infinite Z₀ when the
 // port has no path at zero gain, a zero 1 + T open) are NaN in the results
 // and explained in the notes; callers show them as absent, never as NaN.
+//
+// Every value comes with an error bound (PortResult.Err, GainResult.Err,
+// Point.TErr): the exact value for the circuit as given lies within it. A
+// read-out's bound is |y|ᵀw, with y its adjoint solution and w a bound on
+// the residual formed from the parts' own coefficients; formulas carry the
+// bounds by ball arithmetic. Where a bound leaves fewer than 12 digits the
+// solution is refined — in float64, in double-double with the float64 LU,
+// or with the double-double LU (see bounds.go and DEVELOPERS.md) — and a
+// note names every value still short of 12 digits. Degenerate cases answer
+// with NaN and a note: g∞ where T is zero within its bound, g, g direct and
+// the direct Z where 1 + T is (the full circuit is singular there).
 package feedback

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"zport/engine/numeric"
 )
 
 // Crossover is one frequency where |T| crosses 1.
@@ -57,7 +58,7 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 	ph := make([]float64, n) // unwrapped phase in degrees; NaN where T is not finite
 	prev := math.NaN()
 	for i, t := range T {
-		if !finite(t) || t == 0 {
+		if !numeric.Finite(t) || t == 0 {
 			ph[i] = math.NaN()
 			continue
 		}
@@ -65,18 +66,18 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 		if math.IsNaN(prev) {
 			ph[i] = a
 		} else {
-			ph[i] = prev + wrap180(a-prev)
+			ph[i] = prev + numeric.Wrap180(a-prev)
 		}
 		prev = ph[i]
 	}
 	// unwrapNear puts the phase of t on the branch nearest ref.
 	unwrapNear := func(t complex128, ref float64) float64 {
 		a := deg(cmplx.Phase(t))
-		return ref + wrap180(a-ref)
+		return ref + numeric.Wrap180(a-ref)
 	}
 	evalOK := func(f float64) (complex128, bool) {
 		t, err := eval(f)
-		return t, err == nil && finite(t) && t != 0
+		return t, err == nil && numeric.Finite(t) && t != 0
 	}
 	above, below := false, false
 	for i := 0; i < n; i++ {
@@ -246,14 +247,3 @@ func interpPhase(fa, fb, pa, pb, f float64) float64 {
 }
 
 func deg(r float64) float64 { return r * 180 / math.Pi }
-
-// wrap180 wraps d degrees into (−180, 180].
-func wrap180(d float64) float64 {
-	d = math.Mod(d, 360)
-	if d > 180 {
-		d -= 360
-	} else if d <= -180 {
-		d += 360
-	}
-	return d
-}

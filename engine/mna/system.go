@@ -4,14 +4,14 @@ import (
 	"math"
 
 	"zport/engine/circuit"
+	"zport/engine/dd"
 )
 
 type entry struct {
 	i, j int
 	v    float64
+	lo   float64 // v + lo is the coefficient in double-double (a conductance 1/R)
 }
-
-type sparse []entry // entries with j unused: (index, coefficient)
 
 // Control is one controlled source written as k(s)·r·c(s)ᵀ.
 type Control struct {
@@ -21,10 +21,12 @@ type Control struct {
 	R, C0, C1 []Term
 }
 
-// Term is one coefficient of a sparse vector.
+// Term is one coefficient of a sparse vector: V, or V + Lo in
+// double-double where V is rounded (a sensed resistor's 1/R).
 type Term struct {
-	I int
-	V float64
+	I  int
+	V  float64
+	Lo float64
 }
 
 // System holds a circuit's equations in a form quick to assemble at any
@@ -90,9 +92,9 @@ func New(c *circuit.Circuit) *System {
 		br := s.Branch[i]
 		switch p.Kind {
 		case circuit.Resistor:
-			s.conductance(&s.g, a, b, 1/p.Value)
+			s.conductance(&s.g, a, b, dd.Recip(p.Value))
 		case circuit.Capacitor:
-			s.conductance(&s.c, a, b, p.Value)
+			s.conductance(&s.c, a, b, dd.F(p.Value))
 		case circuit.Inductor:
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
@@ -105,7 +107,7 @@ func New(c *circuit.Circuit) *System {
 		case circuit.VCVS, circuit.CCVS:
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
-			ctl := Control{Part: i, R: []Term{{br, 1}}}
+			ctl := Control{Part: i, R: []Term{{I: br, V: 1}}}
 			s.control(&ctl, p)
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
@@ -114,10 +116,10 @@ func New(c *circuit.Circuit) *System {
 			// count currents leaving a node, so the injection is −1 at TO.
 			var r []Term
 			if b >= 0 {
-				r = append(r, Term{b, 1})
+				r = append(r, Term{I: b, V: 1})
 			}
 			if a >= 0 {
-				r = append(r, Term{a, -1})
+				r = append(r, Term{I: a, V: -1})
 			}
 			ctl := Control{Part: i, R: r}
 			s.control(&ctl, p)
@@ -126,29 +128,29 @@ func New(c *circuit.Circuit) *System {
 		case circuit.OpAmp:
 			plus, minus, out := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1]), NodeVar(p.Nodes[2])
 			if p.Amp.Rid > 0 {
-				s.conductance(&s.g, plus, minus, 1/p.Amp.Rid)
+				s.conductance(&s.g, plus, minus, dd.Recip(p.Amp.Rid))
 			}
 			if p.Amp.Rcm > 0 {
-				s.conductance(&s.g, plus, -1, 1/p.Amp.Rcm)
-				s.conductance(&s.g, minus, -1, 1/p.Amp.Rcm)
+				s.conductance(&s.g, plus, -1, dd.Recip(p.Amp.Rcm))
+				s.conductance(&s.g, minus, -1, dd.Recip(p.Amp.Rcm))
 			}
 			src := out
 			if inner[i] >= 0 {
 				src = inner[i]
-				s.conductance(&s.g, src, out, 1/p.Amp.Ro)
+				s.conductance(&s.g, src, out, dd.Recip(p.Amp.Ro))
 			}
 			s.branchKCL(src, -1, br)
 			s.branchV(src, -1, br)
-			ctl := Control{Part: i, R: []Term{{br, 1}}}
-			ctl.C0 = pair(plus, minus, 1)
+			ctl := Control{Part: i, R: []Term{{I: br, V: 1}}}
+			ctl.C0 = pair(plus, minus, dd.F(1))
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
 			if p.Amp.Cid > 0 {
-				s.conductance(&s.c, plus, minus, p.Amp.Cid)
+				s.conductance(&s.c, plus, minus, dd.F(p.Amp.Cid))
 			}
 			if p.Amp.Ccm > 0 {
-				s.conductance(&s.c, plus, -1, p.Amp.Ccm)
-				s.conductance(&s.c, minus, -1, p.Amp.Ccm)
+				s.conductance(&s.c, plus, -1, dd.F(p.Amp.Ccm))
+				s.conductance(&s.c, minus, -1, dd.F(p.Amp.Ccm))
 			}
 		case circuit.BJT:
 			// Hybrid-π: gm·v(B′, E) drawn from C into E, the reference's
@@ -159,19 +161,19 @@ func New(c *circuit.Circuit) *System {
 			bi := b
 			if inner[i] >= 0 {
 				bi = inner[i]
-				s.conductance(&s.g, b, bi, 1/d.Rb)
+				s.conductance(&s.g, b, bi, dd.Recip(d.Rb))
 			}
-			s.conductance(&s.g, bi, e, 1/d.Rpi)
+			s.conductance(&s.g, bi, e, dd.Recip(d.Rpi))
 			if d.Ro > 0 {
-				s.conductance(&s.g, c, e, 1/d.Ro)
+				s.conductance(&s.g, c, e, dd.Recip(d.Ro))
 			}
 			if d.Cpi > 0 {
-				s.conductance(&s.c, bi, e, d.Cpi)
+				s.conductance(&s.c, bi, e, dd.F(d.Cpi))
 			}
 			if d.Cmu > 0 {
-				s.conductance(&s.c, bi, c, d.Cmu)
+				s.conductance(&s.c, bi, c, dd.F(d.Cmu))
 			}
-			ctl := Control{Part: i, R: pair(e, c, 1), C0: pair(bi, e, 1)}
+			ctl := Control{Part: i, R: pair(e, c, dd.F(1)), C0: pair(bi, e, dd.F(1))}
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
 		case circuit.MOS:
@@ -182,13 +184,13 @@ func New(c *circuit.Circuit) *System {
 			dn, g, sn := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1]), NodeVar(p.Nodes[2])
 			d := p.Dev
 			if d.Ro > 0 {
-				s.conductance(&s.g, dn, sn, 1/d.Ro)
+				s.conductance(&s.g, dn, sn, dd.Recip(d.Ro))
 			}
 			if d.Cgs > 0 {
-				s.conductance(&s.c, g, sn, d.Cgs)
+				s.conductance(&s.c, g, sn, dd.F(d.Cgs))
 			}
 			if d.Cgd > 0 {
-				s.conductance(&s.c, g, dn, d.Cgd)
+				s.conductance(&s.c, g, dn, dd.F(d.Cgd))
 			}
 			if d.Gmb > 0 {
 				bulk := NodeVar(d.Bulk)
@@ -197,7 +199,7 @@ func New(c *circuit.Circuit) *System {
 				s.add(&s.g, sn, bulk, -d.Gmb)
 				s.add(&s.g, sn, sn, d.Gmb)
 			}
-			ctl := Control{Part: i, R: pair(sn, dn, 1), C0: pair(g, sn, 1)}
+			ctl := Control{Part: i, R: pair(sn, dn, dd.F(1)), C0: pair(g, sn, dd.F(1))}
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
 		}
@@ -208,13 +210,13 @@ func New(c *circuit.Circuit) *System {
 // ControlOf returns the index in Controls of part i's gain term, or −1.
 func (s *System) ControlOf(part int) int { return s.ctrlOf[part] }
 
-func pair(a, b int, v float64) []Term {
+func pair(a, b int, v dd.Float) []Term {
 	var t []Term
 	if a >= 0 {
-		t = append(t, Term{a, v})
+		t = append(t, Term{a, v.Hi, v.Lo})
 	}
 	if b >= 0 {
-		t = append(t, Term{b, -v})
+		t = append(t, Term{b, -v.Hi, -v.Lo})
 	}
 	return t
 }
@@ -222,7 +224,7 @@ func pair(a, b int, v float64) []Term {
 func (s *System) control(ctl *Control, p circuit.Part) {
 	switch p.Kind {
 	case circuit.VCVS, circuit.VCCS:
-		ctl.C0 = pair(NodeVar(p.Ctrl[0]), NodeVar(p.Ctrl[1]), 1)
+		ctl.C0 = pair(NodeVar(p.Ctrl[0]), NodeVar(p.Ctrl[1]), dd.F(1))
 	case circuit.CCVS, circuit.CCCS:
 		ctl.C0, ctl.C1 = s.Current(p.Sense)
 	}
@@ -235,24 +237,26 @@ func (s *System) Current(i int) (c0, c1 []Term) {
 	a, b := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1])
 	switch p.Kind {
 	case circuit.Resistor:
-		return pair(a, b, 1/p.Value), nil
+		return pair(a, b, dd.Recip(p.Value)), nil
 	case circuit.Capacitor:
-		return nil, pair(a, b, p.Value)
+		return nil, pair(a, b, dd.F(p.Value))
 	}
-	return []Term{{s.Branch[i], 1}}, nil
+	return []Term{{I: s.Branch[i], V: 1}}, nil
 }
 
-func (s *System) add(list *[]entry, i, j int, v float64) {
+func (s *System) add(list *[]entry, i, j int, v float64) { s.addDD(list, i, j, dd.F(v)) }
+
+func (s *System) addDD(list *[]entry, i, j int, v dd.Float) {
 	if i >= 0 && j >= 0 {
-		*list = append(*list, entry{i, j, v})
+		*list = append(*list, entry{i, j, v.Hi, v.Lo})
 	}
 }
 
-func (s *System) conductance(list *[]entry, a, b int, g float64) {
-	s.add(list, a, a, g)
-	s.add(list, b, b, g)
-	s.add(list, a, b, -g)
-	s.add(list, b, a, -g)
+func (s *System) conductance(list *[]entry, a, b int, g dd.Float) {
+	s.addDD(list, a, a, g)
+	s.addDD(list, b, b, g)
+	s.addDD(list, a, b, g.Neg())
+	s.addDD(list, b, a, g.Neg())
 }
 
 // branchKCL adds the branch current leaving node a and entering node b.
@@ -347,25 +351,6 @@ func (s *System) Assemble(dst []complex128, cfg Config) []complex128 {
 		}
 	}
 	return dst
-}
-
-// Dot returns tᵀx for a sparse t.
-func Dot(t []Term, x []complex128) complex128 {
-	var s complex128
-	for _, e := range t {
-		s += complex(e.V, 0) * x[e.I]
-	}
-	return s
-}
-
-// ControlSignal returns the control signal c(s)ᵀx of Controls[ci].
-func (s *System) ControlSignal(ci int, f float64, x []complex128) complex128 {
-	ctl := s.Controls[ci]
-	v := Dot(ctl.C0, x)
-	if len(ctl.C1) > 0 {
-		v += complex(0, 2*math.Pi*f) * Dot(ctl.C1, x)
-	}
-	return v
 }
 
 // Scatter writes t into the dense vector dst (after clearing it).

@@ -106,11 +106,14 @@ func Parse(text, unit string) (float64, error) {
 		if intDigits == 0 {
 			num = "0" + num
 		}
-		v, err := strconv.ParseFloat(body[:start]+num, 64)
+		v, err := strconv.ParseFloat(body[:start]+num+"e"+strconv.Itoa(exp), 64)
 		if err != nil {
+			if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
+				return fail(0, "value %q is out of range", text)
+			}
 			return fail(0, "cannot read %q as a number", text)
 		}
-		return finite(text, v*math.Pow10(exp))
+		return finite(text, v)
 	}
 	if i < len(body) && body[i] == '.' {
 		i++
@@ -156,14 +159,21 @@ func Parse(text, unit string) (float64, error) {
 			return fail(i, "unexpected %q after %q in value %q", rest(body[i:]), body[:i], text)
 		}
 	}
-	v, err := strconv.ParseFloat(body[:numEnd], 64)
+	// The prefix joins the exponent, so the value is the decimal the
+	// designer wrote rounded once (4n7 is 4.7e-9 exactly as the E12 table
+	// has it, not 4.7 times a rounded 10⁻⁹, one unit off).
+	num := body[:numEnd]
+	if exp != 0 {
+		num += "e" + strconv.Itoa(exp)
+	}
+	v, err := strconv.ParseFloat(num, 64)
 	if err != nil {
 		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
 			return fail(0, "value %q is out of range", text)
 		}
 		return fail(0, "cannot read %q as a number", text)
 	}
-	return finite(text, v*math.Pow10(exp))
+	return finite(text, v)
 }
 
 func finite(text string, v float64) (float64, error) {

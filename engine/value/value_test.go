@@ -3,6 +3,8 @@ package value
 import (
 	"errors"
 	"math"
+	"math/rand/v2"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -241,5 +243,29 @@ func TestMegHint(t *testing.T) {
 	}
 	if _, err := Parse("1m", "Ω"); err != nil {
 		t.Errorf("1m: %v", err)
+	}
+}
+
+// A prefixed value is the written decimal rounded once, as strconv reads
+// the same number in exponent form (the round-to-nearest of IEEE 754):
+// 4n7 is the float64 nearest 4.7e-9, the value IEC 60063's E12 table
+// gives, not 4.7 times a rounded 10⁻⁹.
+func TestParseRoundsOnce(t *testing.T) {
+	rng := rand.New(rand.NewPCG(60063, 1))
+	for p, e := range prefixes {
+		for k := 0; k < 200; k++ {
+			mant := strconv.Itoa(1+rng.IntN(999)) + "." + strconv.Itoa(rng.IntN(1000))
+			want, _ := strconv.ParseFloat(mant+"e"+strconv.Itoa(e), 64)
+			if got, err := Parse(mant+p, ""); err != nil || got != want {
+				t.Fatalf("Parse(%q) = %v, %v; want %v", mant+p, got, err, want)
+			}
+			rkm := strings.Replace(mant, ".", p, 1)
+			if got, err := Parse(rkm, ""); err != nil || got != want {
+				t.Fatalf("Parse(%q) = %v, %v; want %v", rkm, got, err, want)
+			}
+		}
+	}
+	if v, _ := Parse("4n7", "F"); v != 4.7e-9 {
+		t.Errorf("4n7 = %v, want 4.7e-9", v)
 	}
 }

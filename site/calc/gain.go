@@ -56,12 +56,17 @@ func gainSection(w *view.Writer, c *Context) {
 	val := func(z *api.Complex, attrs ...string) view.Complex {
 		return view.Complex{Z: z, Unit: unit, DB: unit == "V/V", Attrs: attrs}
 	}
-	w.Cell("g₀", val(g.G0, "data-quantity", "g0"))
-	w.Cell("g∞", val(g.GInf, "data-quantity", "gInf"))
-	w.Cell("g", val(g.G, "data-quantity", "g"))
-	w.Cell("g direct", val(g.GDirect, "data-quantity", "gDirect"))
+	engine := func(z *api.Complex, err *float64, q string) view.Complex {
+		v := val(z, "data-quantity", q)
+		v.Bounded, v.Err = true, err
+		return v
+	}
+	w.Cell("g₀", engine(g.G0, g.Errors.G0, "g0"))
+	w.Cell("g∞", engine(g.GInf, g.Errors.GInf, "gInf"))
+	w.Cell("g", engine(g.G, g.Errors.G, "g"))
+	w.Cell("g direct", engine(g.GDirect, g.Errors.GDirect, "gDirect"))
 	w.Open("td", "data-label", "Agreement")
-	w.Ratio(g.Agreement, "data-quantity", "gainAgreement")
+	w.Ratio(g.Agreement, g.Errors.Agreement, "data-quantity", "gainAgreement")
 	w.Close("td")
 	w.Close("tr")
 	form := gainForm(r)
@@ -82,7 +87,7 @@ func gainSection(w *view.Writer, c *Context) {
 		if form.Value != nil && g.G != nil {
 			d = api.F(numeric.RelDiff(form.Value.Value(), g.G.Value()))
 		}
-		w.Ratio(d, "data-closed-form", "gainAgreement", "title", "|g hand − g| / |g|")
+		w.Ratio(d, nil, "data-closed-form", "gainAgreement", "title", "|g hand − g| / |g|")
 		w.Close("td")
 		w.Close("tr")
 	}

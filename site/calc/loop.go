@@ -36,7 +36,7 @@ func loopSection(w *view.Writer, c *Context) {
 	w.Section(c.ID, "loop", "Loop")
 	w.Open("dl", "class", "kv")
 	w.KV("Return ratio T at "+value.Format(r.Frequency, "Hz", view.Sig), func() {
-		w.Complex(view.Complex{Z: r.ReturnRatio, DB: true, Attrs: []string{"data-quantity", "T"}})
+		w.Complex(view.Complex{Z: r.ReturnRatio, DB: true, Attrs: []string{"data-quantity", "T"}, Bounded: true, Err: r.ReturnRatioError})
 	})
 	tForm := loopForm(r)
 	if tForm != nil {

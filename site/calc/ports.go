@@ -64,19 +64,19 @@ func portsSection(w *view.Writer, c *Context) {
 		w.Elem("span", pr.A+" – "+pr.B, "class", "hint nodes")
 		w.Close("th")
 		q := func(name string) []string { return []string{"data-port", pr.Name, "data-quantity", name} }
-		w.Cell("Z₀", view.Complex{Z: pr.Z0, Unit: "Ω", Series: true, At: f, Attrs: q("z0")})
-		w.Cell("T short", view.Complex{Z: pr.TShort, Attrs: q("tShort")})
-		w.Cell("T open", view.Complex{Z: pr.TOpen, Attrs: q("tOpen")})
+		w.Cell("Z₀", view.Complex{Z: pr.Z0, Unit: "Ω", Series: true, At: f, Attrs: q("z0"), Bounded: true, Err: pr.Errors.Z0})
+		w.Cell("T short", view.Complex{Z: pr.TShort, Attrs: q("tShort"), Bounded: true, Err: pr.Errors.TShort})
+		w.Cell("T open", view.Complex{Z: pr.TOpen, Attrs: q("tOpen"), Bounded: true, Err: pr.Errors.TOpen})
 		w.Open("td", "data-label", "Z")
-		w.Complex(view.Complex{Z: pr.Z, Unit: "Ω", Series: true, At: f, Attrs: q("z")})
+		w.Complex(view.Complex{Z: pr.Z, Unit: "Ω", Series: true, At: f, Attrs: q("z"), Bounded: true, Err: pr.Errors.Z})
 		if pr.Z == nil && pr.Y != nil {
 			w.Elem("span", "Z is not finite here; the admittance is", "class", "hint")
-			w.Complex(view.Complex{Z: pr.Y, Unit: "S", Attrs: q("y")})
+			w.Complex(view.Complex{Z: pr.Y, Unit: "S", Attrs: q("y"), Bounded: true, Err: pr.Errors.Y})
 		}
 		w.Close("td")
-		w.Cell("Z direct", view.Complex{Z: pr.ZDirect, Unit: "Ω", Series: true, At: f, Attrs: q("zDirect")})
+		w.Cell("Z direct", view.Complex{Z: pr.ZDirect, Unit: "Ω", Series: true, At: f, Attrs: q("zDirect"), Bounded: true, Err: pr.Errors.ZDirect})
 		w.Open("td", "data-label", "Agreement")
-		w.Ratio(pr.Agreement, q("agreement")...)
+		w.Ratio(pr.Agreement, pr.Errors.Agreement, q("agreement")...)
 		w.Close("td")
 		w.Close("tr")
 		if pf := portForms(r, pr.Name); pf != nil {
@@ -145,7 +145,7 @@ func closedRow(w *view.Writer, pr api.PortResult, f *api.PortFormulas, freq floa
 	if f.Z != nil && f.Z.Value != nil && pr.Z != nil {
 		d = api.F(numeric.RelDiff(f.Z.Value.Value(), pr.Z.Value()))
 	}
-	w.Ratio(d, "data-port", pr.Name, "data-closed-form", "agreement", "title", "|Z hand − Z| / |Z|")
+	w.Ratio(d, nil, "data-port", pr.Name, "data-closed-form", "agreement", "title", "|Z hand − Z| / |Z|")
 	w.Close("td")
 	w.Close("tr")
 }

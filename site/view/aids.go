@@ -74,7 +74,25 @@ func percent(x float64) string {
 	return s
 }
 
-// numSpan writes one number with its data attributes.
+// within writes x as percent does, but "0 %" where x is within its error
+// bound: a change the arithmetic cannot tell from none (the pair is exact,
+// the snapped part equals the nominal one), never digits of rounding.
+func within(x float64, bound *float64) string {
+	if bound != nil && math.Abs(x) <= *bound {
+		return percent(0)
+	}
+	return percent(x)
+}
+
+// boundAttrs adds data-error to attrs when there is a bound.
+func boundAttrs(bound *float64, attrs ...string) []string {
+	if bound != nil {
+		attrs = append(attrs, "data-error", Num(*bound))
+	}
+	return attrs
+}
+
+// NumSpan writes one number with its data attributes.
 func (w *Writer) NumSpan(text string, v *float64, attrs ...string) {
 	if v == nil {
 		w.Elem("span", "—", append(append([]string{"class", "num"}, attrs...), "data-null", "true")...)
@@ -458,7 +476,7 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 			w.Close("td")
 			w.Open("td", "data-label", "Ratio error")
 			re := r.RelErr
-			w.NumSpan(percent(re), &re, attrs("relErr")...)
+			w.NumSpan(within(re, r.Errors.RelErr), &re, boundAttrs(r.Errors.RelErr, attrs("relErr")...)...)
 			w.Close("td")
 			w.Open("td", "data-label", "Gain set")
 			g := r.Gain
@@ -466,7 +484,7 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 			w.Close("td")
 			w.Open("td", "data-label", "Gain error")
 			ge := r.GainRelErr
-			w.NumSpan(percent(ge), &ge, attrs("gainRelErr")...)
+			w.NumSpan(within(ge, r.Errors.GainRelErr), &ge, boundAttrs(r.Errors.GainRelErr, attrs("gainRelErr")...)...)
 			w.Close("td")
 			w.Close("tr")
 		}
@@ -525,7 +543,7 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 					v := c.v.Value
 					w.NumSpan(Magnitude(v, unitOf(n))+" ("+c.v.Series+")", &v, "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "value")
 					ch := c.v.Change
-					w.Elem("span", percent(ch), "class", "hint", "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "change", "data-value", Num(ch))
+					w.Elem("span", within(ch, c.v.Errors.Change), boundAttrs(c.v.Errors.Change, "class", "hint", "data-aid", "standard", "data-variant", res.Variants[vi].Name, "data-quantity", n, "data-stat", "change", "data-value", Num(ch))...)
 				}
 				w.Close("td")
 			}
@@ -570,10 +588,14 @@ func StandardPanel(res *api.StandardValuesResult, id string, units map[string]st
 				if c == nil {
 					w.Text("—")
 				} else {
-					w.NumSpan(percent(deref(c.MagnitudeError)), c.MagnitudeError, "data-aid", "standard", "data-variant", v.Name, "data-quantity", qid, "data-stat", "magnitudeError")
+					w.NumSpan(within(deref(c.MagnitudeError), c.Errors.MagnitudeError), c.MagnitudeError, boundAttrs(c.Errors.MagnitudeError, "data-aid", "standard", "data-variant", v.Name, "data-quantity", qid, "data-stat", "magnitudeError")...)
 					pd := ""
-					if c.PhaseDifference != nil {
-						pd = "phase " + signedDegrees(*c.PhaseDifference)
+					if d := c.PhaseDifference; d != nil {
+						if b := c.Errors.PhaseDifference; b != nil && math.Abs(*d) <= *b {
+							pd = "phase " + signedDegrees(0)
+						} else {
+							pd = "phase " + signedDegrees(*d)
+						}
 					}
 					w.Elem("span", pd, "class", "hint")
 				}

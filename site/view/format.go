@@ -55,33 +55,50 @@ func Phase(z complex128) float64 {
 	return math.Atan2(im, re) * 180 / math.Pi
 }
 
-// polar writes z as magnitude ∠ phase, e.g. "54.94 kΩ ∠ −0.01°".
-func Polar(z complex128, unit string) string {
+// Polar writes z as magnitude ∠ phase, e.g. "54.94 kΩ ∠ −0.01°".
+func Polar(z complex128, unit string) string { return PolarN(z, unit, Sig) }
+
+// PolarN is Polar with n significant digits in the magnitude (at most
+// Sig: fewer where fewer are certain).
+func PolarN(z complex128, unit string, n int) string {
 	m := cmplx.Abs(z)
 	if m == 0 {
 		return Magnitude(0, unit)
 	}
-	return Magnitude(m, unit) + " ∠ " + Degrees(Phase(z))
+	return MagnitudeN(m, unit, n) + " ∠ " + Degrees(Phase(z))
+}
+
+// CertainDigits is the number of significant digits of z that the error
+// bound e leaves certain, ⌊−log₁₀(e/|z|)⌋, at least 1 (a value with none
+// is shown as zero within its bound instead).
+func CertainDigits(z complex128, e float64) int {
+	if e == 0 {
+		return 16
+	}
+	return max(1, int(math.Floor(-math.Log10(e/cmplx.Abs(z)))))
 }
 
 // Magnitude writes a real value in unit as the panel shows it: with an SI
 // prefix for a physical unit ("4.700 kΩ"), as a plain number for a ratio
 // ("" or "V/V"), where a prefix such as the m of "986.0m" reads badly, in
 // degrees for "°" and decibels for "dB".
-func Magnitude(v float64, unit string) string {
+func Magnitude(v float64, unit string) string { return MagnitudeN(v, unit, Sig) }
+
+// MagnitudeN is Magnitude with n significant digits.
+func MagnitudeN(v float64, unit string, n int) string {
 	switch unit {
 	case "":
-		return Plain(v)
+		return PlainN(v, n)
 	case "V/V":
-		return Plain(v) + " V/V"
+		return PlainN(v, n) + " V/V"
 	case "°":
 		return Degrees(v)
 	case "dB":
 		return DB(v)
 	}
-	s := value.Format(v, unit, Sig)
+	s := value.Format(v, unit, n)
 	if strings.Contains(s, "×10^") { // beyond the SI prefixes
-		s = Plain(v) + " " + unit
+		s = PlainN(v, n) + " " + unit
 	}
 	return s
 }
@@ -142,31 +159,45 @@ func DB(x float64) string {
 	return s
 }
 
-// rect writes z as real ± j imaginary, each part with its own prefix and
+// Rect writes z as real ± j imaginary, each part with its own prefix and
 // the unit, e.g. "54.94 kΩ − j3.210 Ω". A ratio ("" or V/V) is written
 // without prefixes, the unit once at the end: "−4.700 − j0.001230 V/V".
-func Rect(z complex128, unit string) string {
+func Rect(z complex128, unit string) string { return RectN(z, unit, Sig, 0) }
+
+// RectN is Rect with n significant digits, and a part within the error
+// bound e written as zero.
+func RectN(z complex128, unit string, n int, e float64) string {
 	re, im := real(z), imag(z)
 	m := cmplx.Abs(z)
-	if math.Abs(re) <= rounding*m {
+	if math.Abs(re) <= math.Max(rounding*m, e) {
 		re = 0
 	}
-	if math.Abs(im) <= rounding*m {
+	if math.Abs(im) <= math.Max(rounding*m, e) {
 		im = 0
 	}
 	sign := " + j"
 	if im < 0 {
 		sign = " − j"
 	}
+	// Each part shows the digits the bound leaves it.
+	nr, ni := n, n
+	if e > 0 {
+		if re != 0 {
+			nr = min(n, CertainDigits(complex(re, 0), e))
+		}
+		if im != 0 {
+			ni = min(n, CertainDigits(complex(im, 0), e))
+		}
+	}
 	switch unit {
 	case "", "V/V":
-		s := Plain(re) + sign + Plain(math.Abs(im))
+		s := PlainN(re, nr) + sign + PlainN(math.Abs(im), ni)
 		if unit != "" {
 			s += " " + unit
 		}
 		return s
 	}
-	return value.Format(re, unit, Sig) + sign + value.Format(math.Abs(im), unit, Sig)
+	return value.Format(re, unit, nr) + sign + value.Format(math.Abs(im), unit, ni)
 }
 
 // decibels writes 20·log10|z|, e.g. "88.33 dB".

@@ -1,6 +1,8 @@
 package view
 
 import (
+	"math/cmplx"
+
 	"zport/engine/api"
 	"zport/engine/value"
 )
@@ -19,6 +21,11 @@ type Complex struct {
 	At     float64
 	// DB adds 20·log10|z|.
 	DB bool
+	// Bounded marks an engine value, whose error bound is Err: nil then
+	// means that no bound could be given (the notes say why). A closed
+	// form has none and is shown as it is.
+	Bounded bool
+	Err     *float64
 }
 
 // Complex writes one complex value: magnitude ∠ phase, real + j imaginary,
@@ -35,12 +42,38 @@ func (w *Writer) Complex(c Complex) {
 	}
 	z := c.Z.Value()
 	attrs = append(attrs, "data-re", Num(c.Z.Re), "data-im", Num(c.Z.Im))
+	digits, e := Sig, 0.0
+	switch {
+	case c.Bounded && c.Err == nil:
+		attrs[1] = "cv untrusted"
+		w.Open("span", attrs...)
+		w.Elem("span", Polar(z, c.Unit), "class", "polar")
+		w.Elem("span", "cannot be trusted; see the notes", "class", "hint")
+		w.Close("span")
+		return
+	case c.Bounded:
+		e = *c.Err
+		attrs = append(attrs, "data-error", Num(e))
+		if e >= cmplx.Abs(z) {
+			// Zero within its bound: an exact zero where the structure
+			// makes it one (a bound of 0), else zero below the bound —
+			// never the digits of rounding noise.
+			w.Open("span", attrs...)
+			w.Elem("span", Magnitude(0, c.Unit), "class", "polar")
+			if e > 0 {
+				w.Elem("span", "below ±"+Magnitude(e, c.Unit), "class", "rect bound")
+			}
+			w.Close("span")
+			return
+		}
+		digits = min(Sig, CertainDigits(z, e))
+	}
 	w.Open("span", attrs...)
-	w.Elem("span", Polar(z, c.Unit), "class", "polar")
+	w.Elem("span", PolarN(z, c.Unit, digits), "class", "polar")
 	if c.DB {
 		w.Elem("span", Decibels(z), "class", "db")
 	}
-	w.Elem("span", Rect(z, c.Unit), "class", "rect")
+	w.Elem("span", RectN(z, c.Unit, digits, e), "class", "rect")
 	if c.Series {
 		w.Elem("span", SeriesElement(z, c.At), "class", "series", "title", "equivalent series element at "+value.Format(c.At, "Hz", Sig))
 	}
@@ -56,8 +89,10 @@ func (w *Writer) Cell(label string, c Complex) {
 }
 
 // Ratio writes a relative difference such as an agreement, as mantissa ×
-// 10ⁿ; one above 1e-6 is marked poor.
-func (w *Writer) Ratio(x *float64, attrs ...string) {
+// 10ⁿ; one above 1e-6 is marked poor. bound, when not nil, is what the
+// values' error bounds allow it to be, and an agreement within that is
+// zero within rounding.
+func (w *Writer) Ratio(x, bound *float64, attrs ...string) {
 	if x == nil {
 		w.Open("span", append(append([]string{"class", "agree"}, attrs...), "data-null", "true")...)
 		w.Text("—")
@@ -65,8 +100,27 @@ func (w *Writer) Ratio(x *float64, attrs ...string) {
 		return
 	}
 	class := "agree"
-	if *x > 1e-6 {
+	if *x > 1e-6 && (bound == nil || *x > *bound) {
 		class = "agree poor"
+	}
+	if bound != nil {
+		attrs = append(attrs, "data-error", Num(*bound))
+		if *x <= *bound {
+			w.Open("span", append(append([]string{"class", class}, attrs...), "data-value", Num(*x))...)
+			w.Text("0")
+			if *bound > 0 {
+				mant, exp := Sci(*bound)
+				w.Open("span", "class", "hint bound")
+				w.Text("below ±" + mant)
+				if exp != "" {
+					w.Text(" × 10")
+					w.Elem("sup", exp)
+				}
+				w.Close("span")
+			}
+			w.Close("span")
+			return
+		}
 	}
 	w.Open("span", append(append([]string{"class", class}, attrs...), "data-value", Num(*x))...)
 	mant, exp := Sci(*x)
