@@ -36,6 +36,8 @@
     this.seq = 0; // the latest request; an older answer is dropped
     this.outside = {}; // analyses' settings kept outside the form, by key
     var self = this;
+    this.pins = new site.PinBar(this);
+    site.onNarrow(function () { self.schedule(); });
     this.form.addEventListener('submit', function (e) {
       e.preventDefault();
       self.schedule();
@@ -73,7 +75,16 @@
       else f.params[n] = v;
     }
     f.settings = Object.assign(site.settings(this.form), this.outside);
+    f.pins = this.pins.value();
+    f.chartWidth = site.chartWidth(this.results);
     return f;
+  };
+
+  // design is what "Pin this design" keeps: the parameters of the last
+  // good result.
+  Calculator.prototype.design = function () {
+    if (!this.last || !this.last.form) return null;
+    return { params: Object.assign({}, this.last.form.params) };
   };
 
   Calculator.prototype.fill = function (form) {
@@ -86,6 +97,7 @@
       if (typeof v === 'string') inputs[i].value = v;
     }
     site.fillSettings(this.form, form.settings);
+    this.pins.set(form.pins);
     this.outside = {};
     var s = form.settings || {};
     for (var k in s) {
@@ -132,6 +144,7 @@
       }
       var buttons = self.el.querySelectorAll('button[data-action]');
       for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
+      self.pins.refresh();
     });
   };
 
@@ -160,6 +173,7 @@
     }
     site.insert(this.results, out.html); // rendered and escaped by the engine (Go)
     this.last = out;
+    this.pins.refresh();
     this.setStale(false);
     site.hover(this.results);
     this.updateCircuitLink();
@@ -213,19 +227,23 @@
   };
 
   Calculator.prototype.copy = function () {
-    if (this.last) site.copyText(this, this.last.markdown, 'Results copied as a Markdown table.');
+    if (this.last) site.copyResults(this, this.last.markdown, this.link());
+  };
+
+  // link is the share link of the settings shown.
+  Calculator.prototype.link = function () {
+    return location.href.split('#')[0] + (this.share.getAttribute('href') || '');
   };
 
   Calculator.prototype.copyLink = function () {
-    var url = location.href.split('#')[0] + (this.share.getAttribute('href') || '');
-    site.copyText(this, url, 'Link to these settings copied.');
+    site.copyText(this, this.link(), 'Link to these settings copied.');
   };
 
   Calculator.prototype.download = function () {
     if (!this.last || !site.ready()) return;
     var self = this;
     // The CSV of the last good result, computed now rather than on every edit.
-    this.call({ csv: true }, this.last.form).then(function (out) {
+    this.call({ csv: true, link: this.link(), pins: [] }, this.last.form).then(function (out) {
       if (out.error || !out.csv) {
         self.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));
         return;

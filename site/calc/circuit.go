@@ -47,6 +47,7 @@ func (f Form) CircuitState() string {
 		p.Add(keyOutput, f.Gain.Output)
 	}
 	f.analysisState(&p)
+	f.circuitPinState(&p)
 	return p.Encode()
 }
 
@@ -58,12 +59,14 @@ func (f Form) CircuitState() string {
 // single-file export's page) and c (the circuit text, read by the page's
 // script) are skipped.
 func ReadCircuitFragment(frag string, base Form) (Form, error) {
-	pairs, err := fragment.Parse(frag, fragment.Repeatable(keyPort), fragment.Skip(keyCircuit, keyPage))
+	pairs, err := fragment.Parse(frag, fragment.Repeatable(append(pinKeys(keyPort), keyPort)...),
+		fragment.Skip(append(pinKeys(keyCircuit), keyCircuit, keyPage)...))
 	if err != nil {
 		return base, err
 	}
 	f := base
 	settings := settingsRead{}
+	pins := pinsRead{}
 	var ports []string
 	var src, out *string
 	for _, pr := range pairs {
@@ -89,7 +92,7 @@ func ReadCircuitFragment(frag string, base Form) (Form, error) {
 		case keyPoints:
 			f.Sweep.Points = v
 		default:
-			if !settings.read(k, v) {
+			if !settings.read(k, v) && !pins.read(k, v) {
 				return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for a circuit"}
 			}
 		}
@@ -107,6 +110,9 @@ func ReadCircuitFragment(frag string, base Form) (Form, error) {
 		}
 	}
 	f.Settings = settings.over(base.Settings)
+	if f.Pins, err = pins.circuitPins(f); err != nil {
+		return base, err
+	}
 	return f, nil
 }
 
@@ -135,12 +141,19 @@ type CircuitRequest struct {
 	// means that the form's choices are exact (an example's or a link's
 	// settings): nothing new is chosen for the user.
 	Offered *Offered `json:"offered"`
+	// PinCircuits are the texts of a link's pins, by slot ("1" … "4"), as
+	// the page read them from pinN.c; a pin without one has the link's
+	// main text.
+	PinCircuits map[string]string `json:"pinCircuits,omitempty"`
 }
 
 // Offered is what the custom page's pickers showed.
 type Offered struct {
 	References []string `json:"references"`
 	Ports      []string `json:"ports"`
+	// Sources are the independent sources the gain picker offered; nil
+	// when the page does not say.
+	Sources []string `json:"sources,omitempty"`
 }
 
 // CircuitOutput is the answer to a CircuitRequest.
@@ -190,16 +203,34 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 			return out
 		}
 		f = g
+		for i := range f.Pins {
+			if t, ok := req.PinCircuits[strconv.Itoa(f.Pins[i].Slot)]; ok {
+				f.Pins[i].Circuit = t
+			}
+		}
 	}
 	o := compute(f, c)
-	// The page has the text; echoing it twice would only make the answer
+	// The page has the texts; echoing them would only make the answer
 	// longer (a pasted file is up to api.MaxCircuitBytes).
-	f.Circuit = ""
+	f = withoutTexts(f)
 	if o.Form != nil {
-		o.Form.Circuit = ""
+		g := withoutTexts(*o.Form)
+		o.Form = &g
 	}
 	out.Form, out.Output = &f, &o
 	return out
+}
+
+// withoutTexts is f without its circuit text and its pins' texts.
+func withoutTexts(f Form) Form {
+	f.Circuit = ""
+	if len(f.Pins) > 0 {
+		f.Pins = slices.Clone(f.Pins)
+		for i := range f.Pins {
+			f.Pins[i].Circuit = ""
+		}
+	}
+	return f
 }
 
 // ComputeCircuitJSON is ComputeCircuit on JSON: a CircuitRequest in, a
@@ -233,7 +264,10 @@ func ComputeCircuitJSON(in []byte) []byte {
 //   - port lines stay ticked or unticked by name, a port line new in the
 //     text is ticked, and a "NODE" or "NODE,NODE" port stays while its
 //     nodes do;
-//   - a gain whose source or output node is gone is dropped.
+//   - a gain whose source or output node is gone is dropped;
+//   - with no gain, a text with exactly one independent source that is new
+//     in it (offered lists the sources) gets the gain from that source to
+//     the node "out", else to the + node of its last port line.
 //
 // What is new is what offered does not list; with offered nil nothing is
 // new, and the form's own choices are kept exactly where they still fit.
@@ -295,6 +329,19 @@ func (f Form) Fit(in api.Inspection, offered *Offered) Form {
 		}
 		if !found || !nodePort(g.Output) {
 			f.Gain = nil
+		}
+	}
+	// Sources nil: the page did not say what it offered (no choice made).
+	if f.Gain == nil && len(in.Sources) == 1 && o.Sources != nil && isNew(o.Sources, in.Sources[0].Name) {
+		out := ""
+		switch {
+		case nodes["out"]:
+			out = "out"
+		case len(in.Ports) > 0 && in.Ports[len(in.Ports)-1].A != "gnd":
+			out = in.Ports[len(in.Ports)-1].A
+		}
+		if out != "" {
+			f.Gain = &api.GainSpec{Source: in.Sources[0].Name, Output: out}
 		}
 	}
 	return f

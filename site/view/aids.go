@@ -345,9 +345,7 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 				h.Markers = append(h.Markers, plot.Marker{Freq: t.Value, Label: "target", Class: "target"})
 			}
 		}
-		w.Open("figure", "class", "plot hist", "data-quantity-id", q.ID)
-		w.Raw(h.SVG())
-		w.Close("figure")
+		w.Figure(h.SVG(), "plot hist", "data-quantity-id", q.ID)
 	}
 	w.Close("div")
 	w.Close("div")
@@ -664,11 +662,9 @@ func SensitivityPanel(res *api.SensitivityResult, id string) string {
 			vals = append(vals, deref(e.Value))
 		}
 		w.Open("div", "class", "sens-grid")
-		w.Open("figure", "class", "plot bars")
 		bars := plot.Bars{ID: id + "-sens-bars-" + strconv.Itoa(qi), Title: q.Title + ": " + sym, XLabel: sym,
 			Labels: labels, Values: vals, Width: 420, NoStyle: true}
-		w.Raw(bars.SVG())
-		w.Close("figure")
+		w.Figure(bars.SVG(), "plot bars")
 		w.Open("div", "class", "table-wrap")
 		w.Open("table", "class", "aid-small sens-table")
 		w.Elem("caption", q.Title+": sensitivity to each parameter, largest first", "class", "offscreen")

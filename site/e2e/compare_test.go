@@ -1,0 +1,209 @@
+//go:build !js
+
+package e2e
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"strings"
+	"testing"
+
+	"github.com/chromedp/chromedp"
+
+	"zport/site/calc"
+	"zport/site/internal/sitetest"
+)
+
+// Pinned designs on the pages: pinning, the overlaid curves, the
+// comparison tables, the share link, removal. Helpers here start with pin.
+
+// pinClick clicks the control data-action=action inside the element root
+// (a CSS selector) and waits a frame.
+func pinClick(t *testing.T, ctx context.Context, root, action string) {
+	t.Helper()
+	ok := eval[bool](t, ctx, `(function () {
+  var b = document.querySelector(`+jsString(root+` [data-action="`+action+`"]`)+`);
+  if (!b || b.disabled) return false;
+  b.scrollIntoView({ block: 'center' });
+  b.click();
+  return true;
+})()`)
+	if !ok {
+		t.Fatalf("no enabled %s control in %s", action, root)
+	}
+}
+
+// pinCount waits until the panel of root shows n pinned designs (its
+// "Pinned designs" list) and every chart draws n pinned traces.
+func pinCount(t *testing.T, ctx context.Context, root string, n int) {
+	t.Helper()
+	poll(t, ctx, fmt.Sprintf(`(function () {
+  var r = document.querySelector(%s);
+  var lis = r.querySelectorAll('[data-role="results"] .pin-summary li[data-pin]').length;
+  var bar = r.querySelectorAll('[data-role="pin-list"] li').length;
+  var svgs = Array.from(r.querySelectorAll('[data-role="results"] svg.zplot[data-freq]'));
+  return lis === %d && bar === %d && svgs.length > 0 && svgs.every(function (s) {
+    return s.querySelectorAll('path[data-values][class*="trace-pin"]').length === %d;
+  });
+})()`, jsString(root), n, n, n), waitFor)
+}
+
+// pinTable is the page's comparison, each value or difference by its
+// data attributes (data-compare, data-pin, data-stat) → its number
+// attributes, and each chart's pinned traces by chart id and name.
+type pinTable struct {
+	Cells  map[string]string `json:"cells"`
+	Traces map[string]string `json:"traces"`
+}
+
+const pinTableJS = `(function (root) {
+  var r = document.querySelector(root + ' [data-role="results"]');
+  var cells = {}, traces = {};
+  r.querySelectorAll('[data-compare][data-stat]').forEach(function (e) {
+    var k = e.closest('[data-compare-of]').getAttribute('data-compare-of') + '/' + e.getAttribute('data-compare') + '/' + e.getAttribute('data-pin') + '/' + e.getAttribute('data-stat');
+    cells[k] = ['data-re', 'data-im', 'data-value', 'data-phase', 'data-null'].map(function (a) { return e.getAttribute(a) || ''; }).join(' ');
+  });
+  r.querySelectorAll('svg.zplot path[data-values][class*="trace-pin"]').forEach(function (p) {
+    traces[p.closest('svg').id + '/' + p.getAttribute('data-name')] = p.getAttribute('data-values');
+  });
+  return { cells: cells, traces: traces };
+})`
+
+func pinRead(t *testing.T, ctx context.Context, root string) pinTable {
+	t.Helper()
+	return eval[pinTable](t, ctx, pinTableJS+`(`+jsString(root)+`)`)
+}
+
+// pinNative is the same read from the native engine's panel for form f.
+func pinNative(t *testing.T, f calc.Form) pinTable {
+	t.Helper()
+	out := calc.Compute(f)
+	if out.Error != nil {
+		t.Fatalf("native: %+v", out.Error)
+	}
+	got := pinTable{Cells: map[string]string{}, Traces: map[string]string{}}
+	els := sitetest.Parse(t, out.HTML)
+	of := ""
+	var svg string
+	for _, e := range els {
+		if v := e.Attrs["data-compare-of"]; v != "" {
+			of = v
+		}
+		if e.Name == "svg" {
+			svg = e.Attrs["id"]
+		}
+		if e.Attrs["data-compare"] != "" && e.Attrs["data-stat"] != "" {
+			k := of + "/" + e.Attrs["data-compare"] + "/" + e.Attrs["data-pin"] + "/" + e.Attrs["data-stat"]
+			got.Cells[k] = strings.Join([]string{e.Attrs["data-re"], e.Attrs["data-im"], e.Attrs["data-value"], e.Attrs["data-phase"], e.Attrs["data-null"]}, " ")
+		}
+		if e.Name == "path" && e.Attrs["data-values"] != "" && strings.Contains(e.Attrs["class"], "trace-pin") {
+			got.Traces[svg+"/"+e.Attrs["data-name"]] = e.Attrs["data-values"]
+		}
+	}
+	return got
+}
+
+func samePinTables(t *testing.T, what string, got, want pinTable) {
+	t.Helper()
+	if len(want.Cells) == 0 || len(want.Traces) == 0 {
+		t.Fatalf("%s: the native panel has no comparison (%d cells, %d traces)", what, len(want.Cells), len(want.Traces))
+	}
+	for k, v := range want.Cells {
+		if got.Cells[k] != v {
+			t.Errorf("%s: comparison %s reads %q, want %q", what, k, got.Cells[k], v)
+		}
+	}
+	if len(got.Cells) != len(want.Cells) {
+		t.Errorf("%s: %d comparison values on the page, %d natively", what, len(got.Cells), len(want.Cells))
+	}
+	for k, v := range want.Traces {
+		if got.Traces[k] != v {
+			t.Errorf("%s: pinned trace %s differs from the native engine's", what, k)
+		}
+	}
+	if len(got.Traces) != len(want.Traces) {
+		t.Errorf("%s: %d pinned traces on the page, %d natively", what, len(got.Traces), len(want.Traces))
+	}
+}
+
+// Pin two designs of the TIA (the defaults, and Cf = 2.2 pF), then try
+// 3.3 pF: every chart overlays both pins in their own line styles, the
+// comparison tables show each pin's value and the difference, equal to
+// the native engine's; a renamed pin keeps its name in the link, the link
+// reproduces the pins in a fresh tab, and pins are removed one and all.
+func TestPinsOverlayAndCompare(t *testing.T) {
+	ctx := start(t)
+	const id = "transimpedance"
+	root := calcSel(id)
+	load(t, ctx, fileURL(id, ""))
+	checkLive(t, ctx, id)
+
+	pinClick(t, ctx, root, "pin")
+	pinCount(t, ctx, root, 1)
+	typeInto(t, ctx, id, "Cf", "2p2")
+	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-action="share"]`)+`).getAttribute('href').indexOf('Cf=2p2') > 0`, waitFor)
+	pinClick(t, ctx, root, "pin")
+	pinCount(t, ctx, root, 2)
+	typeInto(t, ctx, id, "Cf", "3p3")
+	// Rename pin 1, as a user does before a review.
+	ok := eval[bool](t, ctx, `(function () {
+  var i = document.querySelector(`+jsString(root+` [data-role="pin-list"] li[data-pin="1"] input`)+`);
+  i.focus(); i.select(); return document.activeElement === i;
+})()`)
+	if !ok {
+		t.Fatal("cannot focus the name of pin 1")
+	}
+	if err := chromedp.Do(ctx, chromedp.KeyEvent("Cf 1 pF")); err != nil {
+		t.Fatal(err)
+	}
+	poll(t, ctx, `location.hash.indexOf('pin1=Cf+1+pF&pin1.Cf=1p&pin2=Pin+2&pin2.Cf=2p2') > 0 && location.hash.indexOf('Cf=3p3') > 0`, waitFor)
+	pinCount(t, ctx, root, 2)
+
+	e := form(id, inputs(t, ctx, id))
+	p1, p2 := cloneParams(e.Params), cloneParams(e.Params)
+	p1["Cf"], p2["Cf"] = "1p", "2p2"
+	e.Pins = []calc.Pin{{Name: "Cf 1 pF", Slot: 1, Params: p1}, {Name: "Pin 2", Slot: 2, Params: p2}}
+	want := pinNative(t, e)
+	got := pinRead(t, ctx, root)
+	samePinTables(t, "two pins", got, want)
+	// The loop's comparison holds the phase margins, in degrees.
+	if _, ok := got.Cells["loop/pm/2/diff"]; !ok {
+		t.Errorf("no phase-margin difference for pin 2: %v", got.Cells)
+	}
+	// The legend names the pins; the copied results carry the comparison.
+	if n := eval[int](t, ctx, `Array.from(document.querySelectorAll(`+jsString(root+` svg.zplot .legend text`)+`)).filter(function (x) { return x.textContent.indexOf('Cf 1 pF') >= 0; }).length`); n == 0 {
+		t.Error("no legend entry names the renamed pin")
+	}
+	if dir := os.Getenv("ZPORT_SHOTS"); dir != "" {
+		screenshot(t, ctx, dir, "pins-"+id+"-1280")
+	}
+
+	// The link, opened in a fresh tab, reproduces the pins.
+	link := eval[string](t, ctx, `location.href`)
+	tab := newTab(t, ctx)
+	load(t, tab, link)
+	checkLive(t, tab, id)
+	pinCount(t, tab, root, 2)
+	samePinTables(t, "from the link", pinRead(t, tab, root), want)
+	if names := eval[string](t, tab, `Array.from(document.querySelectorAll(`+jsString(root+` [data-role="pin-list"] input`)+`)).map(function (i) { return i.value; }).join('|')`); names != "Cf 1 pF|Pin 2" {
+		t.Errorf("pin names from the link: %q", names)
+	}
+	checkHealthy(t, tab)
+
+	// Remove pin 1, then all.
+	pinClick(t, ctx, root+` [data-role="pin-list"] li[data-pin="1"]`, "unpin")
+	pinCount(t, ctx, root, 1)
+	poll(t, ctx, `document.querySelectorAll(`+jsString(root+` path.trace-pin1`)+`).length === 0 && location.hash.indexOf('pin1') < 0 && location.hash.indexOf('pin2=') > 0`, waitFor)
+	pinClick(t, ctx, root, "unpin-all")
+	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-role="pins"]`)+`).hidden && !document.querySelector(`+jsString(root+` .pin-summary`)+`) && location.hash.indexOf('pin') < 0`, waitFor)
+	checkHealthy(t, ctx)
+}
+
+func cloneParams(m map[string]string) map[string]string {
+	out := make(map[string]string, len(m))
+	for k, v := range m {
+		out[k] = v
+	}
+	return out
+}
