@@ -125,5 +125,5 @@ func typedValue(s, unit string) string {
 	if err != nil {
 		return s
 	}
-	return view.Magnitude(x, unit)
+	return view.Eng(x, unit)
 }

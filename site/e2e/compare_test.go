@@ -9,9 +9,11 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/chromedp/cdproto/input"
 	"github.com/chromedp/chromedp"
 
 	"zport/site/calc"
+	"zport/site/examples"
 	"zport/site/internal/sitetest"
 )
 
@@ -206,4 +208,81 @@ func cloneParams(m map[string]string) map[string]string {
 		out[k] = v
 	}
 	return out
+}
+
+// On the custom page: pin the first example, pin it again with Cm = 22 pF,
+// then remove Cm: both pins are drawn and compared, and the link — which
+// carries each pin's own text as pinN.c — reproduces them in a fresh tab.
+func TestCustomPins(t *testing.T) {
+	ctx := start(t)
+	const root = "[data-circuit-editor]"
+	edLoad(t, ctx, fileURL("custom", ""))
+	first := examples.All()[0].Text
+	pinClick(t, ctx, root, "pin")
+	pinCount(t, ctx, root, 1)
+	edSetText(t, ctx, strings.Replace(first, "mid  gnd  10p", "mid  gnd  22p", 1))
+	pinClick(t, ctx, root, "pin")
+	pinCount(t, ctx, root, 2)
+	edSetText(t, ctx, strings.Replace(first, "capacitor Cm   mid  gnd  10p", "# no guard trace", 1))
+	pinCount(t, ctx, root, 2)
+	poll(t, ctx, `location.hash.indexOf('&pin1=Pin+1') > 0 && location.hash.indexOf('&pin1.c=') > 0 && location.hash.indexOf('&pin2.c=') > 0`, waitFor)
+	got := pinRead(t, ctx, root)
+	if len(got.Cells) == 0 || got.Cells["loop/pm/1/diff"] == "" || len(got.Traces) < 6 {
+		t.Fatalf("the comparison with two pinned circuits is missing: %d cells, %d traces", len(got.Cells), len(got.Traces))
+	}
+	if txt := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] .pin-summary').textContent`); !strings.Contains(txt, "its own circuit text (12 lines)") {
+		t.Errorf("the pins' summary says %q", txt)
+	}
+	link := eval[string](t, ctx, `location.href`)
+	tab := newTab(t, ctx)
+	edLoad(t, tab, link)
+	pinCount(t, tab, root, 2)
+	again := pinRead(t, tab, root)
+	for k, v := range got.Cells {
+		if again.Cells[k] != v {
+			t.Errorf("from the link, %s reads %q, want %q", k, again.Cells[k], v)
+		}
+	}
+	for k, v := range got.Traces {
+		if again.Traces[k] != v {
+			t.Errorf("from the link, the pinned trace %s differs", k)
+		}
+	}
+	checkHealthy(t, tab)
+	checkHealthy(t, ctx)
+}
+
+// A paste over the whole text is a new circuit: the previous example's
+// description goes, and with exactly one independent source the gain is
+// taken from it (to the node out).
+func TestCustomPasteNewCircuit(t *testing.T) {
+	ctx := start(t)
+	edLoad(t, ctx, fileURL("custom", ""))
+	text := "vsource Vs a gnd 1\nopamp U1 a n out a0=100k gbw=1M\nresistor Rf out n 10k\nresistor Rg n gnd 1k\nport o out gnd\n"
+	n := edCount(t, ctx)
+	eval[bool](t, ctx, `(function (v) {
+  var ta = document.querySelector('[data-circuit-editor] [data-role="text"]');
+  ta.focus();
+  ta.select();
+  var dt = new DataTransfer();
+  dt.setData('text/plain', v);
+  ta.dispatchEvent(new ClipboardEvent('paste', { clipboardData: dt, bubbles: true, cancelable: true }));
+  return true;
+})(`+jsString(text)+`)`)
+	if _, err := chromedp.Call(ctx, input.InsertText, input.InsertTextParams{Text: text}); err != nil {
+		t.Fatal(err)
+	}
+	edWait(t, ctx, n)
+	poll(t, ctx, `document.querySelector('[data-circuit-editor] [data-role="gain-source"]').value === 'Vs'`, waitFor)
+	s := edRead(t, ctx)
+	if s.Text != text || s.Source != "Vs" || s.Output != "out" || s.Reference != "U1" || strings.Join(s.Ports, " ") != "o" {
+		t.Errorf("after the paste the editor holds %+v", s)
+	}
+	if !eval[bool](t, ctx, `document.querySelector('[data-circuit-editor] [data-role="example-about"]').hidden`) {
+		t.Error("the previous example's description still shows after the paste")
+	}
+	if n := eval[int](t, ctx, `document.querySelectorAll('[data-circuit-editor] [data-role="results"] [data-quantity="g"]').length`); n != 1 {
+		t.Errorf("%d gain values on the page after the paste", n)
+	}
+	checkHealthy(t, ctx)
 }

@@ -432,8 +432,8 @@ func wrapTitle(title string, width float64) []string {
 	if title == "" {
 		return nil
 	}
-	// textWidth errs wide, enough to cover the title's bold face.
-	fits := func(s string) bool { return textWidth(s, titlePx) <= width }
+	// The title is bold: about a tenth wider than textWidth's estimate.
+	fits := func(s string) bool { return 1.1*textWidth(s, titlePx) <= width }
 	var lines []string
 	line := ""
 	for _, word := range strings.Fields(title) {
