@@ -168,7 +168,7 @@ func csvHeader(f *Form, entry *api.CatalogEntry, resp *api.Response) []string {
 			v := "absent"
 			if t := resp.Topology; t != nil {
 				if x, ok := t.Params[p.Name]; ok {
-					v = view.Num(x)
+					v = plainNum(x)
 					if p.Unit != "" {
 						v += " " + asciiUnit(p.Unit)
 					}
@@ -228,6 +228,15 @@ func csvHeader(f *Form, entry *api.CatalogEntry, resp *api.Response) []string {
 // ours keeps the header's own text free of commas, so that a
 // spreadsheet shows each of its lines in one cell.
 func ours(s string) string { return strings.ReplaceAll(s, ",", ";") }
+
+// plainNum writes x in full precision without an exponent where a
+// spreadsheet user reads it at a glance (1000000, not 1e+06).
+func plainNum(x float64) string {
+	if a := math.Abs(x); a >= 1e-12 && a < 1e15 {
+		return strconv.FormatFloat(x, 'f', -1, 64)
+	}
+	return view.Num(x)
+}
 
 // round10 writes a frequency to ten significant digits, without the
 // last-bit noise of a computed grid.
