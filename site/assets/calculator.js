@@ -8,7 +8,9 @@
 // (inputs with data-analysis and data-setting, and those that aids.js
 // reports); the answer's panel replaces the results, or its error is
 // shown beside the field it names while the last good panel stays, marked
-// stale. A newer edit supersedes an answer still on its way.
+// stale. A newer edit supersedes an answer still on its way. The form
+// also carries the pinned designs (zportSite.PinBar: "Pin this design"
+// keeps the parameters as typed) and, on a phone, the charts' width.
 //
 // The design aids (aids.js) follow each calculator through events on its
 // element: zport:computed (detail: the panel output) after every result,
@@ -80,11 +82,14 @@
     return f;
   };
 
-  // design is what "Pin this design" keeps: the parameters of the last
-  // good result.
+  // design is what "Pin this design" keeps: the parameters as typed, or
+  // nothing while a value is marked wrong.
   Calculator.prototype.design = function () {
-    if (!this.last || !this.last.form) return null;
-    return { params: Object.assign({}, this.last.form.params) };
+    if (this.results.classList.contains('is-stale')) {
+      this.say('Correct the marked value first: a pin keeps a design that can be analyzed.');
+      return null;
+    }
+    return { params: this.values().params };
   };
 
   Calculator.prototype.fill = function (form) {

@@ -28,6 +28,11 @@
 //   #c=…&ref=U1&port=out&src=Vin&out=out&f=100k&from=10&to=100M&points=400
 // The same encoding is used by the stage pages' "open as circuit" links.
 //
+// Pins (zportSite.PinBar) keep the text and choices as they are; a pin
+// whose text differs from the current one adds pinN.c=<its text, encoded
+// as c is> to the link. A paste over the whole text is a new circuit: the
+// example's description goes and every choice is made afresh.
+//
 // The design aids (aids.js) follow the editor through the same events as
 // a stage calculator's: zport:computed, zport:link and zport:settings.
 (function () {
@@ -932,12 +937,15 @@
     return location.href.split('#')[0] + (this.share.getAttribute('href') || '');
   };
 
-  // design is what "Pin this design" keeps: the last good result's text
-  // and choices.
+  // design is what "Pin this design" keeps: the text and the pickers'
+  // choices as they are, or nothing while the text has problems.
   Editor.prototype.design = function () {
-    if (!this.last || !this.last.form) return null;
-    var f = this.last.form;
-    return { circuit: this.lastText, reference: f.reference, ports: (f.ports || []).slice(), gain: f.gain };
+    if (this.results.classList.contains('is-stale')) {
+      this.say('Correct the marked problems first: a pin keeps a circuit that can be analyzed.');
+      return null;
+    }
+    var f = this.values();
+    return { circuit: f.circuit, reference: f.reference, ports: f.ports, gain: f.gain };
   };
 
   Editor.prototype.copyLink = function () {

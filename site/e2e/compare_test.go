@@ -6,9 +6,13 @@ import (
 	"context"
 	"fmt"
 	"os"
+	"path/filepath"
+	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 
+	"github.com/chromedp/cdproto/browser"
 	"github.com/chromedp/cdproto/input"
 	"github.com/chromedp/chromedp"
 
@@ -285,4 +289,51 @@ func TestCustomPasteNewCircuit(t *testing.T) {
 		t.Errorf("%d gain values on the page after the paste", n)
 	}
 	checkHealthy(t, ctx)
+}
+
+// In the single-file export: pins drawn and compared, and carried by the
+// section's link into a fresh tab; a chart saved as SVG.
+func TestPinsInSingleFile(t *testing.T) {
+	ctx := start(t)
+	const id = "transimpedance"
+	root := calcSel(id)
+	load(t, ctx, singleURL("p="+id))
+	shownSection(t, ctx, id)
+	checkLive(t, ctx, id)
+	pinClick(t, ctx, root, "pin")
+	pinCount(t, ctx, root, 1)
+	typeInto(t, ctx, id, "Cd", "47p")
+	pinClick(t, ctx, root, "pin")
+	pinCount(t, ctx, root, 2)
+	typeInto(t, ctx, id, "Cd", "10p")
+	poll(t, ctx, `location.hash.indexOf('#p=transimpedance&') === 0 && location.hash.indexOf('Cd=10p') > 0 && location.hash.indexOf('&pin1.Cd=20p&pin2=Pin+2&pin2.Cd=47p') > 0`, waitFor)
+	pinCount(t, ctx, root, 2)
+	got := pinRead(t, ctx, root)
+	tab := newTab(t, ctx)
+	load(t, tab, eval[string](t, ctx, `location.href`))
+	shownSection(t, tab, id)
+	checkLive(t, tab, id)
+	pinCount(t, tab, root, 2)
+	again := pinRead(t, tab, root)
+	if len(got.Cells) == 0 || !reflect.DeepEqual(got, again) {
+		t.Errorf("the single file's link does not reproduce the comparison (%d and %d cells)", len(got.Cells), len(again.Cells))
+	}
+	out := t.TempDir()
+	if _, err := chromedp.Call(tab, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{
+		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out}); err != nil {
+		t.Fatal(err)
+	}
+	eval[bool](t, tab, `(function () {
+  var s = Array.from(document.querySelectorAll(`+jsString(root+` svg.zplot[data-freq]`)+`)).filter(function (s) { return /Return ratio/.test(s.querySelector('title').textContent); })[0];
+  s.closest('figure').setAttribute('data-e2e-chart', '');
+  return true;
+})()`)
+	pinClick(t, tab, `[data-e2e-chart]`, "save-svg")
+	poll(t, tab, `/saved as zport-.*\.svg/.test(document.querySelector('[data-e2e-chart] [data-role="chart-msg"]').textContent)`, waitFor)
+	name := strings.TrimSuffix(strings.TrimPrefix(eval[string](t, tab, `document.querySelector('[data-e2e-chart] [data-role="chart-msg"]').textContent`), "Chart saved as "), ".")
+	vb := eval[[]string](t, tab, `document.querySelector('[data-e2e-chart] svg').getAttribute('viewBox').split(' ')`)
+	w, _ := strconv.Atoi(vb[2])
+	h, _ := strconv.Atoi(vb[3])
+	checkChartSVG(t, reviewWaitFile(t, filepath.Join(out, name)), w, h, eval[string](t, tab, `document.querySelector('[data-e2e-chart] svg title').textContent`))
+	checkHealthy(t, tab)
 }
