@@ -677,14 +677,14 @@
   // are shown on a phone's narrow column (calc.Form.ChartWidth), or 0
   // where they keep their default drawing.
   var narrow = window.matchMedia ? window.matchMedia('screen and (max-width: 30rem)') : null;
-  function chartWidth(results) {
+  var FIGURE_FRAME = 18; // a figure.plot's padding and border, side to side (style.css)
+  function chartWidth(el) {
     if (!narrow || !narrow.matches) return 0;
-    var fig = results.querySelector('figure.plot');
-    var w = fig ? fig.clientWidth : results.clientWidth;
-    if (fig) {
-      var cs = getComputedStyle(fig);
-      w -= parseFloat(cs.paddingLeft) + parseFloat(cs.paddingRight);
-    }
+    var fig = el.querySelector('figure.plot');
+    var box = fig || el;
+    var cs = getComputedStyle(box);
+    var w = box.clientWidth - parseFloat(cs.paddingLeft) - parseFloat(cs.paddingRight);
+    if (!fig) w -= FIGURE_FRAME;
     return Math.max(240, Math.floor(w));
   }
 

@@ -274,7 +274,7 @@ func TestPhoneCharts(t *testing.T) {
 	if err := chromedp.Do(ctx, chromedp.EmulateViewport(390, 844, opts...)); err != nil {
 		t.Fatal(err)
 	}
-	for _, pg := range []struct{ page, root string }{{"transimpedance", calcSel("transimpedance")}, {"custom", "[data-circuit-editor]"}} {
+	for _, pg := range []struct{ page, root string }{{"inverting", calcSel("inverting")}, {"custom", "[data-circuit-editor]"}} {
 		t.Run(pg.page, func(t *testing.T) {
 			if pg.page == "custom" {
 				edLoad(t, ctx, fileURL("custom", ""))
@@ -289,9 +289,18 @@ func TestPhoneCharts(t *testing.T) {
   var s = document.querySelector(`+jsString(pg.root+` [data-role="results"] svg.zplot[data-freq]`)+`);
   return !!s && Number(s.getAttribute('viewBox').split(' ')[2]) < 400;
 })()`, waitFor)
+			if pg.page == "inverting" {
+				// The design aids' charts: the sensitivities' bars, the
+				// tolerance study's histograms.
+				aidOpen(t, ctx)
+				poll(t, ctx, `document.querySelectorAll(`+jsString(aidCalc+` figure.bars svg.zplot`)+`).length > 0`, waitFor)
+				aidSet(t, ctx, `[data-param="tolerance.trials"]`, "200")
+				aidClick(t, ctx, "run")
+				aidWaitState(t, ctx, "done", 60*time.Second)
+			}
 			bad := eval[[]string](t, ctx, `(function () {
   var out = [];
-  document.querySelectorAll(`+jsString(pg.root+` [data-role="results"] figure svg.zplot`)+`).forEach(function (s) {
+  document.querySelectorAll(`+jsString(pg.root+` figure svg.zplot`)+`).forEach(function (s) {
     s.closest('figure').scrollIntoView();
     var vb = s.getAttribute('viewBox').split(' ').map(Number);
     var r = s.getBoundingClientRect();

@@ -115,8 +115,9 @@ func relevant(q api.QuantitySpread, res *api.ToleranceResult) bool {
 // TolerancePanel renders a tolerance study's result: what varied, the
 // targets' miss fractions, a table of each quantity's nominal value,
 // percentiles, Monte Carlo range and corner range, and a histogram of
-// each. id prefixes the element ids.
-func TolerancePanel(res *api.ToleranceResult, id string) string {
+// each. id prefixes the element ids; width, when set, is a phone's narrow
+// chart width, at which the histograms are drawn.
+func TolerancePanel(res *api.ToleranceResult, id string, width int) string {
 	var w Writer
 	w.Open("div", "class", "aid-panel tol-panel", "id", id+"-tol-panel", "data-aid", "tolerance",
 		"data-seed", strconv.FormatUint(res.Seed, 10), "data-trials", strconv.Itoa(res.Trials),
@@ -332,6 +333,9 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 			Width:   480,
 			Height:  230,
 			NoStyle: true,
+		}
+		if width > 0 && width < h.Width {
+			h.Width, h.Height = width, 250
 		}
 		if q.Nominal != nil {
 			h.Markers = append(h.Markers, plot.Marker{Freq: *q.Nominal, Label: "nominal", Class: "nominal"})
@@ -627,8 +631,9 @@ func signedDegrees(d float64) string {
 // SensitivityPanel renders the normalized sensitivities: for each port
 // impedance, the gain and the phase margin, a bar chart of every
 // parameter's sensitivity, largest first, beside a table of the same
-// numbers with their error estimates.
-func SensitivityPanel(res *api.SensitivityResult, id string) string {
+// numbers with their error estimates. width, when set, is a phone's narrow
+// chart width, at which the bars are drawn.
+func SensitivityPanel(res *api.SensitivityResult, id string, width int) string {
 	var w Writer
 	w.Open("div", "class", "aid-panel sens-panel", "id", id+"-sens-panel", "data-aid", "sensitivity")
 	w.Open("p", "class", "explain")
@@ -664,6 +669,9 @@ func SensitivityPanel(res *api.SensitivityResult, id string) string {
 		w.Open("div", "class", "sens-grid")
 		bars := plot.Bars{ID: id + "-sens-bars-" + strconv.Itoa(qi), Title: q.Title + ": " + sym, XLabel: sym,
 			Labels: labels, Values: vals, Width: 420, NoStyle: true}
+		if width > 0 && width < bars.Width {
+			bars.Width = width
+		}
 		w.Figure(bars.SVG(), "plot bars")
 		w.Open("div", "class", "table-wrap")
 		w.Open("table", "class", "aid-small sens-table")
