@@ -67,22 +67,16 @@ func ReadCircuitFragment(frag string, base Form) (Form, error) {
 	f := base
 	settings := settingsRead{}
 	pins := pinsRead{}
-	var ports []string
-	var src, out *string
+	var ch choices
 	for _, pr := range pairs {
 		k, v := pr.Key, pr.Value
-		switch k {
-		case keyPort:
-			if len(ports) == maxFragmentPorts {
-				return base, &fragment.Error{Key: k, Msg: "the link lists more than " + strconv.Itoa(maxFragmentPorts) + " ports"}
+		if ok, err := ch.read(k, v, k, "the link"); ok || err != nil {
+			if err != nil {
+				return base, err
 			}
-			ports = append(ports, v)
-		case keyReference:
-			f.Reference = v
-		case keySource:
-			src = &v
-		case keyOutput:
-			out = &v
+			continue
+		}
+		switch k {
 		case keyFrequency:
 			f.Frequency = v
 		case keyFrom:
@@ -97,23 +91,71 @@ func ReadCircuitFragment(frag string, base Form) (Form, error) {
 			}
 		}
 	}
-	if (src == nil) != (out == nil) {
-		return base, &fragment.Error{Msg: "the gain needs both “src” and “out”"}
-	}
-	if ports != nil {
-		f.Ports = ports
-	}
-	if src != nil {
-		f.Gain = nil
-		if *src != "" {
-			f.Gain = &api.GainSpec{Source: *src, Output: *out}
-		}
+	if err := ch.apply(&f, "the gain"); err != nil {
+		return base, err
 	}
 	f.Settings = settings.over(base.Settings)
 	if f.Pins, err = pins.circuitPins(f); err != nil {
 		return base, err
 	}
 	return f, nil
+}
+
+// choices collects what a circuit's link says of a design's reference,
+// ports and gain (the keys ref, port, src and out), the current design's
+// or a pin's.
+type choices struct {
+	ref      *string
+	ports    []string // nil: not given; one empty port value gives none
+	src, out *string
+}
+
+// read takes the pair k=v, whose key in the link is key (for messages):
+// false when k is none of the choices' keys, an error when the link lists
+// more ports than it may; what names the design ("the link", "pin 2").
+func (c *choices) read(k, v, key, what string) (bool, error) {
+	switch k {
+	case keyReference:
+		c.ref = &v
+	case keyPort:
+		if len(c.ports) == maxFragmentPorts {
+			return true, &fragment.Error{Key: key, Msg: what + " lists more than " + strconv.Itoa(maxFragmentPorts) + " ports"}
+		}
+		if c.ports == nil {
+			c.ports = []string{}
+		}
+		if v != "" {
+			c.ports = append(c.ports, v)
+		}
+	case keySource:
+		c.src = &v
+	case keyOutput:
+		c.out = &v
+	default:
+		return false, nil
+	}
+	return true, nil
+}
+
+// apply puts the choices the link gave over f's; the gain's src and out
+// come together (gain names the gain in the message).
+func (c *choices) apply(f *Form, gain string) error {
+	if (c.src == nil) != (c.out == nil) {
+		return &fragment.Error{Msg: gain + " needs both “src” and “out”"}
+	}
+	if c.ref != nil {
+		f.Reference = *c.ref
+	}
+	if c.ports != nil {
+		f.Ports = c.ports
+	}
+	if c.src != nil {
+		f.Gain = nil
+		if *c.src != "" {
+			f.Gain = &api.GainSpec{Source: *c.src, Output: *c.out}
+		}
+	}
+	return nil
 }
 
 // CircuitLinkState is the circuit-form state that reproduces a topology's

@@ -138,77 +138,61 @@ func (p *pinRead) pin(slot int) (Pin, error) {
 	return pin, nil
 }
 
-// stagePins makes the pins of a stage's link: each is f's parameters
-// with its own keys over them.
-func (r pinsRead) stagePins(f Form, e api.CatalogEntry) ([]Pin, error) {
+// each makes one pin a slot, in slot order: its name and slot from the
+// link, the rest by fill from the slot's keys.
+func (r pinsRead) each(fill func(pin *Pin, pairs fragment.Pairs) error) ([]Pin, error) {
 	var out []Pin
 	for _, slot := range r.slots() {
 		p := r[slot]
 		pin, err := p.pin(slot)
+		if err == nil {
+			err = fill(&pin, p.pairs)
+		}
 		if err != nil {
 			return nil, err
-		}
-		pin.Params = maps.Clone(f.Params)
-		for _, pr := range p.pairs {
-			if _, ok := pin.Params[pr.Key]; !ok {
-				return nil, &fragment.Error{Key: pinKey(slot, pr.Key), Msg: "unknown setting " + strconv.Quote(pinKey(slot, pr.Key)) + " for " + e.Title}
-			}
-			pin.Params[pr.Key] = pr.Value
 		}
 		out = append(out, pin)
 	}
 	return out, nil
 }
 
+// stagePins makes the pins of a stage's link: each is f's parameters
+// with its own keys over them.
+func (r pinsRead) stagePins(f Form, e api.CatalogEntry) ([]Pin, error) {
+	return r.each(func(pin *Pin, pairs fragment.Pairs) error {
+		pin.Params = maps.Clone(f.Params)
+		for _, pr := range pairs {
+			if _, ok := pin.Params[pr.Key]; !ok {
+				k := pinKey(pin.Slot, pr.Key)
+				return &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for " + e.Title}
+			}
+			pin.Params[pr.Key] = pr.Value
+		}
+		return nil
+	})
+}
+
 // circuitPins makes the pins of a circuit's link: each is f's choices
 // with its own over them, and f's text (the page puts in a pin's own).
 func (r pinsRead) circuitPins(f Form) ([]Pin, error) {
-	var out []Pin
-	for _, slot := range r.slots() {
-		p := r[slot]
-		pin, err := p.pin(slot)
-		if err != nil {
-			return nil, err
-		}
-		pin.Circuit, pin.Reference, pin.Ports, pin.Gain = f.Circuit, f.Reference, f.Ports, f.Gain
-		var ports []string
-		var src, outNode *string
-		for _, pr := range p.pairs {
-			v := pr.Value
-			switch pr.Key {
-			case keyReference:
-				pin.Reference = v
-			case keyPort:
-				if len(ports) == maxFragmentPorts {
-					return nil, &fragment.Error{Key: pinKey(slot, keyPort), Msg: "pin " + strconv.Itoa(slot) + " lists more than " + strconv.Itoa(maxFragmentPorts) + " ports"}
-				}
-				if v != "" {
-					ports = append(ports, v)
-				}
-				if ports == nil {
-					ports = []string{}
-				}
-			case keySource:
-				src = &v
-			case keyOutput:
-				outNode = &v
-			default:
-				return nil, &fragment.Error{Key: pinKey(slot, pr.Key), Msg: "unknown setting " + strconv.Quote(pinKey(slot, pr.Key)) + " for a circuit"}
+	return r.each(func(pin *Pin, pairs fragment.Pairs) error {
+		what := "pin " + strconv.Itoa(pin.Slot)
+		var ch choices
+		for _, pr := range pairs {
+			k := pinKey(pin.Slot, pr.Key)
+			ok, err := ch.read(pr.Key, pr.Value, k, what)
+			if err != nil {
+				return err
+			}
+			if !ok {
+				return &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for a circuit"}
 			}
 		}
-		if (src == nil) != (outNode == nil) {
-			return nil, &fragment.Error{Msg: "the gain of pin " + strconv.Itoa(slot) + " needs both “src” and “out”"}
+		g := f
+		if err := ch.apply(&g, "the gain of "+what); err != nil {
+			return err
 		}
-		if ports != nil {
-			pin.Ports = ports
-		}
-		if src != nil {
-			pin.Gain = nil
-			if *src != "" {
-				pin.Gain = &api.GainSpec{Source: *src, Output: *outNode}
-			}
-		}
-		out = append(out, pin)
-	}
-	return out, nil
+		pin.Circuit, pin.Reference, pin.Ports, pin.Gain = f.Circuit, g.Reference, g.Ports, g.Gain
+		return nil
+	})
 }

@@ -26,6 +26,22 @@ import (
 // What leaves a design meeting: chart images, the printed report, and
 // the charts on a phone.
 
+// reviewPages are a stage page and the custom page, with the selector of
+// their calculator.
+var reviewPages = []struct{ page, root string }{{"inverting", calcSel("inverting")}, {"custom", "[data-circuit-editor]"}}
+
+// reviewOpen opens one of reviewPages from file:// and waits until its
+// results are live.
+func reviewOpen(t *testing.T, ctx context.Context, page string) {
+	t.Helper()
+	if page == "custom" {
+		edLoad(t, ctx, fileURL("custom", ""))
+		return
+	}
+	load(t, ctx, fileURL(page, ""))
+	checkLive(t, ctx, page)
+}
+
 // reviewWaitFile waits until path exists with a size that no longer
 // changes, and returns its bytes.
 func reviewWaitFile(t *testing.T, path string) []byte {
@@ -57,14 +73,9 @@ func TestChartImages(t *testing.T) {
 		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out}); err != nil {
 		t.Fatal(err)
 	}
-	for _, pg := range []struct{ page, root string }{{"inverting", calcSel("inverting")}, {"custom", "[data-circuit-editor]"}} {
+	for _, pg := range reviewPages {
 		t.Run(pg.page, func(t *testing.T) {
-			if pg.page == "custom" {
-				edLoad(t, ctx, fileURL("custom", ""))
-			} else {
-				load(t, ctx, fileURL(pg.page, ""))
-				checkLive(t, ctx, pg.page)
-			}
+			reviewOpen(t, ctx, pg.page)
 			// The loop chart (its title names T), and its size.
 			info := eval[[]string](t, ctx, `(function () {
   var s = Array.from(document.querySelectorAll(`+jsString(pg.root+` svg.zplot[data-freq]`)+`)).filter(function (s) { return /Return ratio/.test(s.querySelector('title').textContent); })[0];
@@ -274,13 +285,10 @@ func TestPhoneCharts(t *testing.T) {
 	if err := chromedp.Do(ctx, chromedp.EmulateViewport(390, 844, opts...)); err != nil {
 		t.Fatal(err)
 	}
-	for _, pg := range []struct{ page, root string }{{"inverting", calcSel("inverting")}, {"custom", "[data-circuit-editor]"}} {
+	for _, pg := range reviewPages {
 		t.Run(pg.page, func(t *testing.T) {
-			if pg.page == "custom" {
-				edLoad(t, ctx, fileURL("custom", ""))
-			} else {
-				load(t, ctx, fileURL(pg.page, ""))
-				checkLive(t, ctx, pg.page)
+			reviewOpen(t, ctx, pg.page)
+			if pg.page != "custom" {
 				pinClick(t, ctx, pg.root, "pin")
 				pinCount(t, ctx, pg.root, 1)
 			}
