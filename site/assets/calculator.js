@@ -37,6 +37,8 @@
     this.scheduled = false;
     this.seq = 0; // the latest request; an older answer is dropped
     this.outside = {}; // analyses' settings kept outside the form, by key
+    this.answered = 0; // the latest request answered
+    this.waiters = []; // settle's callbacks
     var self = this;
     this.pins = new site.PinBar(this);
     site.onNarrow(function () { self.schedule(); });
@@ -139,6 +141,7 @@
       return { out: out, linked: !!frag };
     }).then(function (r) {
       if (!r || seq !== self.seq) return;
+      self.answered = seq;
       if (r.linked && r.out.form) self.fill(r.out.form);
       // The address changes only when it held settings (at once: a
       // refused link must not stay there), or once the user edits: an
@@ -150,6 +153,7 @@
       var buttons = self.el.querySelectorAll('button[data-action]');
       for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
       self.pins.refresh();
+      self.settled();
     });
   };
 
@@ -162,9 +166,25 @@
       var t0 = performance.now();
       var seq = ++self.seq;
       self.call({}).then(function (out) {
-        if (seq === self.seq) self.apply(out, t0, true);
+        if (seq !== self.seq) return;
+        self.answered = seq;
+        self.apply(out, t0, true);
+        self.settled();
       });
     });
+  };
+
+  // settle calls fn once no recompute is waiting or on its way.
+  Calculator.prototype.settle = function (fn) {
+    this.waiters.push(fn);
+    this.settled();
+  };
+
+  Calculator.prototype.settled = function () {
+    if (this.scheduled || this.answered !== this.seq) return;
+    var ws = this.waiters;
+    this.waiters = [];
+    for (var i = 0; i < ws.length; i++) ws[i]();
   };
 
   // apply shows one answer; address is false (leave the address alone),

@@ -431,7 +431,8 @@
   // MAX_PINS, each in a slot 1 … MAX_PINS that gives its line style and
   // its keys in the share link, with a name the user can edit. The bar
   // lists them in the element [data-role="pins"] of host.el; host.design()
-  // returns the design to pin (that of the last good result) and
+  // returns the design to pin (or null, saying why), host.settle(fn) calls
+  // fn once the recompute of the last edit has answered, and
   // host.schedule() recomputes. Each pin's line-style swatch is copied from
   // the panel the engine rendered (its "Pinned designs" section), so the
   // styles have one home, in Go.
@@ -452,9 +453,15 @@
     });
   }
 
-  // pin keeps the design of the last good result in the lowest free slot.
+  // pin keeps the design as it stands, once the recompute of the last
+  // edit has answered (a value still marked wrong is not pinned), in the
+  // lowest free slot.
   PinBar.prototype.pin = function () {
-    var design = this.host.design();
+    var self = this;
+    this.host.settle(function () { self.keep(self.host.design()); });
+  };
+
+  PinBar.prototype.keep = function (design) {
     if (!design) return;
     var slot = 0;
     for (var s = 1; s <= MAX_PINS && !slot; s++) {
