@@ -96,7 +96,14 @@ func (c *Context) Comparison(w *view.Writer) {
 			} else {
 				attrs = append(attrs, "data-null", "true")
 			}
-			w.Elem("span", d.text, attrs...)
+			if d.ang == "" {
+				w.Elem("span", d.text, attrs...)
+			} else {
+				w.Open("span", attrs...)
+				w.Text(d.mag)
+				w.Elem("span", d.ang, "class", "dphase")
+				w.Close("span")
+			}
 			w.Close("td")
 		}
 		w.Close("tr")
@@ -205,12 +212,13 @@ func (q quantity) write(w *view.Writer, unit string, attrs ...string) {
 
 // diff is the difference of the current design's value from a pin's:
 // value in its own measure (percent, dB or the unit), phase in degrees
-// for a complex quantity.
+// for a complex quantity; text is both, mag and ang each alone.
 type diff struct {
-	ok    bool
-	value float64
-	phase *float64
-	text  string
+	ok       bool
+	value    float64
+	phase    *float64
+	text     string
+	mag, ang string
 }
 
 // difference compares cur with pin, the pin as the reference: a complex
@@ -235,7 +243,8 @@ func difference(cur, pin quantity, unit string) diff {
 			d.value = 100 * (cmplx.Abs(q) - 1)
 			d.text = signedPercent(d.value)
 		}
-		d.text += ", ∠ " + signedFixed(ph, 2) + "°"
+		d.mag, d.ang = d.text, "∠ "+signedFixed(ph, 2)+"°"
+		d.text += ", " + d.ang
 		return d
 	case cur.x != nil && pin.x != nil:
 		a, b := *cur.x, *pin.x

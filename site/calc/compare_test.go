@@ -291,7 +291,7 @@ func TestCircuitPins(t *testing.T) {
 	if out.Output == nil || out.Output.Error != nil {
 		t.Fatalf("%+v", out.Output)
 	}
-	if !strings.Contains(out.Output.HTML, "its own circuit text (8 lines); ports o, i; no gain.") || out.Form.Pins[0].Circuit != "" {
+	if !strings.Contains(out.Output.HTML, "its own circuit text, with “resistor R2 out fb 8k” where this one has “resistor R2 out fb 18k”; ports o, i; no gain.") || out.Form.Pins[0].Circuit != "" {
 		t.Errorf("the pin's own text was not used, or was echoed back")
 	}
 }

@@ -91,8 +91,7 @@ func pinChanges(c *Context, p Pin) string {
 		}
 	} else {
 		if p.Circuit != f.Circuit {
-			n := strings.Count(strings.TrimRight(p.Circuit, "\n"), "\n") + 1
-			parts = append(parts, "its own circuit text ("+strconv.Itoa(n)+" lines)")
+			parts = append(parts, textChanges(p.Circuit, f.Circuit))
 		}
 		if p.Reference != f.Reference {
 			parts = append(parts, "reference "+p.Reference)
@@ -112,6 +111,55 @@ func pinChanges(c *Context, p Pin) string {
 		return "the same design as this one."
 	}
 	return strings.Join(parts, "; ") + "."
+}
+
+// textChanges says how circuit text pin differs from cur, line by line
+// with comments and spacing left aside: the pin's lines that cur lacks
+// and cur's that the pin lacks, a few of each.
+func textChanges(pin, cur string) string {
+	lines := func(s string) map[string]int {
+		m := map[string]int{}
+		for _, l := range strings.Split(s, "\n") {
+			if i := strings.IndexByte(l, '#'); i >= 0 {
+				l = l[:i]
+			}
+			if l = strings.Join(strings.Fields(l), " "); l != "" {
+				m[l]++
+			}
+		}
+		return m
+	}
+	p, c := lines(pin), lines(cur)
+	only := func(a, b map[string]int, in string) []string {
+		var out []string
+		for _, l := range strings.Split(in, "\n") {
+			if i := strings.IndexByte(l, '#'); i >= 0 {
+				l = l[:i]
+			}
+			l = strings.Join(strings.Fields(l), " ")
+			if l != "" && a[l] > b[l] {
+				a[l]--
+				out = append(out, "“"+l+"”")
+			}
+		}
+		return out
+	}
+	mine, theirs := only(p, c, pin), only(c, p, cur)
+	some := func(ls []string) string {
+		if len(ls) > 3 {
+			return strings.Join(ls[:3], ", ") + " and " + strconv.Itoa(len(ls)-3) + " more"
+		}
+		return strings.Join(ls, ", ")
+	}
+	switch {
+	case len(mine) == 0 && len(theirs) == 0:
+		return "the same circuit, its text spaced or commented differently"
+	case len(theirs) == 0:
+		return "its own circuit text, with " + some(mine)
+	case len(mine) == 0:
+		return "its own circuit text, without " + some(theirs)
+	}
+	return "its own circuit text, with " + some(mine) + " where this one has " + some(theirs)
 }
 
 // typedValue writes a value as typed in a form for people: in

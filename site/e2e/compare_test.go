@@ -234,7 +234,7 @@ func TestCustomPins(t *testing.T) {
 	if len(got.Cells) == 0 || got.Cells["loop/pm/1/diff"] == "" || len(got.Traces) < 6 {
 		t.Fatalf("the comparison with two pinned circuits is missing: %d cells, %d traces", len(got.Cells), len(got.Traces))
 	}
-	if txt := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] .pin-summary').textContent`); !strings.Contains(txt, "its own circuit text (12 lines)") {
+	if txt := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] .pin-summary').textContent`); !strings.Contains(txt, "Pin 1: its own circuit text, with “capacitor Cm mid gnd 10p”.") || !strings.Contains(txt, "Pin 2: its own circuit text, with “capacitor Cm mid gnd 22p”.") {
 		t.Errorf("the pins' summary says %q", txt)
 	}
 	link := eval[string](t, ctx, `location.href`)

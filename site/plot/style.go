@@ -25,6 +25,7 @@ const CSS = `.zplot{font-family:system-ui,sans-serif;font-size:12px}` +
 	`.zplot .tick,.zplot .axis-title{fill-opacity:.85}` +
 	`.zplot .trace{fill:none;stroke-width:1.75px;stroke-linejoin:round;stroke-linecap:round}` +
 	`.zplot .dashed{stroke-dasharray:7 4}` +
+	`.zplot .trace.own-dash{stroke-width:1.4px}` +
 	`.zplot .zc1{stroke:var(--zplot-c1,#2a6fb0)}` +
 	`.zplot .zc2{stroke:var(--zplot-c2,#cf6a22)}` +
 	`.zplot .zc3{stroke:var(--zplot-c3,#2e8c57)}` +
