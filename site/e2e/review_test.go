@@ -176,7 +176,7 @@ func pdfText(t *testing.T, pdf []byte, dir, name string) (text string, pages int
 	if err := os.WriteFile(in, pdf, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	b, err := exec.Command("pdftotext", "-layout", in, "-").Output()
+	b, err := exec.Command("pdftotext", "-raw", in, "-").Output()
 	if err != nil {
 		t.Fatalf("pdftotext: %v", err)
 	}
