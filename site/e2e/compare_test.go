@@ -181,6 +181,23 @@ func TestPinsOverlayAndCompare(t *testing.T) {
 	if n := eval[int](t, ctx, `Array.from(document.querySelectorAll(`+jsString(root+` svg.zplot .legend text`)+`)).filter(function (x) { return x.textContent.indexOf('Cf 1 pF') >= 0; }).length`); n == 0 {
 		t.Error("no legend entry names the renamed pin")
 	}
+	// Copy results: the parameters in engineering notation with their
+	// units, the pins' comparison, and the link at the end.
+	copied, err := chromedp.Run(ctx, chromedp.Evaluate[string](`new Promise(function (resolve) {
+  navigator.clipboard.writeText = function (s) { resolve(s); return Promise.resolve(); };
+  document.querySelector(`+jsString(root+` [data-action="copy"]`)+`).click();
+})`, chromedp.EvalAwaitPromise))
+	if err != nil {
+		t.Fatalf("copying the results: %v", err)
+	}
+	for _, want := range []string{"| a0 | 1 M |", "| Cf | 3.3 pF |", "| Cf 1 pF | Cf 1 pF \\(here 3\\.3 pF\\)\\. |", "| Loop vs pins |"} {
+		if !strings.Contains(copied, want) {
+			t.Errorf("the copied results lack %q:\n%s", want, copied)
+		}
+	}
+	if link := eval[string](t, ctx, `location.href`); !strings.HasSuffix(copied, "Link to these results: "+link+"\n") {
+		t.Errorf("the copied results do not end with the link %s:\n…%s", link, copied[max(0, len(copied)-300):])
+	}
 	if dir := os.Getenv("ZPORT_SHOTS"); dir != "" {
 		screenshot(t, ctx, dir, "pins-"+id+"-1280")
 	}
