@@ -699,7 +699,7 @@
   // resized while narrow (the charts are then drawn again).
   function onNarrow(fn) {
     if (!narrow) return;
-    var last = -1;
+    var last = narrow.matches ? window.innerWidth : 0;
     var check = function () {
       var w = narrow.matches ? window.innerWidth : 0;
       if (w !== last) {
@@ -712,7 +712,6 @@
       clearTimeout(t);
       t = setTimeout(check, 150);
     });
-    last = narrow.matches ? window.innerWidth : 0;
   }
 
   // copyResults copies a result's Markdown followed by its share link.

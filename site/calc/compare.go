@@ -35,18 +35,14 @@ type Compared struct {
 // pins it writes nothing.
 func (c *Context) Comparison(w *view.Writer) {
 	c.compared = true
-	rows := c.comparedRows()
+	rows := c.comparedRows() // none without the analysis, its Compare or pins
 	if len(rows) == 0 {
 		return
-	}
-	title := "Compared with the pinned designs"
-	if c.a != nil {
-		title = c.a.Title + " compared with the pinned designs"
 	}
 	w.Open("div", "class", "table-wrap compare-wrap")
 	w.Open("table", "class", "compare", "data-compare-of", c.a.Key)
 	w.Open("caption")
-	w.Text(title)
+	w.Text(c.a.Title + " compared with the pinned designs")
 	w.Elem("span", "Δ: this design against the pin — the change in percent (in dB for a ratio, in the unit for degrees and decibels), and of the phase.", "class", "hint")
 	w.Close("caption")
 	w.Open("thead")

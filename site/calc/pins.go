@@ -74,7 +74,10 @@ var pinDashes = [MaxPins]string{"1.5 3", "10 3 2 3", "12 5", "5 2 1.5 2 1.5 2"}
 // left out.
 //
 //	b.Traces = append(b.Traces, calc.PinTraces(c, func(r *api.Response, s calc.PinStyle) (plot.Trace, bool) {
-//		return s.Trace("g", r.Sweep.Gain.G)
+//		if r.Sweep == nil || r.Sweep.Gain == nil {
+//			return plot.Trace{}, false
+//		}
+//		return s.Trace("g", r.Sweep.Gain.G), true
 //	})...)
 func PinTraces[T any](c *Context, trace func(r *api.Response, s PinStyle) (T, bool)) []T {
 	var out []T
