@@ -93,6 +93,7 @@
     this.share = el.querySelector('[data-action="share"]');
     this.fileInput = role('file');
     this.examples = readExamples();
+    this.described = this.exampleSel.value; // the example whose description shows
     this.last = null; // the last good Output
     this.scheduled = false;
     this.lastCost = 0;
@@ -869,15 +870,37 @@
   // markExample selects the example the text is, or "Your own circuit";
   // fresh says the text came from a link or a file, when an example's
   // description no longer applies to it.
+  //
+  // The description also goes once most of the described example's lines
+  // are gone from the text: it would describe another circuit.
   Editor.prototype.markExample = function (fresh) {
     var t = this.ta.value, id = '';
     for (var k in this.examples) if (this.examples[k].text === t) id = k;
     if (this.exampleSel.value !== id) this.exampleSel.value = id;
     if (id) this.describe(this.examples[id]);
-    else if (fresh) role('example-about').hidden = true;
+    else if (fresh || this.strayed(t)) role('example-about').hidden = true;
+  };
+
+  // partLines are the lines of circuit text that hold a part, without
+  // comments and spacing.
+  function partLines(text) {
+    return text.split('\n').map(function (l) { return l.replace(/#.*/, '').trim().split(/\s+/).join(' '); }).filter(Boolean);
+  }
+
+  // strayed reports whether text keeps fewer than half the part lines of
+  // the example described.
+  Editor.prototype.strayed = function (text) {
+    var ex = this.examples[this.described];
+    if (!ex) return true;
+    var have = {};
+    partLines(text).forEach(function (l) { have[l] = true; });
+    var lines = partLines(ex.text);
+    var kept = lines.filter(function (l) { return have[l]; }).length;
+    return 2 * kept < lines.length;
   };
 
   Editor.prototype.describe = function (ex) {
+    this.described = ex.id;
     role('example-title').textContent = ex.title;
     role('scenario').textContent = ex.scenario;
     role('look').textContent = ex.look;

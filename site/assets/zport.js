@@ -663,6 +663,8 @@
   // Printing shows every section open: closed details are opened before
   // printing and closed again after (the print style sheet hides the
   // controls). "Print report" buttons print the page.
+  // A circuit's text prints whole, as text, in place of its editor (a
+  // text box prints only the lines it shows).
   var openedForPrint = [];
   window.addEventListener('beforeprint', function () {
     var ds = document.querySelectorAll('main details:not([open])');
@@ -670,6 +672,16 @@
       if (ds[i].closest('.aids')) continue; // an unrun study has nothing to print
       ds[i].open = true;
       openedForPrint.push(ds[i]);
+    }
+    var eds = document.querySelectorAll('[data-circuit-editor] [data-role="editor"]');
+    for (var j = 0; j < eds.length; j++) {
+      var pre = eds[j].parentNode.querySelector('pre.print-text');
+      if (!pre) {
+        pre = document.createElement('pre');
+        pre.className = 'print-text circuit-text';
+        eds[j].parentNode.insertBefore(pre, eds[j].nextSibling);
+      }
+      pre.textContent = eds[j].querySelector('textarea').value;
     }
   });
   window.addEventListener('afterprint', function () {

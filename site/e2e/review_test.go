@@ -21,6 +21,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	zbrowser "zport/site/browser"
+	"zport/site/examples"
 )
 
 // What leaves a design meeting: chart images, the printed report, and
@@ -270,6 +271,27 @@ func TestPrintReport(t *testing.T) {
 	}
 	if strings.Contains(flat, "Remove") {
 		t.Error("the printed page shows the pins' controls")
+	}
+	checkHealthy(t, ctx)
+
+	// The custom page prints its whole circuit text, not the lines its
+	// text box shows.
+	edLoad(t, ctx, fileURL("custom", ""))
+	edSetText(t, ctx, edLadder(40))
+	text, _ = pdfText(t, printPDF(t, ctx), dir, "print-custom")
+	flat = strings.Join(strings.Fields(text), " ")
+	for _, want := range []string{"resistor R1 l1 l2 100", "capacitor C36 l37 gnd 1p", "resistor Rf l37 l0 1", "port out out gnd", "Port impedances"} {
+		if !strings.Contains(flat, want) {
+			t.Errorf("the printed custom page lacks %q", want)
+		}
+	}
+	if strings.Contains(flat, examples.All()[0].Title) {
+		t.Error("the printed custom page still describes the example the text replaced")
+	}
+	for _, control := range []string{"Pin this design", "Open .txt file…", "Save as SVG", "Print report"} {
+		if strings.Contains(flat, control) {
+			t.Errorf("the printed custom page shows the control %q", control)
+		}
 	}
 	checkHealthy(t, ctx)
 }
