@@ -37,8 +37,7 @@
     this.scheduled = false;
     this.seq = 0; // the latest request; an older answer is dropped
     this.outside = {}; // analyses' settings kept outside the form, by key
-    this.answered = 0; // the latest request answered
-    this.waiters = []; // settle's callbacks
+    this.answered = 0; // the latest request answered (zportSite.settle)
     var self = this;
     this.pins = new site.PinBar(this);
     site.onNarrow(function () { self.schedule(); });
@@ -153,7 +152,7 @@
       var buttons = self.el.querySelectorAll('button[data-action]');
       for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
       self.pins.refresh();
-      self.settled();
+      site.settled(self);
     });
   };
 
@@ -169,22 +168,9 @@
         if (seq !== self.seq) return;
         self.answered = seq;
         self.apply(out, t0, true);
-        self.settled();
+        site.settled(self);
       });
     });
-  };
-
-  // settle calls fn once no recompute is waiting or on its way.
-  Calculator.prototype.settle = function (fn) {
-    this.waiters.push(fn);
-    this.settled();
-  };
-
-  Calculator.prototype.settled = function () {
-    if (this.scheduled || this.answered !== this.seq) return;
-    var ws = this.waiters;
-    this.waiters = [];
-    for (var i = 0; i < ws.length; i++) ws[i]();
   };
 
   // apply shows one answer; address is false (leave the address alone),

@@ -104,8 +104,7 @@
     this.saved = null; // the user's own text, kept when an example replaced it
     this.linkSeq = 0;
     this.seq = 0; // the latest recompute; an older answer is dropped
-    this.answered = 0; // the latest recompute answered
-    this.waiters = []; // settle's callbacks
+    this.answered = 0; // the latest recompute answered (zportSite.settle)
     this.outside = {}; // analyses' settings kept outside the form (aids.js)
     this.bootSeq = 0;
     this.metrics = null;
@@ -621,22 +620,9 @@
       if (seq !== self.seq) return null;
       self.answered = seq;
       var out = self.show(res, req, t0, address, fragment);
-      self.settled();
+      site.settled(self);
       return out;
     });
-  };
-
-  // settle calls fn once no recompute is waiting or on its way.
-  Editor.prototype.settle = function (fn) {
-    this.waiters.push(fn);
-    this.settled();
-  };
-
-  Editor.prototype.settled = function () {
-    if (this.scheduled || this.answered !== this.seq) return;
-    var ws = this.waiters;
-    this.waiters = [];
-    for (var i = 0; i < ws.length; i++) ws[i]();
   };
 
   // show puts one answer of the engine on the page.

@@ -33,6 +33,7 @@
 //   copyText, copyResults, saveFile, compress, decompress, hover,
 //   recomputed, fragment(), page(), single, cssName
 //   PinBar(host)       the pinned designs of a calculator (see below)
+//   settle(host, fn), settled(host)  wait for a calculator's last recompute
 //   chartWidth(el)     the charts' width on a phone (calc.Form.ChartWidth)
 //   onNarrow(fn)       calls fn when the phone width changes
 // and, for every page: the charts' "SVG" and "PNG" buttons, and printing
@@ -431,11 +432,11 @@
   // MAX_PINS, each in a slot 1 … MAX_PINS that gives its line style and
   // its keys in the share link, with a name the user can edit. The bar
   // lists them in the element [data-role="pins"] of host.el; host.design()
-  // returns the design to pin (or null, saying why), host.settle(fn) calls
-  // fn once the recompute of the last edit has answered, and
-  // host.schedule() recomputes. Each pin's line-style swatch is copied from
-  // the panel the engine rendered (its "Pinned designs" section), so the
-  // styles have one home, in Go.
+  // returns the design to pin (or null, saying why), and host.schedule()
+  // recomputes; a pin waits for the recompute of the last edit (settle).
+  // Each pin's line-style swatch is copied from the panel the engine
+  // rendered (its "Pinned designs" section), so the styles have one home,
+  // in Go.
   var MAX_PINS = 4;
   var MAX_PIN_NAME = 40;
 
@@ -458,7 +459,7 @@
   // lowest free slot.
   PinBar.prototype.pin = function () {
     var self = this;
-    this.host.settle(function () { self.keep(self.host.design()); });
+    settle(this.host, function () { self.keep(self.host.design()); });
   };
 
   PinBar.prototype.keep = function (design) {
@@ -726,6 +727,23 @@
     });
   }
 
+  // settle calls fn once host (a calculator or the custom page's editor)
+  // has no recompute waiting for its frame (host.scheduled) or on its way
+  // (host.answered, the latest request answered, behind host.seq, the
+  // latest asked); host calls settled(host) after each answer.
+  function settle(host, fn) {
+    host.waiters = host.waiters || [];
+    host.waiters.push(fn);
+    settled(host);
+  }
+
+  function settled(host) {
+    if (host.scheduled || host.answered !== host.seq || !host.waiters) return;
+    var ws = host.waiters;
+    host.waiters = [];
+    for (var i = 0; i < ws.length; i++) ws[i]();
+  }
+
   // copyResults copies a result's Markdown followed by its share link.
   function copyResults(host, markdown, link) {
     copyText(host, markdown + '\nLink to these results: ' + link + '\n', 'Results copied as Markdown tables, with the link.');
@@ -764,6 +782,8 @@
     copyResults: copyResults,
     saveFile: saveFile,
     PinBar: PinBar,
+    settle: settle,
+    settled: settled,
     chartWidth: chartWidth,
     onNarrow: onNarrow,
     compress: compress,
