@@ -401,6 +401,16 @@ type calcGroup struct {
 	Fields []calcField
 }
 
+// paramRange says what a parameter's input takes: its range, and that a
+// gain may be typed in decibels.
+func paramRange(p api.ParamInfo) string {
+	r := view.Magnitude(p.Min, p.Unit) + " to " + view.Magnitude(p.Max, p.Unit)
+	if p.Decibels {
+		r += ", or in dB (100dB)"
+	}
+	return r
+}
+
 // settingGroups are the inputs of every analysis that has settings (see
 // calc.Analysis), one group each, filled from form.
 func settingGroups(form calc.Form) []calcGroup {
@@ -478,7 +488,7 @@ func (r *blockRenderer) renderCalculator(w util.BufWriter, _ []byte, node ast.No
 		d.Groups[i].Fields = append(d.Groups[i].Fields, calcField{
 			Name: p.Name, Symbol: p.Symbol, Meaning: p.Meaning, Unit: p.Unit,
 			Value: n.Form.Params[p.Name], EmptyHint: p.Optional && !strings.Contains(p.Meaning, "empty"),
-			Range: view.Magnitude(p.Min, p.Unit) + " to " + view.Magnitude(p.Max, p.Unit),
+			Range: paramRange(p),
 		})
 	}
 	f := n.Form

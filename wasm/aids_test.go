@@ -47,7 +47,7 @@ func TestToleranceRunInSlices(t *testing.T) {
 		t.Fatal(err)
 	}
 	p := call(t, z, "tolerancePanel", id)
-	if html, _ := p["html"].(string); html != view.TolerancePanel(api.Tolerance.Result(resp), "w") || p["done"] != total {
+	if html, _ := p["html"].(string); html != view.TolerancePanel(api.Tolerance.Result(resp), "w", 0) || p["done"] != total {
 		t.Errorf("tolerancePanel: done %v, html %.100q differs from the one-shot panel", p["done"], html)
 	}
 	if r := call(t, z, "toleranceRelease", id); r["released"] != true {

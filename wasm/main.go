@@ -59,11 +59,11 @@ func register(global js.Value, exit func()) (release func()) {
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		run, id, errJSON := calc.StartToleranceJSON([]byte(in))
+		run, layout, errJSON := calc.StartToleranceJSON([]byte(in))
 		if run == nil {
 			return string(errJSON)
 		}
-		n := runs.add(&toleranceRun{run: run, panelID: id})
+		n := runs.add(&toleranceRun{run: run, layout: layout})
 		_, total := run.Step(0)
 		return fmt.Sprintf(`{"run":%d,"done":0,"total":%d}`, n, total)
 	}))
@@ -84,7 +84,7 @@ func register(global js.Value, exit func()) (release func()) {
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		return string(calc.EncodeAids(calc.ToleranceOutput(r.run, r.panelID)))
+		return string(calc.EncodeAids(calc.ToleranceOutput(r.run, r.layout)))
 	}))
 	add("toleranceRelease", guard(func(args []js.Value) string {
 		if _, err := runs.get(args); err != nil {
@@ -122,11 +122,11 @@ func guard(fn func(args []js.Value) string) js.Func {
 	})
 }
 
-// toleranceRun is a tolerance study run in slices from the page, and the
-// id prefix of its panel.
+// toleranceRun is a tolerance study run in slices from the page, and how
+// its panel is laid out.
 type toleranceRun struct {
-	run     *api.ToleranceRun
-	panelID string
+	run    *api.ToleranceRun
+	layout calc.Layout
 }
 
 // toleranceRuns holds the page's runs by id. A page releases a run when it

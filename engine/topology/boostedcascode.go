@@ -222,7 +222,7 @@ func init() {
 			{Name: "gmb2", Symbol: "g_mb2", Meaning: "body transconductance of M2, bulk at gnd (empty: none)", Unit: "S", Default: "", Min: 1e-12, Max: 10, Optional: true, Group: "amplifier"},
 			{Name: "Cgs2", Symbol: "C_gs2", Meaning: "gate-source capacitance of M2 (empty: none)", Unit: "F", Default: "50f", Min: 1e-18, Max: 1e-9, Optional: true, Group: "amplifier"},
 			{Name: "Cgd2", Symbol: "C_gd2", Meaning: "gate-drain capacitance of M2 (empty: none)", Unit: "F", Default: "5f", Min: 1e-18, Max: 1e-9, Optional: true, Group: "amplifier"},
-			{Name: "Ab", Symbol: "A_b", Meaning: "booster DC gain (as a ratio, or in dB: 60dB)", Unit: "", Default: "1000", Min: 1e-3, Max: 1e8, Group: "amplifier", Decibels: true},
+			{Name: "Ab", Symbol: "A_b", Meaning: "booster DC gain", Unit: "", Default: "1000", Min: 1e-3, Max: 1e8, Group: "amplifier", Decibels: true},
 			{Name: "gbwb", Symbol: "GBW_b", Meaning: "booster gain-bandwidth product, its first pole at this over the booster gain (empty: flat gain)", Unit: "Hz", Default: "200M", Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
 			{Name: "Cx", Symbol: "C_x", Meaning: "capacitance from x to gnd: M1's drain, M2's source, the booster's input (empty: none)", Unit: "F", Default: "20f", Min: 1e-18, Max: 1e-9, Optional: true, Group: "network"},
 			{Name: "RL", Symbol: "R_L", Meaning: "load resistance at the drain to AC ground (empty: none, the port shows the sink alone)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e15, Optional: true, Group: "load"},
@@ -230,7 +230,7 @@ func init() {
 		},
 		Reference: "A1",
 		Ports: []PortDef{
-			{Name: "out", Title: "drain of M2 to ground: the sink's output impedance", A: "out", B: "gnd"},
+			{Name: "out", Title: "drain of M2 to gnd: the sink's output impedance", A: "out", B: "gnd"},
 			{Name: "x", Title: "source of M2, the node the booster holds", A: "x", B: "gnd"},
 		},
 		Frequency: 1e3,

@@ -29,13 +29,13 @@ var capload = &Topology{
 		"(ro + Riso)·CL).",
 	Params: append([]Param{
 		opmRs(""),
-		{Name: "Rf", Symbol: "R_f", Meaning: "feedback resistor (from the pin without Cf, from the load with Cf)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e10, Group: "network"},
-		{Name: "R1", Symbol: "R₁", Meaning: "gain resistor, − input to gnd (empty: follower)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
-		{Name: "Cf", Symbol: "C_f", Meaning: "in-loop feedback capacitor, pin to − input (empty: feedback at the pin through Rf)", Unit: "F", Default: "1n", Min: 1e-15, Max: 1e-2, Optional: true, Group: "network"},
-		{Name: "Riso", Symbol: "R_iso", Meaning: "isolation resistor, pin to load (empty: none)", Unit: "Ω", Default: "50", Min: 1e-3, Max: 1e6, Optional: true, Group: "network"},
+		{Name: "Rf", Meaning: "feedback resistor (from the pin without Cf, from the load with Cf)", Default: "10k", Min: 1e-3, Max: 1e10, Group: "network"},
+		{Name: "R1", Meaning: "gain resistor, − input to gnd (empty: follower)", Default: "10k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
+		{Name: "Cf", Meaning: "in-loop feedback capacitor, pin to − input (empty: feedback at the pin through Rf)", Default: "1n", Min: 1e-15, Max: 1e-2, Optional: true, Group: "network"},
+		{Name: "Riso", Note: ", pin to load (empty: none)", Default: "50", Min: 1e-3, Max: 1e6, Optional: true, Group: "network"},
 	}, append(opmAmpParams("200k", "5M", "30M", "1M", "1G", "50"), []Param{
-		{Name: "RL", Symbol: "R_L", Meaning: "load resistance (empty: none)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
-		{Name: "CL", Symbol: "C_L", Meaning: "load capacitance", Unit: "F", Default: "10n", Min: 1e-15, Max: 1, Group: "load"},
+		{Name: "RL", Note: " (empty: none)", Default: "10k", Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
+		{Name: "CL", Default: "10n", Min: 1e-15, Max: 1, Group: "load"},
 	}...)...),
 	Reference: "U1",
 	Ports: []PortDef{

@@ -120,12 +120,12 @@ func (m cfAmp) line(name, plus, minus, out string) string {
 // defaults (a0, gbw, rid, ro; p2, rcm, cid and ccm default to absent).
 func cfAmpParams(a0, gbw, rid, ro string) []Param {
 	return []Param{
-		{Name: "a0", Symbol: "a₀", Meaning: "open-loop DC gain (as a ratio, or in dB: 100dB)", Unit: "", Default: a0, Min: 1, Max: 1e12, Group: "amplifier", Decibels: true},
-		{Name: "gbw", Symbol: "GBW", Meaning: "gain-bandwidth product (first open-loop pole at GBW/a₀; empty: no pole)", Unit: "Hz", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
-		{Name: "p2", Symbol: "f_p2", Meaning: "second open-loop pole (empty: none)", Unit: "Hz", Default: "", Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
-		{Name: "rid", Symbol: "r_id", Meaning: "differential input resistance (empty: infinite)", Unit: "Ω", Default: rid, Min: 1, Max: 1e15, Optional: true, Group: "amplifier"},
-		{Name: "rcm", Symbol: "r_cm", Meaning: "common-mode input resistance, each input to ground (empty: infinite)", Unit: "Ω", Default: "", Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
-		{Name: "ro", Symbol: "r_o", Meaning: "open-loop output resistance", Unit: "Ω", Default: ro, Min: 0, Max: 1e6, Group: "amplifier"},
+		{Name: "a0", Default: a0, Min: 1, Max: 1e12, Group: "amplifier", Decibels: true},
+		{Name: "gbw", Note: ", first pole at gbw/a₀ (empty: no pole)", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
+		{Name: "p2", Note: " (empty: none)", Default: "", Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
+		{Name: "rid", Note: " (empty: infinite)", Default: rid, Min: 1, Max: 1e15, Optional: true, Group: "amplifier"},
+		{Name: "rcm", Note: " (empty: infinite)", Default: "", Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
+		{Name: "ro", Default: ro, Min: 0, Max: 1e6, Group: "amplifier"},
 		opmCid, opmCcm,
 	}
 }
@@ -133,8 +133,8 @@ func cfAmpParams(a0, gbw, rid, ro string) []Param {
 // cfLoadParams is the load RL ∥ CL (RL required or optional by stage).
 func cfLoadParams(rl string, rlOptional bool, cl string) []Param {
 	return []Param{
-		{Name: "RL", Symbol: "R_L", Meaning: "load resistance", Unit: "Ω", Default: rl, Min: 1e-3, Max: 1e12, Optional: rlOptional, Group: "load"},
-		{Name: "CL", Symbol: "C_L", Meaning: "load capacitance (empty: none)", Unit: "F", Default: cl, Min: 1e-18, Max: 1, Optional: true, Group: "load"},
+		{Name: "RL", Default: rl, Min: 1e-3, Max: 1e12, Optional: rlOptional, Group: "load"},
+		{Name: "CL", Note: " (empty: none)", Default: cl, Min: 1e-18, Max: 1, Optional: true, Group: "load"},
 	}
 }
 
@@ -320,12 +320,12 @@ func diffForms(v Values, f float64) Forms {
 
 func init() {
 	params := []Param{
-		{Name: "R1", Symbol: "R₁", Meaning: "input resistor, V1 to the − input", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "feedback resistor, − input to the output", Unit: "Ω", Default: "100k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R3", Symbol: "R₃", Meaning: "input resistor, V2 to the + input", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R4", Symbol: "R₄", Meaning: "+ input to ground (set e.g. 101k against R2 = 100k for a 1 % mismatch)", Unit: "Ω", Default: "100.5k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "Rs1", Symbol: "R_s1", Meaning: "source resistance of V1 (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
-		{Name: "Rs2", Symbol: "R_s2", Meaning: "source resistance of V2 (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
+		{Name: "R1", Meaning: "input resistor, V1 to the − input", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R2", Meaning: "feedback resistor, − input to the output", Default: "100k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R3", Meaning: "input resistor, V2 to the + input", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R4", Meaning: "+ input to gnd (set e.g. 101k against R2 = 100k for a 1 % mismatch)", Default: "100.5k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "Rs1", Note: " (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
+		{Name: "Rs2", Note: " (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("200k", "1M", "2M", "50")...)
 	params = append(params, cfLoadParams("10k", false, "100p")...)

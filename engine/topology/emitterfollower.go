@@ -196,7 +196,7 @@ func init() {
 			"termination sits at the end of a cable of about 100 pF: enter it as CL to see the output's inductance ring with it.",
 		Params: []Param{
 			{Name: "IC", Symbol: "I_C", Meaning: "collector bias current", Unit: "A", Default: "2m", Min: 1e-9, Max: 10, Group: "amplifier"},
-			{Name: "beta", Symbol: "β_0", Meaning: "low-frequency small-signal current gain", Unit: "", Default: "120", Min: 1, Max: 1e5, Group: "amplifier"},
+			{Name: "beta", Note: " at low frequency, β₀", Default: "120", Min: 1, Max: 1e5, Group: "amplifier"},
 			{Name: "fT", Symbol: "f_T", Meaning: "transition frequency (Cπ = gm/(2π·fT) − Cμ)", Unit: "Hz", Default: "300M", Min: 1e3, Max: 1e12, Group: "amplifier"},
 			{Name: "Cmu", Symbol: "C_μ", Meaning: "base-collector capacitance (empty: none)", Unit: "F", Default: "1p", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
 			{Name: "rb", Symbol: "r_b", Meaning: "base spreading resistance (empty: none)", Unit: "Ω", Default: "80", Min: 1e-3, Max: 1e6, Optional: true, Group: "amplifier"},
@@ -208,7 +208,7 @@ func init() {
 		},
 		Reference: "Q1",
 		Ports: []PortDef{
-			{Name: "out", Title: "emitter to ground: the follower's output, load included", A: "e", B: "gnd"},
+			{Name: "out", Title: "emitter to gnd: the follower's output, load included", A: "e", B: "gnd"},
 			{Name: "in", Title: "input, as Vin sees it (Rs included)", A: "in", B: "gnd"},
 		},
 		Gain:      &GainDef{Source: "Vin", Output: "e", Unit: "V/V", Title: "voltage gain Vin → emitter"},

@@ -20,7 +20,7 @@ var follower = &Topology{
 		"rcm = 1 GΩ, ro = 50 Ω.",
 	Params: append([]Param{
 		opmRs("10k"),
-		{Name: "Riso", Symbol: "R_iso", Meaning: "isolation resistor, output pin to load (empty: none)", Unit: "Ω", Default: "47", Min: 1e-3, Max: 1e7, Optional: true, Group: "network"},
+		{Name: "Riso", Note: ", output pin to load (empty: none)", Default: "47", Min: 1e-3, Max: 1e7, Optional: true, Group: "network"},
 	}, append(opmAmpParams("150k", "3M", "20M", "1M", "1G", "50"), opmLoad("10k", "1n")...)...),
 	Reference: "U1",
 	Ports: []PortDef{

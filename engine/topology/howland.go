@@ -84,7 +84,7 @@ func howCircuit(v Values) string {
 	b.WriteString("# positive-feedback side: R1 from the source, R2 from the output\n")
 	fmt.Fprintf(&b, "resistor R1 %s p %s\n", a, value.Exact(v["R1"]))
 	fmt.Fprintf(&b, "resistor R2 p vo %s\n", value.Exact(v["R2"]))
-	b.WriteString("# negative-feedback side: R3 to ground, R4 from the output\n")
+	b.WriteString("# negative-feedback side: R3 to gnd, R4 from the output\n")
 	fmt.Fprintf(&b, "resistor R3 n gnd %s\n", value.Exact(v["R3"]))
 	fmt.Fprintf(&b, "resistor R4 n vo %s\n", value.Exact(v["R4"]))
 	b.WriteString("# op amp: + at p, − at n\n")
@@ -156,11 +156,11 @@ func howForms(v Values, f float64) Forms {
 
 func init() {
 	params := []Param{
-		{Name: "R1", Symbol: "R₁", Meaning: "source resistor, Vin to P (sets I = Vin/R1)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "positive-feedback resistor, P to the op-amp output", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R3", Symbol: "R₃", Meaning: "− input to ground", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R4", Symbol: "R₄", Meaning: "negative-feedback resistor, − input to the output (R4/R3 = (R2/R1)(1 − ε))", Unit: "Ω", Default: "9.99k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "Rs", Symbol: "R_s", Meaning: "source resistance, in series with R1 (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
+		{Name: "R1", Meaning: "source resistor, Vin to P (sets I = Vin/R1)", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R2", Meaning: "positive-feedback resistor, P to the op-amp output", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R3", Meaning: "− input to gnd", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R4", Meaning: "negative-feedback resistor, − input to the output (R4/R3 = (R2/R1)(1 − ε))", Default: "9.99k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "Rs", Note: ", in series with R1 (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("100k", "1M", "", "50")...)
 	params = append(params, cfLoadParams("1k", true, "")...)
@@ -178,7 +178,7 @@ func init() {
 		Params:    params,
 		Reference: "U1",
 		Ports: []PortDef{
-			{Name: "out", Title: "load node P to ground (the load sees the rest; RL ∥ CL included when given)", A: "p", B: "gnd"},
+			{Name: "out", Title: "load node P to gnd (the load sees the rest; RL ∥ CL included when given)", A: "p", B: "gnd"},
 			{Name: "in", Title: "input, as the source sees it (through Rs and R1)", A: "in", B: "gnd"},
 		},
 		Gain:      &GainDef{Source: "Vin", Output: "p", Unit: "V/V", Title: "load voltage per volt of Vin (load current per volt in the extras)"},

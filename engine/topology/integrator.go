@@ -125,10 +125,10 @@ func intForms(v Values, f float64) Forms {
 
 func init() {
 	params := []Param{
-		{Name: "R1", Symbol: "R₁", Meaning: "input resistor", Unit: "Ω", Default: "100k", Min: 1e-3, Max: 1e10, Group: "network"},
-		{Name: "C1", Symbol: "C₁", Meaning: "integrating (feedback) capacitor", Unit: "F", Default: "10n", Min: 1e-18, Max: 1, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "damping resistor across C1 (empty: none — a pure integrator)", Unit: "Ω", Default: "10M", Min: 1e-3, Max: 1e13, Optional: true, Group: "network"},
-		{Name: "Rs", Symbol: "R_s", Meaning: "source resistance (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
+		{Name: "R1", Meaning: "input resistor", Default: "100k", Min: 1e-3, Max: 1e10, Group: "network"},
+		{Name: "C1", Meaning: "integrating (feedback) capacitor", Default: "10n", Min: 1e-18, Max: 1, Group: "network"},
+		{Name: "R2", Meaning: "damping resistor across C1 (empty: none — a pure integrator)", Default: "10M", Min: 1e-3, Max: 1e13, Optional: true, Group: "network"},
+		{Name: "Rs", Note: " (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("100k", "1M", "1T", "100")...)
 	params = append(params, cfLoadParams("10k", false, "")...)

@@ -46,9 +46,9 @@ var inverting = &Topology{
 		"with a0 = 200 000, gbw = 1 MHz, a second pole at 8 MHz, rid = 2 MΩ, rcm = 1 GΩ, ro = 75 Ω.",
 	Params: append([]Param{
 		opmRs("1k"),
-		{Name: "R1", Symbol: "R₁", Meaning: "input resistor, source to summing node", Unit: "Ω", Default: "10k", Min: 1, Max: 1e9, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "feedback resistor, output to summing node", Unit: "Ω", Default: "47k", Min: 1, Max: 1e10, Group: "network"},
-		{Name: "Rp", Symbol: "R_p", Meaning: "bias-compensation resistor, + input to gnd (empty: + input grounded)", Unit: "Ω", Default: "8.87k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
+		{Name: "R1", Meaning: "input resistor, source to summing node", Default: "10k", Min: 1, Max: 1e9, Group: "network"},
+		{Name: "R2", Meaning: "feedback resistor, output to summing node", Default: "47k", Min: 1, Max: 1e10, Group: "network"},
+		{Name: "Rp", Note: ", + input to gnd (empty: + input grounded)", Default: "8.87k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
 	}, append(opmAmpParams("200k", "1M", "8M", "2M", "1G", "75"), opmLoad("10k", "100p")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
@@ -277,30 +277,30 @@ func opmGain(gInf, g0, T complex128, infText, zeroText string) *Formula {
 // an optional parameter absent by default).
 func opmAmpParams(a0, gbw, p2, rid, rcm, ro string) []Param {
 	return []Param{
-		{Name: "a0", Symbol: "a₀", Meaning: "op-amp DC open-loop gain (as a ratio, or in dB: 100dB)", Unit: "", Default: a0, Min: 10, Max: 1e10, Group: "amplifier", Decibels: true},
-		{Name: "gbw", Symbol: "GBW", Meaning: "gain-bandwidth product, first pole at gbw/a0 (empty: no pole)", Unit: "Hz", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
-		{Name: "p2", Symbol: "p₂", Meaning: "second open-loop pole (empty: none)", Unit: "Hz", Default: p2, Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
-		{Name: "rid", Symbol: "r_id", Meaning: "differential input resistance (empty: infinite)", Unit: "Ω", Default: rid, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
-		{Name: "rcm", Symbol: "r_cm", Meaning: "common-mode input resistance, each input to gnd (empty: infinite)", Unit: "Ω", Default: rcm, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
-		{Name: "ro", Symbol: "r_o", Meaning: "open-loop output resistance", Unit: "Ω", Default: ro, Min: 1e-3, Max: 1e6, Group: "amplifier"},
+		{Name: "a0", Default: a0, Min: 10, Max: 1e10, Group: "amplifier", Decibels: true},
+		{Name: "gbw", Note: ", first pole at gbw/a₀ (empty: no pole)", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
+		{Name: "p2", Note: " (empty: none)", Default: p2, Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
+		{Name: "rid", Note: " (empty: infinite)", Default: rid, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
+		{Name: "rcm", Note: " (empty: infinite)", Default: rcm, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
+		{Name: "ro", Default: ro, Min: 1e-3, Max: 1e6, Group: "amplifier"},
 		opmCid, opmCcm,
 	}
 }
 
 // The op amp's input capacitances, absent by default in every stage.
 var (
-	opmCid = Param{Name: "cid", Symbol: "c_id", Meaning: "differential input capacitance, between the inputs (empty: none)", Unit: "F", Default: "", Min: 1e-16, Max: 1e-6, Optional: true, Group: "amplifier"}
-	opmCcm = Param{Name: "ccm", Symbol: "c_cm", Meaning: "common-mode input capacitance, each input to gnd (empty: none)", Unit: "F", Default: "", Min: 1e-16, Max: 1e-6, Optional: true, Group: "amplifier"}
+	opmCid = Param{Name: "cid", Note: " (empty: none)", Default: "", Min: 1e-16, Max: 1e-6, Optional: true, Group: "amplifier"}
+	opmCcm = Param{Name: "ccm", Note: " (empty: none)", Default: "", Min: 1e-16, Max: 1e-6, Optional: true, Group: "amplifier"}
 )
 
 func opmRs(def string) Param {
-	return Param{Name: "Rs", Symbol: "R_s", Meaning: "source resistance (empty: ideal source)", Unit: "Ω", Default: def, Min: 1e-3, Max: 1e10, Optional: true, Group: "source"}
+	return Param{Name: "Rs", Note: " (empty: ideal source)", Default: def, Min: 1e-3, Max: 1e10, Optional: true, Group: "source"}
 }
 
 func opmLoad(rl, cl string) []Param {
 	return []Param{
-		{Name: "RL", Symbol: "R_L", Meaning: "load resistance (empty: none)", Unit: "Ω", Default: rl, Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
-		{Name: "CL", Symbol: "C_L", Meaning: "load capacitance (empty: none)", Unit: "F", Default: cl, Min: 1e-15, Max: 1, Optional: true, Group: "load"},
+		{Name: "RL", Note: " (empty: none)", Default: rl, Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
+		{Name: "CL", Note: " (empty: none)", Default: cl, Min: 1e-15, Max: 1, Optional: true, Group: "load"},
 	}
 }
 

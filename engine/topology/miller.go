@@ -218,7 +218,7 @@ func mlExtras(v Values) []Extra {
 	cc, c1, cl := v["Cc"], v.Or("Cgs6", 0), v["CL"]
 	hz := func(w float64) float64 { return w / (2 * math.Pi) }
 	x := []Extra{
-		{Name: "open-loop DC gain A0", Value: a0, Unit: "V/V", Note: fmt.Sprintf("%.4g dB", 20*math.Log10(math.Abs(a0))), Source: cfSrcDerived},
+		{Name: "amplifier DC open-loop gain A₀", Value: a0, Unit: "V/V", Note: fmt.Sprintf("%.4g dB", 20*math.Log10(math.Abs(a0))), Source: cfSrcDerived},
 		{Name: "first stage's output resistance R1 = 1/Ys(0)", Value: r1, Unit: "Ω",
 			Note: "≈ ro2 ∥ ro4; its transconductance Gs(0) = " + cfShow(real(gs0), "S") + " ≈ gm1", Source: cfSrcDerived},
 	}
@@ -339,8 +339,8 @@ func init() {
 		},
 		Reference: "M6",
 		Ports: []PortDef{
-			{Name: "out", Title: "output to ground, open loop", A: "out", B: "gnd"},
-			{Name: "n1", Title: "first stage's output (M6's gate) to ground", A: "n1", B: "gnd"},
+			{Name: "out", Title: "output to gnd, open loop", A: "out", B: "gnd"},
+			{Name: "n1", Title: "first stage's output (M6's gate) to gnd", A: "n1", B: "gnd"},
 		},
 		Gain:      &GainDef{Source: "Vin", Output: "out", Unit: "V/V", Title: "open-loop gain from the non-inverting input"},
 		Frequency: 1e6,

@@ -19,8 +19,8 @@ var noninverting = &Topology{
 		"rid = 1 MΩ, rcm = 500 MΩ, ro = 100 Ω.",
 	Params: append([]Param{
 		opmRs("10k"),
-		{Name: "R1", Symbol: "R₁", Meaning: "gain resistor, − input to gnd", Unit: "Ω", Default: "2k", Min: 1e-3, Max: 1e10, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "feedback resistor, output to − input", Unit: "Ω", Default: "18k", Min: 1e-3, Max: 1e10, Group: "network"},
+		{Name: "R1", Meaning: "gain resistor, − input to gnd", Default: "2k", Min: 1e-3, Max: 1e10, Group: "network"},
+		{Name: "R2", Meaning: "feedback resistor, output to − input", Default: "18k", Min: 1e-3, Max: 1e10, Group: "network"},
 	}, append(opmAmpParams("100k", "1M", "10M", "1M", "500M", "100"), opmLoad("2k", "470p")...)...),
 	Reference: "U1",
 	Ports: []PortDef{

@@ -11,12 +11,22 @@ import (
 	"zport/engine/value"
 )
 
-// Param describes one parameter of a stage.
+// Param describes one parameter of a stage. Its symbol, unit and label
+// come from the glossary (see Term), filled in when the stage registers:
+// a stage writes only what is its own — the role of a part whose role
+// differs between stages (Meaning), or what it adds to the glossary's
+// label (Note).
 type Param struct {
-	Name    string  // key, e.g. "R1", "a0"
-	Symbol  string  // display symbol, e.g. "R₁", "a₀"
-	Meaning string  // e.g. "input resistor"
-	Unit    string  // "Ω", "F", "Hz", "S", "A", "" …
+	Name    string // key, e.g. "R1", "a0"
+	Symbol  string // display symbol, e.g. "R₁", "a₀" (from the glossary)
+	Meaning string // e.g. "input resistor, source to summing node"
+	Unit    string // "Ω", "F", "Hz", "S", "A", "" … (from the glossary)
+	// Term names the parameter's glossary entry when it is not Name.
+	Term string
+	// Note follows the glossary's label in Meaning: where the part sits,
+	// what leaving it empty means (", source to summing node",
+	// " (empty: none)").
+	Note    string
 	Default string  // in value syntax, e.g. "10k"; "" for an absent optional
 	Min     float64 // allowed range, inclusive
 	Max     float64
@@ -151,7 +161,12 @@ func (e *ParamError) Error() string { return e.Param + ": " + e.Msg }
 
 var catalog []*Topology
 
-func register(t *Topology) { catalog = append(catalog, t) }
+func register(t *Topology) {
+	for i := range t.Params {
+		t.Params[i] = glossed(t.Params[i])
+	}
+	catalog = append(catalog, t)
+}
 
 // order fixes the catalog's order on every page.
 var order = []string{"inverting", "noninverting", "follower", "transimpedance", "difference", "howland", "integrator", "capload", "degenerated", "shuntfeedback", "boostedcascode", "emitterfollower", "miller"}

@@ -1,16 +1,20 @@
 package topology
 
 import (
-	"zport/engine/value"
-
+	"fmt"
 	"math"
 	"math/cmplx"
+
+	"zport/engine/value"
 
 	"zport/engine/circuit"
 	"zport/engine/feedback"
 )
 
-func init() { register(transimpedance) }
+func init() {
+	transimpedance.Cautions[1] = tiaCfCaution(transimpedance)
+	register(transimpedance)
+}
 
 var transimpedance = &Topology{
 	ID:    "transimpedance",
@@ -28,11 +32,11 @@ var transimpedance = &Topology{
 		"a0 = 1 000 000, gbw = 10 MHz, a second pole at 60 MHz, 4 pF input capacitance, rid = rcm = 1 TΩ, " +
 		"ro = 50 Ω, into 10 kΩ ∥ 50 pF.",
 	Params: append([]Param{
-		{Name: "Rsh", Symbol: "R_sh", Meaning: "sensor shunt resistance (empty: none)", Unit: "Ω", Default: "500M", Min: 1, Max: 1e15, Optional: true, Group: "source"},
-		{Name: "Cd", Symbol: "C_d", Meaning: "sensor capacitance (empty: none)", Unit: "F", Default: "20p", Min: 1e-15, Max: 1e-6, Optional: true, Group: "source"},
-		{Name: "Cin", Symbol: "C_in", Meaning: "input capacitance at the − input to gnd, besides the model's ccm and cid: the op amp's, or board and wiring (empty: none)", Unit: "F", Default: "4p", Min: 1e-15, Max: 1e-6, Optional: true, Group: "amplifier"},
-		{Name: "Rf", Symbol: "R_f", Meaning: "feedback (transimpedance) resistor", Unit: "Ω", Default: "1M", Min: 1, Max: 1e12, Group: "network"},
-		{Name: "Cf", Symbol: "C_f", Meaning: "feedback capacitor across Rf (empty: none)", Unit: "F", Default: "1p", Min: 1e-16, Max: 1e-3, Optional: true, Group: "network"},
+		{Name: "Rsh", Note: " (empty: none)", Default: "500M", Min: 1, Max: 1e15, Optional: true, Group: "source"},
+		{Name: "Cd", Note: " (empty: none)", Default: "20p", Min: 1e-15, Max: 1e-6, Optional: true, Group: "source"},
+		{Name: "Cin", Note: ", − input to gnd, besides the model's ccm and cid: the op amp's, or board and wiring (empty: none)", Default: "4p", Min: 1e-15, Max: 1e-6, Optional: true, Group: "amplifier"},
+		{Name: "Rf", Meaning: "feedback (transimpedance) resistor", Default: "1M", Min: 1, Max: 1e12, Group: "network"},
+		{Name: "Cf", Meaning: "feedback capacitor across Rf (empty: none)", Default: "1p", Min: 1e-16, Max: 1e-3, Optional: true, Group: "network"},
 	}, append(opmAmpParams("1M", "10M", "60M", "1T", "1T", "50"), opmLoad("10k", "50p")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
@@ -44,7 +48,7 @@ var transimpedance = &Topology{
 	Sweep:     Sweep{From: 10, To: 100e6, Points: 400},
 	Cautions: []string{
 		"Without Cf the summing-node capacitance and Rf make a second loop pole: the stage rings or oscillates.",
-		"The \"45°\" rule for Cf lands near 52° on the ideal model; the Butterworth value gives about 66°. Both assume a single-pole op amp: a second pole or load capacitance lowers the margin, shown here from the full model.",
+		"", // tiaCfCaution: the margins the two Cf rules give, computed
 		"A photodiode biased in photoconductive mode may carry tens of volts; keep the bias supply current-limited and follow the sensor maker's and local safety practice.",
 	},
 	Circuit: transimpedanceCircuit,
@@ -225,4 +229,45 @@ func tiaBandwidth(text string) float64 {
 		prev = f
 	}
 	return math.NaN()
+}
+
+// tiaCfCaution says which phase margin the two Cf rules give on the ideal
+// model at the stage's defaults — computed, so that the page and the
+// design values never disagree about it.
+func tiaCfCaution(t *Topology) string {
+	def := map[string]float64{}
+	for _, p := range t.Params {
+		if x, err := value.Parse(p.Default, ""); err == nil {
+			def[p.Name] = x
+		}
+	}
+	rf, ci, gbw := def["Rf"], def["Cd"]+def["Cin"], def["gbw"]
+	wt := 2 * math.Pi * gbw
+	c45 := math.Sqrt(ci / (wt * rf))
+	cbw := math.Sqrt(2*rf*ci*wt-1) / (rf * wt)
+	return fmt.Sprintf("The \"45°\" rule for Cf gives about %.0f° of phase margin on the ideal model (a single-pole op amp, no output resistance, no load) with this page's default sensor, the Butterworth value about %.0f°. "+
+		"A second pole or load capacitance lowers the margin: the design values show what each gives on the full model.",
+		tiaIdealMargin(rf, ci, c45, gbw), tiaIdealMargin(rf, ci, cbw, gbw))
+}
+
+// tiaIdealMargin is the phase margin of the ideal model with feedback
+// capacitor cf: T(s) = (ωt/s)·(1 + s·Rf·Cf)/(1 + s·Rf·(Ci + Cf)), whose
+// magnitude falls monotonically, so its one unity crossing is found by
+// bisection on log ω.
+func tiaIdealMargin(rf, ci, cf, gbw float64) float64 {
+	wt := 2 * math.Pi * gbw
+	T := func(w float64) complex128 {
+		s := complex(0, w)
+		return complex(wt, 0) / s * (1 + s*complex(rf*cf, 0)) / (1 + s*complex(rf*(ci+cf), 0))
+	}
+	lo, hi := math.Log(1e-3), math.Log(1e15)
+	for range 200 {
+		mid := (lo + hi) / 2
+		if cmplx.Abs(T(math.Exp(mid))) > 1 {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return 180 + cmplx.Phase(T(math.Exp(lo)))*180/math.Pi
 }

@@ -117,6 +117,9 @@
     f.settings[KEY] = this.current();
     f.fragment = undefined;
     f.csv = undefined;
+    f.pins = undefined; // the studies are of the current design
+    // On a phone, this section's charts are drawn for its own column.
+    f.chartWidth = site.chartWidth(this.details.querySelector('[data-role="aids-content"]')) || undefined;
     return Object.assign({ form: f }, extra);
   };
 

@@ -8,7 +8,9 @@
 // (inputs with data-analysis and data-setting, and those that aids.js
 // reports); the answer's panel replaces the results, or its error is
 // shown beside the field it names while the last good panel stays, marked
-// stale. A newer edit supersedes an answer still on its way.
+// stale. A newer edit supersedes an answer still on its way. The form
+// also carries the pinned designs (zportSite.PinBar: "Pin this design"
+// keeps the parameters as typed) and, on a phone, the charts' width.
 //
 // The design aids (aids.js) follow each calculator through events on its
 // element: zport:computed (detail: the panel output) after every result,
@@ -35,7 +37,10 @@
     this.scheduled = false;
     this.seq = 0; // the latest request; an older answer is dropped
     this.outside = {}; // analyses' settings kept outside the form, by key
+    this.answered = 0; // the latest request answered (zportSite.settle)
     var self = this;
+    this.pins = new site.PinBar(this);
+    site.onNarrow(function () { self.schedule(); });
     this.form.addEventListener('submit', function (e) {
       e.preventDefault();
       self.schedule();
@@ -73,7 +78,19 @@
       else f.params[n] = v;
     }
     f.settings = Object.assign(site.settings(this.form), this.outside);
+    f.pins = this.pins.value();
+    f.chartWidth = site.chartWidth(this.results);
     return f;
+  };
+
+  // design is what "Pin this design" keeps: the parameters as typed, or
+  // nothing while a value is marked wrong.
+  Calculator.prototype.design = function () {
+    if (this.results.classList.contains('is-stale')) {
+      this.say('Correct the marked value first: a pin keeps a design that can be analyzed.');
+      return null;
+    }
+    return { params: this.values().params };
   };
 
   Calculator.prototype.fill = function (form) {
@@ -86,6 +103,7 @@
       if (typeof v === 'string') inputs[i].value = v;
     }
     site.fillSettings(this.form, form.settings);
+    this.pins.set(form.pins);
     this.outside = {};
     var s = form.settings || {};
     for (var k in s) {
@@ -122,6 +140,7 @@
       return { out: out, linked: !!frag };
     }).then(function (r) {
       if (!r || seq !== self.seq) return;
+      self.answered = seq;
       if (r.linked && r.out.form) self.fill(r.out.form);
       // The address changes only when it held settings (at once: a
       // refused link must not stay there), or once the user edits: an
@@ -132,6 +151,8 @@
       }
       var buttons = self.el.querySelectorAll('button[data-action]');
       for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
+      self.pins.refresh();
+      site.settled(self);
     });
   };
 
@@ -144,7 +165,10 @@
       var t0 = performance.now();
       var seq = ++self.seq;
       self.call({}).then(function (out) {
-        if (seq === self.seq) self.apply(out, t0, true);
+        if (seq !== self.seq) return;
+        self.answered = seq;
+        self.apply(out, t0, true);
+        site.settled(self);
       });
     });
   };
@@ -160,6 +184,7 @@
     }
     site.insert(this.results, out.html); // rendered and escaped by the engine (Go)
     this.last = out;
+    this.pins.refresh();
     this.setStale(false);
     site.hover(this.results);
     this.updateCircuitLink();
@@ -213,19 +238,23 @@
   };
 
   Calculator.prototype.copy = function () {
-    if (this.last) site.copyText(this, this.last.markdown, 'Results copied as a Markdown table.');
+    if (this.last) site.copyResults(this, this.last.markdown, this.link());
+  };
+
+  // link is the share link of the settings shown.
+  Calculator.prototype.link = function () {
+    return location.href.split('#')[0] + (this.share.getAttribute('href') || '');
   };
 
   Calculator.prototype.copyLink = function () {
-    var url = location.href.split('#')[0] + (this.share.getAttribute('href') || '');
-    site.copyText(this, url, 'Link to these settings copied.');
+    site.copyText(this, this.link(), 'Link to these settings copied.');
   };
 
   Calculator.prototype.download = function () {
     if (!this.last || !site.ready()) return;
     var self = this;
     // The CSV of the last good result, computed now rather than on every edit.
-    this.call({ csv: true }, this.last.form).then(function (out) {
+    this.call({ csv: true, link: this.link(), pins: [] }, this.last.form).then(function (out) {
       if (out.error || !out.csv) {
         self.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));
         return;

@@ -28,6 +28,11 @@
 //   #c=…&ref=U1&port=out&src=Vin&out=out&f=100k&from=10&to=100M&points=400
 // The same encoding is used by the stage pages' "open as circuit" links.
 //
+// Pins (zportSite.PinBar) keep the text and choices as they are; a pin
+// whose text differs from the current one adds pinN.c=<its text, encoded
+// as c is> to the link. A paste over the whole text is a new circuit: the
+// example's description goes and every choice is made afresh.
+//
 // The design aids (aids.js) follow the editor through the same events as
 // a stage calculator's: zport:computed, zport:link and zport:settings.
 (function () {
@@ -88,6 +93,7 @@
     this.share = el.querySelector('[data-action="share"]');
     this.fileInput = role('file');
     this.examples = readExamples();
+    this.described = this.exampleSel.value; // the example whose description shows
     this.last = null; // the last good Output
     this.scheduled = false;
     this.lastCost = 0;
@@ -98,9 +104,13 @@
     this.saved = null; // the user's own text, kept when an example replaced it
     this.linkSeq = 0;
     this.seq = 0; // the latest recompute; an older answer is dropped
+    this.answered = 0; // the latest recompute answered (zportSite.settle)
     this.outside = {}; // analyses' settings kept outside the form (aids.js)
     this.bootSeq = 0;
     this.metrics = null;
+    this.pasted = false; // the last input was a paste over the whole text
+    this.pinTexts = null; // a link's pins' texts by slot, for its first recompute
+    this.pins = new site.PinBar(this);
     this.wire();
     this.updateGutter();
   }
@@ -137,7 +147,15 @@
     this.ta.addEventListener('input', function () {
       self.updateGutter();
       self.syncScroll();
-      self.markExample();
+      if (self.pasted) {
+        // A whole new text: what the pickers showed no longer applies, and
+        // nor does the example's description.
+        self.pasted = false;
+        self.fresh = true;
+        self.markExample(true);
+      } else {
+        self.markExample();
+      }
       self.schedule();
     });
     this.ta.addEventListener('scroll', function () { self.syncScroll(); });
@@ -150,7 +168,9 @@
         e.preventDefault();
         self.fileMsg.textContent = 'Not pasted: the text would be ' + Math.round((add.length + keep) / 1024) +
           ' KB, and circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
+        return;
       }
+      self.pasted = keep === 0 && add.trim() !== '';
     });
     el.querySelector('[data-action="full-sweep"]').addEventListener('click', function () {
       self.full = true;
@@ -190,6 +210,7 @@
       self.outside[e.detail.key] = e.detail.values || {};
       self.schedule();
     });
+    site.onNarrow(function () { self.schedule(); });
     hashWatch(this);
   };
 
@@ -429,11 +450,12 @@
   // offered is what the pickers show, for the engine to tell what an edit
   // added (calc.Offered).
   Editor.prototype.offered = function () {
-    var refs = [], ports = [];
+    var refs = [], ports = [], sources = [];
     for (var i = 0; i < this.refSel.options.length; i++) if (this.refSel.options[i].value) refs.push(this.refSel.options[i].value);
     var boxes = this.portBoxes();
     for (var j = 0; j < boxes.length; j++) ports.push(boxes[j].value);
-    return { references: refs, ports: ports };
+    for (var k = 0; k < this.srcSel.options.length; k++) if (this.srcSel.options[k].value) sources.push(this.srcSel.options[k].value);
+    return { references: refs, ports: ports, sources: sources };
   };
 
   // updatePickers fills the pickers from the engine's inspection of the
@@ -515,6 +537,8 @@
       frequency: this.field('frequency'),
       sweep: { from: this.field('sweep.from'), to: this.field('sweep.to'), points: this.field('sweep.points') },
       settings: Object.assign(site.settings(this.form), this.outside),
+      pins: this.pins.value(),
+      chartWidth: site.chartWidth(this.results),
       id: this.id
     };
     if (this.srcSel.value) {
@@ -577,20 +601,27 @@
       req.sweep = p.sweep;
       req.offered = null;
     } else if (this.fresh) {
-      // A text from a link or a file: everything in it is new.
+      // A text from a link, a file or a paste: everything in it is new.
       req.ports = [];
-      req.offered = { references: [], ports: [] };
+      req.gain = undefined;
+      req.offered = { references: [], ports: [], sources: [] };
     }
     this.preset = null;
     this.fresh = false;
     req.budget = this.full ? 0 : BUDGET_MS;
     this.full = false;
-    if (typeof fragment === 'string') req.fragment = fragment;
+    if (typeof fragment === 'string') {
+      req.fragment = fragment;
+      if (this.pinTexts) req.pinCircuits = this.pinTexts;
+    }
     var seq = ++this.seq;
     var self = this;
     return this.analyze(req).then(function (res) {
       if (seq !== self.seq) return null;
-      return self.show(res, req, t0, address, fragment);
+      self.answered = seq;
+      var out = self.show(res, req, t0, address, fragment);
+      site.settled(self);
+      return out;
     });
   };
 
@@ -619,6 +650,12 @@
     site.insert(this.results, out.html); // rendered and escaped by the engine (Go)
     this.last = out;
     this.lastText = req.circuit; // the engine does not echo the text back
+    if (typeof fragment === 'string' && out.form) {
+      // A link's pins: their texts are the link's (pinN.c) or the main one.
+      var texts = req.pinCircuits || {};
+      this.pins.set(out.form.pins, function (slot) { return texts[slot] !== undefined ? texts[slot] : req.circuit; });
+    }
+    this.pins.refresh();
     this.setStale(false);
     this.showCut(out.sweepCut, out.form);
     site.hover(this.results);
@@ -694,9 +731,13 @@
     var self = this;
     var seq = ++this.linkSeq;
     var text = this.ta.value;
-    site.compress(text).then(function (c) {
+    // Each pin whose text is not the current one carries it as pinN.c.
+    var own = this.pins.value().filter(function (p) { return p.circuit !== text; });
+    Promise.all([site.compress(text)].concat(own.map(function (p) { return site.compress(p.circuit); }))).then(function (cs) {
       if (seq !== self.linkSeq) return;
-      var h = '#' + (site.single ? 'p=custom&' : '') + 'c=' + c + (state ? '&' + state : '');
+      var c = cs[0];
+      var pinsC = own.map(function (p, i) { return '&pin' + p.slot + '.c=' + cs[i + 1]; }).join('');
+      var h = '#' + (site.single ? 'p=custom&' : '') + 'c=' + c + (state ? '&' + state : '') + pinsC;
       self.share.setAttribute('href', h);
       var url = location.href.split('#')[0] + h;
       if (url.length > MAX_URL) {
@@ -720,15 +761,18 @@
     });
   }
 
-  // splitFragment separates the c= value from the other settings.
+  // splitFragment separates the c= value and the pins' pinN.c= values
+  // (by slot) from the other settings.
   function splitFragment(frag) {
-    var c = null, rest = [];
+    var c = null, rest = [], pins = {};
     var parts = frag.split('&');
     for (var i = 0; i < parts.length; i++) {
-      if (parts[i].indexOf('c=') === 0 && c === null) c = parts[i].slice(2);
+      var m = /^pin([1-4])\.c=(.*)$/.exec(parts[i]);
+      if (m) pins[m[1]] = m[2];
+      else if (parts[i].indexOf('c=') === 0 && c === null) c = parts[i].slice(2);
       else if (parts[i]) rest.push(parts[i]);
     }
-    return { c: c, rest: rest.join('&') };
+    return { c: c, rest: rest.join('&'), pins: pins };
   }
 
   // boot reads the address: a circuit link fills the editor and its
@@ -739,11 +783,17 @@
     var frag = shown() ? site.fragment() : '';
     var parts = splitFragment(frag);
     var ready;
+    this.pinTexts = null;
     if (parts.c !== null) {
-      ready = site.decompress(parts.c, MAX_TEXT).then(function (text) {
-        self.setText(text);
+      var slots = Object.keys(parts.pins);
+      ready = Promise.all([site.decompress(parts.c, MAX_TEXT)].concat(slots.map(function (k) { return site.decompress(parts.pins[k], MAX_TEXT); }))).then(function (texts) {
+        self.setText(texts[0]);
         self.fresh = true;
         self.markExample(true);
+        if (slots.length) {
+          self.pinTexts = {};
+          slots.forEach(function (k, i) { self.pinTexts[k] = texts[i + 1]; });
+        }
         return parts.rest;
       }, function (err) {
         self.pendingNotice = 'The circuit in this link was not used (' + err.message + '). Showing the example instead.';
@@ -806,15 +856,37 @@
   // markExample selects the example the text is, or "Your own circuit";
   // fresh says the text came from a link or a file, when an example's
   // description no longer applies to it.
+  //
+  // The description also goes once most of the described example's lines
+  // are gone from the text: it would describe another circuit.
   Editor.prototype.markExample = function (fresh) {
     var t = this.ta.value, id = '';
     for (var k in this.examples) if (this.examples[k].text === t) id = k;
     if (this.exampleSel.value !== id) this.exampleSel.value = id;
     if (id) this.describe(this.examples[id]);
-    else if (fresh) role('example-about').hidden = true;
+    else if (fresh || this.strayed(t)) role('example-about').hidden = true;
+  };
+
+  // partLines are the lines of circuit text that hold a part, without
+  // comments and spacing.
+  function partLines(text) {
+    return text.split('\n').map(function (l) { return l.replace(/#.*/, '').trim().split(/\s+/).join(' '); }).filter(Boolean);
+  }
+
+  // strayed reports whether text keeps fewer than half the part lines of
+  // the example described.
+  Editor.prototype.strayed = function (text) {
+    var ex = this.examples[this.described];
+    if (!ex) return true;
+    var have = {};
+    partLines(text).forEach(function (l) { have[l] = true; });
+    var lines = partLines(ex.text);
+    var kept = lines.filter(function (l) { return have[l]; }).length;
+    return 2 * kept < lines.length;
   };
 
   Editor.prototype.describe = function (ex) {
+    this.described = ex.id;
     role('example-title').textContent = ex.title;
     role('scenario').textContent = ex.scenario;
     role('look').textContent = ex.look;
@@ -884,18 +956,34 @@
   };
 
   Editor.prototype.copy = function () {
-    if (this.last) site.copyText(this, this.last.markdown, 'Results copied as a Markdown table.');
+    if (this.last) site.copyResults(this, this.last.markdown, this.link());
+  };
+
+  // link is the share link of the circuit shown.
+  Editor.prototype.link = function () {
+    return location.href.split('#')[0] + (this.share.getAttribute('href') || '');
+  };
+
+  // design is what "Pin this design" keeps: the text and the pickers'
+  // choices as they are, or nothing while the text has problems.
+  Editor.prototype.design = function () {
+    if (this.results.classList.contains('is-stale')) {
+      this.say('Correct the marked problems first: a pin keeps a circuit that can be analyzed.');
+      return null;
+    }
+    var f = this.values();
+    return { circuit: f.circuit, reference: f.reference, ports: f.ports, gain: f.gain };
   };
 
   Editor.prototype.copyLink = function () {
-    var url = location.href.split('#')[0] + (this.share.getAttribute('href') || '');
+    var url = this.link();
     site.copyText(this, url, 'Link to this circuit copied' + (url.length > MAX_URL ? ' (it is long: see the note below).' : '.'));
   };
 
   Editor.prototype.download = function () {
     if (!this.last || !site.ready()) return;
     var self = this;
-    var req = Object.assign({}, this.last.form, { csv: true, circuit: this.lastText });
+    var req = Object.assign({}, this.last.form, { csv: true, circuit: this.lastText, link: this.link(), pins: [] });
     site.call('panel', req).then(function (out) {
       if (out.error || !out.csv) {
         self.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));

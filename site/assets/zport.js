@@ -30,8 +30,14 @@
 //                      names (by name or data-param); false if none does
 //   clearFieldErrors(form)
 //   address(h)         puts h into the address bar once the user pauses
-//   copyText, saveFile, compress, decompress, hover, recomputed,
-//   fragment(), page(), single, cssName
+//   copyText, copyResults, saveFile, compress, decompress, hover,
+//   recomputed, fragment(), page(), single, cssName
+//   PinBar(host)       the pinned designs of a calculator (see below)
+//   settle(host, fn), settled(host)  wait for a calculator's last recompute
+//   chartWidth(el)     the charts' width on a phone (calc.Form.ChartWidth)
+//   onNarrow(fn)       calls fn when the phone width changes
+// and, for every page: the charts' "SVG" and "PNG" buttons, and printing
+// with every section open ("Print report" buttons print).
 //
 // URL fragment: a calculator's settings live in the fragment, written by
 // the engine (package zport/site/calc), e.g.
@@ -173,6 +179,8 @@
   }
 
   // ---- shared helpers ----
+
+  function ready() { return !!engine; }
 
   // insert replaces el's content by markup rendered and escaped in Go.
   function insert(el, html) {
@@ -336,10 +344,10 @@
     }
   }
 
-  // saveFile offers text as a download called name; nothing leaves the
-  // machine (a blob: URL of the page itself).
-  function saveFile(name, type, text) {
-    var url = URL.createObjectURL(new Blob([text], { type: type }));
+  // saveFile offers data (text or a Blob) as a download called name;
+  // nothing leaves the machine (a blob: URL of the page itself).
+  function saveFile(name, type, data) {
+    var url = URL.createObjectURL(new Blob([data], { type: type }));
     var a = document.createElement('a');
     a.href = url;
     a.download = name;
@@ -418,6 +426,329 @@
     if (typeof window.zportPlotHover === 'function') window.zportPlotHover(el);
   }
 
+  // ---- pinned designs ----
+
+  // The designs a calculator keeps for comparison (calc.Pin): up to
+  // MAX_PINS, each in a slot 1 … MAX_PINS that gives its line style and
+  // its keys in the share link, with a name the user can edit. The bar
+  // lists them in the element [data-role="pins"] of host.el; host.design()
+  // returns the design to pin (or null, saying why), and host.schedule()
+  // recomputes; a pin waits for the recompute of the last edit (settle).
+  // Each pin's line-style swatch is copied from the panel the engine
+  // rendered (its "Pinned designs" section), so the styles have one home,
+  // in Go.
+  var MAX_PINS = 4;
+  var MAX_PIN_NAME = 40;
+
+  function PinBar(host) {
+    this.host = host;
+    this.el = host.el.querySelector('[data-role="pins"]');
+    this.list = host.el.querySelector('[data-role="pin-list"]');
+    this.button = host.el.querySelector('[data-action="pin"]');
+    this.pins = [];
+    var self = this;
+    this.button.addEventListener('click', function () { self.pin(); });
+    host.el.querySelector('[data-action="unpin-all"]').addEventListener('click', function () {
+      self.pins = [];
+      self.changed('Every pin removed.');
+    });
+  }
+
+  // pin keeps the design as it stands, once the recompute of the last
+  // edit has answered (a value still marked wrong is not pinned), in the
+  // lowest free slot.
+  PinBar.prototype.pin = function () {
+    var self = this;
+    settle(this.host, function () { self.keep(self.host.design()); });
+  };
+
+  PinBar.prototype.keep = function (design) {
+    if (!design) return;
+    var slot = 0;
+    for (var s = 1; s <= MAX_PINS && !slot; s++) {
+      if (!this.pins.some(function (p) { return p.slot === s; })) slot = s;
+    }
+    if (!slot) {
+      this.host.say('Four designs are pinned already: remove one to pin another.');
+      return;
+    }
+    var p = Object.assign({ name: 'Pin ' + slot, slot: slot }, design);
+    this.pins.push(p);
+    this.pins.sort(function (a, b) { return a.slot - b.slot; });
+    this.changed('Pinned as “' + p.name + '”: edit the current design and compare.');
+  };
+
+  // set replaces the pins by those of a link (the engine's form.pins);
+  // text, when given, supplies each circuit pin's text by slot.
+  PinBar.prototype.set = function (pins, text) {
+    this.pins = (pins || []).map(function (p) {
+      var q = Object.assign({}, p);
+      if (text) q.circuit = text(q.slot);
+      return q;
+    });
+    this.render();
+  };
+
+  // value is the pins as the engine's form takes them.
+  PinBar.prototype.value = function () {
+    return this.pins.map(function (p) { return Object.assign({}, p); });
+  };
+
+  PinBar.prototype.changed = function (msg) {
+    this.render();
+    if (msg) this.host.say(msg);
+    this.host.schedule();
+  };
+
+  // render lists the pins: swatch, name (editable) and a remove button.
+  PinBar.prototype.render = function () {
+    var self = this;
+    this.el.hidden = this.pins.length === 0;
+    this.button.disabled = !ready() || this.pins.length >= MAX_PINS;
+    var items = this.pins.map(function (p) {
+      var li = document.createElement('li');
+      li.setAttribute('data-pin', String(p.slot));
+      var sw = self.host.results.querySelector('.pin-summary [data-pin="' + p.slot + '"] svg');
+      if (sw) li.appendChild(sw.cloneNode(true));
+      var input = document.createElement('input');
+      input.type = 'text';
+      input.value = p.name;
+      input.maxLength = MAX_PIN_NAME;
+      input.spellcheck = false;
+      input.setAttribute('aria-label', 'Name of pin ' + p.slot);
+      input.addEventListener('input', function () {
+        p.name = input.value.trim() ? input.value : 'Pin ' + p.slot;
+        self.host.schedule();
+      });
+      var rm = document.createElement('button');
+      rm.type = 'button';
+      rm.className = 'quiet';
+      rm.textContent = 'Remove';
+      rm.setAttribute('aria-label', 'Remove pin ' + p.slot);
+      rm.setAttribute('data-action', 'unpin');
+      rm.addEventListener('click', function () {
+        self.pins = self.pins.filter(function (q) { return q !== p; });
+        self.changed('Pin ' + p.slot + ' removed.');
+      });
+      li.appendChild(input);
+      li.appendChild(rm);
+      return li;
+    });
+    // Keep the focused name input (and its caret) when only swatches change.
+    var focused = this.list.contains(document.activeElement) ? document.activeElement.getAttribute('aria-label') : null;
+    this.list.replaceChildren.apply(this.list, items);
+    if (focused) {
+      var again = this.list.querySelector('[aria-label="' + cssName(focused) + '"]');
+      if (again) again.focus();
+    }
+  };
+
+  // refresh updates the swatches once a new panel is on the page.
+  PinBar.prototype.refresh = function () {
+    var self = this;
+    var lis = this.list.querySelectorAll('li[data-pin]');
+    for (var i = 0; i < lis.length; i++) {
+      var slot = lis[i].getAttribute('data-pin');
+      var sw = self.host.results.querySelector('.pin-summary [data-pin="' + slot + '"] svg');
+      var old = lis[i].querySelector('svg');
+      if (sw && !old) lis[i].insertBefore(sw.cloneNode(true), lis[i].firstChild);
+    }
+    this.button.disabled = !ready() || this.pins.length >= MAX_PINS;
+  };
+
+  // ---- chart images ----
+
+  // Every chart (figure.plot) offers "SVG" and "PNG" buttons
+  // (data-action="save-svg" / "save-png", written by zport/site/view). The
+  // image is the chart as drawn, with its title, axes and legend, made
+  // self-contained: the page's style of each part is written onto it as
+  // presentation attributes, on a background of the chart's own colour,
+  // so that it reads the same pasted into a slide. The PNG is the SVG
+  // drawn on a canvas at twice the chart's size. Nothing leaves the page.
+  var PNG_SCALE = 2;
+  var STYLE_PROPS = ['fill', 'fill-opacity', 'stroke', 'stroke-opacity', 'stroke-width', 'stroke-dasharray',
+    'stroke-linejoin', 'stroke-linecap', 'paint-order', 'opacity', 'font-family', 'font-size', 'font-weight',
+    'font-style', 'text-anchor', 'dominant-baseline'];
+
+  function chartImage(svg) {
+    var vb = (svg.getAttribute('viewBox') || '0 0 640 400').split(/\s+/).map(Number);
+    var w = vb[2], h = vb[3];
+    var copy = svg.cloneNode(true);
+    var from = [svg].concat(Array.prototype.slice.call(svg.querySelectorAll('*')));
+    var to = [copy].concat(Array.prototype.slice.call(copy.querySelectorAll('*')));
+    for (var i = 0; i < from.length; i++) {
+      var cs = getComputedStyle(from[i]);
+      for (var k = 0; k < STYLE_PROPS.length; k++) {
+        var v = cs.getPropertyValue(STYLE_PROPS[k]);
+        if (v && v !== 'none' || STYLE_PROPS[k] === 'fill' || STYLE_PROPS[k] === 'stroke') to[i].setAttribute(STYLE_PROPS[k], v);
+      }
+      to[i].removeAttribute('class');
+      to[i].removeAttribute('tabindex');
+    }
+    var cursor = copy.querySelectorAll('[data-role="cursor"], .zcur');
+    for (var c = 0; c < cursor.length; c++) cursor[c].remove();
+    var drop = ['tabindex', 'data-freq', 'data-x0', 'data-x1', 'data-my', 'data-py', 'data-mscale', 'data-unit', 'data-fmin', 'data-fmax', 'aria-labelledby', 'aria-describedby', 'role'];
+    for (var d = 0; d < drop.length; d++) copy.removeAttribute(drop[d]);
+    var paths = copy.querySelectorAll('[data-values]');
+    for (var p = 0; p < paths.length; p++) paths[p].removeAttribute('data-values');
+    copy.setAttribute('xmlns', 'http://www.w3.org/2000/svg');
+    copy.setAttribute('width', String(w));
+    copy.setAttribute('height', String(h));
+    var bg = document.createElementNS('http://www.w3.org/2000/svg', 'rect');
+    bg.setAttribute('width', '100%');
+    bg.setAttribute('height', '100%');
+    var fig = svg.closest('figure') || svg.parentNode;
+    bg.setAttribute('fill', getComputedStyle(fig).backgroundColor || '#ffffff');
+    copy.insertBefore(bg, copy.firstChild);
+    return { text: new XMLSerializer().serializeToString(copy), width: w, height: h };
+  }
+
+  function chartName(svg, ext) {
+    var t = svg.querySelector('title');
+    var base = (t ? t.textContent : svg.id || 'chart').toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 60);
+    return 'zport-' + (base || 'chart') + '.' + ext;
+  }
+
+  function saveChart(svg, kind, say) {
+    var img = chartImage(svg);
+    if (kind === 'svg') {
+      var name = chartName(svg, 'svg');
+      saveFile(name, 'image/svg+xml;charset=utf-8', img.text);
+      say('Chart saved as ' + name + '.');
+      return;
+    }
+    var pic = new Image();
+    pic.onload = function () {
+      var canvas = document.createElement('canvas');
+      canvas.width = img.width * PNG_SCALE;
+      canvas.height = img.height * PNG_SCALE;
+      var ctx = canvas.getContext('2d');
+      ctx.scale(PNG_SCALE, PNG_SCALE);
+      ctx.drawImage(pic, 0, 0, img.width, img.height);
+      canvas.toBlob(function (blob) {
+        if (!blob) {
+          say('The PNG could not be made in this browser; save the SVG instead.');
+          return;
+        }
+        var pname = chartName(svg, 'png');
+        saveFile(pname, 'image/png', blob);
+        say('Chart saved as ' + pname + ' (' + canvas.width + ' × ' + canvas.height + ' pixels).');
+      }, 'image/png');
+    };
+    pic.onerror = function () { say('The PNG could not be made in this browser; save the SVG instead.'); };
+    var bytes = new TextEncoder().encode(img.text);
+    pic.src = 'data:image/svg+xml;base64,' + base64(bytes);
+  }
+
+  function base64(bytes) {
+    if (typeof bytes.toBase64 === 'function') return bytes.toBase64();
+    var bin = '';
+    for (var i = 0; i < bytes.length; i++) bin += String.fromCharCode(bytes[i]);
+    return btoa(bin);
+  }
+
+  document.addEventListener('click', function (e) {
+    var b = e.target.closest && e.target.closest('button[data-action="save-svg"], button[data-action="save-png"]');
+    if (!b) return;
+    var fig = b.closest('figure');
+    var svg = fig && fig.querySelector('svg.zplot');
+    if (!svg) return;
+    var msg = fig.querySelector('[data-role="chart-msg"]');
+    saveChart(svg, b.getAttribute('data-action') === 'save-svg' ? 'svg' : 'png', function (t) {
+      if (msg) msg.textContent = t;
+    });
+  });
+
+  // ---- print ----
+
+  // Printing shows every section open: closed details are opened before
+  // printing and closed again after (the print style sheet hides the
+  // controls). "Print report" buttons print the page.
+  // A circuit's text prints whole, as text, in place of its editor (a
+  // text box prints only the lines it shows).
+  var openedForPrint = [];
+  window.addEventListener('beforeprint', function () {
+    var ds = document.querySelectorAll('main details:not([open])');
+    for (var i = 0; i < ds.length; i++) {
+      if (ds[i].closest('.aids')) continue; // an unrun study has nothing to print
+      ds[i].open = true;
+      openedForPrint.push(ds[i]);
+    }
+    var eds = document.querySelectorAll('[data-circuit-editor] [data-role="editor"]');
+    for (var j = 0; j < eds.length; j++) {
+      var pre = eds[j].parentNode.querySelector('pre.print-text');
+      if (!pre) {
+        pre = document.createElement('pre');
+        pre.className = 'print-text circuit-text';
+        eds[j].parentNode.insertBefore(pre, eds[j].nextSibling);
+      }
+      pre.textContent = eds[j].querySelector('textarea').value;
+    }
+  });
+  window.addEventListener('afterprint', function () {
+    for (var i = 0; i < openedForPrint.length; i++) openedForPrint[i].open = false;
+    openedForPrint = [];
+  });
+  document.addEventListener('click', function (e) {
+    if (e.target.closest && e.target.closest('button[data-action="print"]')) window.print();
+  });
+
+  // chartWidth is the width in CSS pixels at which the charts in results
+  // are shown on a phone's narrow column (calc.Form.ChartWidth), or 0
+  // where they keep their default drawing.
+  var narrow = window.matchMedia ? window.matchMedia('screen and (max-width: 30rem)') : null;
+  var FIGURE_FRAME = 18; // a figure.plot's padding and border, side to side (style.css)
+  function chartWidth(el) {
+    if (!narrow || !narrow.matches) return 0;
+    var fig = el.querySelector('figure.plot');
+    var box = fig || el;
+    var cs = getComputedStyle(box);
+    var w = box.clientWidth - parseFloat(cs.paddingLeft) - parseFloat(cs.paddingRight);
+    if (!fig) w -= FIGURE_FRAME;
+    return Math.max(240, Math.floor(w));
+  }
+
+  // onNarrow calls fn when the page crosses the phone width, or is
+  // resized while narrow (the charts are then drawn again).
+  function onNarrow(fn) {
+    if (!narrow) return;
+    var last = narrow.matches ? window.innerWidth : 0;
+    var check = function () {
+      var w = narrow.matches ? window.innerWidth : 0;
+      if (w !== last) {
+        last = w;
+        fn();
+      }
+    };
+    var t = 0;
+    window.addEventListener('resize', function () {
+      clearTimeout(t);
+      t = setTimeout(check, 150);
+    });
+  }
+
+  // settle calls fn once host (a calculator or the custom page's editor)
+  // has no recompute waiting for its frame (host.scheduled) or on its way
+  // (host.answered, the latest request answered, behind host.seq, the
+  // latest asked); host calls settled(host) after each answer.
+  function settle(host, fn) {
+    host.waiters = host.waiters || [];
+    host.waiters.push(fn);
+    settled(host);
+  }
+
+  function settled(host) {
+    if (host.scheduled || host.answered !== host.seq || !host.waiters) return;
+    var ws = host.waiters;
+    host.waiters = [];
+    for (var i = 0; i < ws.length; i++) ws[i]();
+  }
+
+  // copyResults copies a result's Markdown followed by its share link.
+  function copyResults(host, markdown, link) {
+    copyText(host, markdown + '\nLink to these results: ' + link + '\n', 'Results copied as Markdown tables, with the link.');
+  }
+
   // recomputed closes the "zport-recompute" measure begun at t0 once the
   // new panel in results is laid out, and marks the first live result.
   function recomputed(results, t0) {
@@ -435,7 +766,7 @@
       if (engine) cb();
       else readyCallbacks.push(cb);
     },
-    ready: function () { return !!engine; },
+    ready: ready,
     call: call,
     insert: insert,
     later: later,
@@ -448,7 +779,13 @@
     address: address,
     ownHash: ownHash,
     copyText: copyText,
+    copyResults: copyResults,
     saveFile: saveFile,
+    PinBar: PinBar,
+    settle: settle,
+    settled: settled,
+    chartWidth: chartWidth,
+    onNarrow: onNarrow,
     compress: compress,
     decompress: decompress,
     hover: hover,

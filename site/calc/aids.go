@@ -98,6 +98,16 @@ func (in AidsInput) id() string {
 	return in.Form.ID
 }
 
+// Layout is how a design-aid panel is drawn: ID prefixes its element ids,
+// ChartWidth is the page's narrow chart width (Form.ChartWidth; 0 for the
+// charts' own).
+type Layout struct {
+	ID         string
+	ChartWidth int
+}
+
+func (in AidsInput) layout() Layout { return Layout{ID: in.id(), ChartWidth: in.Form.ChartWidth} }
+
 // ---- what the form lists ----
 
 // aidPart is a passive part that can take a tolerance.
@@ -239,7 +249,7 @@ func AidsPanels(in AidsInput) (out AidsOutput) {
 			body := api.Body(err)
 			out.SensitivityError = &body
 		} else if sr := api.Sensitivity.Result(resp); sr != nil {
-			out.Sensitivity = view.SensitivityPanel(sr, in.id())
+			out.Sensitivity = view.SensitivityPanel(sr, in.id(), in.Form.ChartWidth)
 		}
 	}
 	return out
@@ -302,15 +312,15 @@ func StartTolerance(in AidsInput) (run *api.ToleranceRun, bad *api.ErrorBody) {
 }
 
 // ToleranceOutput renders what run has computed so far as the tolerance
-// panel, with its progress.
-func ToleranceOutput(run *api.ToleranceRun, id string) (out AidsOutput) {
+// panel laid out as l says, with its progress.
+func ToleranceOutput(run *api.ToleranceRun, l Layout) (out AidsOutput) {
 	defer recoverAids(&out)
-	if id == "" {
-		id = "calc"
+	if l.ID == "" {
+		l.ID = "calc"
 	}
 	res := run.Result()
 	done, total := run.Step(0)
-	return AidsOutput{HTML: view.TolerancePanel(res, id), Done: done, Total: total}
+	return AidsOutput{HTML: view.TolerancePanel(res, l.ID, l.ChartWidth), Done: done, Total: total}
 }
 
 func internalError(r any) *api.ErrorBody {
@@ -369,13 +379,13 @@ func AidsPanelsJSON(in []byte) []byte {
 
 // StartToleranceJSON is StartTolerance on JSON; on bad input the run is
 // nil and errJSON is an AidsOutput with its Error.
-func StartToleranceJSON(in []byte) (run *api.ToleranceRun, id string, errJSON []byte) {
+func StartToleranceJSON(in []byte) (run *api.ToleranceRun, l Layout, errJSON []byte) {
 	a, bad := decodeAids(in)
 	if bad == nil {
 		run, bad = StartTolerance(a)
 	}
 	if bad != nil {
-		return nil, "", EncodeAids(AidsOutput{Error: bad})
+		return nil, Layout{}, EncodeAids(AidsOutput{Error: bad})
 	}
-	return run, a.id(), nil
+	return run, a.layout(), nil
 }

@@ -7,11 +7,19 @@ import (
 
 	"zport/engine/api"
 	"zport/engine/eseries"
+	"zport/engine/topology"
 	"zport/engine/value"
 	"zport/site/view"
 )
 
 // ---- the settings form ----
+
+// termSymbol is a glossary term's symbol as plain text (package topology
+// writes a subscript as "_x").
+func termSymbol(id string) string {
+	t, _ := topology.LookupTerm(id)
+	return strings.ReplaceAll(t.Symbol, "_", "")
+}
 
 // AidsForm renders the design-aid section's settings for the circuit of
 // in, filled in from its study, with empty result areas for the page to
@@ -165,11 +173,11 @@ func (f *aidForm) tolerance() {
 		for _, a := range f.ai.Amps {
 			as := st.Amps[a.Name]
 			if a.A0 > 0 {
-				f.field("a0Min-"+cleanID(a.Name), a.Name+" a₀ minimum", "typical "+view.Plain(a.A0)+"; empty: fixed at typical",
+				f.field("a0Min-"+cleanID(a.Name), a.Name+" "+termSymbol("a0")+" minimum", "typical "+view.Plain(a.A0)+"; empty: fixed at typical",
 					as.A0Min, "tolerance.amps."+a.Name+".a0Min", "data-name", a.Name, "placeholder", "fixed")
 			}
 			if a.GBW > 0 {
-				f.field("gbwMin-"+cleanID(a.Name), a.Name+" GBW minimum", "typical "+value.Format(a.GBW, "Hz", view.Sig)+"; empty: fixed at typical",
+				f.field("gbwMin-"+cleanID(a.Name), a.Name+" "+termSymbol("gbw")+" minimum", "typical "+value.Format(a.GBW, "Hz", view.Sig)+"; empty: fixed at typical",
 					as.GBWMin, "tolerance.amps."+a.Name+".gbwMin", "data-name", a.Name, "placeholder", "fixed")
 			}
 		}

@@ -40,11 +40,11 @@ func TestSlicedStudyEqualsOneShot(t *testing.T) {
 			t.Fatal("the run does not end")
 		}
 	}
-	sliced := ToleranceOutput(run, "s")
+	sliced := ToleranceOutput(run, Layout{ID: "s"})
 	req := sitetest.Inverting(t)
 	req.Params = map[string]string{"R2": "100k"}
 	want := view.TolerancePanel(sitetest.Tolerance(t, req, `{"default": "G", "parts": {"Rp": "none", "RL": "10%"}, "amps": {"U1": {"gbwMin": "700k"}},
-		"distribution": "normal", "seed": 99, "trials": 640, "targets": [{"quantity": "phase", "port": "out", "op": ">", "value": 89.5}]}`), "s")
+		"distribution": "normal", "seed": 99, "trials": 640, "targets": [{"quantity": "phase", "port": "out", "op": ">", "value": 89.5}]}`), "s", 0)
 	if sliced.HTML != want {
 		t.Errorf("the sliced run's panel differs from the one-shot panel")
 	}
@@ -277,7 +277,7 @@ func TestAidsEveryStage(t *testing.T) {
 				t.Fatalf("tolerance: %v", bad)
 			}
 			run.Step(run.Total())
-			out := ToleranceOutput(run, "e")
+			out := ToleranceOutput(run, Layout{ID: "e"})
 			if out.Error != nil || out.Done != out.Total {
 				t.Fatalf("tolerance panel: %+v", out.Error)
 			}

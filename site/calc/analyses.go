@@ -12,6 +12,7 @@ func init() {
 	// may look the list up (byKey), which a declaration would make an
 	// initialization cycle.
 	Analyses = []*Analysis{
+		&pinned,
 		&ports,
 		&gain,
 		&loop,

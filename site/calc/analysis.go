@@ -57,6 +57,12 @@ type Analysis struct {
 	Columns func(c *Context) []Column
 	// Copy writes its part of the copied results.
 	Copy func(m *Markdown, c *Context)
+	// Compare lists the quantities a table compares with the pinned
+	// designs: each pin's value beside the current one, and the
+	// difference. The table follows the section in the panel (or sits
+	// where Section calls Context.Comparison) and the analysis's rows in
+	// the copied results; without pins it is not written.
+	Compare func(c *Context) []Compared
 }
 
 // Setting is one input of an analysis's settings.
@@ -88,6 +94,27 @@ type Context struct {
 	Resp *api.Response
 	// ID prefixes the element ids of the panel.
 	ID string
+	// Pins are the pinned designs, each analyzed like the current one
+	// (nil in Ask). A chart overlays them with PinTraces or BodePins; the
+	// analysis's Compare rows compare them in a table.
+	Pins []Pinned
+
+	// a is the analysis the context is for; compared records that its
+	// section placed its comparison table itself (Context.Comparison).
+	a        *Analysis
+	compared bool
+}
+
+// ChartSize is the size, in CSS pixels, at which to draw a chart whose
+// default size is w × h: on a phone (Form.ChartWidth set) the page's
+// column width, so that the chart's text keeps its size, and a little
+// taller to leave room for a title and legend wrapped onto more lines;
+// else w × h.
+func (c *Context) ChartSize(w, h int) (int, int) {
+	if cw := c.Form.ChartWidth; cw > 0 && cw < w {
+		return cw, h + 40
+	}
+	return w, h
 }
 
 // Field is the path of setting name of analysis a, as errors name it and
@@ -116,9 +143,10 @@ func (a *Analysis) values(f *Form) Values {
 	return v
 }
 
-// context is the Context of a for a recompute of f.
-func (a *Analysis) context(f *Form, entry *api.CatalogEntry, resp *api.Response) *Context {
-	return &Context{Form: f, Values: a.values(f), Entry: entry, Resp: resp, ID: f.ID}
+// context is the Context of a for a recompute of f, with the pins'
+// answers when there are any.
+func (a *Analysis) context(f *Form, entry *api.CatalogEntry, resp *api.Response, pins ...Pinned) *Context {
+	return &Context{Form: f, Values: a.values(f), Entry: entry, Resp: resp, ID: f.ID, Pins: pins, a: a}
 }
 
 // byKey finds a registered analysis.

@@ -78,3 +78,41 @@ func BenchmarkParts400(b *testing.B) {
 		}
 	})
 }
+
+// fourPins pins four variants of the inverting stage's R2.
+func fourPins() []Pin {
+	var pins []Pin
+	for i, r2 := range []string{"22k", "33k", "68k", "100k"} {
+		pins = append(pins, Pin{Name: "R2 " + r2, Slot: i + 1, Params: map[string]string{"R2": r2}})
+	}
+	return pins
+}
+
+// BenchmarkCompute400Pins4Cached is BenchmarkCompute400 with four pinned
+// designs whose answers the cache holds, as on every edit of the current
+// design: their overlays and comparisons, no analysis.
+func BenchmarkCompute400Pins4Cached(b *testing.B) {
+	f := Form{Topology: "inverting", ID: "c", Pins: fourPins()}
+	Compute(f)
+	b.ReportAllocs()
+	for b.Loop() {
+		if out := Compute(f); out.Error != nil {
+			b.Fatal(out.Error)
+		}
+	}
+}
+
+// BenchmarkCompute400Pins4Fresh is the same with every pin analyzed anew,
+// as after an edit of the spot frequency or the sweep.
+func BenchmarkCompute400Pins4Fresh(b *testing.B) {
+	f := Form{Topology: "inverting", ID: "c", Pins: fourPins()}
+	b.ReportAllocs()
+	for b.Loop() {
+		pinAnswers.mu.Lock()
+		pinAnswers.m, pinAnswers.keys = nil, nil
+		pinAnswers.mu.Unlock()
+		if out := Compute(f); out.Error != nil {
+			b.Fatal(out.Error)
+		}
+	}
+}

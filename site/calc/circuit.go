@@ -47,6 +47,7 @@ func (f Form) CircuitState() string {
 		p.Add(keyOutput, f.Gain.Output)
 	}
 	f.analysisState(&p)
+	f.circuitPinState(&p)
 	return p.Encode()
 }
 
@@ -58,28 +59,24 @@ func (f Form) CircuitState() string {
 // single-file export's page) and c (the circuit text, read by the page's
 // script) are skipped.
 func ReadCircuitFragment(frag string, base Form) (Form, error) {
-	pairs, err := fragment.Parse(frag, fragment.Repeatable(keyPort), fragment.Skip(keyCircuit, keyPage))
+	pairs, err := fragment.Parse(frag, fragment.Repeatable(append(pinKeys(keyPort), keyPort)...),
+		fragment.Skip(append(pinKeys(keyCircuit), keyCircuit, keyPage)...))
 	if err != nil {
 		return base, err
 	}
 	f := base
 	settings := settingsRead{}
-	var ports []string
-	var src, out *string
+	pins := pinsRead{}
+	var ch choices
 	for _, pr := range pairs {
 		k, v := pr.Key, pr.Value
-		switch k {
-		case keyPort:
-			if len(ports) == maxFragmentPorts {
-				return base, &fragment.Error{Key: k, Msg: "the link lists more than " + strconv.Itoa(maxFragmentPorts) + " ports"}
+		if ok, err := ch.read(k, v, k, "the link"); ok || err != nil {
+			if err != nil {
+				return base, err
 			}
-			ports = append(ports, v)
-		case keyReference:
-			f.Reference = v
-		case keySource:
-			src = &v
-		case keyOutput:
-			out = &v
+			continue
+		}
+		switch k {
 		case keyFrequency:
 			f.Frequency = v
 		case keyFrom:
@@ -89,25 +86,76 @@ func ReadCircuitFragment(frag string, base Form) (Form, error) {
 		case keyPoints:
 			f.Sweep.Points = v
 		default:
-			if !settings.read(k, v) {
+			if !settings.read(k, v) && !pins.read(k, v) {
 				return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for a circuit"}
 			}
 		}
 	}
-	if (src == nil) != (out == nil) {
-		return base, &fragment.Error{Msg: "the gain needs both “src” and “out”"}
-	}
-	if ports != nil {
-		f.Ports = ports
-	}
-	if src != nil {
-		f.Gain = nil
-		if *src != "" {
-			f.Gain = &api.GainSpec{Source: *src, Output: *out}
-		}
+	if err := ch.apply(&f, "the gain"); err != nil {
+		return base, err
 	}
 	f.Settings = settings.over(base.Settings)
+	if f.Pins, err = pins.circuitPins(f); err != nil {
+		return base, err
+	}
 	return f, nil
+}
+
+// choices collects what a circuit's link says of a design's reference,
+// ports and gain (the keys ref, port, src and out), the current design's
+// or a pin's.
+type choices struct {
+	ref      *string
+	ports    []string // nil: not given; one empty port value gives none
+	src, out *string
+}
+
+// read takes the pair k=v, whose key in the link is key (for messages):
+// false when k is none of the choices' keys, an error when the link lists
+// more ports than it may; what names the design ("the link", "pin 2").
+func (c *choices) read(k, v, key, what string) (bool, error) {
+	switch k {
+	case keyReference:
+		c.ref = &v
+	case keyPort:
+		if len(c.ports) == maxFragmentPorts {
+			return true, &fragment.Error{Key: key, Msg: what + " lists more than " + strconv.Itoa(maxFragmentPorts) + " ports"}
+		}
+		if c.ports == nil {
+			c.ports = []string{}
+		}
+		if v != "" {
+			c.ports = append(c.ports, v)
+		}
+	case keySource:
+		c.src = &v
+	case keyOutput:
+		c.out = &v
+	default:
+		return false, nil
+	}
+	return true, nil
+}
+
+// apply puts the choices the link gave over f's; the gain's src and out
+// come together (gain names the gain in the message).
+func (c *choices) apply(f *Form, gain string) error {
+	if (c.src == nil) != (c.out == nil) {
+		return &fragment.Error{Msg: gain + " needs both “src” and “out”"}
+	}
+	if c.ref != nil {
+		f.Reference = *c.ref
+	}
+	if c.ports != nil {
+		f.Ports = c.ports
+	}
+	if c.src != nil {
+		f.Gain = nil
+		if *c.src != "" {
+			f.Gain = &api.GainSpec{Source: *c.src, Output: *c.out}
+		}
+	}
+	return nil
 }
 
 // CircuitLinkState is the circuit-form state that reproduces a topology's
@@ -135,12 +183,19 @@ type CircuitRequest struct {
 	// means that the form's choices are exact (an example's or a link's
 	// settings): nothing new is chosen for the user.
 	Offered *Offered `json:"offered"`
+	// PinCircuits are the texts of a link's pins, by slot ("1" … "4"), as
+	// the page read them from pinN.c; a pin without one has the link's
+	// main text.
+	PinCircuits map[string]string `json:"pinCircuits,omitempty"`
 }
 
 // Offered is what the custom page's pickers showed.
 type Offered struct {
 	References []string `json:"references"`
 	Ports      []string `json:"ports"`
+	// Sources are the independent sources the gain picker offered; nil
+	// when the page does not say.
+	Sources []string `json:"sources,omitempty"`
 }
 
 // CircuitOutput is the answer to a CircuitRequest.
@@ -190,16 +245,34 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 			return out
 		}
 		f = g
+		for i := range f.Pins {
+			if t, ok := req.PinCircuits[strconv.Itoa(f.Pins[i].Slot)]; ok {
+				f.Pins[i].Circuit = t
+			}
+		}
 	}
 	o := compute(f, c)
-	// The page has the text; echoing it twice would only make the answer
+	// The page has the texts; echoing them would only make the answer
 	// longer (a pasted file is up to api.MaxCircuitBytes).
-	f.Circuit = ""
+	f = withoutTexts(f)
 	if o.Form != nil {
-		o.Form.Circuit = ""
+		g := withoutTexts(*o.Form)
+		o.Form = &g
 	}
 	out.Form, out.Output = &f, &o
 	return out
+}
+
+// withoutTexts is f without its circuit text and its pins' texts.
+func withoutTexts(f Form) Form {
+	f.Circuit = ""
+	if len(f.Pins) > 0 {
+		f.Pins = slices.Clone(f.Pins)
+		for i := range f.Pins {
+			f.Pins[i].Circuit = ""
+		}
+	}
+	return f
 }
 
 // ComputeCircuitJSON is ComputeCircuit on JSON: a CircuitRequest in, a
@@ -233,7 +306,10 @@ func ComputeCircuitJSON(in []byte) []byte {
 //   - port lines stay ticked or unticked by name, a port line new in the
 //     text is ticked, and a "NODE" or "NODE,NODE" port stays while its
 //     nodes do;
-//   - a gain whose source or output node is gone is dropped.
+//   - a gain whose source or output node is gone is dropped;
+//   - with no gain, a text with exactly one independent source that is new
+//     in it (offered lists the sources) gets the gain from that source to
+//     the node "out", else to the + node of its last port line.
 //
 // What is new is what offered does not list; with offered nil nothing is
 // new, and the form's own choices are kept exactly where they still fit.
@@ -295,6 +371,19 @@ func (f Form) Fit(in api.Inspection, offered *Offered) Form {
 		}
 		if !found || !nodePort(g.Output) {
 			f.Gain = nil
+		}
+	}
+	// Sources nil: the page did not say what it offered (no choice made).
+	if f.Gain == nil && len(in.Sources) == 1 && o.Sources != nil && isNew(o.Sources, in.Sources[0].Name) {
+		out := ""
+		switch {
+		case nodes["out"]:
+			out = "out"
+		case len(in.Ports) > 0 && in.Ports[len(in.Ports)-1].A != "gnd":
+			out = in.Ports[len(in.Ports)-1].A
+		}
+		if out != "" {
+			f.Gain = &api.GainSpec{Source: in.Sources[0].Name, Output: out}
 		}
 	}
 	return f

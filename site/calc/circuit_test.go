@@ -177,6 +177,27 @@ func TestFit(t *testing.T) {
 	if got := (Form{Reference: "X"}).Fit(api.Inspect("resistor R1 a gnd 1k\n"), nil); got.Reference != "" {
 		t.Errorf("no controlled source: reference %q", got.Reference)
 	}
+
+	// One independent source, new in the text: the gain is taken from it,
+	// to node out, or else to the + node of the last port line. A source
+	// the pickers showed already keeps the user's "none".
+	one := "vsource Vs a gnd 1\nopamp U1 a n y\nresistor Rf y n 1k\nport py y gnd\n"
+	for _, c := range []struct {
+		text    string
+		offered *Offered
+		want    *api.GainSpec
+	}{
+		{one, &Offered{Sources: []string{}}, &api.GainSpec{Source: "Vs", Output: "y"}},
+		{strings.ReplaceAll(one, " y", " out"), &Offered{Sources: []string{"Vx"}}, &api.GainSpec{Source: "Vs", Output: "out"}},
+		{one, &Offered{Sources: []string{"Vs"}}, nil},
+		{one, &Offered{}, nil}, // the page did not say what it offered
+		{one + "isource I2 gnd y 1\n", &Offered{Sources: []string{}}, nil},
+	} {
+		got := (Form{Reference: "U1"}).Fit(api.Inspect(c.text), c.offered)
+		if !reflect.DeepEqual(got.Gain, c.want) {
+			t.Errorf("offered %+v: gain %+v, want %+v", c.offered, got.Gain, c.want)
+		}
+	}
 }
 
 func TestComputeCircuit(t *testing.T) {

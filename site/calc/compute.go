@@ -3,6 +3,7 @@ package calc
 import (
 	"encoding/json"
 	"fmt"
+	"slices"
 	"strings"
 	"time"
 
@@ -76,6 +77,15 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		}
 	}
 	f.Fragment = nil
+	if bad := checkPins(f.Pins); bad != nil {
+		return Output{Error: bad}
+	}
+	f.Pins = slices.Clone(f.Pins)
+	if entry != nil {
+		for i := range f.Pins {
+			f.Pins[i].Params = f.design(f.Pins[i]).withDefaults(*entry).Params
+		}
+	}
 	req, bad := f.request()
 	if bad != nil {
 		return Output{Error: bad}
@@ -92,9 +102,10 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		body := api.Body(err)
 		return Output{Error: &body}
 	}
+	pins := analyzePins(&f, entry, effectiveSweep(req.Sweep, cut))
 	out = Output{
-		HTML:     Panel(&f, entry, resp),
-		Markdown: CopyText(&f, entry, resp),
+		HTML:     Panel(&f, entry, resp, pins...),
+		Markdown: CopyText(&f, entry, resp, pins...),
 		Form:     &f,
 		SweepCut: cut,
 	}
@@ -102,6 +113,7 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		out.CSV = CSV(&f, entry, resp)
 		f.CSV = false
 	}
+	f.Link = ""
 	if entry != nil {
 		out.State = f.State(*entry)
 	} else {

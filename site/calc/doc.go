@@ -51,6 +51,18 @@
 // falls back to its defaults with a notice. The settings of an analysis
 // that runs only on request are checked as the link is read (Check).
 //
+// # Pinned designs
+//
+// Form.Pins holds up to MaxPins designs kept for comparison, each with a
+// name and a slot (1 … MaxPins: its line style and its link keys). Compute
+// analyzes each at the current spot frequency, sweep and settings (answers
+// cached by request), and every analysis reads them from Context.Pins:
+// charts overlay them with BodePins or, for any chart type, PinTraces;
+// Analysis.Compare declares the rows of a comparison table, written after
+// the section or where Section calls Context.Comparison, and into the
+// copied results. The link carries each pin as its name (pin1=NAME) and
+// the keys of its design that differ from the current one (pin1.R2=100k).
+//
 // # Circuits of the user's own
 //
 // A Form with Circuit set instead of Topology analyzes circuit text with
@@ -78,6 +90,12 @@
 //	gain       g0 gInf g gDirect (complex), gainAgreement (real)
 //	loop       T (complex), fc (Hz), pm (degrees), gm (dB), verdict (text)
 //	extras     extra, with data-name (real, in the extra's own unit)
+//
+// A comparison with the pins carries, on each number, data-compare (the
+// row: z:PORT, g, T, fc, pm, gm, extra:N), data-pin (the pin's slot, 0 for
+// the current design), data-stat (value or diff) and the number
+// (data-re/data-im, data-value, and for a complex difference data-phase);
+// its table carries data-compare-of, the analysis's key.
 //
 // A value that is not finite has data-null="true" and shows a dash.
 // Hand-formula values carry data-closed-form (z0, tShort, tOpen, z,

@@ -56,6 +56,21 @@ type Form struct {
 	// sweep in full precision costs more than drawing it, so a page asks
 	// only when the user wants the file.
 	CSV bool `json:"csv,omitempty"`
+
+	// Pins are the designs kept for comparison (see Pin): every chart
+	// overlays them and every section compares with them. They travel in
+	// the share link under pin1 … pin4.
+	Pins []Pin `json:"pins,omitempty"`
+
+	// Link is the page's share link, written into the CSV's header when
+	// the page asks for the file.
+	Link string `json:"link,omitempty"`
+
+	// ChartWidth, when set, is the width in CSS pixels at which the page
+	// shows its charts: a phone's narrow column. The charts are then drawn
+	// at that width, so their text keeps its size instead of shrinking
+	// with a scaled-down drawing. 0 draws them at their default width.
+	ChartWidth int `json:"chartWidth,omitempty"`
 }
 
 // SweepForm is a sweep as typed: from and to in value syntax, points a
@@ -87,7 +102,7 @@ const (
 
 // ReservedKeys lists the fragment keys that are not topology parameters.
 // No catalog parameter may use one of them as its name.
-var ReservedKeys = []string{keyFrequency, keyFrom, keyTo, keyPoints, keyPage}
+var ReservedKeys = append([]string{keyFrequency, keyFrom, keyTo, keyPoints, keyPage}, pinKeys("")...)
 
 // DefaultForm is the form of a topology at its catalog defaults.
 func DefaultForm(e api.CatalogEntry) Form {
@@ -222,6 +237,7 @@ func (f Form) State(e api.CatalogEntry) string {
 		p.Add(par.Name, f.Params[par.Name])
 	}
 	f.analysisState(&p)
+	f.stagePinState(&p, e)
 	return p.Encode()
 }
 
@@ -305,6 +321,7 @@ func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
 	f := base
 	f.Params = maps.Clone(base.Params)
 	settings := settingsRead{}
+	pins := pinsRead{}
 	known := make(map[string]bool, len(e.Params))
 	for _, p := range e.Params {
 		known[p.Name] = true
@@ -323,11 +340,14 @@ func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
 			f.Sweep.Points = v
 		case known[k]:
 			f.Params[k] = v
-		case settings.read(k, v):
+		case settings.read(k, v), pins.read(k, v):
 		default:
 			return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for " + e.Title}
 		}
 	}
 	f.Settings = settings.over(base.Settings)
+	if f.Pins, err = pins.stagePins(f, e); err != nil {
+		return base, err
+	}
 	return f, nil
 }

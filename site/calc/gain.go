@@ -16,6 +16,7 @@ var gain = Analysis{
 	Section: gainSection,
 	Columns: gainColumns,
 	Copy:    gainCopy,
+	Compare: gainCompared,
 }
 
 func gainSection(w *view.Writer, c *Context) {
@@ -94,6 +95,7 @@ func gainSection(w *view.Writer, c *Context) {
 	w.Close("tbody")
 	w.Close("table")
 	w.Close("div")
+	c.Comparison(w)
 	if form != nil {
 		w.Open("details", "class", "formulas")
 		w.Elem("summary", "Hand formula and its source")
@@ -112,13 +114,19 @@ func gainSection(w *view.Writer, c *Context) {
 			Title:   "Closed-loop gain " + g.Source + " → " + g.Output + " (" + unit + ")",
 			Freq:    s.Frequency,
 			MagUnit: mag,
-			Traces: []plot.Trace{
+			Traces: append([]plot.Trace{
 				{Name: "g", Class: "g", Values: view.Values(s.Gain.G)},
 				{Name: "g∞ (ideal)", Class: "ginf", Values: view.Values(s.Gain.GInf), Dashed: true},
-			},
+			}, c.BodePins("g", func(r *api.Response) []*api.Complex {
+				if r.Sweep.Gain == nil {
+					return nil
+				}
+				return r.Sweep.Gain.G
+			})...),
 			Markers: spotMarker(r),
 			NoStyle: true,
 		}
+		b.Width, b.Height = c.ChartSize(640, 400)
 		w.Figures(b.SVG())
 	}
 	w.Close("section")
@@ -170,4 +178,19 @@ func gainCopy(m *Markdown, c *Context) {
 		rows = append(rows, []string{x.q, mag, re})
 	}
 	m.Table([]string{"Gain " + MD(g.Source) + " → " + MD(g.Output), "Magnitude ∠ phase", "Real + j imaginary"}, rows...)
+}
+
+// gainCompared compares g with the pins' g.
+func gainCompared(c *Context) []Compared {
+	g := c.Resp.Gain
+	if g == nil {
+		return nil
+	}
+	return []Compared{{ID: "g", Label: "g, " + g.Source + " → " + g.Output, Unit: g.Unit,
+		Complex: func(r *api.Response) *api.Complex {
+			if r.Gain == nil {
+				return nil
+			}
+			return r.Gain.G
+		}}}
 }

@@ -16,6 +16,7 @@ var loop = Analysis{
 	Section: loopSection,
 	Columns: loopColumns,
 	Copy:    loopCopy,
+	Compare: loopCompared,
 }
 
 // verdictClass maps the engine's verdicts onto the panel's styles.
@@ -72,6 +73,7 @@ func loopSection(w *view.Writer, c *Context) {
 		}
 	}
 	w.Close("dl")
+	c.Comparison(w)
 	if tForm != nil {
 		w.Open("details", "class", "formulas")
 		w.Elem("summary", "Hand formula for T and its source")
@@ -111,13 +113,15 @@ func loopChart(c *Context) plot.Bode {
 		Title:   "Return ratio T of " + r.Reference,
 		Freq:    s.Frequency,
 		MagUnit: "dB",
-		Traces:  []plot.Trace{{Name: "T", Class: "t", Values: view.Values(s.ReturnRatio)}},
+		Traces: append([]plot.Trace{{Name: "T", Class: "t", Values: view.Values(s.ReturnRatio)}},
+			c.BodePins("T", func(r *api.Response) []*api.Complex { return r.Sweep.ReturnRatio })...),
 		HLines: []plot.HLine{
 			{Panel: plot.MagPanel, Value: 0, Label: "|T| = 1", Class: "unity"},
 			{Panel: plot.PhasePanel, Value: -180, Label: "−180°", Class: "m180"},
 		},
 		NoStyle: true,
 	}
+	b.Width, b.Height = c.ChartSize(640, 400)
 	if m := r.Margins; m != nil {
 		for _, x := range m.Crossovers {
 			b.Markers = append(b.Markers, plot.Marker{Freq: x.Frequency,
@@ -162,4 +166,27 @@ func loopCopy(m *Markdown, c *Context) {
 			[]string{"Verdict", MD(mg.Verdict)})
 	}
 	m.Table([]string{"Loop", "Value"}, rows...)
+}
+
+// loopCompared compares T at the spot frequency and, over the sweep, the
+// crossover and the margins.
+func loopCompared(c *Context) []Compared {
+	rows := []Compared{{ID: "T", Label: "T at " + value.Format(c.Resp.Frequency, "Hz", view.Sig), Unit: "",
+		Complex: func(r *api.Response) *api.Complex { return r.ReturnRatio }}}
+	if c.Resp.Margins == nil {
+		return rows
+	}
+	margin := func(pick func(m *api.Margins) *float64) func(r *api.Response) *float64 {
+		return func(r *api.Response) *float64 {
+			if r.Margins == nil {
+				return nil
+			}
+			return pick(r.Margins)
+		}
+	}
+	return append(rows,
+		Compared{ID: "fc", Label: "Crossover", Unit: "Hz", Real: margin(func(m *api.Margins) *float64 { return m.Crossover })},
+		Compared{ID: "pm", Label: "Phase margin", Unit: "°", Real: margin(func(m *api.Margins) *float64 { return m.PhaseMargin })},
+		Compared{ID: "gm", Label: "Gain margin", Unit: "dB", Real: margin(func(m *api.Margins) *float64 { return m.GainMargin })},
+	)
 }

@@ -11,9 +11,10 @@ import (
 
 // Panel writes the results panel of resp, the answer to form f (defaults
 // filled in): a head saying what was computed, then each analysis's
-// section in the order of Analyses. entry is the catalog entry of a stage,
-// nil for circuit text.
-func Panel(f *Form, entry *api.CatalogEntry, resp *api.Response) string {
+// section in the order of Analyses, each with its comparison with the
+// pinned designs when there are pins. entry is the catalog entry of a
+// stage, nil for circuit text.
+func Panel(f *Form, entry *api.CatalogEntry, resp *api.Response, pins ...Pinned) string {
 	id := f.ID
 	if id == "" {
 		id = "calc"
@@ -36,8 +37,12 @@ func Panel(f *Form, entry *api.CatalogEntry, resp *api.Response) string {
 	g := *f
 	g.ID = id
 	for _, a := range Analyses {
+		c := a.context(&g, entry, resp, pins...)
 		if a.Section != nil {
-			a.Section(&w, a.context(&g, entry, resp))
+			a.Section(&w, c)
+		}
+		if !c.compared {
+			c.Comparison(&w)
 		}
 	}
 	w.Close("div")

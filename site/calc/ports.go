@@ -21,6 +21,7 @@ var ports = Analysis{
 	Section: portsSection,
 	Columns: portsColumns,
 	Copy:    portsCopy,
+	Compare: portsCompared,
 }
 
 var portColumns = []struct{ label, hint string }{
@@ -86,6 +87,7 @@ func portsSection(w *view.Writer, c *Context) {
 	}
 	w.Close("table")
 	w.Close("div")
+	c.Comparison(w)
 	formulaList(w, r)
 	if charts := portCharts(c); len(charts) > 0 {
 		w.Figures(charts...)
@@ -187,13 +189,14 @@ func portCharts(c *Context) []string {
 			Title:   portChartTitle(ps.Name, portTitle(c.Entry, ps.Name)),
 			Freq:    s.Frequency,
 			MagUnit: "Ω",
-			Traces: []plot.Trace{
+			Traces: append([]plot.Trace{
 				{Name: "Z (Blackman)", Class: "z", Values: view.Values(ps.Z)},
 				{Name: "Z₀ (reference gain zero)", Class: "z0", Values: view.Values(ps.Z0), Dashed: true},
-			},
+			}, c.BodePins("Z", func(r *api.Response) []*api.Complex { return sweepPort(r, ps.Name).Z })...),
 			Markers: spotMarker(r),
 			NoStyle: true,
 		}
+		b.Width, b.Height = c.ChartSize(640, 400)
 		out = append(out, b.SVG())
 	}
 	return out
@@ -223,6 +226,37 @@ func portChartTitle(name, desc string) string {
 		}
 	}
 	return title
+}
+
+// sweepPort is the sweep of port name in r, empty when r has none.
+func sweepPort(r *api.Response, name string) api.PortSweep {
+	if r.Sweep != nil {
+		for _, p := range r.Sweep.Ports {
+			if p.Name == name {
+				return p
+			}
+		}
+	}
+	return api.PortSweep{}
+}
+
+// portsCompared compares each port's Z with the pins' Z at the port of
+// the same name.
+func portsCompared(c *Context) []Compared {
+	var rows []Compared
+	for _, pr := range c.Resp.Ports {
+		name := pr.Name
+		rows = append(rows, Compared{ID: "z:" + name, Label: "Z at " + name, Unit: "Ω",
+			Complex: func(r *api.Response) *api.Complex {
+				for _, p := range r.Ports {
+					if p.Name == name {
+						return p.Z
+					}
+				}
+				return nil
+			}})
+	}
+	return rows
 }
 
 // portsColumns are each port's five terms.

@@ -1,6 +1,7 @@
 package calc
 
 import (
+	"encoding/csv"
 	"math/rand/v2"
 	"strconv"
 	"strings"
@@ -103,10 +104,19 @@ func TestPanelEscapesHostileText(t *testing.T) {
 	if strings.Count(md, "<") != strings.Count(md, `\<`) || !strings.Contains(md, `\<img`) {
 		t.Errorf("Markdown does not escape the hostile name:\n%s", md)
 	}
-	csv := CSV(&Form{}, entry, resp)
-	head := strings.SplitN(csv, "\r\n", 2)[0]
-	if strings.Count(head, ",") != 1+2*(1+5+5+4)-1 {
-		t.Errorf("CSV header has %d commas outside quotes? header %q", strings.Count(head, ","), head)
+	r := csv.NewReader(strings.NewReader(CSV(&Form{}, entry, resp)))
+	r.Comment = '#'
+	rows, err := r.ReadAll()
+	if err != nil {
+		t.Fatalf("the CSV does not read back: %v", err)
+	}
+	// The frequency; per port Z₀, Z, Z direct (re, im, mag, phase) and
+	// T short, T open (and dB); four gains and T (re, im, mag, phase, dB).
+	if n := len(rows[0]); n != 1+2*(3*4+2*5)+4*5+5 {
+		t.Errorf("CSV header has %d columns: %q", n, rows[0])
+	}
+	if rows[0][1] != hostile+".z0_re_Ohm" {
+		t.Errorf("the hostile port name is not one cell: %q", rows[0][1])
 	}
 }
 
@@ -335,11 +345,13 @@ func TestComputeCatalog(t *testing.T) {
 					}
 				}
 			}
-			if out.Markdown == "" || !strings.HasPrefix(out.CSV, "frequency_Hz,") || !strings.Contains(out.CSV, ",T_re,T_im") {
+			if out.Markdown == "" || !strings.Contains(out.CSV, "\r\nfrequency_Hz,") || !strings.Contains(out.CSV, ",T_re,T_im,T_mag,T_phase_deg,T_dB") {
 				t.Errorf("Markdown or CSV missing")
 			}
-			if n := strings.Count(out.CSV, "\r\n"); n != e.Sweep.Points+1 {
-				t.Errorf("CSV has %d lines, want %d", n, e.Sweep.Points+1)
+			r := csv.NewReader(strings.NewReader(out.CSV))
+			r.Comment = '#'
+			if rows, err := r.ReadAll(); err != nil || len(rows) != e.Sweep.Points+1 {
+				t.Errorf("CSV has %d rows (%v), want %d", len(rows), err, e.Sweep.Points+1)
 			}
 			// The state reproduces the panel exactly.
 			frag := out.State

@@ -115,13 +115,15 @@ func TestAddingAnAnalysis(t *testing.T) {
 	}
 
 	// In the CSV: a complex column per port, 1/Z.
-	rows, err := csv.NewReader(strings.NewReader(page.CSV)).ReadAll()
+	r := csv.NewReader(strings.NewReader(page.CSV))
+	r.Comment = '#'
+	rows, err := r.ReadAll()
 	if err != nil {
 		t.Fatal(err)
 	}
-	col := slices.Index(rows[0], "out.y_re")
+	col := slices.Index(rows[0], "out.y_re_S")
 	if col < 0 {
-		t.Fatalf("CSV header %v has no out.y_re", rows[0])
+		t.Fatalf("CSV header %v has no out.y_re_S", rows[0])
 	}
 	out := slices.IndexFunc(resp.Sweep.Ports, func(p api.PortSweep) bool { return p.Name == "out" })
 	for i, row := range rows[1:] {

@@ -1,6 +1,9 @@
 package calc
 
 import (
+	"strconv"
+
+	"zport/engine/api"
 	"zport/site/view"
 )
 
@@ -12,6 +15,7 @@ var designValues = Analysis{
 	Title:   "Design values",
 	Section: designSection,
 	Copy:    designCopy,
+	Compare: designCompared,
 }
 
 func designSection(w *view.Writer, c *Context) {
@@ -34,7 +38,33 @@ func designSection(w *view.Writer, c *Context) {
 		})
 	}
 	w.Close("dl")
+	c.Comparison(w)
 	w.Close("section")
+}
+
+// designCompared compares each design value with the pin's of the same
+// name.
+func designCompared(c *Context) []Compared {
+	t := c.Resp.Topology
+	if t == nil {
+		return nil
+	}
+	var rows []Compared
+	for i, x := range t.Extras {
+		name := x.Name
+		rows = append(rows, Compared{ID: "extra:" + strconv.Itoa(i), Label: name, Unit: x.Unit,
+			Real: func(r *api.Response) *float64 {
+				if r.Topology != nil {
+					for _, y := range r.Topology.Extras {
+						if y.Name == name {
+							return y.Value
+						}
+					}
+				}
+				return nil
+			}})
+	}
+	return rows
 }
 
 func designCopy(m *Markdown, c *Context) {

@@ -972,7 +972,17 @@ func TestCustomFiles(t *testing.T) {
 		}
 		time.Sleep(50 * time.Millisecond)
 	}
-	head := string(csv[:bytes.IndexByte(csv, '\n')])
+	// The header row follows the comment lines that say what made the file.
+	var head string
+	for _, line := range strings.Split(string(csv), "\n") {
+		if !strings.HasPrefix(line, "#") {
+			head = line
+			break
+		}
+	}
+	if !strings.Contains(string(csv), "# circuit text:\r\n") || !strings.Contains(string(csv), "# link: file://") {
+		t.Errorf("the CSV's header does not give the circuit text and the link:\n%.600s", csv)
+	}
 	for _, col := range []string{"in.z", "sum.zDirect", "gInf"} {
 		if !strings.Contains(head, col) {
 			t.Errorf("CSV header %q lacks %s", head, col)

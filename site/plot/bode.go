@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 	"strconv"
+	"strings"
 
 	"zport/engine/value"
 )
@@ -15,6 +16,10 @@ type Trace struct {
 	Class  string       // CSS class suffix for the colour: "z" gives class="trace trace-z"
 	Values []complex128 // one per frequency; NaN, Inf or 0 leaves a gap in the line
 	Dashed bool
+	// Dash, when set, is the line's own dash pattern (an SVG
+	// stroke-dasharray such as "10 3 2 3"), in place of Dashed's: a
+	// pinned design's line style.
+	Dash string
 }
 
 // Marker is a vertical line at a frequency (a histogram value), labelled at
@@ -177,9 +182,10 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	// frequency labels.
 	y := outer
 	titleY := 0.0
-	if c.Title != "" {
+	titleLines := wrapTitle(c.Title, W-2*outer)
+	if len(titleLines) > 0 {
 		titleY = y + 12
-		y += 22
+		y += 22 + titleLine*float64(len(titleLines)-1)
 	}
 	names := make([]string, len(c.Traces))
 	for i := range c.Traces {
@@ -376,7 +382,7 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = append(b, `<g class="traces" fill="none" stroke="currentColor" stroke-width="1.75" stroke-linejoin="round" stroke-linecap="round">`...)
 	for t := range ser {
 		s, tr := &ser[t], &c.Traces[t]
-		b = appendTraceOpen(b, s.class, tr.Dashed)
+		b = appendTraceOpen(b, s.class, tr)
 		b = appendAttr(b, "data-name", tr.Name)
 		b = append(b, ` data-values="`...)
 		for i := range n {
@@ -390,7 +396,7 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		b = append(b, `" d="`...)
 		b = appendLine(b, xt, s.my, &mag, scratch)
 		b = append(b, `"/>`...)
-		b = appendTraceOpen(b, s.class, tr.Dashed)
+		b = appendTraceOpen(b, s.class, tr)
 		b = append(b, ` d="`...)
 		b = appendLine(b, xt, s.ph, &ph, scratch)
 		b = append(b, `"/>`...)
@@ -402,14 +408,46 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		b = append(b, `</g>`...)
 	}
 
-	if c.Title != "" {
-		b = appendText(b, ` class="title"`, outer, titleY, "", c.Title)
+	for i, line := range titleLines {
+		b = appendText(b, ` class="title"`, outer, titleY+titleLine*float64(i), "", line)
 	}
 	b = appendLegend(b, c.Traces, ser, items, legendY)
 	if !anyFinite {
 		b = appendText(b, ` class="note" text-anchor="middle"`, (x0+x1)/2, (my0+my1)/2, ".35em", "no finite values")
 	}
 	return append(b, "</svg>"...)
+}
+
+// titlePx is the size of a chart title (CSS rule .zplot .title, bold),
+// and titleLine the distance between the lines of a wrapped one.
+const (
+	titlePx   = 14.0
+	titleLine = 18.0
+)
+
+// wrapTitle breaks a title into lines no wider than width at its size,
+// at spaces (a word too long for a line keeps a line to itself), so that
+// a narrow chart shows all of it.
+func wrapTitle(title string, width float64) []string {
+	if title == "" {
+		return nil
+	}
+	// The title is bold: about a tenth wider than textWidth's estimate.
+	fits := func(s string) bool { return 1.1*textWidth(s, titlePx) <= width }
+	var lines []string
+	line := ""
+	for _, word := range strings.Fields(title) {
+		switch {
+		case line == "":
+			line = word
+		case fits(line + " " + word):
+			line += " " + word
+		default:
+			lines = append(lines, line)
+			line = word
+		}
+	}
+	return append(lines, line)
 }
 
 // overhang returns how far the centred label of the rightmost labelled tick
@@ -452,13 +490,42 @@ func traceClass(tr *Trace, t int) string {
 	return s + " zc" + strconv.Itoa(t%6+1)
 }
 
-func appendTraceOpen(b []byte, class string, dashed bool) []byte {
+// appendTraceOpen opens a trace's path: its classes and, for a dashed
+// trace, its pattern as an attribute (charts keep their look where no
+// style sheet applies).
+func appendTraceOpen(b []byte, class string, tr *Trace) []byte {
 	b = append(b, `<path class="`...)
 	b = append(b, class...)
-	if dashed {
+	switch {
+	case tr.Dash != "":
+		b = append(b, ` own-dash" stroke-dasharray="`...)
+		b = appendDash(b, tr.Dash)
+	case tr.Dashed:
 		b = append(b, ` dashed" stroke-dasharray="7 4`...)
 	}
 	return append(b, '"')
+}
+
+// appendDash appends a dash pattern keeping only what one may hold:
+// digits, points and spaces.
+func appendDash(b []byte, d string) []byte {
+	for i := 0; i < len(d); i++ {
+		if c := d[i]; c >= '0' && c <= '9' || c == '.' || c == ' ' {
+			b = append(b, c)
+		}
+	}
+	return b
+}
+
+// Swatch is a short line in a trace's style, for a legend outside a
+// chart (a table's column head): class is the trace's Class, dash its
+// Dash. It carries the chart classes, so the page's chart style colours it.
+func Swatch(class, dash string) string {
+	b := []byte(`<svg xmlns="http://www.w3.org/2000/svg" class="zplot swatch" viewBox="0 0 26 10" width="26" height="10" aria-hidden="true">`)
+	tr := Trace{Dash: dash}
+	b = appendTraceOpen(b, traceClass(&Trace{Class: class}, 0), &tr)
+	b = append(b, ` fill="none" stroke="currentColor" stroke-width="2" d="M1 5h24"/></svg>`...)
+	return string(b)
 }
 
 // appendLine appends path data for ys (axis coordinates, NaN = gap) at the
@@ -669,7 +736,7 @@ func appendLegend(b []byte, traces []Trace, ser []series, items []legendItem, y0
 	b = append(b, `<g class="legend">`...)
 	for i, it := range items {
 		y := y0 + float64(it.row)*legendRow
-		b = appendTraceOpen(b, ser[i].class, traces[i].Dashed)
+		b = appendTraceOpen(b, ser[i].class, &traces[i])
 		b = append(b, ` fill="none" stroke="currentColor" stroke-width="2" d="M`...)
 		b = appendTenths(b, tenths(it.x), true)
 		b = appendNum(b, tenths(y))

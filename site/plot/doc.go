@@ -41,6 +41,11 @@
 //
 // # Styling
 //
+// A trace may carry its own dash pattern (Trace.Dash): pinned designs are
+// drawn in four patterns and the colours of classes trace-pin1 …
+// trace-pin4. Swatch draws a trace's line style alone, for a legend
+// outside a chart. A title longer than the chart is wide wraps at spaces.
+//
 // Colours are not written into the elements. Parts carry classes (svg.zplot,
 // trace trace-<Class>, grid, axis, tick, marker, hline, legend, note, bar)
 // and each SVG embeds the style sheet CSS, whose colours are CSS custom

@@ -133,8 +133,9 @@ func relevant(q api.QuantitySpread, res *api.ToleranceResult) bool {
 // TolerancePanel renders a tolerance study's result: what varied, the
 // targets' miss fractions, a table of each quantity's nominal value,
 // percentiles, Monte Carlo range and corner range, and a histogram of
-// each. id prefixes the element ids.
-func TolerancePanel(res *api.ToleranceResult, id string) string {
+// each. id prefixes the element ids; width, when set, is a phone's narrow
+// chart width, at which the histograms are drawn.
+func TolerancePanel(res *api.ToleranceResult, id string, width int) string {
 	var w Writer
 	w.Open("div", "class", "aid-panel tol-panel", "id", id+"-tol-panel", "data-aid", "tolerance",
 		"data-seed", strconv.FormatUint(res.Seed, 10), "data-trials", strconv.Itoa(res.Trials),
@@ -351,6 +352,9 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 			Height:  230,
 			NoStyle: true,
 		}
+		if width > 0 && width < h.Width {
+			h.Width, h.Height = width, 250
+		}
 		if q.Nominal != nil {
 			h.Markers = append(h.Markers, plot.Marker{Freq: *q.Nominal, Label: "nominal", Class: "nominal"})
 		}
@@ -363,9 +367,7 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 				h.Markers = append(h.Markers, plot.Marker{Freq: t.Value, Label: "target", Class: "target"})
 			}
 		}
-		w.Open("figure", "class", "plot hist", "data-quantity-id", q.ID)
-		w.Raw(h.SVG())
-		w.Close("figure")
+		w.Figure(h.SVG(), "plot hist", "data-quantity-id", q.ID)
 	}
 	w.Close("div")
 	w.Close("div")
@@ -651,8 +653,9 @@ func signedDegrees(d float64) string {
 // SensitivityPanel renders the normalized sensitivities: for each port
 // impedance, the gain and the phase margin, a bar chart of every
 // parameter's sensitivity, largest first, beside a table of the same
-// numbers with their error estimates.
-func SensitivityPanel(res *api.SensitivityResult, id string) string {
+// numbers with their error estimates. width, when set, is a phone's narrow
+// chart width, at which the bars are drawn.
+func SensitivityPanel(res *api.SensitivityResult, id string, width int) string {
 	var w Writer
 	w.Open("div", "class", "aid-panel sens-panel", "id", id+"-sens-panel", "data-aid", "sensitivity")
 	w.Open("p", "class", "explain")
@@ -686,11 +689,12 @@ func SensitivityPanel(res *api.SensitivityResult, id string) string {
 			vals = append(vals, deref(e.Value))
 		}
 		w.Open("div", "class", "sens-grid")
-		w.Open("figure", "class", "plot bars")
 		bars := plot.Bars{ID: id + "-sens-bars-" + strconv.Itoa(qi), Title: q.Title + ": " + sym, XLabel: sym,
 			Labels: labels, Values: vals, Width: 420, NoStyle: true}
-		w.Raw(bars.SVG())
-		w.Close("figure")
+		if width > 0 && width < bars.Width {
+			bars.Width = width
+		}
+		w.Figure(bars.SVG(), "plot bars")
 		w.Open("div", "class", "table-wrap")
 		w.Open("table", "class", "aid-small sens-table")
 		w.Elem("caption", q.Title+": sensitivity to each parameter, largest first", "class", "offscreen")

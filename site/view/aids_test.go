@@ -14,7 +14,7 @@ import (
 func TestTolerancePanelShowsTheEnginesNumbers(t *testing.T) {
 	res := sitetest.Tolerance(t, sitetest.Inverting(t), `{"default": "F", "amps": {"U1": {"a0Min": "100k"}}, "seed": 3, "trials": 700,
 		"targets": [{"quantity": "pm", "op": "<", "value": 88.2}, {"quantity": "z", "port": "out", "op": ">", "value": 0.45}]}`)
-	els := sitetest.Parse(t, TolerancePanel(res, "t"))
+	els := sitetest.Parse(t, TolerancePanel(res, "t", 0))
 	got := sitetest.AidNumbers(t, els)
 	n := 0
 	check := func(key string, v *float64) {
@@ -84,7 +84,7 @@ func TestTolerancePanelHowland(t *testing.T) {
 	if r.Min == nil || *r.Min >= 0 || r.Max == nil || *r.Max <= 0 {
 		t.Fatalf("Re Z at out spans %v … %v; the test wants it to change sign", r.Min, r.Max)
 	}
-	html := TolerancePanel(res, "h")
+	html := TolerancePanel(res, "h", 0)
 	got := sitetest.AidNumbers(t, sitetest.Parse(t, html))
 	if got["tolerance|r:out|p50|||"] == "" {
 		t.Error("Re Z at out is not listed though it changes sign")
@@ -107,7 +107,7 @@ func TestSensitivityPanel(t *testing.T) {
 		t.Fatal(err)
 	}
 	sr := api.Sensitivity.Result(resp)
-	els := sitetest.Parse(t, SensitivityPanel(sr, "s"))
+	els := sitetest.Parse(t, SensitivityPanel(sr, "s", 0))
 	got := sitetest.AidNumbers(t, els)
 	for _, q := range sr.Quantities {
 		var order []string
@@ -158,8 +158,8 @@ func TestAidPanelsEscapeHostileText(t *testing.T) {
 		Variants: []api.SnapVariant{{Name: sitetest.Hostile, Values: []api.SnappedValue{{Name: sitetest.Hostile, Series: "E24", Nominal: 1, Value: 1}},
 			Ports: []api.SnapCompare{{Name: sitetest.Hostile, Nominal: &api.Complex{Re: 1}, Snapped: &api.Complex{Re: 1}, MagnitudeError: f(0), PhaseDifference: f(0)}}}}}
 	for name, html := range map[string]string{
-		"tolerance":   TolerancePanel(res, `x"><script>`),
-		"sensitivity": SensitivityPanel(sens, "s"),
+		"tolerance":   TolerancePanel(res, `x"><script>`, 0),
+		"sensitivity": SensitivityPanel(sens, "s", 0),
 		"standard":    StandardPanel(std, "d", map[string]string{sitetest.Hostile: "Ω"}),
 	} {
 		sitetest.CheckInert(t, name, html)

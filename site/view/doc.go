@@ -4,6 +4,10 @@
 // the widgets the analyses' sections are made of, and the design-aid
 // panels. It renders; package zport/site/calc decides what to render.
 //
+// Charts go into the panel through Figures or Figure, which add the
+// "Save as SVG" and "Save as PNG" buttons that site/assets/zport.js
+// handles.
+//
 // The writer escapes every piece of text and every attribute value on the
 // way out; only SVG from package zport/site/plot enters as markup (Raw).
 // html/template would do the same job, but its reflection keeps every

@@ -257,3 +257,25 @@ func Sci(x float64) (mant, exp string) {
 	}
 	return mant, exp
 }
+
+// Eng writes v in engineering notation with as few digits as say it
+// exactly, then a space, the SI prefix and the unit — how a parameter reads
+// in copied results: 100000 → "100 k", 4700 Ω → "4.7 kΩ", 1e-12 F →
+// "1 pF", 50 Ω → "50 Ω". A value beyond the prefixes keeps its exponent.
+func Eng(v float64, unit string) string {
+	s := value.Exact(v)
+	mant, prefix := s, ""
+	for _, p := range []string{"f", "p", "n", "µ", "m", "k", "M", "G", "T"} {
+		if m, ok := strings.CutSuffix(s, p); ok {
+			mant, prefix = m, p
+			break
+		}
+	}
+	if strings.HasPrefix(mant, "-") {
+		mant = "−" + mant[1:]
+	}
+	if prefix+unit == "" {
+		return mant
+	}
+	return mant + " " + prefix + unit
+}

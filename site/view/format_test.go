@@ -79,3 +79,26 @@ func TestSpreadFormat(t *testing.T) {
 		t.Errorf("−0 degrees: %s", s)
 	}
 }
+
+func TestEng(t *testing.T) {
+	for _, c := range []struct {
+		v    float64
+		unit string
+		want string
+	}{
+		{100e3, "", "100 k"},
+		{4700, "Ω", "4.7 kΩ"},
+		{1e-12, "F", "1 pF"},
+		{50, "Ω", "50 Ω"},
+		{8.87e3, "Ω", "8.87 kΩ"},
+		{1e6, "Hz", "1 MHz"},
+		{100.5e3, "Ω", "100.5 kΩ"},
+		{-2.2e-6, "H", "−2.2 µH"},
+		{3, "", "3"},
+		{1e16, "Ω", "1e+16 Ω"},
+	} {
+		if got := Eng(c.v, c.unit); got != c.want {
+			t.Errorf("Eng(%g, %q) = %q, want %q", c.v, c.unit, got, c.want)
+		}
+	}
+}

@@ -199,11 +199,24 @@ func (w *Writer) Figures(svgs ...string) {
 	}
 	w.Open("div", "class", "plot-grid")
 	for _, s := range svgs {
-		w.Open("figure", "class", "plot")
-		w.Raw(s)
-		w.Close("figure")
+		w.Figure(s, "plot")
 	}
 	w.Close("div")
+}
+
+// Figure writes one chart (its SVG markup) in a figure of class, with the
+// buttons that save it as an image (data-action "save-svg" and
+// "save-png", handled by site/assets/zport.js) and a place for their
+// message. attrs are the figure's other attributes.
+func (w *Writer) Figure(svg, class string, attrs ...string) {
+	w.Open("figure", append([]string{"class", class}, attrs...)...)
+	w.Raw(svg)
+	w.Open("div", "class", "fig-tools")
+	w.Elem("button", "Save as SVG", "type", "button", "data-action", "save-svg", "title", "the chart as a vector image, with its title, axes and legend")
+	w.Elem("button", "Save as PNG", "type", "button", "data-action", "save-png", "title", "the chart as a picture at twice its size, for slides")
+	w.Elem("span", "", "class", "chart-msg", "data-role", "chart-msg", "role", "status")
+	w.Close("div")
+	w.Close("figure")
 }
 
 // Values converts a sweep column; a null entry becomes NaN, a gap in a
