@@ -203,6 +203,9 @@ func csvHeader(f *Form, entry *api.CatalogEntry, resp *api.Response) []string {
 		spot += "; no sweep: one row at the spot frequency"
 	}
 	lines = append(lines, spot)
+	if resp.Temperature > 0 {
+		lines = append(lines, "analysis temperature: "+round10(resp.Temperature)+" K")
+	}
 	for _, a := range Analyses {
 		if a.Ask == nil {
 			continue
