@@ -5,7 +5,6 @@ import (
 	"math"
 	"math/cmplx"
 
-	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/lapack"
 	"gonum.org/v1/gonum/lapack/gonum"
 
@@ -102,13 +101,8 @@ func realize(P *mna.Pencil, bvec, cvec []float64, sigma float64) (*model, error)
 			F[i*n+j] *= rs[i] * cs[j]
 		}
 	}
-	work := make([]float64, max(4*n, 1))
-	anorm := impl.Dlange(lapack.MaxColumnSum, n, n, F, n, work)
-	ipiv := make([]int, n)
-	if !impl.Dgetrf(n, n, F, n, ipiv) {
-		return nil, errShift
-	}
-	if rc := impl.Dgecon(lapack.MaxColumnSum, n, F, n, anorm, work, make([]int, n)); !(rc > 1e-13) {
+	fl, err := factorReal(F, n)
+	if err != nil {
 		return nil, errShift
 	}
 	K := make([]float64, n*n)
@@ -117,18 +111,19 @@ func realize(P *mna.Pencil, bvec, cvec []float64, sigma float64) (*model, error)
 			K[i*n+j] = P.C[i*n+j] * rs[i]
 		}
 	}
-	impl.Dgetrs(blas.NoTrans, n, n, F, n, ipiv, K, n)
+	fl.solveColumns(K, n)
 	bt := make([]float64, n)
 	for i := range bt {
 		bt[i] = bvec[i] * rs[i]
 	}
-	impl.Dgetrs(blas.NoTrans, n, 1, F, n, ipiv, bt, 1)
+	fl.solve(bt)
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
 			K[i*n+j] *= cs[i]
 		}
 		bt[i] *= cs[i]
 	}
+	work := make([]float64, max(n, 1))
 
 	// Balance (a diagonal similarity D⁻¹KD), then the Schur form
 	// D⁻¹KD = Q·T·Qᵀ, so S = D·Q.
@@ -201,14 +196,16 @@ func realize(P *mna.Pencil, bvec, cvec []float64, sigma float64) (*model, error)
 		for i := 0; i < m; i++ {
 			copy(W[i*m:i*m+m], T[i*n:i*n+m])
 		}
-		wp := make([]int, m)
-		if !impl.Dgetrf(m, m, W, m, wp) {
+		inv := make([]float64, m*m)
+		for i := 0; i < m; i++ {
+			inv[i*m+i] = 1
+		}
+		ft, err := factorReal(W, m)
+		if err != nil {
 			return nil, errShift
 		}
-		lw := make([]float64, 1)
-		impl.Dgetri(m, W, m, wp, lw, -1)
-		lw = make([]float64, max(int(lw[0]), m))
-		impl.Dgetri(m, W, m, wp, lw, len(lw))
+		ft.solveColumns(inv, m)
+		W = inv
 		for i := 0; i < m; i++ {
 			for j := 0; j < i; j++ {
 				if !(j == i-1 && at(i, j) != 0) {
@@ -240,11 +237,11 @@ func realize(P *mna.Pencil, bvec, cvec []float64, sigma float64) (*model, error)
 			M[i*q+i]++
 		}
 		copy(f2, beta[m:])
-		mp := make([]int, q)
-		if !impl.Dgetrf(q, q, M, q, mp) {
+		fm, err := factorReal(M, q)
+		if err != nil {
 			return nil, errShift
 		}
-		impl.Dgetrs(blas.NoTrans, q, 1, M, q, mp, f2, 1)
+		fm.solve(f2)
 	}
 	// Σₖ over the powers of T22: u collects W^(k+2)·T12·T22^k·β₂ and h
 	// collects (−1)^k·Σⱼ₌₀ᵏ (−W)^j·(−σ)^(k−j)·T12·T22^k·β₂.
@@ -316,21 +313,37 @@ func realize(P *mna.Pencil, bvec, cvec []float64, sigma float64) (*model, error)
 
 // schur overwrites the n×n matrix a with its real Schur form T and returns
 // Q with a = Q·T·Qᵀ on entry; false when the QR iteration did not converge.
+// It is LAPACK's unblocked path — Householder reduction to Hessenberg form
+// (Dgehd2), its Q (Dorg2r), and the double-shift QR algorithm (Dlahqr) —
+// which is the fast one at the sizes met here and keeps the WebAssembly
+// small.
 func schur(a []float64, n int) ([]float64, bool) {
 	tau := make([]float64, max(n-1, 1))
-	w := make([]float64, 1)
-	impl.Dgehrd(n, 0, n-1, a, n, tau, w, -1)
-	work := make([]float64, max(int(w[0]), 11*n, 1))
-	impl.Dgehrd(n, 0, n-1, a, n, tau, work, len(work))
-	q := append([]float64(nil), a...)
-	impl.Dorghr(n, 0, n-1, q, n, tau, work, len(work))
+	work := make([]float64, max(n, 1))
+	impl.Dgehd2(n, 0, n-1, a, n, tau, work)
+	// Q = H(0)·H(1)…: reflector j has v[j+1] = 1 and v[j+2:] below the
+	// subdiagonal of column j; shifted up one row they are Dorg2r's.
+	q := make([]float64, n*n)
+	q[0] = 1
+	if m := n - 1; m > 0 {
+		v := make([]float64, m*m)
+		for r := 0; r < m; r++ {
+			for c := 0; c < r; c++ {
+				v[r*m+c] = a[(r+1)*n+c]
+			}
+		}
+		impl.Dorg2r(m, m, m-1, v, m, tau[:m-1], work)
+		for r := 0; r < m; r++ {
+			copy(q[(r+1)*n+1:(r+2)*n], v[r*m:(r+1)*m])
+		}
+	}
 	for i := 2; i < n; i++ {
 		for j := 0; j < i-1; j++ {
 			a[i*n+j] = 0
 		}
 	}
 	wr, wi := make([]float64, n), make([]float64, n)
-	if impl.Dhseqr(lapack.EigenvaluesAndSchur, lapack.SchurOrig, n, 0, n-1, a, n, wr, wi, q, n, work, len(work)) != 0 {
+	if impl.Dlahqr(true, true, n, 0, n-1, a, n, wr, wi, 0, n-1, q, n) != 0 {
 		return nil, false
 	}
 	return q, true

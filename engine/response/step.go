@@ -4,8 +4,6 @@ import (
 	"math"
 	"math/cmplx"
 
-	"gonum.org/v1/gonum/mat"
-
 	"zport/engine/numeric"
 )
 
@@ -13,7 +11,7 @@ import (
 // m+1: its last column holds ξ(t) = ∫₀ᵗ e^(Aτ)dτ·b and its top-left block
 // e^(At) (C. Van Loan, "Computing integrals involving the matrix
 // exponential", IEEE Trans. Automatic Control 23(3), 1978 [memory]). The
-// exponential is gonum's Padé approximant with scaling and squaring.
+// exponential is the Padé approximant with scaling and squaring (expm).
 func (md *model) expm(t float64) []float64 {
 	m1 := md.m + 1
 	a := make([]float64, m1*m1)
@@ -23,9 +21,7 @@ func (md *model) expm(t float64) []float64 {
 		}
 		a[i*m1+md.m] = md.b[i] * t
 	}
-	var e mat.Dense
-	e.Exp(mat.NewDense(m1, m1, a))
-	return e.RawMatrix().Data
+	return expm(a, m1)
 }
 
 // series returns the step response at t = 0, h, 2h, … (points values),
