@@ -266,14 +266,14 @@ func Analyze(sys *mna.System, source, outA, outB int, opt Options) (*Result, err
 
 	// The figures, on a grid of their own that reaches the 0.1 % band,
 	// evaluated by the modes where they reproduce the exact samples.
-	at := fr.at
+	at, slope := fr.at, fr.slope
 	scale := 0.0
 	for _, v := range r.Step {
 		scale = math.Max(scale, math.Abs(v))
 	}
 	for k, t := range r.Time {
 		if math.Abs(fr.at(t)-r.Step[k]) > 1e-9*math.Max(scale, math.Abs(g0)) {
-			at = md.stepAt // repeated poles: the modes' sum loses digits
+			at, slope = md.stepAt, md.slopeAt // repeated poles: the modes' sum loses digits
 			break
 		}
 	}
@@ -286,7 +286,7 @@ func Analyze(sys *mna.System, source, outA, outB int, opt Options) (*Result, err
 		span := autoTo
 		var f figures
 		for try := 0; try < 4; try++ {
-			f = measure(at, g0, span, figurePoints(span, r.Poles))
+			f = measure(at, slope, g0, span, figurePoints(span, r.Poles))
 			if f.complete {
 				break
 			}

@@ -419,3 +419,38 @@ func TestTimeAxis(t *testing.T) {
 		t.Errorf("the automatic span %g ends before the step settles (%g)", auto.To, auto.Settling01)
 	}
 }
+
+// Two equal buffered RC sections make a double pole, 1/(1 + sτ)², whose
+// step is 1 − (1 + t/τ)·e^(−t/τ) (the inverse Laplace transform of
+// 1/(s(1 + sτ)²), a standard table entry [memory]). Its residues do not
+// exist as simple ones, so the figures come from the exponential itself.
+// A double zero of det(G + sC) is found only to about √ε.
+func TestDoublePole(t *testing.T) {
+	const tau = 1e-6
+	r, _ := run(t, "vsource Vin in gnd 1\nresistor R1 in a 1k\ncapacitor C1 a gnd 1n\nvcvs E1 b gnd sense=a,gnd gain=1\nresistor R2 b out 1k\ncapacitor C2 out gnd 1n\nvcvs E2 x gnd sense=out,gnd gain=1\n", "Vin", "out", Options{})
+	if len(r.Poles) != 2 {
+		t.Fatalf("poles %v, want two", r.Poles)
+	}
+	for _, p := range r.Poles {
+		if d := cmplx.Abs(p.P+1/tau) * tau; d > 1e-7 {
+			t.Errorf("pole %v, want −1/τ = %g (relative difference %.1e)", p.P, -1/tau, d)
+		}
+	}
+	y := func(tt float64) float64 { return 1 - (1+tt/tau)*math.Exp(-tt/tau) }
+	for k, tk := range r.Time {
+		if math.Abs(r.Step[k]-y(tk)) > 1e-12 {
+			t.Fatalf("step at %g s = %.15g, want %.15g", tk, r.Step[k], y(tk))
+		}
+	}
+	cross := func(level float64) float64 {
+		return bisect(func(x float64) float64 { return y(x) - level }, 0, 100*tau)
+	}
+	within(t, "rise time", r.RiseTime, cross(0.9)-cross(0.1), 1e-6)
+	within(t, "settling to 1 %", r.Settling1, cross(0.99), 1e-6)
+	within(t, "settling to 0.1 %", r.Settling01, cross(0.999), 1e-6)
+	// |g|² = 1/(1 + ω²τ²)² = ½ at ω = √(√2 − 1)/τ.
+	within(t, "bandwidth", 2*math.Pi*r.Bandwidth, math.Sqrt(math.Sqrt2-1)/tau, 1e-9)
+	if r.Overshoot != 0 {
+		t.Errorf("overshoot %g, want 0", r.Overshoot)
+	}
+}

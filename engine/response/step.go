@@ -73,6 +73,22 @@ func (md *model) stepAt(t float64) float64 {
 	return s
 }
 
+// slopeAt is the step response's derivative cᵀe^(At)b at one time.
+func (md *model) slopeAt(t float64) float64 {
+	if md.m == 0 {
+		return 0
+	}
+	E := md.expm(t)
+	m1 := md.m + 1
+	s := 0.0
+	for i := 0; i < md.m; i++ {
+		for j := 0; j < md.m; j++ {
+			s += md.c[i] * E[i*m1+j] * md.b[j]
+		}
+	}
+	return s
+}
+
 // fractions is the step response as a sum of modes,
 // y(t) = g(0) + Σᵢ ρᵢ·e^(pᵢt), ρᵢ = rᵢ/pᵢ with rᵢ the residue of g at pᵢ:
 // cheap at any t, and exact while the poles are simple.
@@ -90,6 +106,15 @@ func (f *fractions) at(t float64) float64 {
 	return s
 }
 
+// slope is the derivative Σᵢ ρᵢpᵢ·e^(pᵢt).
+func (f *fractions) slope(t float64) float64 {
+	s := 0.0
+	for i, p := range f.p {
+		s += real(f.rho[i] * p * cmplx.Exp(p*complex(t, 0)))
+	}
+	return s
+}
+
 // figures are the time-domain figures of a settling step response,
 // measured on y(t)/final.
 type figures struct {
@@ -102,8 +127,8 @@ type figures struct {
 
 // measure finds the figures of y (normalized by final) on a uniform grid
 // of n points over [0, span], each refined between its samples by false
-// position on t/span with the exact evaluator at.
-func measure(at func(t float64) float64, final, span float64, n int) figures {
+// position on t/span with the exact evaluators at (y) and slope (y′).
+func measure(at, slopeAt func(t float64) float64, final, span float64, n int) figures {
 	h := span / float64(n-1)
 	yn := make([]float64, n)
 	for k := range yn {
@@ -140,10 +165,7 @@ func measure(at func(t float64) float64, final, span float64, n int) figures {
 	if yn[top] > 1 && top+1 < n {
 		// The peak: where the slope changes sign around the largest sample.
 		lo, hi := max(top-1, 0), top+1
-		slope := func(x float64) (float64, bool) {
-			d := x * span * 1e-7
-			return (at(x*span+d) - at(x*span-d)) / final, true
-		}
+		slope := func(x float64) (float64, bool) { return slopeAt(x*span) / final, true }
 		tp := float64(top) * h
 		if lo < top {
 			sa, _ := slope(float64(lo) * h / span)

@@ -123,7 +123,7 @@ type edValue struct {
 const edValuesJS = `(function (root) {
   return Array.from(document.querySelectorAll(root + ' [data-role="results"] [data-quantity]')).map(function (e) {
     var d = e.dataset;
-    var key = d.quantity === 'extra' ? 'extra:' + d.name : (d.port ? d.port + '/' : '') + d.quantity;
+    var key = d.quantity === 'extra' ? 'extra:' + d.name : (d.port ? d.port + '/' : '') + (d.pole ? 'pole' + d.pole + '/' : '') + d.quantity;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true' };
   });
 })`

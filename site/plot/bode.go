@@ -61,6 +61,10 @@ type Bode struct {
 	Width   int  // pixels; default 640
 	Height  int  // pixels; default 400
 	NoStyle bool // omit the embedded <style> (the page includes CSS itself)
+	// NoPhase draws the magnitude panel alone, over the whole height, for
+	// charts where the phase says nothing (magnitudes set against each
+	// other); the hover data keeps the phases.
+	NoPhase bool
 }
 
 // SVG returns the chart as a standalone SVG document fragment.
@@ -193,6 +197,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	const gap = 16.0
 	avail := max(py1-my0-gap, 80)
 	magH := math.Round(avail * 0.58)
+	if c.NoPhase {
+		magH = max(py1-my0, 80)
+	}
 	my1 := my0 + magH
 	py0 := my1 + gap
 
@@ -205,10 +212,16 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	}
 	ph := axis{p0: py1, p1: py0}
 	ph.lo, ph.hi, ph.ticks = phaseRange(phLo, phHi, py1-py0)
+	// The panels drawn, and the bottom of the lowest.
+	axes := []*axis{&mag, &ph}
+	bottom := py1
+	if c.NoPhase {
+		axes, bottom = axes[:1], my1
+	}
 
 	labelW := 0.0
-	for _, ts := range [][]tick{mag.ticks, ph.ticks} {
-		for _, t := range ts {
+	for _, a := range axes {
+		for _, t := range a.ticks {
 			labelW = max(labelW, textWidth(t.label, fontPx))
 		}
 	}
@@ -256,7 +269,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = appendAttrPx(b, "data-x0", x0)
 	b = appendAttrPx(b, "data-x1", x1)
 	b = appendRange(b, "data-my", my0, my1, mag.lo, mag.hi)
-	b = appendRange(b, "data-py", py0, py1, ph.lo, ph.hi)
+	if !c.NoPhase {
+		b = appendRange(b, "data-py", py0, py1, ph.lo, ph.hi)
+	}
 	if db {
 		b = append(b, ` data-mscale="db"`...)
 	} else {
@@ -281,9 +296,11 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 			g = &major
 		}
 		*g = appendVLine(*g, x, tenths(my0), tenths(my1))
-		*g = appendVLine(*g, x, tenths(py0), tenths(py1))
+		if !c.NoPhase {
+			*g = appendVLine(*g, x, tenths(py0), tenths(py1))
+		}
 	}
-	for _, a := range []*axis{&mag, &ph} {
+	for _, a := range axes {
 		for _, t := range a.ticks {
 			g := &minor
 			if t.major {
@@ -298,12 +315,14 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = append(b, major...)
 	b = append(b, `"/><path class="axis" fill="none" stroke="currentColor" stroke-opacity=".5" d="`...)
 	b = appendBox(b, x0, my0, x1, my1)
-	b = appendBox(b, x0, py0, x1, py1)
+	if !c.NoPhase {
+		b = appendBox(b, x0, py0, x1, py1)
+	}
 	b = append(b, `"/>`...)
 
 	// Tick labels and axis titles.
 	b = append(b, `<g class="tick" text-anchor="end">`...)
-	for _, a := range []*axis{&mag, &ph} {
+	for _, a := range axes {
 		for _, t := range a.ticks {
 			if t.label != "" {
 				b = appendText(b, "", x0-6, a.px(t.pos), ".35em", t.label)
@@ -313,7 +332,7 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = append(b, `</g><g class="tick" text-anchor="middle">`...)
 	for _, t := range fx.ticks {
 		if t.label != "" {
-			b = appendText(b, "", fx.px(t.pos), py1+16, "", t.label)
+			b = appendText(b, "", fx.px(t.pos), bottom+16, "", t.label)
 		}
 	}
 	b = append(b, `</g>`...)
@@ -322,7 +341,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		magTitle += " (" + c.MagUnit + ")"
 	}
 	b = appendVText(b, 18, (my0+my1)/2, magTitle)
-	b = appendVText(b, 18, (py0+py1)/2, "Phase (°)")
+	if !c.NoPhase {
+		b = appendVText(b, 18, (py0+py1)/2, "Phase (°)")
+	}
 	b = append(b, `<text class="axis-title" text-anchor="middle"`...)
 	b = appendAttrPx(b, "x", (x0+x1)/2)
 	b = appendAttrPx(b, "y", H-8)
@@ -334,6 +355,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		v, ok := hlineCoord(h, db)
 		a, top := &mag, my0
 		if h.Panel == PhasePanel {
+			if c.NoPhase {
+				continue
+			}
 			a, top = &ph, py0
 		}
 		if !ok || !a.in(v) {
@@ -363,7 +387,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		b = appendClassSuffix(b, "marker-", m.Class)
 		b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="3 3" d="`...)
 		b = appendVLine(b, tenths(x), tenths(my0), tenths(my1))
-		b = appendVLine(b, tenths(x), tenths(py0), tenths(py1))
+		if !c.NoPhase {
+			b = appendVLine(b, tenths(x), tenths(py0), tenths(py1))
+		}
 		b = append(b, `"/>`...)
 		if m.Label != "" {
 			labels = appendMarkerLabel(labels, x, x0, x1, my0+13+13*float64(slot%4), m.Label)
@@ -390,6 +416,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		b = append(b, `" d="`...)
 		b = appendLine(b, xt, s.my, &mag, scratch)
 		b = append(b, `"/>`...)
+		if c.NoPhase {
+			continue
+		}
 		b = appendTraceOpen(b, s.class, tr.Dashed)
 		b = append(b, ` d="`...)
 		b = appendLine(b, xt, s.ph, &ph, scratch)
@@ -586,7 +615,11 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 		b = append(b, c.MagUnit...)
 		b = append(b, " on a log scale"...)
 	}
-	b = append(b, " above, phase in degrees below."...)
+	if c.NoPhase {
+		b = append(b, '.')
+	} else {
+		b = append(b, " above, phase in degrees below."...)
+	}
 	mag := func(v float64) string {
 		if c.MagUnit == "dB" {
 			return signed(strconv.FormatFloat(20*math.Log10(v), 'f', 1, 64)) + " dB"
@@ -603,8 +636,10 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 		}
 		b = append(b, ": "...)
 		b = appendSpan(b, mag(s.absLo), mag(s.absHi))
-		b = append(b, ", phase "...)
-		b = appendSpan(b, deg(s.phLo), deg(s.phHi))
+		if !c.NoPhase {
+			b = append(b, ", phase "...)
+			b = appendSpan(b, deg(s.phLo), deg(s.phHi))
+		}
 		b = append(b, '.')
 	}
 	if len(c.Traces) == 0 {
