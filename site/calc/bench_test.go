@@ -1,6 +1,7 @@
 package calc
 
 import (
+	"slices"
 	"testing"
 
 	"zport/engine/api"
@@ -77,4 +78,31 @@ func BenchmarkParts400(b *testing.B) {
 			_ = CopyText(&f, &e, resp)
 		}
 	})
+}
+
+// BenchmarkResponseCost is one calculator update of every catalog stage
+// at its defaults, with the closed-loop response section (the stage pages'
+// default) and without it: the cost the section adds to a recompute.
+// Compare the pairs' medians with benchstat.
+func BenchmarkResponseCost(b *testing.B) {
+	without := slices.DeleteFunc(slices.Clone(Analyses), func(a *Analysis) bool { return a == &closedLoop })
+	for _, e := range api.Catalog() {
+		f := Form{Topology: e.ID, ID: "c"}
+		for _, run := range []struct {
+			name string
+			list []*Analysis
+		}{{"with", Analyses}, {"without", without}} {
+			b.Run(e.ID+"/"+run.name, func(b *testing.B) {
+				saved := Analyses
+				Analyses = run.list
+				defer func() { Analyses = saved }()
+				b.ReportAllocs()
+				for b.Loop() {
+					if out := Compute(f); out.Error != nil {
+						b.Fatal(out.Error)
+					}
+				}
+			})
+		}
+	}
 }
