@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"slices"
+	"strconv"
 
 	"zport/engine/mna"
 	"zport/engine/numeric"
@@ -537,15 +538,18 @@ func figurePoints(span float64, ps []Pole) int {
 	return min(n, 200000)
 }
 
-// niceCeil rounds a span up to 1, 2 or 5 times a power of ten.
+// niceCeil rounds a span up to 1, 2 or 5 times a power of ten, the
+// float64 nearest that decimal (so 10 µs is 1e-5, not 9.999…e-6).
 func niceCeil(x float64) float64 {
-	p := math.Pow(10, math.Floor(math.Log10(x)))
-	for _, m := range []float64{1, 2, 5, 10} {
-		if m*p >= x*(1-1e-12) {
-			return m * p
+	e := int(math.Floor(math.Log10(x)))
+	for _, m := range []int{1, 2, 5, 10} {
+		v, _ := strconv.ParseFloat(strconv.Itoa(m)+"e"+strconv.Itoa(e), 64)
+		if v >= x*(1-1e-12) {
+			return v
 		}
 	}
-	return 10 * p
+	v, _ := strconv.ParseFloat("1e"+strconv.Itoa(e+1), 64)
+	return v
 }
 
 func extreme(y []float64) float64 { return y[argExtreme(y)] }

@@ -181,9 +181,9 @@ func poleTable(w *view.Writer, r *api.ResponseResult) {
 	if len(r.Poles) == 0 {
 		return
 	}
+	w.Elem("p", "Natural frequencies (closed-loop poles), slowest first; a pair on one row.", "class", "explain")
 	w.Open("div", "class", "table-wrap")
 	w.Open("table", "class", "results poles")
-	w.Elem("caption", "Natural frequencies (closed-loop poles), slowest first")
 	w.Open("thead")
 	w.Open("tr")
 	for _, h := range []string{"", "Frequency", "Q", "ζ", "s (rad/s)", "Weight"} {
@@ -261,7 +261,7 @@ func stepChart(c *Context, r *api.ResponseResult) plot.Time {
 		t.HLines = append(t.HLines,
 			plot.HLine{Value: *f, Label: "final " + value.Format(*f, unit, 4), Class: "final"},
 			plot.HLine{Value: *f * 1.01, Class: "band"},
-			plot.HLine{Value: *f * 0.99, Label: "±1 %", Class: "band"})
+			plot.HLine{Value: *f * 0.99, Class: "band"})
 	}
 	if r.Peak != nil {
 		t.Markers = append(t.Markers, plot.Marker{Freq: r.Peak.Time, Label: "peak, " + percent(*r.Overshoot), Class: "peak"})
