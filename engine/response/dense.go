@@ -137,26 +137,22 @@ func expm(a []float64, n int) []float64 {
 	a4 := mul(nil, a2, a2, n)
 	a6 := mul(nil, a2, a4, n)
 	// U = A·[A6·(b13·A6 + b11·A4 + b9·A2) + b7·A6 + b5·A4 + b3·A2 + b1·I]
-	// V = A6·(b12·A6 + b10·A4 + b8·A2) + b6·A6 + b4·A4 + b2·A2 + b0·I
-	t := make([]float64, n*n)
-	axpy(t, b[13], a6)
-	axpy(t, b[11], a4)
-	axpy(t, b[9], a2)
-	u := mul(nil, a6, t, n)
-	axpy(u, b[7], a6)
-	axpy(u, b[5], a4)
-	axpy(u, b[3], a2)
-	axpy(u, b[1], id)
-	u = mul(nil, as, u, n)
-	clear(t)
-	axpy(t, b[12], a6)
-	axpy(t, b[10], a4)
-	axpy(t, b[8], a2)
-	v := mul(nil, a6, t, n)
-	axpy(v, b[6], a6)
-	axpy(v, b[4], a4)
-	axpy(v, b[2], a2)
-	axpy(v, b[0], id)
+	// V = A6·(b12·A6 + b10·A4 + b8·A2) + b6·A6 + b4·A4 + b2·A2 + b0·I:
+	// odd coefficients for U, even ones for V.
+	half := func(k int) []float64 {
+		t := make([]float64, n*n)
+		axpy(t, b[12+k], a6)
+		axpy(t, b[10+k], a4)
+		axpy(t, b[8+k], a2)
+		x := mul(nil, a6, t, n)
+		axpy(x, b[6+k], a6)
+		axpy(x, b[4+k], a4)
+		axpy(x, b[2+k], a2)
+		axpy(x, b[k], id)
+		return x
+	}
+	u := mul(nil, as, half(1), n)
+	v := half(0)
 	return padeSolve(u, v, n, s)
 }
 

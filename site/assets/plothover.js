@@ -261,34 +261,40 @@
     });
     var ts = traces(svg);
     var bottom = phase ? py[1] : my[1];
-    cursor(svg, {
+    cursor(svg, alongX(xs, x0, x1, my[0], function (i) {
+      var x = xs[i];
+      return {
+        head: formatValue(freq[i], "Hz", 3),
+        x: x,
+        line: "M" + x.toFixed(1) + " " + my[0] + "V" + bottom,
+        rows: ts.map(function (t) {
+          var m = t.vals[2 * i], p = t.vals[2 * i + 1];
+          var ok = m > 0 && isFinite(m) && isFinite(p);
+          var ms = !ok ? "\u2014" : db ? fixed(20 * Math.log10(m), 1) + " dB" : formatValue(m, unit, 3);
+          var text = t.name + ": " + ms;
+          if (ok && phase) text += "  \u2220 " + fixed(p, 1) + "\u00b0";
+          return {
+            text: text,
+            x: x,
+            y: ok ? panelY(my, db ? 20 * Math.log10(m) : Math.log10(m)) : NaN,
+            y2: ok && phase ? panelY(py, p) : NaN,
+          };
+        }),
+      };
+    }), ts.map(function (t) { return t.cls; }));
+  }
+
+  // alongX is the cursor of a chart whose points lie along the x axis at
+  // xs (NaN: not shown): the nearest point by x, the middle one first.
+  function alongX(xs, x0, x1, top, show) {
+    return {
       count: xs.length,
       ok: function (i) { return isFinite(xs[i]); },
       nearest: function (p) { return nearestX(xs, p.x); },
       home: function () { return nearestX(xs, (x0 + x1) / 2); },
-      area: [x0, x1, my[0]],
-      show: function (i) {
-        var x = xs[i];
-        return {
-          head: formatValue(freq[i], "Hz", 3),
-          x: x,
-          line: "M" + x.toFixed(1) + " " + my[0] + "V" + bottom,
-          rows: ts.map(function (t) {
-            var m = t.vals[2 * i], p = t.vals[2 * i + 1];
-            var ok = m > 0 && isFinite(m) && isFinite(p);
-            var ms = !ok ? "\u2014" : db ? fixed(20 * Math.log10(m), 1) + " dB" : formatValue(m, unit, 3);
-            var text = t.name + ": " + ms;
-            if (ok && phase) text += "  \u2220 " + fixed(p, 1) + "\u00b0";
-            return {
-              text: text,
-              x: x,
-              y: ok ? panelY(my, db ? 20 * Math.log10(m) : Math.log10(m)) : NaN,
-              y2: ok && phase ? panelY(py, p) : NaN,
-            };
-          }),
-        };
-      },
-    }, ts.map(function (t) { return t.cls; }));
+      area: [x0, x1, top],
+      show: show,
+    };
   }
 
   // plain writes a ratio with sig significant digits and no prefix.
@@ -312,30 +318,23 @@
       return isFinite(t) ? x0 + ((t - t0) / (t1 - t0)) * (x1 - x0) : NaN;
     });
     var ts = traces(svg);
-    cursor(svg, {
-      count: xs.length,
-      ok: function (i) { return isFinite(xs[i]); },
-      nearest: function (p) { return nearestX(xs, p.x); },
-      home: function () { return nearestX(xs, (x0 + x1) / 2); },
-      area: [x0, x1, ya[0]],
-      show: function (i) {
-        var x = xs[i];
-        return {
-          head: "t = " + formatValue(time[i], "s", 4),
-          x: x,
-          line: "M" + x.toFixed(1) + " " + ya[0] + "V" + ya[1],
-          rows: ts.map(function (t) {
-            var v = t.vals[i];
-            return {
-              text: t.name + ": " + (unit === "" ? plain(v, 4) : formatValue(v, unit, 4)),
-              x: x,
-              y: isFinite(v) ? panelY(ya, v) : NaN,
-              y2: NaN,
-            };
-          }),
-        };
-      },
-    }, ts.map(function (t) { return t.cls; }));
+    cursor(svg, alongX(xs, x0, x1, ya[0], function (i) {
+      var x = xs[i];
+      return {
+        head: "t = " + formatValue(time[i], "s", 4),
+        x: x,
+        line: "M" + x.toFixed(1) + " " + ya[0] + "V" + ya[1],
+        rows: ts.map(function (t) {
+          var v = t.vals[i];
+          return {
+            text: t.name + ": " + (unit === "" ? plain(v, 4) : formatValue(v, unit, 4)),
+            x: x,
+            y: isFinite(v) ? panelY(ya, v) : NaN,
+            y2: NaN,
+          };
+        }),
+      };
+    }), ts.map(function (t) { return t.cls; }));
   }
 
   // A Nyquist chart: T at each frequency on the compressed polar plane.

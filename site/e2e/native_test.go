@@ -349,7 +349,7 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 		exp = append(exp, series{prefix + "gain", "g", s.Gain.G}, series{prefix + "gain", "g∞ (ideal)", s.Gain.GInf})
 	}
 	for _, l := range loopViewSeries(prefix, resp) {
-		exp = append(exp, series{l.chart, l.trace, l.v})
+		exp = append(exp, series(l))
 	}
 	byID := map[string]chart{}
 	var bad []string

@@ -179,19 +179,11 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 
 	// Vertical layout: title, legend rows, magnitude panel, phase panel,
 	// frequency labels.
-	y := outer
-	titleY := 0.0
-	if c.Title != "" {
-		titleY = y + 12
-		y += 22
-	}
 	names := make([]string, len(c.Traces))
 	for i := range c.Traces {
 		names[i] = c.Traces[i].Name
 	}
-	items, rows := layoutLegend(names, W)
-	legendY := y + legendRow/2
-	y += float64(rows) * legendRow
+	titleY, items, legendY, y := layoutHead(c.Title, names, W)
 	my0 := y + 6
 	py1 := H - 40
 	const gap = 16.0
@@ -363,19 +355,7 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		if !ok || !a.in(v) {
 			continue
 		}
-		yy := a.px(v)
-		b = append(b, `<path class="hline`...)
-		b = appendClassSuffix(b, "hline-", h.Class)
-		b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="9 3 2 3" d="`...)
-		b = appendHLine(b, tenths(x0), tenths(yy), tenths(x1))
-		b = append(b, `"/>`...)
-		if h.Label != "" {
-			ly := yy - 4
-			if ly-10 < top {
-				ly = yy + 13
-			}
-			labels = appendText(labels, anchorEnd, x1-4, ly, "", h.Label)
-		}
+		b, labels = appendRefLine(b, labels, h, x0, x1, a.px(v), top)
 	}
 	slot := 0
 	for _, m := range c.Markers {
@@ -425,20 +405,31 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		b = append(b, `"/>`...)
 	}
 	b = append(b, `</g>`...)
-	if len(labels) > 0 {
-		b = append(b, `<g class="label halo">`...)
-		b = append(b, labels...)
-		b = append(b, `</g>`...)
-	}
-
-	if c.Title != "" {
-		b = appendText(b, ` class="title"`, outer, titleY, "", c.Title)
-	}
+	b = appendLabelsTitle(b, labels, c.Title, titleY)
 	b = appendLegend(b, c.Traces, ser, items, legendY)
 	if !anyFinite {
 		b = appendText(b, ` class="note" text-anchor="middle"`, (x0+x1)/2, (my0+my1)/2, ".35em", "no finite values")
 	}
 	return append(b, "</svg>"...)
+}
+
+// appendRefLine draws reference line h across [x0, x1] at height yy and
+// adds its label to labels, above the line unless that would leave the
+// panel whose top is top.
+func appendRefLine(b, labels []byte, h HLine, x0, x1, yy, top float64) ([]byte, []byte) {
+	b = append(b, `<path class="hline`...)
+	b = appendClassSuffix(b, "hline-", h.Class)
+	b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="9 3 2 3" d="`...)
+	b = appendHLine(b, tenths(x0), tenths(yy), tenths(x1))
+	b = append(b, `"/>`...)
+	if h.Label != "" {
+		ly := yy - 4
+		if ly-10 < top {
+			ly = yy + 13
+		}
+		labels = appendText(labels, anchorEnd, x1-4, ly, "", h.Label)
+	}
+	return b, labels
 }
 
 // overhang returns how far the centred label of the rightmost labelled tick
@@ -645,21 +636,23 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 	if len(c.Traces) == 0 {
 		b = append(b, " No traces."...)
 	}
-	for _, m := range c.Markers {
-		if m.Label != "" {
-			b = append(b, " Marker: "...)
-			b = append(b, m.Label...)
-			b = append(b, '.')
-		}
-	}
-	for _, h := range c.HLines {
-		if h.Label != "" {
-			b = append(b, " Reference line: "...)
-			b = append(b, h.Label...)
-			b = append(b, '.')
-		}
-	}
+	b = appendLabels(b, " Marker: ", len(c.Markers), func(i int) string { return c.Markers[i].Label })
+	b = appendLabels(b, " Reference line: ", len(c.HLines), func(i int) string { return c.HLines[i].Label })
 	return string(b)
+}
+
+// appendLabels appends what + label + "." to a description for each of
+// the n labels that is not empty (the markers of a chart, its reference
+// lines, its marked points).
+func appendLabels(b []byte, what string, n int, label func(i int) string) []byte {
+	for i := range n {
+		if l := label(i); l != "" {
+			b = append(b, what...)
+			b = append(b, l...)
+			b = append(b, '.')
+		}
+	}
+	return b
 }
 
 // appendSpan appends "lo to hi", or just lo when both read the same.
@@ -668,6 +661,34 @@ func appendSpan(b []byte, lo, hi string) []byte {
 	if hi != lo {
 		b = append(b, " to "...)
 		b = append(b, hi...)
+	}
+	return b
+}
+
+// layoutHead lays out a chart's title and legend from the top: the
+// title's baseline (0 without a title), the legend's entries and the
+// middle of its first row, and the y below them.
+func layoutHead(title string, names []string, W float64) (titleY float64, items []legendItem, legendY, y float64) {
+	y = outer
+	if title != "" {
+		titleY = y + 12
+		y += 22
+	}
+	items, rows := layoutLegend(names, W)
+	legendY = y + legendRow/2
+	return titleY, items, legendY, y + float64(rows)*legendRow
+}
+
+// appendLabelsTitle appends the labels of markers and reference lines
+// (with a halo, over the traces) and the title.
+func appendLabelsTitle(b, labels []byte, title string, titleY float64) []byte {
+	if len(labels) > 0 {
+		b = append(b, `<g class="label halo">`...)
+		b = append(b, labels...)
+		b = append(b, `</g>`...)
+	}
+	if title != "" {
+		b = appendText(b, ` class="title"`, outer, titleY, "", title)
 	}
 	return b
 }

@@ -303,12 +303,6 @@ func (h *Histogram) describe(problem string, total, fullest int) string {
 		b = strconv.AppendInt(b, int64(h.Counts[fullest]), 10)
 	}
 	b = append(b, '.')
-	for _, m := range h.Markers {
-		if m.Label != "" {
-			b = append(b, " Marker: "...)
-			b = append(b, m.Label...)
-			b = append(b, '.')
-		}
-	}
+	b = appendLabels(b, " Marker: ", len(h.Markers), func(i int) string { return h.Markers[i].Label })
 	return string(b)
 }

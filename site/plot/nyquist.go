@@ -71,19 +71,12 @@ func (c *Nyquist) AppendSVG(dst []byte) []byte {
 	id := cleanID(c.ID, "znyq")
 	n := min(len(c.Freq), len(c.T))
 
-	y := outer
-	titleY := 0.0
-	if c.Title != "" {
-		titleY = y + 12
-		y += 22
-	}
 	legend := []string{}
 	if c.Name != "" {
 		legend = append(legend, c.Name, "negative frequencies")
 	}
-	items, rows := layoutLegend(legend, W)
-	legendY := y + legendRow/2
-	y += float64(rows)*legendRow + 10
+	titleY, items, legendY, y := layoutHead(c.Title, legend, W)
+	y += 10
 	R := math.Min(math.Floor((W-2*outer-40)/2), 260)
 	cx, cy := math.Round(W/2), y+R+8
 	H := cy + R + 26
@@ -253,12 +246,7 @@ func (c *Nyquist) AppendSVG(dst []byte) []byte {
 			labels = appendText(labels, anchor, lx, y-7, "", p.Label)
 		}
 	}
-	b = append(b, `<g class="label halo">`...)
-	b = append(b, labels...)
-	b = append(b, `</g>`...)
-	if c.Title != "" {
-		b = appendText(b, ` class="title"`, outer, titleY, "", c.Title)
-	}
+	b = appendLabelsTitle(b, labels, c.Title, titleY)
 	if len(items) > 0 {
 		traces := []Trace{{Name: legend[0]}, {Name: legend[1], Dashed: true}}
 		ser := []series{{class: seriesClass("t", 0)}, {class: seriesClass("t", 0) + " mirror"}}
@@ -298,12 +286,6 @@ func (c *Nyquist) describe(n int) string {
 		b = append(b, value.Format(c.Freq[n-1], "Hz", 3)...)
 	}
 	b = append(b, "; radius log10(1 + |T|/0.001) over log10(1 + 10⁹), angle true; the unit circle and the −1 point are marked."...)
-	for _, p := range c.Points {
-		if p.Label != "" {
-			b = append(b, " Point: "...)
-			b = append(b, p.Label...)
-			b = append(b, '.')
-		}
-	}
+	b = appendLabels(b, " Point: ", len(c.Points), func(i int) string { return c.Points[i].Label })
 	return string(b)
 }

@@ -66,7 +66,7 @@ func TestTimePointsLieOnTheAxes(t *testing.T) {
 	if strings.Contains(ticks, "500m") {
 		t.Errorf("a ratio labelled with a prefix: %q", ticks)
 	}
-	if c.SVG() != c.SVG() {
+	if first, again := c.SVG(), c.SVG(); first != again {
 		t.Error("two renderings differ")
 	}
 }

@@ -91,19 +91,11 @@ func (c *Time) AppendSVG(dst []byte) []byte {
 	}
 
 	// Layout: title, legend, the panel, time labels.
-	y := outer
-	titleY := 0.0
-	if c.Title != "" {
-		titleY = y + 12
-		y += 22
-	}
 	names := make([]string, len(c.Series))
 	for i := range c.Series {
 		names[i] = c.Series[i].Name
 	}
-	items, rows := layoutLegend(names, W)
-	legendY := y + legendRow/2
-	y += float64(rows) * legendRow
+	titleY, items, legendY, y := layoutHead(c.Title, names, W)
 	top := y + 6
 	bottom := H - 40
 
@@ -194,19 +186,7 @@ func (c *Time) AppendSVG(dst []byte) []byte {
 		if !finiteF(h.Value) || !ya.in(h.Value) {
 			continue
 		}
-		yy := ya.px(h.Value)
-		b = append(b, `<path class="hline`...)
-		b = appendClassSuffix(b, "hline-", h.Class)
-		b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="9 3 2 3" d="`...)
-		b = appendHLine(b, tenths(x0), tenths(yy), tenths(x1))
-		b = append(b, `"/>`...)
-		if h.Label != "" {
-			ly := yy - 4
-			if ly-10 < top {
-				ly = yy + 13
-			}
-			labels = appendText(labels, anchorEnd, x1-4, ly, "", h.Label)
-		}
+		b, labels = appendRefLine(b, labels, h, x0, x1, ya.px(h.Value), top)
 	}
 	slot := 0
 	for _, m := range c.Markers {
@@ -251,14 +231,7 @@ func (c *Time) AppendSVG(dst []byte) []byte {
 		b = append(b, `"/>`...)
 	}
 	b = append(b, `</g>`...)
-	if len(labels) > 0 {
-		b = append(b, `<g class="label halo">`...)
-		b = append(b, labels...)
-		b = append(b, `</g>`...)
-	}
-	if c.Title != "" {
-		b = appendText(b, ` class="title"`, outer, titleY, "", c.Title)
-	}
+	b = appendLabelsTitle(b, labels, c.Title, titleY)
 	if len(items) > 0 {
 		traces := make([]Trace, len(c.Series))
 		for k, s := range c.Series {
@@ -325,19 +298,7 @@ func (c *Time) describe(t0, t1 float64, finite int) string {
 	if finite == 0 && len(c.Series) == 0 {
 		b = append(b, " No traces."...)
 	}
-	for _, m := range c.Markers {
-		if m.Label != "" {
-			b = append(b, " Marker: "...)
-			b = append(b, m.Label...)
-			b = append(b, '.')
-		}
-	}
-	for _, h := range c.HLines {
-		if h.Label != "" {
-			b = append(b, " Reference line: "...)
-			b = append(b, h.Label...)
-			b = append(b, '.')
-		}
-	}
+	b = appendLabels(b, " Marker: ", len(c.Markers), func(i int) string { return c.Markers[i].Label })
+	b = appendLabels(b, " Reference line: ", len(c.HLines), func(i int) string { return c.HLines[i].Label })
 	return string(b)
 }
