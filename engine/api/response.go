@@ -62,7 +62,9 @@ type ResponseResult struct {
 	LowerCorner *float64 `json:"lowerCorner,omitempty"`
 	// Poles are the circuit's natural frequencies, by magnitude.
 	Poles []ResponsePole `json:"poles"`
-	// Stability is "stable", "marginal" or "unstable".
+	// Stability is "stable", "marginal" or "unstable" — or NotComputed,
+	// when the circuit's numbers stopped the analysis (a note says why)
+	// and every figure is null.
 	Stability string `json:"stability"`
 	// Agreement is the worst relative difference between the realisation
 	// the figures come from and the direct nodal solution.
@@ -168,6 +170,9 @@ type ResponsePole struct {
 	Dominant bool    `json:"dominant"`
 }
 
+// NotComputed is the stability of a response that could not be computed.
+const NotComputed = "not computed"
+
 // ClosedLoop is the "response" analysis. (Its Go name differs from its
 // key because Response is the name of the whole answer.)
 var ClosedLoop = Register("response", func(p *Prepared, q *ResponseRequest, _ *Response) (*ResponseResult, error) {
@@ -194,13 +199,16 @@ var ClosedLoop = Register("response", func(p *Prepared, q *ResponseRequest, _ *R
 			opt.Points = *t.Points
 		}
 	}
-	r, err := response.Analyze(p.Analyzer.Sys, g.Source, g.OutA, g.OutB, opt)
-	if err != nil {
-		return nil, &Problem{Msg: err.Error()}
-	}
 	unit := g.Unit(p.Circuit)
 	if unit == "V/A" {
 		unit = "Ω"
+	}
+	r, err := response.Analyze(p.Analyzer.Sys, g.Source, g.OutA, g.OutB, opt)
+	if err != nil {
+		// Trouble with the circuit's numbers (too large, an eigenvalue
+		// iteration that fails) leaves the rest of the answer standing.
+		return &ResponseResult{Unit: unit, Step: StepSeries{Time: Series{}, Value: Series{}}, Poles: []ResponsePole{},
+			Stability: NotComputed, Method: response.Method, Notes: []string{"The closed-loop response was not computed: " + err.Error() + "."}}, nil
 	}
 	out := &ResponseResult{
 		Unit:         unit,

@@ -2,6 +2,7 @@ package api_test
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"strings"
@@ -317,5 +318,22 @@ func TestLoopViews(t *testing.T) {
 	within(t, "rate of closure", m.Closure.Rate, rate, 1e-5)
 	if m.Closure.Verdict != "safe" {
 		t.Errorf("verdict %q at %.1f dB/decade, want safe (nearer 20 than 40)", m.Closure.Verdict, m.Closure.Rate)
+	}
+}
+
+// A circuit too large for the eigenvalue problem answers everything else,
+// with the response marked not computed and a note saying why.
+func TestResponseTooLarge(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("vsource Vin in gnd 1\nresistor R0 in n1 1k\nvcvs E1 out gnd sense=n161,gnd gain=1\n")
+	for i := 1; i <= 160; i++ {
+		fmt.Fprintf(&b, "resistor R%d n%d n%d 1k\ncapacitor C%d n%d gnd 1n\n", i, i, i+1, i, i)
+	}
+	resp, r := respond(t, api.Request{Circuit: b.String(), Reference: "E1", Gain: &api.GainSpec{Source: "Vin", Output: "out"}})
+	if resp.Gain == nil || resp.Gain.G == nil {
+		t.Error("the base answer is missing")
+	}
+	if r.Stability != api.NotComputed || r.Final != nil || len(r.Notes) != 1 || !strings.Contains(r.Notes[0], "150") {
+		t.Errorf("stability %q, final %v, notes %q", r.Stability, r.Final, r.Notes)
 	}
 }

@@ -104,6 +104,11 @@ func responseSection(w *view.Writer, c *Context) {
 	w.Elem("code", g.Source)
 	w.Text(", the peaking and bandwidth of |g|, and the circuit's natural frequencies (closed-loop poles), from the whole model, op-amp poles included.")
 	w.Close("p")
+	if r.Stability == api.NotComputed {
+		w.Notes("response-notes", r.Notes)
+		w.Close("section")
+		return
+	}
 	unit := r.Unit
 	w.Open("dl", "class", "kv response-figures")
 	w.KV("Stability", func() {

@@ -610,7 +610,7 @@ func TestCustomShareLink(t *testing.T) {
 	}
 	got := edValues(t, tab, "[data-circuit-editor]")
 	for k, v := range shown {
-		if again.Used != state.Used && (k == "fc" || k == "pm" || k == "gm") {
+		if again.Used != state.Used && (k == "fc" || k == "pm" || k == "gm" || k == "closure") {
 			continue // found on different sweep grids
 		}
 		if got[k] != v {
