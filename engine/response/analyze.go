@@ -155,7 +155,7 @@ func Analyze(sys *mna.System, source, outA, outB int, opt Options) (*Result, err
 	dir := newDirect(P, b, c)
 	poles := append([]complex128(nil), md.raw...)
 	if dir.refine(poles) == maxRefine {
-		note("Some natural frequencies did not settle to full precision (a multiple or nearly multiple pole): they are good to about %s.", "six digits")
+		note("Some natural frequencies did not settle to full precision: a multiple or nearly multiple pole is found only to about eight digits.")
 	}
 	order(poles)
 
@@ -166,14 +166,13 @@ func Analyze(sys *mna.System, source, outA, outB int, opt Options) (*Result, err
 	}
 	x := make([]complex128, md.m)
 	y := make([]complex128, md.m)
-	viaModel := func(s complex128, slope *complex128) complex128 {
+	gain := func(s complex128, slope *complex128) complex128 {
 		v := md.at(s, x)
 		if slope != nil {
 			*slope = md.slope(s, x, y)
 		}
 		return v
 	}
-	gain := viaModel
 	// The model against the nodal solution, relative to the largest |g|
 	// met: an improper gain (which the model cannot hold) shows as a
 	// difference as large as the gain itself at the highest frequency.
@@ -282,7 +281,7 @@ func Analyze(sys *mna.System, source, outA, outB int, opt Options) (*Result, err
 		r.Overshoot, r.Rise10, r.Rise90, r.RiseTime, r.Settling1, r.Settling01 = 0, 0, 0, 0, 0, 0
 		note("No natural frequencies: the gain is the same at every frequency, and the step is a step.")
 	} else if math.Abs(g0) <= 1e-9*scale {
-		note("The gain at DC is zero (a band-pass or high-pass gain), so the step returns to 0: overshoot, rise and settling, measured against the final value, do not apply. The step's largest excursion is %s at %s.", value.Format(extreme(r.Step), "", 4), value.Format(r.Time[argExtreme(r.Step)], "s", 4))
+		note("The gain at DC is zero (a band-pass or high-pass gain), so the step returns to 0: overshoot, rise and settling, measured against the final value, do not apply. The step's largest excursion is %.4g at %s.", extreme(r.Step), value.Format(r.Time[argExtreme(r.Step)], "s", 4))
 	} else {
 		span := autoTo
 		var f figures

@@ -27,8 +27,6 @@ type model struct {
 	a    []float64 // m×m, row-major
 	b, c []float64
 	d    float64
-	// sigma is the shift the model was built with.
-	sigma float64
 	// raw are the natural frequencies read off A's diagonal blocks,
 	// before refinement; conjugate pairs are adjacent, upper first.
 	raw []complex128
@@ -65,7 +63,7 @@ const infinite = 1e-9
 func realize(P *mna.Pencil, bvec, cvec []float64, sigma float64) (*model, error) {
 	n := P.N
 	if n == 0 {
-		return &model{sigma: sigma}, nil
+		return &model{}, nil
 	}
 	// F = G + σC, equilibrated: rows then columns scaled to largest entry
 	// 1 by powers of two (exact), so that F⁻¹ is as accurate as the
@@ -187,7 +185,7 @@ func realize(P *mna.Pencil, bvec, cvec []float64, sigma float64) (*model, error)
 			gamma[i] += Q[k*n+i] * ct[k]
 		}
 	}
-	md := &model{m: m, sigma: sigma, raw: raw}
+	md := &model{m: m, raw: raw}
 	at := func(i, j int) float64 { return T[i*n+j] }
 
 	// W = T11⁻¹, with the block structure of T11 kept exactly.
