@@ -131,6 +131,11 @@ type Result struct {
 // Analyze computes the response of the gain from the independent source
 // part to the node pair (outA, outB) of the system sys, all gains on.
 func Analyze(sys *mna.System, source, outA, outB int, opt Options) (*Result, error) {
+	// sys.N counts every unknown but the op-amp states: refuse before
+	// the pencil's N² entries are even allocated.
+	if sys.N > MaxUnknowns {
+		return nil, fmt.Errorf("the circuit has %d unknowns; the closed-loop response is computed for up to %d, so the page stays responsive", sys.N, MaxUnknowns)
+	}
 	P := sys.Pencil()
 	if P.N > MaxUnknowns {
 		return nil, fmt.Errorf("the circuit has %d unknowns with its amplifiers' poles; the closed-loop response is computed for up to %d, so the page stays responsive", P.N, MaxUnknowns)
