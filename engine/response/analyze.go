@@ -271,14 +271,15 @@ func Analyze(sys *mna.System, source, outA, outB int, opt Options) (*Result, err
 
 	// The figures, on a grid of their own that reaches the 0.1 % band,
 	// evaluated by the modes where they reproduce the exact samples.
-	at, slope := fr.at, fr.slope
+	ev := evaluator{fr.series, fr.at, fr.slope}
 	scale := 0.0
 	for _, v := range r.Step {
 		scale = math.Max(scale, math.Abs(v))
 	}
-	for k, t := range r.Time {
-		if math.Abs(fr.at(t)-r.Step[k]) > 1e-9*math.Max(scale, math.Abs(g0)) {
-			at, slope = md.stepAt, md.slopeAt // repeated poles: the modes' sum loses digits
+	for k, v := range fr.series(h, r.Points) {
+		if math.Abs(v-r.Step[k]) > 1e-9*math.Max(scale, math.Abs(g0)) {
+			// Repeated poles: the modes' sum loses digits.
+			ev = evaluator{md.series, md.stepAt, md.slopeAt}
 			break
 		}
 	}
@@ -291,7 +292,7 @@ func Analyze(sys *mna.System, source, outA, outB int, opt Options) (*Result, err
 		span := autoTo
 		var f figures
 		for try := 0; try < 4; try++ {
-			f = measure(at, slope, g0, span, figurePoints(span, r.Poles))
+			f = measure(ev, g0, span, figurePoints(span, r.Poles))
 			if f.complete {
 				break
 			}
