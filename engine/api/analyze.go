@@ -309,6 +309,7 @@ func (p *Prepared) Run() (*Response, error) {
 		}
 		m := feedback.Margins(grid, T, a.ReturnRatio)
 		resp.Margins = margins(m)
+		p.loopViews(resp.Sweep, resp.Margins)
 		notes = append(notes, feedback.Notes(pts)...)
 	}
 	seen := map[string]bool{}

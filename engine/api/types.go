@@ -249,6 +249,14 @@ type Margins struct {
 	// "unstable"; VerdictDetail says why in a sentence.
 	Verdict       string `json:"verdict"`
 	VerdictDetail string `json:"verdictDetail"`
+
+	// The loop views, beside the sweep (see loopviews.go): OpenLoop is
+	// the reference element's own gain A(f) (an opamp's a(f), a
+	// controlled source's constant), NoiseGain is A/T, the 1/β the loop
+	// sees, and Closure their rate of closure at the governing crossover.
+	OpenLoop  []*Complex `json:"openLoop"`
+	NoiseGain []*Complex `json:"noiseGain"`
+	Closure   *Closure   `json:"closure"`
 }
 
 // Crossover is one unity-gain crossing of |T|.

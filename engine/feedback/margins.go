@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+
 	"zport/engine/numeric"
 )
 
@@ -206,35 +207,7 @@ func refine(fa, fb, ga, gb float64, g func(f float64) (float64, bool)) float64 {
 	if gb == 0 {
 		return fb
 	}
-	xa, xb := math.Log(fa), math.Log(fb)
-	side := 0
-	for iter := 0; iter < 100; iter++ {
-		x := (xa*gb - xb*ga) / (gb - ga)
-		if !(x > math.Min(xa, xb) && x < math.Max(xa, xb)) {
-			x = (xa + xb) / 2
-		}
-		gx, ok := g(math.Exp(x))
-		if !ok {
-			return math.Exp(x)
-		}
-		if gx == 0 || math.Abs(xb-xa) < 1e-14*math.Max(1, math.Abs(x)) {
-			return math.Exp(x)
-		}
-		if (gx > 0) == (gb > 0) {
-			xb, gb = x, gx
-			if side == -1 {
-				ga /= 2
-			}
-			side = -1
-		} else {
-			xa, ga = x, gx
-			if side == 1 {
-				gb /= 2
-			}
-			side = 1
-		}
-	}
-	return math.Exp((xa + xb) / 2)
+	return math.Exp(numeric.Root(math.Log(fa), math.Log(fb), ga, gb, func(x float64) (float64, bool) { return g(math.Exp(x)) }))
 }
 
 func fmtC(z complex128) string {

@@ -16,6 +16,7 @@ func init() {
 		&ports,
 		&gain,
 		&loop,
+		&closedLoop,
 		&designValues,
 		&devices,
 		&engineNotes,

@@ -1,7 +1,9 @@
 package calc
 
 import (
+	"slices"
 	"testing"
+	"time"
 
 	"zport/engine/api"
 	"zport/site/view"
@@ -114,5 +116,39 @@ func BenchmarkCompute400Pins4Fresh(b *testing.B) {
 		if out := Compute(f); out.Error != nil {
 			b.Fatal(out.Error)
 		}
+	}
+}
+
+// BenchmarkResponseCost is one calculator update of every catalog stage
+// at its defaults, alternately with the closed-loop response section (the
+// stage pages' default) and without it, one after the other in the same
+// loop so that both see the same machine: it reports each one's time per
+// update and their ratio, the cost the section adds to a recompute.
+// Compare medians over several runs with benchstat.
+func BenchmarkResponseCost(b *testing.B) {
+	without := slices.DeleteFunc(slices.Clone(Analyses), func(a *Analysis) bool { return a == &closedLoop })
+	with := Analyses
+	defer func() { Analyses = with }()
+	for _, e := range api.Catalog() {
+		f := Form{Topology: e.ID, ID: "c"}
+		b.Run(e.ID, func(b *testing.B) {
+			var spent [2]time.Duration
+			n := 0
+			for b.Loop() {
+				for k, list := range [][]*Analysis{with, without} {
+					Analyses = list
+					t0 := time.Now()
+					if out := Compute(f); out.Error != nil {
+						b.Fatal(out.Error)
+					}
+					spent[k] += time.Since(t0)
+				}
+				n++
+			}
+			Analyses = with
+			b.ReportMetric(float64(spent[0].Nanoseconds())/float64(n), "ns-with/op")
+			b.ReportMetric(float64(spent[1].Nanoseconds())/float64(n), "ns-without/op")
+			b.ReportMetric(float64(spent[0])/float64(spent[1]), "with/without")
+		})
 	}
 }

@@ -58,7 +58,7 @@ func TestCSVRoundTrip(t *testing.T) {
 			t.Fatalf("columns %q do not lead up to %q", head[i-3:i], h)
 		}
 		db := i+1 < len(head) && head[i+1] == base+"_dB"
-		if strings.HasPrefix(base, "gain.") || base == "T" || strings.HasSuffix(base, ".tShort") || strings.HasSuffix(base, ".tOpen") {
+		if strings.HasPrefix(base, "gain.") || base == "T" || base == "A" || base == "noiseGain" || strings.HasSuffix(base, ".tShort") || strings.HasSuffix(base, ".tOpen") {
 			if !db {
 				t.Errorf("ratio %s has no dB column", base)
 			}
@@ -93,8 +93,10 @@ func TestCSVRoundTrip(t *testing.T) {
 			}
 		}
 	}
-	if complexCols != 3*5+4+1 {
-		t.Errorf("%d complex quantities in the CSV, want 20", complexCols)
+	// Three ports of five terms, the gain's four, and the loop's T, A
+	// (the op amp's open-loop gain) and the noise gain A/T.
+	if complexCols != 3*5+4+3 {
+		t.Errorf("%d complex quantities in the CSV, want 22", complexCols)
 	}
 	for _, want := range []string{
 		"# stage: Inverting amplifier (inverting)\r\n",

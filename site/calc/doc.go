@@ -88,7 +88,14 @@
 //	per port   z0 tShort tOpen z zDirect (complex), agreement (real),
 //	           y (complex, the admittance, only where z is not finite)
 //	gain       g0 gInf g gDirect (complex), gainAgreement (real)
-//	loop       T (complex), fc (Hz), pm (degrees), gm (dB), verdict (text)
+//	loop       T (complex), fc (Hz), pm (degrees), gm (dB), verdict (text),
+//	           closure (dB/decade), closureVerdict (text)
+//	response   stability (text), final, overshoot (%), peakTime (s),
+//	           riseTime, settling1, settling01 (s), referenceGain,
+//	           referenceFrequency (Hz), peaking (dB), peakingFrequency,
+//	           bandwidth, lowerCorner (Hz); per natural frequency, with
+//	           data-pole (its index in the engine's poles): poleFrequency
+//	           (Hz), poleQ, poleZeta, pole (complex, rad/s), poleWeight
 //	extras     extra, with data-name (real, in the extra's own unit)
 //
 // A comparison with the pins carries, on each number, data-compare (the

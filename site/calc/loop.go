@@ -1,6 +1,9 @@
 package calc
 
 import (
+	"math"
+	"math/cmplx"
+
 	"zport/engine/api"
 	"zport/engine/value"
 	"zport/site/plot"
@@ -58,6 +61,13 @@ func loopSection(w *view.Writer, c *Context) {
 				w.Elem("span", m.VerdictDetail, "class", "detail")
 			}
 		})
+		if cl := m.Closure; cl != nil {
+			w.KV("Rate of closure", func() {
+				w.Elem("span", view.PlainN(cl.Rate, 3)+" dB/decade", "data-quantity", "closure", "data-value", view.Num(cl.Rate))
+				w.Text(" between |A| of " + r.Reference + " (" + slope(cl.OpenLoopSlope) + ") and 1/β (" + slope(cl.NoiseGainSlope) + "): ")
+				w.Elem("strong", cl.Verdict, "class", closureClass(cl.Verdict), "data-quantity", "closureVerdict")
+			})
+		}
 		if len(m.Crossovers) > 1 {
 			w.KV("All crossovers", func() {
 				w.Open("ul", "class", "inline-list")
@@ -86,12 +96,20 @@ func loopSection(w *view.Writer, c *Context) {
 		w.Open("p", "class", "targets")
 		w.Text("Targets: a phase margin of at least 45°, and about 60° for a well-damped step response, are ")
 		w.Elem("em", "common practice")
-		w.Text(" rather than a published rule. Phase margin is 180° + ∠T at the crossover, with the phase of T followed continuously from the lowest frequency of the sweep; gain margin is −20·log₁₀|T| where that phase reaches −180°.")
+		w.Text(" rather than a published rule. Phase margin is 180° + ∠T at the crossover, with the phase of T followed continuously from the lowest frequency of the sweep; gain margin is −20·log₁₀|T| where that phase reaches −180°. The rate of closure is how steeply |A| and 1/β = |A/T| approach each other where they meet: about 20 dB/decade is safe, about 40 marginal (")
+		w.Elem("em", "common practice")
+		w.Text(").")
 		w.Close("p")
 	}
 	if s := r.Sweep; s != nil && len(s.Frequency) > 0 {
 		b := loopChart(c)
-		w.Figures(b.SVG())
+		views := []string{b.SVG()}
+		if m := r.Margins; m != nil && len(m.OpenLoop) == len(s.Frequency) {
+			g := gainVsBeta(c)
+			n := nyquistChart(c)
+			views = append(views, g.SVG(), n.SVG())
+		}
+		w.Figures(views...)
 	}
 	w.Close("section")
 }
@@ -135,10 +153,90 @@ func loopChart(c *Context) plot.Bode {
 	return b
 }
 
+// slope writes a magnitude's slope in dB/decade with its sign.
+func slope(x float64) string {
+	s := view.PlainN(x, 2)
+	if x > 0 {
+		s = "+" + s
+	}
+	return s + " dB/decade"
+}
+
+// closureClass maps the closure verdicts onto the panel's styles.
+func closureClass(v string) string {
+	switch v {
+	case "safe":
+		return "verdict ok"
+	case "marginal":
+		return "verdict low"
+	}
+	return "verdict bad"
+}
+
+// gainVsBeta is the reference's own gain |A| against 1/β = |A/T| over the
+// sweep: they meet at the crossover, and the angle between them there is
+// the rate of closure.
+func gainVsBeta(c *Context) plot.Bode {
+	r := c.Resp
+	s, m := r.Sweep, r.Margins
+	b := plot.Bode{
+		ID:      c.ID + "-plot-beta",
+		Title:   "Open-loop gain of " + r.Reference + " against 1/β (noise gain)",
+		Freq:    s.Frequency,
+		MagUnit: "dB",
+		Traces: []plot.Trace{
+			{Name: "|A| of " + r.Reference, Class: "t", Values: view.Values(m.OpenLoop)},
+			{Name: "1/β = |A/T|", Class: "g", Values: view.Values(m.NoiseGain), Dashed: true},
+		},
+		NoPhase: true,
+		NoStyle: true,
+	}
+	b.Traces = append(b.Traces, c.BodePins("1/β", func(r *api.Response) []*api.Complex {
+		if r.Margins == nil {
+			return nil
+		}
+		return r.Margins.NoiseGain
+	})...)
+	b.Width, b.Height = c.ChartSize(640, 320)
+	if cl := m.Closure; cl != nil {
+		b.Markers = append(b.Markers, plot.Marker{Freq: cl.Frequency,
+			Label: "crossover " + value.Format(cl.Frequency, "Hz", 3) + ", closure " + view.PlainN(cl.Rate, 2) + " dB/decade", Class: "crossover"})
+	}
+	return b
+}
+
+// nyquistChart is T over the sweep on the compressed polar plane, with the
+// phase-margin and gain-margin points.
+func nyquistChart(c *Context) plot.Nyquist {
+	r := c.Resp
+	s, m := r.Sweep, r.Margins
+	n := plot.Nyquist{
+		ID:      c.ID + "-plot-nyquist",
+		Title:   "Nyquist plot of T of " + r.Reference + ", " + value.Format(s.Frequency[0], "Hz", 3) + " to " + value.Format(s.Frequency[len(s.Frequency)-1], "Hz", 3),
+		Name:    "T of " + r.Reference,
+		Freq:    s.Frequency,
+		T:       view.Values(s.ReturnRatio),
+		NoStyle: true,
+	}
+	n.Width, _ = c.ChartSize(640, 0)
+	for _, x := range m.Crossovers {
+		a := (x.PhaseMargin - 180) * math.Pi / 180
+		n.Points = append(n.Points, plot.Point{Value: cmplx.Rect(1, a), Label: "PM " + view.Degrees(x.PhaseMargin), Class: "pm"})
+	}
+	for _, p := range m.PhaseCrossings {
+		n.Points = append(n.Points, plot.Point{Value: complex(-math.Pow(10, -p.GainMargin/20), 0), Label: "GM " + view.DB(p.GainMargin), Class: "gm"})
+	}
+	return n
+}
+
 func loopColumns(c *Context) []Column {
 	r := c.Resp
 	if s := r.Sweep; s != nil {
-		return []Column{{Name: "T", Complex: s.ReturnRatio}}
+		cols := []Column{{Name: "T", Complex: s.ReturnRatio}}
+		if m := r.Margins; m != nil && len(m.OpenLoop) == len(s.Frequency) {
+			cols = append(cols, Column{Name: "A", Complex: m.OpenLoop}, Column{Name: "noiseGain", Complex: m.NoiseGain})
+		}
+		return cols
 	}
 	return []Column{{Name: "T", Complex: []*api.Complex{r.ReturnRatio}}}
 }
@@ -164,6 +262,9 @@ func loopCopy(m *Markdown, c *Context) {
 			[]string{"Phase margin", opt(mg.PhaseMargin, "°")},
 			[]string{"Gain margin", opt(mg.GainMargin, "dB")},
 			[]string{"Verdict", MD(mg.Verdict)})
+		if cl := mg.Closure; cl != nil {
+			rows = append(rows, []string{"Rate of closure", view.PlainN(cl.Rate, 3) + " dB/decade (" + cl.Verdict + ")"})
+		}
 	}
 	m.Table([]string{"Loop", "Value"}, rows...)
 }

@@ -123,7 +123,7 @@ type edValue struct {
 const edValuesJS = `(function (root) {
   return Array.from(document.querySelectorAll(root + ' [data-role="results"] [data-quantity]')).map(function (e) {
     var d = e.dataset;
-    var key = d.quantity === 'extra' ? 'extra:' + d.name : d.quantity === 'device' ? 'device:' + d.part + '/' + d.name : (d.port ? d.port + '/' : '') + d.quantity;
+    var key = d.quantity === 'extra' ? 'extra:' + d.name : d.quantity === 'device' ? 'device:' + d.part + '/' + d.name : (d.port ? d.port + '/' : '') + (d.pole ? 'pole' + d.pole + '/' : '') + d.quantity;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true' };
   });
 })`
@@ -613,7 +613,7 @@ func TestCustomShareLink(t *testing.T) {
 	}
 	got := edValues(t, tab, "[data-circuit-editor]")
 	for k, v := range shown {
-		if again.Used != state.Used && (k == "fc" || k == "pm" || k == "gm") {
+		if again.Used != state.Used && (k == "fc" || k == "pm" || k == "gm" || k == "closure") {
 			continue // found on different sweep grids
 		}
 		if got[k] != v {

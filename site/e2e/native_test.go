@@ -62,6 +62,7 @@ func form(id string, in map[string]string) calc.Form {
 			case "sweep.points":
 				f.Sweep.Points = v
 			}
+		case setting(k, v, &f.Settings):
 		default:
 			f.Params[k] = v
 		}
@@ -82,11 +83,13 @@ func native(t *testing.T, id string, in map[string]string) *api.Response {
 		}
 		return v
 	}
+	settings := map[string]calc.Values{}
 	for k, v := range in {
-		if k != "frequency" && !strings.HasPrefix(k, "sweep.") {
+		if k != "frequency" && !strings.HasPrefix(k, "sweep.") && !setting(k, v, &settings) {
 			req.Params[k] = v
 		}
 	}
+	askAnalyses(t, id, &req, settings)
 	req.Frequency = parse("frequency")
 	pts, err := strconv.Atoi(strings.TrimSpace(in["sweep.points"]))
 	if err != nil {
@@ -119,7 +122,7 @@ func shownValues(t *testing.T, ctx context.Context, id string) []shown {
     var d = e.dataset, key;
     if (d.quantity === 'extra') key = 'extra:' + d.name;
     else if (d.quantity === 'device') key = 'device:' + d.part + '/' + d.name;
-    else if (d.quantity) key = (d.port ? d.port + '/' : '') + d.quantity;
+    else if (d.quantity) key = (d.port ? d.port + '/' : '') + (d.pole ? 'pole' + d.pole + '/' : '') + d.quantity;
     else key = 'closed:' + (d.port ? d.port + '/' : '') + d.closedForm;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true', text: e.textContent };
   });
@@ -132,8 +135,9 @@ type want struct {
 	z    *api.Complex
 	x    *float64
 	text *string
-	abs  bool // compare absolutely (a relative difference, itself near rounding)
-	kind byte // 'z', 'x' or 't'
+	abs  bool    // compare absolutely (a relative difference, itself near rounding)
+	tol  float64 // the tolerance when not relTol
+	kind byte    // 'z', 'x' or 't'
 }
 
 // expected lists what the page must show for resp, by the keys of shown.
@@ -170,6 +174,7 @@ func expected(resp *api.Response) map[string]want {
 	for k, v := range deviceValues(resp) {
 		x(k, v, false)
 	}
+	expectAnalyses(resp, w)
 	if top := resp.Topology; top != nil {
 		for _, e := range top.Extras {
 			x("extra:"+e.Name, e.Value, false)
@@ -312,11 +317,15 @@ func compareOne(s shown, w want) string {
 		if s.Null || !ok {
 			return fmt.Sprintf("shows no number (%q), native %v", s.Value, *w.x)
 		}
+		tol := relTol
+		if w.tol > 0 {
+			tol = w.tol
+		}
 		if w.abs {
-			if !scalar.EqualWithinAbs(v, *w.x, relTol) {
+			if !scalar.EqualWithinAbs(v, *w.x, tol) {
 				return fmt.Sprintf("page %v, native %v", v, *w.x)
 			}
-		} else if !scalar.EqualWithinRel(v, *w.x, relTol) {
+		} else if !scalar.EqualWithinRel(v, *w.x, tol) {
 			return fmt.Sprintf("page %v, native %v (relative difference %.3g)", v, *w.x, math.Abs(v-*w.x)/math.Max(math.Abs(v), math.Abs(*w.x)))
 		}
 	}
@@ -327,6 +336,7 @@ func compareOne(s shown, w want) string {
 type chart struct {
 	ID     string            `json:"id"`
 	Freq   string            `json:"freq"`
+	Time   string            `json:"time"`   // a time chart's times, instead of Freq
 	Traces map[string]string `json:"traces"` // data-name → data-values
 }
 
@@ -338,7 +348,7 @@ func charts(t *testing.T, ctx context.Context, id string) []chart {
   return Array.from(root.querySelectorAll('svg.zplot')).map(function (s) {
     var tr = {};
     s.querySelectorAll('path[data-values]').forEach(function (p) { tr[p.getAttribute('data-name')] = p.getAttribute('data-values'); });
-    return { id: s.id, freq: s.getAttribute('data-freq') || '', traces: tr };
+    return { id: s.id, freq: s.getAttribute('data-freq') || s.getAttribute('data-nyquist') || '', time: s.getAttribute('data-time') || '', traces: tr };
   });
 })()`)
 }
@@ -366,9 +376,16 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 	if s.Gain != nil && resp.Gain != nil {
 		exp = append(exp, series{prefix + "gain", "g", s.Gain.G}, series{prefix + "gain", "g∞ (ideal)", s.Gain.GInf})
 	}
+	for _, l := range loopViewSeries(prefix, resp) {
+		exp = append(exp, series(l))
+	}
 	byID := map[string]chart{}
 	var bad []string
+	bad = append(bad, compareStepChart(prefix, got, resp)...)
 	for _, c := range got {
+		if c.Time != "" {
+			continue // the step chart, compared above
+		}
 		byID[c.ID] = c
 		f := strings.Fields(c.Freq)
 		if len(f) != len(s.Frequency) {
@@ -388,6 +405,9 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 		want[e.chart]++
 	}
 	for _, c := range got {
+		if c.Time != "" {
+			continue
+		}
 		if want[c.ID] == 0 {
 			bad = append(bad, "chart "+c.ID+" is not one the native response has")
 		} else if len(c.Traces) != want[c.ID] {

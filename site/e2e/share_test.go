@@ -212,5 +212,10 @@ func defaultInputs(e api.CatalogEntry) map[string]string {
 	for k, v := range d.Params {
 		m[k] = v
 	}
+	for _, a := range calc.Analyses {
+		for _, s := range a.Settings {
+			m[a.Field(s.Name)] = s.Default
+		}
+	}
 	return m
 }

@@ -1,7 +1,10 @@
-// Package plot draws the charts of frequency-domain results as SVG: a
-// two-panel Bode chart (magnitude over phase on a shared log frequency
-// axis), a histogram (linear or log x axis) and a horizontal bar chart of
-// signed values (Bars, for rankings such as sensitivities). The same code
+// Package plot draws the charts of the results as SVG: a two-panel Bode
+// chart (magnitude over phase on a shared log frequency axis, or the
+// magnitude alone with NoPhase), a Time chart (values against time on
+// linear axes, for a step response), a Nyquist chart (a return ratio on
+// the complex plane with a compressed radius; see NyquistRadius), a
+// histogram (linear or log x axis) and a horizontal bar chart of signed
+// values (Bars, for rankings such as sensitivities). The same code
 // runs when the site is built, to put pre-rendered charts into static
 // pages, and inside the WebAssembly engine, to redraw them as a user edits
 // values, so it uses only the standard library and zport/engine/value,
@@ -58,13 +61,27 @@
 // # Hover readout
 //
 // site/assets/plothover.js adds a cursor and readout to every svg.zplot
-// with a data-freq attribute. The contract between the two: the root
+// with a data-freq (Bode), data-time (Time) or data-nyquist (Nyquist)
+// attribute. The contract between the two, for a Bode chart: the root
 // carries data-freq (the frequencies, NaN where skipped), data-fmin and
 // data-fmax (the axis ends, Hz), data-x0 and data-x1 (the plot area's
 // horizontal extent in SVG pixels), data-my and data-py ("top bottom lo hi":
 // each panel's vertical extent and the axis coordinates at its bottom and
-// top: log10|v| or dB for magnitude, degrees for phase), data-mscale ("log"
-// or "db") and data-unit. Each trace's magnitude path carries data-name and
-// data-values: pairs "|v| phase" per frequency, |v| to 6 significant digits
-// and the unwrapped phase in degrees to 0.01°, NaN for a gap.
+// top: log10|v| or dB for magnitude, degrees for phase; data-py is absent
+// without a phase panel), data-mscale ("log" or "db") and data-unit. Each
+// trace's magnitude path carries data-name and data-values: pairs
+// "|v| phase" per frequency, |v| to 6 significant digits and the unwrapped
+// phase in degrees to 0.01°, NaN for a gap.
+//
+// A Time chart's root carries data-time (the times, s), data-tmin and
+// data-tmax (the axis ends), data-x0 and data-x1, data-y ("top bottom lo
+// hi" of the value axis) and data-unit; each trace's path data-name and
+// data-values, one value per time. A Nyquist chart's root carries
+// data-nyquist (the frequencies), data-cx, data-cy and data-r (the centre
+// and radius in SVG pixels) and data-floor and data-ceil (the constants of
+// the radius compression); its curve's path data-name and data-values,
+// pairs "|T| phase" as on a Bode chart (the phase not unwrapped). The
+// readout shows the frequency or time and each trace's value at the point
+// nearest the pointer (on a Nyquist chart, nearest in the plane), and the
+// arrow keys step through the points.
 package plot

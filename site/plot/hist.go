@@ -251,18 +251,7 @@ func engTicks(lo, hi, px float64, unit string) []tick {
 		widest := 0.0
 		for i := math.Ceil(lo/step - eps); i*step <= hi+eps*step && len(ticks) <= n+2; i++ {
 			v := i * step
-			sig := 1
-			if math.Abs(v) < step*eps {
-				v = 0
-			} else {
-				// Digits down to the step's: 4.65 kΩ for a 10 Ω step.
-				sig = int(math.Floor(math.Log10(math.Abs(v))+eps)-math.Floor(math.Log10(step)+eps)) + 1
-				sig = min(max(sig, 1), 6)
-			}
-			t := tick{pos: v, label: value.Format(v, unit, sig), major: true}
-			if unit == "°" { // an angle takes no SI prefix: 0.25°, not 250 m°
-				t.label = linLabel(v, step) + "°"
-			}
+			t := tick{pos: v, label: engLabel(v, step, unit), major: true}
 			widest = max(widest, textWidth(t.label, fontPx))
 			ticks = append(ticks, t)
 		}
@@ -271,6 +260,24 @@ func engTicks(lo, hi, px float64, unit string) []tick {
 		}
 	}
 	return ticks
+}
+
+// engLabel writes the tick value v of a linear axis with the given step,
+// by value.Format in unit with the digits the step needs (4.65 kΩ for a
+// 10 Ω step); an angle takes no SI prefix (0.25°, not 250 m°).
+func engLabel(v, step float64, unit string) string {
+	if math.Abs(v) < step*eps {
+		v = 0
+	}
+	if unit == "°" {
+		return linLabel(v, step) + "°"
+	}
+	sig := 1
+	if v != 0 {
+		sig = int(math.Floor(math.Log10(math.Abs(v))+eps)-math.Floor(math.Log10(step)+eps)) + 1
+		sig = min(max(sig, 1), 6)
+	}
+	return value.Format(v, unit, sig)
 }
 
 // describe writes the text of the histogram's <desc>.
@@ -296,12 +303,6 @@ func (h *Histogram) describe(problem string, total, fullest int) string {
 		b = strconv.AppendInt(b, int64(h.Counts[fullest]), 10)
 	}
 	b = append(b, '.')
-	for _, m := range h.Markers {
-		if m.Label != "" {
-			b = append(b, " Marker: "...)
-			b = append(b, m.Label...)
-			b = append(b, '.')
-		}
-	}
+	b = appendLabels(b, " Marker: ", len(h.Markers), func(i int) string { return h.Markers[i].Label })
 	return string(b)
 }

@@ -47,6 +47,10 @@ const CSS = `.zplot{font-family:system-ui,sans-serif;font-size:12px}` +
 	`.zplot .note{font-style:italic;fill-opacity:.7}` +
 	`.zplot .bar{fill:var(--zplot-bar,#2a6fb0);fill-opacity:.45;stroke:var(--zplot-bar,#2a6fb0);stroke-width:1px}` +
 	`.zplot .bar-neg{fill:var(--zplot-bar-neg,#cf6a22);stroke:var(--zplot-bar-neg,#cf6a22)}` +
+	`.zplot .point{fill:var(--zplot-marker,currentColor)}` +
+	`.zplot .point-pm{fill:var(--zplot-c3,#2e8c57)}` +
+	`.zplot .point-gm{fill:var(--zplot-c2,#cf6a22)}` +
+	`.zplot .minus-one{stroke:var(--zplot-c6,#c4456f)}` +
 	`.zplot:focus{outline:none}` +
 	`.zplot:focus-visible{outline:2px solid currentColor;outline-offset:2px}` +
 	`.zplot .zcur{pointer-events:none}` +
