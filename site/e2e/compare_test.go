@@ -117,7 +117,11 @@ func samePinTables(t *testing.T, what string, got, want pinTable) {
 		t.Fatalf("%s: the native panel has no comparison (%d cells, %d traces)", what, len(want.Cells), len(want.Traces))
 	}
 	for k, v := range want.Cells {
-		if !sameNumbers(got.Cells[k], v) {
+		tol := relTol
+		if strings.HasPrefix(k, "response/") {
+			tol = respTol
+		}
+		if !sameNumbers(got.Cells[k], v, tol) {
 			t.Errorf("%s: comparison %s reads %q, want %q", what, k, got.Cells[k], v)
 		}
 	}
@@ -125,7 +129,11 @@ func samePinTables(t *testing.T, what string, got, want pinTable) {
 		t.Errorf("%s: %d comparison values on the page, %d natively", what, len(got.Cells), len(want.Cells))
 	}
 	for k, v := range want.Traces {
-		if !sameNumbers(got.Traces[k], v) {
+		tol := relTol
+		if strings.Contains(k, "-plot-step/") {
+			tol = respTol // a float64 step from the pencil (see respTol)
+		}
+		if !sameVector(got.Traces[k], v, tol) {
 			t.Errorf("%s: pinned trace %s differs from the native engine's", what, k)
 		}
 	}
@@ -135,9 +143,9 @@ func samePinTables(t *testing.T, what string, got, want pinTable) {
 }
 
 // sameNumbers reports whether two texts are the same but for numbers
-// within relTol of each other: the page's engine is WebAssembly, whose math
-// functions may differ from amd64's in the last bit.
-func sameNumbers(a, b string) bool {
+// within tol of each other, relatively: the page's engine is WebAssembly,
+// whose math functions may differ from amd64's in the last bit.
+func sameNumbers(a, b string, tol float64) bool {
 	if a == b {
 		return true
 	}
@@ -154,7 +162,45 @@ func sameNumbers(a, b string) bool {
 		}
 		x, err1 := strconv.ParseFloat(fa[i], 64)
 		y, err2 := strconv.ParseFloat(fb[i], 64)
-		if err1 != nil || err2 != nil || math.Abs(x-y) > relTol*math.Max(math.Abs(x), math.Abs(y)) {
+		if err1 != nil || err2 != nil || math.Abs(x-y) > tol*math.Max(math.Abs(x), math.Abs(y)) {
+			return false
+		}
+	}
+	return true
+}
+
+// sameVector reports whether two lists of numbers (a trace's values) agree
+// to tol of the larger one's largest magnitude: a trace through zero (a
+// step's start) is compared on its own scale, not point by point.
+func sameVector(a, b string, tol float64) bool {
+	if a == b {
+		return true
+	}
+	split := func(s string) []string {
+		return strings.FieldsFunc(s, func(r rune) bool { return r == ' ' || r == ',' || r == ';' })
+	}
+	fa, fb := split(a), split(b)
+	if len(fa) != len(fb) {
+		return false
+	}
+	xs, ys := make([]float64, len(fa)), make([]float64, len(fb))
+	scale := 0.0
+	for i := range fa {
+		var err1, err2 error
+		xs[i], err1 = strconv.ParseFloat(fa[i], 64)
+		ys[i], err2 = strconv.ParseFloat(fb[i], 64)
+		if err1 != nil || err2 != nil {
+			if fa[i] != fb[i] {
+				return false
+			}
+			xs[i], ys[i] = 0, 0
+		}
+		if !math.IsNaN(ys[i]) && !math.IsInf(ys[i], 0) {
+			scale = math.Max(scale, math.Abs(ys[i]))
+		}
+	}
+	for i := range xs {
+		if math.IsNaN(xs[i]) != math.IsNaN(ys[i]) || math.Abs(xs[i]-ys[i]) > tol*scale {
 			return false
 		}
 	}

@@ -303,7 +303,11 @@ func compareOne(s shown, w want) string {
 		if s.Null || !ok1 || !ok2 {
 			return fmt.Sprintf("shows no number (re %q, im %q), native %v", s.Re, s.Im, w.z.Value())
 		}
-		if g, n := complex(re, im), w.z.Value(); !cscalar.EqualWithinRel(g, n, relTol) {
+		tol := relTol
+		if w.tol > 0 {
+			tol = w.tol
+		}
+		if g, n := complex(re, im), w.z.Value(); !cscalar.EqualWithinRel(g, n, tol) {
 			return fmt.Sprintf("page %v, native %v (relative difference %.3g)", g, n, relDiff(g, n))
 		}
 	case 'x':
