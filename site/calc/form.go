@@ -130,10 +130,14 @@ func (f Form) withDefaults(e api.CatalogEntry) Form {
 // Syntax writes a frequency or count in the engine's value syntax with an
 // SI prefix: 1000 → "1k", 1e8 → "100M", 2.5e-3 → "2.5m". It is how
 // defaults given as numbers appear in inputs, so it uses the fewest digits
-// that read back within 1e-14 of v.
+// that read back within 1e-14 of v. Below the smallest prefix (1 f) it
+// writes a decimal exponent, "1e-320", short enough for a share link.
 func Syntax(v float64) string {
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return "0"
+	}
+	if math.Abs(v) < 1e-15 {
+		return strconv.FormatFloat(v, 'g', -1, 64)
 	}
 	prefixes := []struct {
 		exp int
