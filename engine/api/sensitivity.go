@@ -104,7 +104,7 @@ func (p *Prepared) sensitivity(m *aids.Model, sr *SensitivityRequest) (*Sensitiv
 	}
 	res, err := aids.Sensitivities(m, params, sr.Step)
 	if err != nil {
-		return nil, &Problem{Msg: err.Error()}
+		return nil, &Problem{Msg: err.Error(), cause: err}
 	}
 	out := &SensitivityResult{Frequency: m.Frequency, Step: res.Step, Quantities: []SensitivityQuantity{}, Notes: append([]string{}, res.Notes...),
 		Method: "central differences of ln Q in ln p at steps 2h, h and h/2, Richardson-extrapolated; error = |R(h) − R(2h)|"}

@@ -234,7 +234,7 @@ func (p *Prepared) standardValues(m *aids.Model, sv *StandardValuesRequest) (*St
 	}
 	res, err := aids.Snap(m, opt)
 	if err != nil {
-		return nil, &Problem{Param: "standardValues", Msg: trimPkg(err)}
+		return nil, &Problem{Param: "standardValues", Msg: trimPkg(err), cause: err}
 	}
 	out := &StandardValuesResult{Frequency: m.Frequency, Series: rs.Name, CapacitorSeries: cs.Name,
 		Ratios: []RatioResult{}, Variants: []SnapVariant{}, Notes: append([]string{}, res.Notes...)}

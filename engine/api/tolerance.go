@@ -13,6 +13,7 @@ import (
 	"zport/engine/aids"
 	"zport/engine/circuit"
 	"zport/engine/eseries"
+	"zport/engine/feedback"
 	"zport/engine/value"
 )
 
@@ -196,13 +197,19 @@ type ToleranceRun struct {
 }
 
 // Tolerance is the "tolerance" analysis: a Monte Carlo spread and the
-// worst-case corners, run to the end.
+// worst-case corners, run to the end, or until the request's context
+// stops it between two corners or trials.
 var Tolerance = Register("tolerance", func(p *Prepared, q *ToleranceRequest, _ *Response) (*ToleranceResult, error) {
 	run, err := p.startTolerance(p.aidsModel(), q)
 	if err != nil {
 		return nil, err
 	}
-	run.Step(run.Total())
+	ctx := p.Context()
+	for done, total := run.Step(0); done < total; done, _ = run.Step(1) {
+		if err := ctx.Err(); err != nil {
+			return nil, &feedback.Stopped{Done: done, Total: total, Units: "corners and trials", Err: err}
+		}
+	}
 	return run.Result(), nil
 })
 
@@ -288,7 +295,7 @@ func (p *Prepared) startTolerance(m *aids.Model, tr *ToleranceRequest) (*Toleran
 	}
 	mc, err := aids.NewMonteCarlo(m, spreads, opt)
 	if err != nil {
-		return nil, &Problem{Msg: err.Error()}
+		return nil, &Problem{Msg: err.Error(), cause: err}
 	}
 	run := &ToleranceRun{mc: mc, m: m, bins: tr.Bins, parts: parts, reqs: tr.Targets}
 	for i, t := range tr.Targets {
