@@ -7,15 +7,13 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"strconv"
 	"strings"
-
-	"gonum.org/v1/gonum/floats"
 
 	"zport/engine/circuit"
 	"zport/engine/feedback"
 	"zport/engine/numeric"
 	"zport/engine/topology"
+	"zport/engine/value"
 )
 
 // MaxPoints bounds a sweep.
@@ -228,17 +226,17 @@ func resolvePort(c *circuit.Circuit, name string) (feedback.Port, error) {
 	a, b, pair := strings.Cut(name, ",")
 	ia, ok := c.Node(strings.TrimSpace(a))
 	if !ok {
-		return feedback.Port{}, fmt.Errorf("%q is neither a port nor a node of the circuit", name)
+		return feedback.Port{}, fmt.Errorf("%s is neither a port nor a node of the circuit", value.Quote(name))
 	}
 	ib := circuit.Gnd
 	if pair {
 		ib, ok = c.Node(strings.TrimSpace(b))
 		if !ok {
-			return feedback.Port{}, fmt.Errorf("node %q is not in the circuit", strings.TrimSpace(b))
+			return feedback.Port{}, fmt.Errorf("node %s is not in the circuit", value.Quote(strings.TrimSpace(b)))
 		}
 	}
 	if ia == ib {
-		return feedback.Port{}, fmt.Errorf("port %q has both ends on one node", name)
+		return feedback.Port{}, fmt.Errorf("port %s has both ends on one node", value.Quote(name))
 	}
 	return feedback.Port{Name: name, A: ia, B: ib}, nil
 }
@@ -246,7 +244,7 @@ func resolvePort(c *circuit.Circuit, name string) (feedback.Port, error) {
 func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
 	p, ok := c.Part(g.Source)
 	if !ok {
-		return nil, fieldErr("gain.source", "no source called %q (one of: %s)", g.Source, strings.Join(c.Sources(), ", "))
+		return nil, fieldErr("gain.source", "no source called %s (one of: %s)", value.Quote(g.Source), strings.Join(c.Sources(), ", "))
 	}
 	if p.Kind != circuit.VSource && p.Kind != circuit.ISource {
 		return nil, fieldErr("gain.source", "%q is a %s; a gain is taken from a vsource or an isource", g.Source, p.Kind)
@@ -260,16 +258,16 @@ func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
 	a, b, pair := strings.Cut(g.Output, ",")
 	ia, ok := c.Node(strings.TrimSpace(a))
 	if !ok {
-		return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(a))
+		return nil, fieldErr("gain.output", "no node called %s", value.Quote(strings.TrimSpace(a)))
 	}
 	ib := circuit.Gnd
 	if pair {
 		if ib, ok = c.Node(strings.TrimSpace(b)); !ok {
-			return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(b))
+			return nil, fieldErr("gain.output", "no node called %s", value.Quote(strings.TrimSpace(b)))
 		}
 	}
 	if ia == ib {
-		return nil, fieldErr("gain.output", "the output %q has both ends on one node", g.Output)
+		return nil, fieldErr("gain.output", "the output %s has both ends on one node", value.Quote(g.Output))
 	}
 	return &feedback.Gain{Source: src, OutA: ia, OutB: ib, SourceName: g.Source, OutputName: g.Output}, nil
 }
@@ -316,7 +314,7 @@ func (p *Prepared) RunContext(ctx context.Context) (*Response, error) {
 	var notes []string
 	notes = append(notes, pt.Notes...)
 	if s := p.Req.Sweep; s != nil {
-		grid := floats.LogSpan(make([]float64, s.Points), s.From, s.To)
+		grid := numeric.LogSpan(make([]float64, s.Points), s.From, s.To)
 		pts, err := a.SweepContext(ctx, grid)
 		if err != nil {
 			if p := stopProblem(err, "the sweep"); p != nil {
@@ -520,17 +518,7 @@ func decodeRequest(in []byte) (Request, error) {
 	}
 	if off := dec.InputOffset(); len(bytes.TrimSpace(in[off:])) > 0 {
 		rest := bytes.TrimSpace(in[off:])
-		return req, &Problem{Msg: fmt.Sprintf("request is not valid JSON for this contract: unexpected %s after the request object (at byte %d); send one request at a time", quoteStart(rest), len(in)-len(rest)+1)}
+		return req, &Problem{Msg: fmt.Sprintf("request is not valid JSON for this contract: unexpected %s after the request object (at byte %d); send one request at a time", value.Quote(string(rest)), len(in)-len(rest)+1)}
 	}
 	return req, nil
-}
-
-// quoteStart quotes the start of b for a message, cut with an ellipsis.
-func quoteStart(b []byte) string {
-	const keep = 24
-	r := []rune(string(b))
-	if len(r) > keep {
-		return strconv.Quote(string(r[:keep])) + "…"
-	}
-	return strconv.Quote(string(r))
 }
