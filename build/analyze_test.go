@@ -69,7 +69,7 @@ func TestAnalyzeCommandTrailingData(t *testing.T) {
 		code        int
 	}{
 		{`{"topology": "inverting", "frequency": 1000} {"garbage": ]]]`, `0:0: request is not valid JSON for this contract: unexpected "{\"garbage\": ]]]" after the request object (at byte 46)`, 1},
-		{`{"topology": "inverting", "frequency": 1000}{"topology": "follower", "frequency": 1}`, `0:0: request is not valid JSON for this contract: unexpected "{\"topology\": \"follower\","… after the request object (at byte 45)`, 1},
+		{`{"topology": "inverting", "frequency": 1000}{"topology": "follower", "frequency": 1}`, `0:0: request is not valid JSON for this contract: unexpected "{\"topology\": \"follower\", \"frequ"… after the request object (at byte 45)`, 1},
 		{`{"topology": "inverting", "frequency": 1000} x`, `0:0: request is not valid JSON for this contract: unexpected "x" after the request object (at byte 46)`, 1},
 		{"{\"topology\": \"inverting\", \"frequency\": 1000}\n\t \n", "", 0},
 	} {

@@ -9,6 +9,7 @@ import (
 
 	"zport/engine/circuit"
 	"zport/engine/mna"
+	"zport/engine/value"
 )
 
 // MaxNodes bounds the circuits analyzed, to keep a page responsive.
@@ -137,7 +138,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 		if reference == "" {
 			return nil, fmt.Errorf("no reference element given (%s)", candidates(c))
 		}
-		return nil, fmt.Errorf("reference %q: no part of that name (%s)", reference, candidates(c))
+		return nil, fmt.Errorf("reference %s: no part of that name (%s)", value.Quote(reference), candidates(c))
 	}
 	if !p.Kind.Controlled() {
 		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source or an opamp (%s)", reference, p.Kind, candidates(c))
