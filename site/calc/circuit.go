@@ -50,66 +50,6 @@ func (f Form) CircuitState() string {
 	return p.Encode()
 }
 
-// ReadCircuitFragment reads a URL fragment written by CircuitState (with
-// or without "#") over base: settings the fragment leaves out keep base's
-// values; port keys, when present, replace base's ports; src and out come
-// together. Like ReadFragment, it refuses the whole fragment when any part
-// of it is malformed or unknown, returning base unchanged. The keys p (the
-// single-file export's page) and c (the circuit text, read by the page's
-// script) are skipped.
-func ReadCircuitFragment(frag string, base Form) (Form, error) {
-	pairs, err := fragment.Parse(frag, fragment.Repeatable(keyPort), fragment.Skip(keyCircuit, keyPage))
-	if err != nil {
-		return base, err
-	}
-	f := base
-	settings := settingsRead{}
-	var ports []string
-	var src, out *string
-	for _, pr := range pairs {
-		k, v := pr.Key, pr.Value
-		switch k {
-		case keyPort:
-			if len(ports) == maxFragmentPorts {
-				return base, &fragment.Error{Key: k, Msg: "the link lists more than " + strconv.Itoa(maxFragmentPorts) + " ports"}
-			}
-			ports = append(ports, v)
-		case keyReference:
-			f.Reference = v
-		case keySource:
-			src = &v
-		case keyOutput:
-			out = &v
-		case keyFrequency:
-			f.Frequency = v
-		case keyFrom:
-			f.Sweep.From = v
-		case keyTo:
-			f.Sweep.To = v
-		case keyPoints:
-			f.Sweep.Points = v
-		default:
-			if !settings.read(k, v) {
-				return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for a circuit"}
-			}
-		}
-	}
-	if (src == nil) != (out == nil) {
-		return base, &fragment.Error{Msg: "the gain needs both “src” and “out”"}
-	}
-	if ports != nil {
-		f.Ports = ports
-	}
-	if src != nil {
-		f.Gain = nil
-		if *src != "" {
-			f.Gain = &api.GainSpec{Source: *src, Output: *out}
-		}
-	}
-	f.Settings = settings.over(base.Settings)
-	return f, nil
-}
-
 // CircuitLinkState is the circuit-form state that reproduces a topology's
 // analysis on the custom-circuit page: the topology's reference, ports and
 // gain, the response's spot frequency and its sweep. It is "" for a
@@ -172,6 +112,12 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 	if c == nil {
 		return out
 	}
+	if req.Fragment != nil {
+		// A link's settings stand on the circuit's defaults, not on what
+		// the page showed before: its choices are made afresh for the text.
+		req.Reference, req.Ports, req.Gain, req.Offered = "", nil, nil, &Offered{}
+		req.Frequency, req.Sweep, req.Settings = circuitDefaults.Frequency, circuitDefaults.Sweep, nil
+	}
 	f := req.Form.Fit(ins, req.Offered)
 	if len(ins.References) == 0 {
 		f.Circuit, f.Fragment = "", nil
@@ -180,18 +126,13 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 			"Blackman’s formula needs one as its reference element"}}
 		return out
 	}
+	var refused []Refusal
 	if f.Fragment != nil {
-		g, err := ReadCircuitFragment(*f.Fragment, f)
-		f.Fragment, g.Fragment = nil, nil
-		if err != nil {
-			f.Circuit = ""
-			out.Form = &f
-			out.Output = &Output{Error: &api.ErrorBody{Param: FieldFragment, Message: err.Error()}}
-			return out
-		}
-		f = g
+		f, refused = readLink(*f.Fragment, f, nil, c)
+		f.Fragment = nil
 	}
 	o := compute(f, c)
+	o.Refused, o.Notice = refused, LinkNotice(refused, true)
 	// The page has the text; echoing it twice would only make the answer
 	// longer (a pasted file is up to api.MaxCircuitBytes).
 	f.Circuit = ""

@@ -72,7 +72,6 @@ const (
 	FieldFrom      = "sweep.from"
 	FieldTo        = "sweep.to"
 	FieldPoints    = "sweep.points"
-	FieldFragment  = "fragment"
 )
 
 // fragment keys for the form's own fields; p is reserved for the
@@ -292,46 +291,4 @@ func (s settingsRead) over(base map[string]Values) map[string]Values {
 	}
 	maps.Copy(out, s)
 	return out
-}
-
-// ReadFragment reads a URL fragment (with or without "#") written by State
-// over base, a form of topology e: settings the fragment leaves out keep
-// base's values, except the analyses' settings, which the fragment
-// replaces whole when it has any. It refuses the whole fragment when any
-// part of it is malformed (see package fragment) or unknown, returning
-// base unchanged: the caller then keeps its defaults and says why.
-func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
-	base = base.withDefaults(e)
-	pairs, err := fragment.Parse(frag)
-	if err != nil {
-		return base, err
-	}
-	f := base
-	f.Params = maps.Clone(base.Params)
-	settings := settingsRead{}
-	known := make(map[string]bool, len(e.Params))
-	for _, p := range e.Params {
-		known[p.Name] = true
-	}
-	for _, pr := range pairs {
-		k, v := pr.Key, pr.Value
-		switch {
-		case k == keyPage:
-		case k == keyFrequency:
-			f.Frequency = v
-		case k == keyFrom:
-			f.Sweep.From = v
-		case k == keyTo:
-			f.Sweep.To = v
-		case k == keyPoints:
-			f.Sweep.Points = v
-		case known[k]:
-			f.Params[k] = v
-		case settings.read(k, v):
-		default:
-			return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for " + e.Title}
-		}
-	}
-	f.Settings = settings.over(base.Settings)
-	return f, nil
 }
