@@ -205,6 +205,7 @@
       self.edited = true;
       self.keepDraft();
       self.schedule();
+      self.el.dispatchEvent(new CustomEvent('zport:link', { detail: previous })); // the design aids' settings too
     });
   };
 

@@ -828,7 +828,9 @@
     var self = this;
     site.keepDraft(DRAFT, function () {
       var f = self.values();
-      return { text: f.circuit, form: f, previous: self.saved, hash: shown() ? site.fragment() : '' };
+      var text = f.circuit;
+      f.circuit = undefined; // kept once, as text
+      return { text: text, form: f, previous: self.saved, hash: shown() ? site.fragment() : '' };
     });
   };
 
@@ -873,7 +875,7 @@
       ready = Promise.resolve(null);
     } else if (parts.c !== null) {
       ready = site.decompress(parts.c, MAX_TEXT).then(function (text) {
-        if (text !== self.ta.value) self.keep('The link replaced your previous text.');
+        if (text !== self.ta.value) self.keep('The link replaced your circuit text; it is kept.');
         self.setText(text);
         self.fresh = true;
         self.preset = null;
@@ -964,7 +966,7 @@
   // choosing “Your own circuit” in the list of examples).
   Editor.prototype.offerPrevious = function (what) {
     var self = this;
-    site.offerRestore(el, (what ? what + ' ' : '') + 'Your previous text is kept.', 'Restore your previous text', function () {
+    site.offerRestore(el, what || 'Your previous circuit text is kept.', 'Restore your previous text', function () {
       self.restore();
     });
   };
@@ -972,7 +974,7 @@
   Editor.prototype.loadExample = function (id) {
     var ex = this.examples[id];
     if (!ex) return;
-    this.keep('Example loaded.');
+    this.keep('Example loaded; your circuit text is kept.');
     this.setText(ex.text);
     this.describe(ex);
     this.preset = ex.preset;
@@ -999,7 +1001,7 @@
       return;
     }
     file.text().then(function (text) {
-      self.keep('Opened ' + file.name + '.');
+      self.keep('Opened ' + file.name + '; your circuit text is kept.');
       self.setText(text);
       self.fresh = true;
       self.markExample(true);

@@ -66,6 +66,24 @@ func unknown(p fragment.Pair) Refusal {
 	return Refusal{Key: p.Key, Value: p.Value, Message: "this page has no such setting"}
 }
 
+// setAnalysisKey sets the spot frequency or a sweep field of a link's key
+// into f: false when k is none of them.
+func (f *Form) setAnalysisKey(k, v string) bool {
+	switch k {
+	case keyFrequency:
+		f.Frequency = v
+	case keyFrom:
+		f.Sweep.From = v
+	case keyTo:
+		f.Sweep.To = v
+	case keyPoints:
+		f.Sweep.Points = v
+	default:
+		return false
+	}
+	return true
+}
+
 // applyStage sets the settings of pairs into base, a form of stage e; a
 // key the stage does not know is refused.
 func applyStage(pairs fragment.Pairs, base Form, e api.CatalogEntry) (Form, []Refusal) {
@@ -83,14 +101,7 @@ func applyStage(pairs fragment.Pairs, base Form, e api.CatalogEntry) (Form, []Re
 	for _, pr := range pairs {
 		k, v := pr.Key, pr.Value
 		switch {
-		case k == keyFrequency:
-			f.Frequency = v
-		case k == keyFrom:
-			f.Sweep.From = v
-		case k == keyTo:
-			f.Sweep.To = v
-		case k == keyPoints:
-			f.Sweep.Points = v
+		case f.setAnalysisKey(k, v):
 		case known[k]:
 			f.Params[k] = v
 		case settings.read(k, v):
@@ -125,16 +136,8 @@ func applyCircuit(pairs fragment.Pairs, base Form) (Form, []Refusal) {
 			src = &pr
 		case keyOutput:
 			out = &pr
-		case keyFrequency:
-			f.Frequency = v
-		case keyFrom:
-			f.Sweep.From = v
-		case keyTo:
-			f.Sweep.To = v
-		case keyPoints:
-			f.Sweep.Points = v
 		default:
-			if !settings.read(k, v) {
+			if !f.setAnalysisKey(k, v) && !settings.read(k, v) {
 				refused = append(refused, unknown(pr))
 			}
 		}
