@@ -37,8 +37,15 @@ var Sources embed.FS
 
 // CSP is the Content-Security-Policy of every page of the multi-file site:
 // scripts, styles and images only from the page's own folder, and the
-// WebAssembly compile the engine needs. Images may also be data: URLs.
-const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; style-src 'self'; img-src 'self' data:; connect-src 'self'"
+// WebAssembly compile the engine needs. Images may also be data: URLs. No
+// plugins, no <base> to move relative links, and no form submission
+// anywhere (the calculators compute in the page). The single-file export
+// has the same policy, with hashes for its inline parts.
+const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; style-src 'self'; img-src 'self' data:; connect-src 'self'; " + cspLocks
+
+// cspLocks are the directives that default-src does not cover: plugins,
+// the document's base URL and form targets, all refused.
+const cspLocks = "object-src 'none'; base-uri 'none'; form-action 'none'"
 
 // Options configure a build.
 type Options struct {
@@ -466,7 +473,7 @@ func Single(opt Options) ([]byte, error) {
 		scriptHashes = append(scriptHashes, hash(s))
 	}
 	csp := "default-src 'self'; script-src " + strings.Join(scriptHashes, " ") +
-		" 'wasm-unsafe-eval'; style-src " + styleHash + "; img-src 'self' data:; connect-src 'self'"
+		" 'wasm-unsafe-eval'; style-src " + styleHash + "; img-src 'self' data:; connect-src 'self'; " + cspLocks
 
 	titles := map[string]string{}
 	conv := map[string]converted{}

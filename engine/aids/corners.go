@@ -65,6 +65,9 @@ func (c *corners) choose() error {
 	}
 	lo, hi := make([]float64, nq), make([]float64, nq)
 	for j, sp := range mc.spreads {
+		if err := mc.m.stopped(j, c.n, "parts moved to their limits"); err != nil {
+			return fmt.Errorf("choosing corners: %w", err)
+		}
 		for side, v := range []float64{sp.Lo, sp.Hi} {
 			copy(c.x, mc.nomX)
 			c.x[sp.Param] = v

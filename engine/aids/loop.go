@@ -47,23 +47,27 @@ const (
 )
 
 // newLoop reads the nominal margins of a over grid. It returns nil when the
-// loop has no unity crossing there.
-func newLoop(a *feedback.Analyzer, grid []float64) (*loop, feedback.MarginResult) {
+// loop has no unity crossing there, and an error only when m's Context
+// stopped the sweep.
+func newLoop(m *Model, a *feedback.Analyzer, grid []float64) (*loop, feedback.MarginResult, error) {
 	T := make([]complex128, len(grid))
 	for i, f := range grid {
+		if err := m.stopped(i, len(grid), "frequencies of the crossover search"); err != nil {
+			return nil, feedback.MarginResult{}, err
+		}
 		t, err := a.ReturnRatio(f)
 		if err != nil {
 			t = cmplx.NaN()
 		}
 		T[i] = t
 	}
-	m := feedback.Margins(grid, T, a.ReturnRatio)
-	if len(m.Crossovers) == 0 || math.IsNaN(m.Crossover) {
-		return nil, m
+	mr := feedback.Margins(grid, T, a.ReturnRatio)
+	if len(mr.Crossovers) == 0 || math.IsNaN(mr.Crossover) {
+		return nil, mr, nil
 	}
 	l := &loop{track: true}
 	const d = 0.01
-	for _, c := range m.Crossovers {
+	for _, c := range mr.Crossovers {
 		k := crossing{fc: c.F, phase: c.PhaseMargin - 180}
 		tp, errp := a.ReturnRatio(c.F * math.Exp(d))
 		tm, errm := a.ReturnRatio(c.F * math.Exp(-d))
@@ -81,7 +85,7 @@ func newLoop(a *feedback.Analyzer, grid []float64) (*loop, feedback.MarginResult
 	}
 	l.t = make([]complex128, len(l.coarse))
 	l.roots = make([]float64, len(l.cross))
-	return l, m
+	return l, mr, nil
 }
 
 // margin returns the governing phase margin (degrees) and crossover (Hz)

@@ -1,6 +1,7 @@
 package aids
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -96,6 +97,25 @@ type Model struct {
 	// it. The circuit it returns must have Circuit's nodes and parts in the
 	// same order.
 	Rebuild func(x []float64) (*circuit.Circuit, error)
+	// Context, when set, stops a long computation once it is done (a time
+	// budget, a cancel): the nominal loop's sweep, the choice of corners and
+	// the sensitivities check it between units of work and return a
+	// *feedback.Stopped error. A MonteCarlo runs in Steps, which its caller
+	// stops. It is a field because a Model is the description of one study,
+	// made for one request.
+	Context context.Context
+}
+
+// stopped reports the error of m's Context once it is done, nil before
+// (or without one): done of total units of work have run.
+func (m *Model) stopped(done, total int, units string) error {
+	if m.Context == nil {
+		return nil
+	}
+	if err := m.Context.Err(); err != nil {
+		return &feedback.Stopped{Done: done, Total: total, Units: units, Err: err}
+	}
+	return nil
 }
 
 // DefaultGrid is the crossover search grid used when a Model has none:

@@ -57,7 +57,9 @@ type SensitivityResult struct {
 // result is R(h); the error estimate is |R(h) − R(2h)|, which bounds the
 // truncation error of R(h) about fifteen times over and also shows the
 // rounding noise of the evaluations; to it is added what the values' own
-// error bounds can contribute. step is h; 0 means DefaultStep.
+// error bounds can contribute. step is h; 0 means DefaultStep. Once m's
+// Context is done it stops between parameters with a *feedback.Stopped
+// error.
 func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, error) {
 	if step == 0 {
 		step = DefaultStep
@@ -144,7 +146,10 @@ func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, er
 		plus[i], minus[i] = newSample(len(m.Ports)), newSample(len(m.Ports))
 	}
 	failed := 0
-	for _, j := range params {
+	for n, j := range params {
+		if err := m.stopped(n, len(params), "parameters"); err != nil {
+			return nil, err
+		}
 		p := m.Params[j]
 		ok := true
 		for i, k := range ks {

@@ -13,7 +13,7 @@ import (
 // circuit's variable numbers (or the stage's parameters), the ports and
 // gain of the request, at its spot frequency.
 func (p *Prepared) aidsModel() *aids.Model {
-	m := &aids.Model{Circuit: p.Circuit, Reference: p.Req.Reference, Gain: p.Analyzer.Gain, Frequency: p.Req.Frequency}
+	m := &aids.Model{Circuit: p.Circuit, Reference: p.Req.Reference, Gain: p.Analyzer.Gain, Frequency: p.Req.Frequency, Context: p.ctx}
 	for _, pt := range p.Analyzer.Ports {
 		m.Ports = append(m.Ports, feedback.Port{Name: pt.Name, A: pt.A, B: pt.B})
 	}

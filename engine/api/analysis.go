@@ -7,6 +7,8 @@ import (
 	"reflect"
 	"slices"
 	"strings"
+
+	"zport/engine/feedback"
 )
 
 // An Analysis is one optional part of the contract beyond the base answer
@@ -184,11 +186,19 @@ func (req Request) asked() []*entry {
 	return out
 }
 
-// runAnalyses answers every analysis the request asks for into resp.
+// runAnalyses answers every analysis the request asks for into resp,
+// stopping between them once the request's context is done.
 func (p *Prepared) runAnalyses(resp *Response) error {
-	for _, e := range p.Req.asked() {
+	asked := p.Req.asked()
+	for i, e := range asked {
+		if err := p.Context().Err(); err != nil {
+			return stopProblem(&feedback.Stopped{Done: i, Total: len(asked), Units: "analyses asked for", Err: err}, "the analyses")
+		}
 		r, err := e.run(p, p.Req.analyses[e.key], resp)
 		if err != nil {
+			if sp := stopProblem(err, "“"+e.key+"”"); sp != nil {
+				return sp
+			}
 			return err
 		}
 		if r != nil {

@@ -1,19 +1,19 @@
 package api
 
 import (
+	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
-
 	"strings"
-
-	"gonum.org/v1/gonum/floats"
 
 	"zport/engine/circuit"
 	"zport/engine/feedback"
 	"zport/engine/numeric"
 	"zport/engine/topology"
+	"zport/engine/value"
 )
 
 // MaxPoints bounds a sweep.
@@ -32,6 +32,22 @@ type Problem struct {
 	Msg          string
 	Err          error
 	More         []*Problem
+}
+
+// stopProblem turns the error of a loop stopped by the analysis's context
+// into a Problem saying in which part of the analysis, and how far it got:
+// "the time budget ran out in the sweep, after 120 of 400 frequencies". It
+// is nil for any other error.
+func stopProblem(err error, what string) *Problem {
+	var st *feedback.Stopped
+	if !errors.As(err, &st) {
+		return nil
+	}
+	why := "the analysis was cancelled"
+	if errors.Is(err, context.DeadlineExceeded) {
+		why = "the time budget ran out"
+	}
+	return &Problem{Msg: fmt.Sprintf("%s in %s, after %d of %d %s", why, what, st.Done, st.Total, st.Units), Err: st.Err}
 }
 
 // Unwrap returns the cause.
@@ -92,6 +108,18 @@ type Prepared struct {
 	Values   topology.Values
 	Text     string
 	PortDefs []string
+
+	ctx context.Context // of RunContext; nil means never stopped
+}
+
+// Context is the context the request runs under (see RunContext): an
+// analysis with a long loop checks it between units of work and, once it
+// is done, stops with an error wrapping its Err. It is never nil.
+func (p *Prepared) Context() context.Context {
+	if p.ctx == nil {
+		return context.Background()
+	}
+	return p.ctx
 }
 
 // Prepare parses and resolves a request without analyzing it.
@@ -220,17 +248,17 @@ func resolvePort(c *circuit.Circuit, name string) (feedback.Port, error) {
 	a, b, pair := strings.Cut(name, ",")
 	ia, ok := c.Node(strings.TrimSpace(a))
 	if !ok {
-		return feedback.Port{}, fmt.Errorf("%q is neither a port nor a node of the circuit", name)
+		return feedback.Port{}, fmt.Errorf("%s is neither a port nor a node of the circuit", value.Quote(name))
 	}
 	ib := circuit.Gnd
 	if pair {
 		ib, ok = c.Node(strings.TrimSpace(b))
 		if !ok {
-			return feedback.Port{}, fmt.Errorf("node %q is not in the circuit", strings.TrimSpace(b))
+			return feedback.Port{}, fmt.Errorf("node %s is not in the circuit", value.Quote(strings.TrimSpace(b)))
 		}
 	}
 	if ia == ib {
-		return feedback.Port{}, fmt.Errorf("port %q has both ends on one node", name)
+		return feedback.Port{}, fmt.Errorf("port %s has both ends on one node", value.Quote(name))
 	}
 	return feedback.Port{Name: name, A: ia, B: ib}, nil
 }
@@ -238,7 +266,7 @@ func resolvePort(c *circuit.Circuit, name string) (feedback.Port, error) {
 func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
 	p, ok := c.Part(g.Source)
 	if !ok {
-		return nil, fieldErr("gain.source", "no source called %q (one of: %s)", g.Source, strings.Join(c.Sources(), ", "))
+		return nil, fieldErr("gain.source", "no source called %s (one of: %s)", value.Quote(g.Source), strings.Join(c.Sources(), ", "))
 	}
 	if p.Kind != circuit.VSource && p.Kind != circuit.ISource {
 		return nil, fieldErr("gain.source", "%q is a %s; a gain is taken from a vsource or an isource", g.Source, p.Kind)
@@ -252,31 +280,45 @@ func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
 	a, b, pair := strings.Cut(g.Output, ",")
 	ia, ok := c.Node(strings.TrimSpace(a))
 	if !ok {
-		return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(a))
+		return nil, fieldErr("gain.output", "no node called %s", value.Quote(strings.TrimSpace(a)))
 	}
 	ib := circuit.Gnd
 	if pair {
 		if ib, ok = c.Node(strings.TrimSpace(b)); !ok {
-			return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(b))
+			return nil, fieldErr("gain.output", "no node called %s", value.Quote(strings.TrimSpace(b)))
 		}
 	}
 	if ia == ib {
-		return nil, fieldErr("gain.output", "the output %q has both ends on one node", g.Output)
+		return nil, fieldErr("gain.output", "the output %s has both ends on one node", value.Quote(g.Output))
 	}
 	return &feedback.Gain{Source: src, OutA: ia, OutB: ib, SourceName: g.Source, OutputName: g.Output}, nil
 }
 
 // Analyze answers a request.
-func Analyze(req Request) (*Response, error) {
+func Analyze(req Request) (*Response, error) { return AnalyzeContext(context.Background(), req) }
+
+// AnalyzeContext answers a request under ctx, which bounds its time: see
+// RunContext.
+func AnalyzeContext(ctx context.Context, req Request) (*Response, error) {
 	p, err := Prepare(req)
 	if err != nil {
 		return nil, err
 	}
-	return p.Run()
+	return p.RunContext(ctx)
 }
 
 // Run analyzes a prepared request.
-func (p *Prepared) Run() (*Response, error) {
+func (p *Prepared) Run() (*Response, error) { return p.RunContext(context.Background()) }
+
+// RunContext analyzes a prepared request under ctx. The long loops — the
+// sweep's frequencies, each analysis asked for (a tolerance study's corners
+// and trials, the sensitivities' parameters, the crossover search grid of
+// the design aids) — check ctx between units of work; once it is done the
+// analysis stops cleanly with a *Problem that says where it stopped and
+// wraps ctx.Err() (errors.Is(err, context.DeadlineExceeded) for a time
+// budget). Nothing is killed: the work in hand finishes first.
+func (p *Prepared) RunContext(ctx context.Context) (*Response, error) {
+	p.ctx = ctx
 	a := p.Analyzer
 	a.Condition = true
 	pt, err := a.At(p.Req.Frequency)
@@ -295,9 +337,12 @@ func (p *Prepared) Run() (*Response, error) {
 	var notes []string
 	notes = append(notes, pt.Notes...)
 	if s := p.Req.Sweep; s != nil {
-		grid := floats.LogSpan(make([]float64, s.Points), s.From, s.To)
-		pts, err := a.Sweep(grid)
+		grid := numeric.LogSpan(make([]float64, s.Points), s.From, s.To)
+		pts, err := a.SweepContext(ctx, grid)
 		if err != nil {
+			if p := stopProblem(err, "the sweep"); p != nil {
+				return nil, p
+			}
 			return nil, &Problem{Msg: err.Error(), Err: err}
 		}
 		resp.Sweep = sweepResult(grid, pts)
@@ -454,28 +499,28 @@ func formula(f *topology.Formula) *Formula {
 }
 
 // AnalyzeJSON answers a JSON request with JSON; ok is false when the answer
-// is an ErrorResponse. It never panics: a panic inside the engine becomes an
+// is an ErrorResponse. The input is one JSON object, with nothing but white
+// space after it. It never panics: a panic inside the engine becomes an
 // error response naming it as an internal error.
 func AnalyzeJSON(in []byte) (out []byte, ok bool) {
+	return AnalyzeJSONContext(context.Background(), in)
+}
+
+// AnalyzeJSONContext is AnalyzeJSON under ctx, which bounds its time (see
+// RunContext).
+func AnalyzeJSONContext(ctx context.Context, in []byte) (out []byte, ok bool) {
 	defer func() {
 		if r := recover(); r != nil {
 			out, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: fmt.Sprintf("internal error: %v (please report this circuit)", r)}})
 			ok = false
 		}
 	}()
-	var req Request
-	dec := json.NewDecoder(strings.NewReader(string(in)))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&req); err != nil {
-		body := ErrorBody{Message: "request is not valid JSON for this contract: " + err.Error()}
-		var p *Problem
-		if errors.As(err, &p) {
-			body = Body(err)
-		}
-		out, _ = json.Marshal(ErrorResponse{Error: body})
+	req, err := decodeRequest(in)
+	if err != nil {
+		out, _ = json.Marshal(ErrorResponse{Error: Body(err)})
 		return out, false
 	}
-	resp, err := Analyze(req)
+	resp, err := AnalyzeContext(ctx, req)
 	if err != nil {
 		out, _ = json.Marshal(ErrorResponse{Error: Body(err)})
 		return out, false
@@ -486,4 +531,25 @@ func AnalyzeJSON(in []byte) (out []byte, ok bool) {
 		return out, false
 	}
 	return out, true
+}
+
+// decodeRequest reads one request: a JSON object, strictly, followed by
+// nothing but white space (a second object, or anything else, is an error
+// rather than being ignored).
+func decodeRequest(in []byte) (Request, error) {
+	var req Request
+	dec := json.NewDecoder(bytes.NewReader(in))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&req); err != nil {
+		var p *Problem
+		if errors.As(err, &p) {
+			return req, err
+		}
+		return req, &Problem{Msg: "request is not valid JSON for this contract: " + err.Error()}
+	}
+	if off := dec.InputOffset(); len(bytes.TrimSpace(in[off:])) > 0 {
+		rest := bytes.TrimSpace(in[off:])
+		return req, &Problem{Msg: fmt.Sprintf("request is not valid JSON for this contract: unexpected %s after the request object (at byte %d); send one request at a time", value.Quote(string(rest)), len(in)-len(rest)+1)}
+	}
+	return req, nil
 }

@@ -137,25 +137,7 @@ var StandardValues = Register("standardValues", func(p *Prepared, q *StandardVal
 })
 
 func (p *Prepared) standardValues(m *aids.Model, sv *StandardValuesRequest) (*StandardValuesResult, error) {
-	pick := func(field, name, def string) (eseries.Series, error) {
-		if name == "" {
-			name = def
-		}
-		s, ok := eseries.ByName(name)
-		if !ok {
-			var names []string
-			for _, s := range eseries.All() {
-				names = append(names, s.Name)
-			}
-			return s, fieldErr(field, "%q is not an IEC 60063 series offered here (one of: %s)", name, strings.Join(names, ", "))
-		}
-		return s, nil
-	}
-	rs, err := pick("standardValues.series", sv.Series, "E24")
-	if err != nil {
-		return nil, err
-	}
-	cs, err := pick("standardValues.capacitorSeries", sv.CapacitorSeries, "E12")
+	rs, cs, err := sv.series()
 	if err != nil {
 		return nil, err
 	}
@@ -260,7 +242,7 @@ func (p *Prepared) standardValues(m *aids.Model, sv *StandardValuesRequest) (*St
 	}
 	res, err := aids.Snap(m, opt)
 	if err != nil {
-		return nil, &Problem{Param: "standardValues", Msg: trimPkg(err)}
+		return nil, &Problem{Param: "standardValues", Msg: trimPkg(err), Err: err}
 	}
 	out := &StandardValuesResult{Frequency: m.Frequency, Series: rs.Name, CapacitorSeries: cs.Name,
 		Ratios: []RatioResult{}, Variants: []SnapVariant{}, Notes: append([]string{}, res.Notes...)}
@@ -295,4 +277,37 @@ func (p *Prepared) standardValues(m *aids.Model, sv *StandardValuesRequest) (*St
 		out.Variants = append(out.Variants, sv)
 	}
 	return out, nil
+}
+
+// series returns the request's resistor and capacitor series.
+func (sv *StandardValuesRequest) series() (rs, cs eseries.Series, err error) {
+	pick := func(field, name, def string) (eseries.Series, error) {
+		if name == "" {
+			name = def
+		}
+		s, ok := eseries.ByName(name)
+		if !ok {
+			var names []string
+			for _, s := range eseries.All() {
+				names = append(names, s.Name)
+			}
+			return s, fieldErr(field, "%q is not an IEC 60063 series offered here (one of: %s)", name, strings.Join(names, ", "))
+		}
+		return s, nil
+	}
+	if rs, err = pick("standardValues.series", sv.Series, "E24"); err != nil {
+		return rs, cs, err
+	}
+	cs, err = pick("standardValues.capacitorSeries", sv.CapacitorSeries, "E12")
+	return rs, cs, err
+}
+
+// CheckStandardValues checks the series of req's "standardValues" key
+// without analyzing anything, as CheckTolerance does for "tolerance".
+func CheckStandardValues(req Request) error {
+	if sv := StandardValues.Asked(req); sv != nil {
+		_, _, err := sv.series()
+		return err
+	}
+	return nil
 }

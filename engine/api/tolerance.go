@@ -13,6 +13,7 @@ import (
 	"zport/engine/aids"
 	"zport/engine/circuit"
 	"zport/engine/eseries"
+	"zport/engine/feedback"
 	"zport/engine/value"
 )
 
@@ -196,13 +197,19 @@ type ToleranceRun struct {
 }
 
 // Tolerance is the "tolerance" analysis: a Monte Carlo spread and the
-// worst-case corners, run to the end.
+// worst-case corners, run to the end, or until the request's context
+// stops it between two corners or trials.
 var Tolerance = Register("tolerance", func(p *Prepared, q *ToleranceRequest, _ *Response) (*ToleranceResult, error) {
 	run, err := p.startTolerance(p.aidsModel(), q)
 	if err != nil {
 		return nil, err
 	}
-	run.Step(run.Total())
+	ctx := p.Context()
+	for done, total := run.Step(0); done < total; done, _ = run.Step(1) {
+		if err := ctx.Err(); err != nil {
+			return nil, &feedback.Stopped{Done: done, Total: total, Units: "corners and trials", Err: err}
+		}
+	}
 	return run.Result(), nil
 })
 
@@ -261,30 +268,74 @@ func (r *ToleranceRun) ResultJSON() []byte {
 	return b
 }
 
-func (p *Prepared) startTolerance(m *aids.Model, tr *ToleranceRequest) (*ToleranceRun, error) {
+// CheckTolerance checks req's "tolerance" key as far as it can without
+// analyzing the circuit: the distribution, seed, trials and bins, every
+// tolerance and the part it names, every opamp's spread, and each target's
+// quantity, port, condition and value. (Whether the loop crosses unity, for
+// a phase-margin target, and whether anything varies at all, show only
+// when the study runs.) Errors are Analyze's, naming the field. A page
+// uses it to refuse a share link's bad settings as it reads the link.
+func CheckTolerance(req Request) error {
+	tr := Tolerance.Asked(req)
+	if tr == nil {
+		return nil
+	}
+	p, err := Prepare(req.Base())
+	if err != nil {
+		return err
+	}
+	if _, err := toleranceOptions(tr); err != nil {
+		return err
+	}
+	m := p.aidsModel()
+	if _, _, err := p.spreads(m, tr); err != nil {
+		return err
+	}
+	for i, t := range tr.Targets {
+		if _, err := target(m, nil, fmt.Sprintf("tolerance.targets[%d]", i), t); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// toleranceOptions reads the run's options: distribution, seed, trials,
+// bins and corners.
+func toleranceOptions(tr *ToleranceRequest) (aids.Options, error) {
 	opt := aids.Options{Seed: 1, Trials: tr.Trials, Corners: tr.Corners == nil || *tr.Corners}
 	switch tr.Distribution {
 	case "", "uniform":
 	case "normal":
 		opt.Distribution = aids.Normal
 	default:
-		return nil, fieldErr("tolerance.distribution", "%q is not a distribution here; use \"uniform\" or \"normal\" (tolerance = 3σ)", tr.Distribution)
+		return opt, fieldErr("tolerance.distribution", "%q is not a distribution here; use \"uniform\" or \"normal\" (tolerance = 3σ)", tr.Distribution)
 	}
 	if tr.Seed != nil {
 		if *tr.Seed > MaxSeed {
-			return nil, fieldErr("tolerance.seed", "the seed must be from 0 to 2⁵³ − 1 = %d, so that it survives JavaScript and share links", uint64(MaxSeed))
+			return opt, fieldErr("tolerance.seed", "the seed must be from 0 to 2⁵³ − 1 = %d, so that it survives JavaScript and share links", uint64(MaxSeed))
 		}
 		opt.Seed = *tr.Seed
 	}
 	if tr.Trials < 0 || tr.Trials > MaxTrials {
-		return nil, fieldErr("tolerance.trials", "from 1 to %d trials (default %d)", MaxTrials, aids.DefaultTrials)
+		return opt, fieldErr("tolerance.trials", "from 1 to %d trials (default %d)", MaxTrials, aids.DefaultTrials)
 	}
 	if tr.Bins < 0 || tr.Bins > MaxBins {
-		return nil, fieldErr("tolerance.bins", "from 1 to %d histogram bins (default %d)", MaxBins, aids.DefaultBins)
+		return opt, fieldErr("tolerance.bins", "from 1 to %d histogram bins (default %d)", MaxBins, aids.DefaultBins)
+	}
+	return opt, nil
+}
+
+func (p *Prepared) startTolerance(m *aids.Model, tr *ToleranceRequest) (*ToleranceRun, error) {
+	opt, err := toleranceOptions(tr)
+	if err != nil {
+		return nil, err
 	}
 	spreads, parts, err := p.spreads(m, tr)
 	if err != nil {
 		return nil, err
+	}
+	if len(spreads) == 0 {
+		return nil, fieldErr("tolerance", "nothing varies: every part is held at its nominal value (give a default, a part's tolerance, or an opamp's a0Min or gbwMin)")
 	}
 	mc, err := aids.NewMonteCarlo(m, spreads, opt)
 	if err != nil {
@@ -385,9 +436,6 @@ func (p *Prepared) spreads(m *aids.Model, tr *ToleranceRequest) ([]aids.Spread, 
 			kinds[j] = f.field.String()
 		}
 	}
-	if len(spreads) == 0 {
-		return nil, nil, fieldErr("tolerance", "nothing varies: every part is held at its nominal value (give a default, a part's tolerance, or an opamp's a0Min or gbwMin)")
-	}
 	sort.SliceStable(spreads, func(a, b int) bool { return spreads[a].Param < spreads[b].Param })
 	var parts []TolerancedPart
 	for _, s := range spreads {
@@ -438,7 +486,8 @@ func opamps(c *circuit.Circuit) []string {
 	return r
 }
 
-// target resolves one target request against the study's quantities.
+// target resolves one target request against the study's quantities; qs
+// nil leaves out the one check that needs them (a phase margin to hold).
 func target(m *aids.Model, qs []aids.Quantity, at string, t TargetRequest) (aids.Target, error) {
 	kinds := map[string]aids.QuantityKind{"z": aids.ZMag, "phase": aids.ZPhase, "r": aids.ZRe, "g": aids.GainMag, "pm": aids.PhaseMargin}
 	k, ok := kinds[t.Quantity]
@@ -461,10 +510,10 @@ func target(m *aids.Model, qs []aids.Quantity, at string, t TargetRequest) (aids
 		port = t.Port
 	}
 	id := aids.QuantityID(k, port)
-	if !slices.ContainsFunc(qs, func(q aids.Quantity) bool { return q.ID == id }) {
-		if k == aids.GainMag {
-			return aids.Target{}, fieldErr(at+".quantity", "the request has no gain")
-		}
+	switch {
+	case k == aids.GainMag && m.Gain == nil:
+		return aids.Target{}, fieldErr(at+".quantity", "the request has no gain")
+	case k == aids.PhaseMargin && qs != nil && !slices.ContainsFunc(qs, func(q aids.Quantity) bool { return q.ID == id }):
 		return aids.Target{}, fieldErr(at+".quantity", "the nominal loop has no unity crossing, so there is no phase margin to hold to a target")
 	}
 	if t.Op != "<" && t.Op != ">" {

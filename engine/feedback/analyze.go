@@ -1,6 +1,7 @@
 package feedback
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -12,6 +13,7 @@ import (
 	"zport/engine/dd"
 	"zport/engine/mna"
 	"zport/engine/numeric"
+	"zport/engine/value"
 )
 
 // MaxNodes bounds the circuits analyzed, to keep a page responsive.
@@ -191,6 +193,15 @@ type slot struct {
 	ddErr error
 }
 
+// candidates names the parts of c that can be the reference, or says that
+// there are none.
+func candidates(c *circuit.Circuit) string {
+	if refs := c.References(); len(refs) > 0 {
+		return "choose one of: " + strings.Join(refs, ", ")
+	}
+	return "the circuit has none: add a controlled source (vcvs, vccs, ccvs, cccs), an opamp or a transistor (bjt, mos)"
+}
+
 // New prepares an analysis of c with the named reference element.
 func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analyzer, error) {
 	if n := len(c.Nodes) - 1; n > MaxNodes {
@@ -199,12 +210,12 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	p, ok := c.Part(reference)
 	if !ok {
 		if reference == "" {
-			return nil, fmt.Errorf("no reference element given (choose one of: %s)", strings.Join(c.References(), ", "))
+			return nil, fmt.Errorf("no reference element given (%s)", candidates(c))
 		}
-		return nil, fmt.Errorf("reference %q: no part of that name (choose one of: %s)", reference, strings.Join(c.References(), ", "))
+		return nil, fmt.Errorf("reference %s: no part of that name (%s)", value.Quote(reference), candidates(c))
 	}
 	if !p.Kind.Controlled() {
-		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source, an opamp or a transistor (one of: %s)", reference, p.Kind, strings.Join(c.References(), ", "))
+		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source, an opamp or a transistor (%s)", reference, p.Kind, candidates(c))
 	}
 	sys := mna.New(c)
 	a := &Analyzer{C: c, Sys: sys, Ports: ports, Gain: gain, slots: map[string]*slot{}}
@@ -870,10 +881,34 @@ func (a *Analyzer) sourceVector(b []complex128) {
 // hz writes a frequency for notes.
 func hz(f float64) string { return "at " + fmtHz(f) }
 
+// Stopped is the error of a long loop stopped by its context (a time
+// budget, a cancel) between two units of work: Done of Total Units
+// ("frequencies") had run. It unwraps to the context's error.
+type Stopped struct {
+	Done, Total int
+	Units       string
+	Err         error
+}
+
+func (e *Stopped) Error() string {
+	return fmt.Sprintf("stopped after %d of %d %s: %v", e.Done, e.Total, e.Units, e.Err)
+}
+
+func (e *Stopped) Unwrap() error { return e.Err }
+
 // Sweep analyzes the circuit at each frequency of grid.
 func (a *Analyzer) Sweep(grid []float64) ([]Point, error) {
+	return a.SweepContext(context.Background(), grid)
+}
+
+// SweepContext is Sweep under ctx: between frequencies it checks ctx, and
+// once ctx is done it stops with a *Stopped error saying how far it got.
+func (a *Analyzer) SweepContext(ctx context.Context, grid []float64) ([]Point, error) {
 	pts := make([]Point, len(grid))
 	for i, f := range grid {
+		if err := ctx.Err(); err != nil {
+			return nil, &Stopped{Done: i, Total: len(grid), Units: "frequencies", Err: err}
+		}
 		p, err := a.At(f)
 		if err != nil {
 			return nil, err

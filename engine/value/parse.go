@@ -18,6 +18,21 @@ type SyntaxError struct {
 
 func (e *SyntaxError) Error() string { return e.Msg }
 
+// quoteMax is the longest text Quote writes in full, in characters.
+const quoteMax = 32
+
+// Quote writes s for a message as %q does, cut to 32 characters with an
+// ellipsis after the closing quote ("xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx"…),
+// so that a long token pasted into a field cannot fill a page with its
+// echo.
+func Quote(s string) string {
+	if utf8.RuneCountInString(s) <= quoteMax {
+		return strconv.Quote(s)
+	}
+	r := []rune(s)
+	return strconv.Quote(string(r[:quoteMax-1])) + "…"
+}
+
 // prefixes maps an SI prefix symbol to its power of ten.
 var prefixes = map[string]int{
 	"f": -15, "p": -12, "n": -9, "u": -6, "µ": -6, "μ": -6,
@@ -88,19 +103,19 @@ func Parse(text, unit string) (float64, error) {
 			exp, isPrefix = 3, true
 		}
 		if !isPrefix {
-			return fail(i, "unexpected %q in value %q", marker, text)
+			return fail(i, "unexpected %s in value %s", Quote(marker), Quote(text))
 		}
 		mark := i
 		i += size
 		fracDigits := digits()
 		if intDigits == 0 && fracDigits == 0 {
-			return fail(mark, "value %q has no digits", text)
+			return fail(mark, "value %s has no digits", Quote(text))
 		}
 		if i != len(body) {
-			return fail(i, "unexpected %q after %q in value %q", rest(body[i:]), body[:i], text)
+			return fail(i, "unexpected %s after %s in value %s", Quote(rest(body[i:])), Quote(body[:i]), Quote(text))
 		}
 		if intDigits == 0 && marker != "R" {
-			return fail(mark, "value %q must start with a digit (only R may lead, as in R47)", text)
+			return fail(mark, "value %s must start with a digit (only R may lead, as in R47)", Quote(text))
 		}
 		num := body[start:mark] + "." + body[mark+size:]
 		if intDigits == 0 {
@@ -109,23 +124,23 @@ func Parse(text, unit string) (float64, error) {
 		v, err := strconv.ParseFloat(body[:start]+num+"e"+strconv.Itoa(exp), 64)
 		if err != nil {
 			if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
-				return fail(0, "value %q is out of range", text)
+				return fail(0, "value %s is out of range", Quote(text))
 			}
-			return fail(0, "cannot read %q as a number", text)
+			return fail(0, "cannot read %s as a number", Quote(text))
 		}
 		return finite(text, v)
 	}
 	if i < len(body) && body[i] == '.' {
 		i++
 		if digits() == 0 && intDigits == 0 {
-			return fail(i-1, "value %q has no digits", text)
+			return fail(i-1, "value %s has no digits", Quote(text))
 		}
 	}
 	if intDigits == 0 && i == start {
 		if i < len(body) {
-			return fail(i, "expected a number, found %q", rest(body[i:]))
+			return fail(i, "expected a number, found %s", Quote(rest(body[i:])))
 		}
-		return fail(i, "expected a number in %q", text)
+		return fail(i, "expected a number in %s", Quote(text))
 	}
 	hasExp := false
 	if i < len(body) && (body[i] == 'e' || body[i] == 'E') {
@@ -135,7 +150,7 @@ func Parse(text, unit string) (float64, error) {
 			i++
 		}
 		if digits() == 0 {
-			return fail(ePos, "exponent in %q has no digits", text)
+			return fail(ePos, "exponent in %s has no digits", Quote(text))
 		}
 		hasExp = true
 	}
@@ -148,15 +163,15 @@ func Parse(text, unit string) (float64, error) {
 			if r == 'K' {
 				return fail(i, "use k for kilo (SI prefixes are case-sensitive); K is accepted only as an RKM decimal marker such as 4K7")
 			}
-			return fail(i, "unexpected %q in value %q", rest(body[i:]), text)
+			return fail(i, "unexpected %s in value %s", Quote(rest(body[i:])), Quote(text))
 		}
 		if hasExp {
-			return fail(i, "value %q has both an exponent and a prefix; use one", text)
+			return fail(i, "value %s has both an exponent and a prefix; use one", Quote(text))
 		}
 		exp = p
 		i += size
 		if i < len(body) {
-			return fail(i, "unexpected %q after %q in value %q", rest(body[i:]), body[:i], text)
+			return fail(i, "unexpected %s after %s in value %s", Quote(rest(body[i:])), Quote(body[:i]), Quote(text))
 		}
 	}
 	// The prefix joins the exponent, so the value is the decimal the
@@ -169,9 +184,9 @@ func Parse(text, unit string) (float64, error) {
 	v, err := strconv.ParseFloat(num, 64)
 	if err != nil {
 		if ne, ok := err.(*strconv.NumError); ok && ne.Err == strconv.ErrRange {
-			return fail(0, "value %q is out of range", text)
+			return fail(0, "value %s is out of range", Quote(text))
 		}
-		return fail(0, "cannot read %q as a number", text)
+		return fail(0, "cannot read %s as a number", Quote(text))
 	}
 	return finite(text, v)
 }

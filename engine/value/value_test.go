@@ -269,3 +269,21 @@ func TestParseRoundsOnce(t *testing.T) {
 		t.Errorf("4n7 = %v, want 4.7e-9", v)
 	}
 }
+
+// A long value is cut in the message that quotes it, so that a token
+// pasted into a field cannot fill the page with its echo; the offset still
+// points into the whole text.
+func TestQuoteCutsLongTokens(t *testing.T) {
+	if got := Quote("4k7k"); got != `"4k7k"` {
+		t.Errorf("Quote(4k7k) = %s", got)
+	}
+	if got := Quote(strings.Repeat("µ", 40)); got != `"`+strings.Repeat("µ", 31)+`"…` {
+		t.Errorf("Quote of 40 µ = %s", got)
+	}
+	long := "1" + strings.Repeat("x", 10000)
+	_, err := Parse(long, "Ω")
+	var se *SyntaxError
+	if !errors.As(err, &se) || se.Offset != 1 || len(se.Msg) > 120 || !strings.Contains(se.Msg, "…") {
+		t.Errorf("Parse of a 10,001-character value: %v", err)
+	}
+}

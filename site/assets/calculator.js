@@ -12,11 +12,18 @@
 // also carries the pinned designs (zportSite.PinBar: "Pin this design"
 // keeps the parameters as typed) and, on a phone, the charts' width.
 //
+// A link (the address's fragment) is read by the engine by one rule (see
+// zport/site/calc): what it cannot use is left out, the default shown in
+// its place, and the engine's notice says which and why. What the user
+// types, valid or not, is kept as a draft (zport.js) and comes back on a
+// reload; a link that replaces typed values offers them back.
+//
 // The design aids (aids.js) follow each calculator through events on its
 // element: zport:computed (detail: the panel output) after every result,
-// zport:link (detail: the form) when settings came from the link, and
-// zport:settings from aids.js ({key, values}: an analysis's settings kept
-// outside the form), which join the form and so the share link.
+// zport:link (detail: the form) when settings came from the link or a
+// draft, and zport:settings from aids.js ({key, values}: an analysis's
+// settings kept outside the form), which join the form and so the share
+// link.
 (function () {
   'use strict';
 
@@ -38,6 +45,8 @@
     this.seq = 0; // the latest request; an older answer is dropped
     this.outside = {}; // analyses' settings kept outside the form, by key
     this.answered = 0; // the latest request answered (zportSite.settle)
+    this.edited = false; // the inputs hold values the user typed
+    this.started = false;
     var self = this;
     this.pins = new site.PinBar(this);
     site.onNarrow(function () { self.schedule(); });
@@ -45,8 +54,13 @@
       e.preventDefault();
       self.schedule();
     });
-    this.form.addEventListener('input', function () { self.schedule(); });
-    this.form.addEventListener('change', function () { self.schedule(); });
+    var typed = function () {
+      self.edited = true;
+      self.keepDraft();
+      self.schedule();
+    };
+    this.form.addEventListener('input', typed);
+    this.form.addEventListener('change', typed);
     el.querySelector('[data-action="copy"]').addEventListener('click', function () { self.copy(); });
     el.querySelector('[data-action="csv"]').addEventListener('click', function () { self.download(); });
     el.querySelector('[data-action="reset"]').addEventListener('click', function () { self.reset(); });
@@ -59,8 +73,28 @@
     el.addEventListener('zport:settings', function (e) {
       if (!e.detail || !e.detail.key) return;
       self.outside[e.detail.key] = e.detail.values || {};
-      self.schedule();
+      typed();
     });
+  }
+
+  // keepDraft keeps the inputs as typed, with the address they belong to.
+  Calculator.prototype.keepDraft = function () {
+    var self = this;
+    site.keepDraft(this.id, function () {
+      return { form: self.values(), edited: self.edited, hash: self.owner() ? site.fragment() : '' };
+    });
+  };
+
+  // inputsOf is what a form puts into the inputs, to compare two forms.
+  function inputsOf(f) {
+    var sorted = function (o) {
+      var out = {};
+      Object.keys(o || {}).sort().forEach(function (k) {
+        out[k] = o[k] && typeof o[k] === 'object' ? sorted(o[k]) : o[k];
+      });
+      return out;
+    };
+    return JSON.stringify([sorted(f.params), f.frequency || '', sorted(f.sweep), sorted(f.settings)]);
   }
 
   Calculator.prototype.inputs = function () {
@@ -125,34 +159,74 @@
     return first === this.el;
   };
 
+  // start reads the address: on the first start a draft of this page
+  // comes back first, unless the address holds a link the draft was not
+  // made from; a link is then read over the defaults, and values the user
+  // had typed are offered back when it replaced them.
   Calculator.prototype.start = function () {
     var self = this;
     var frag = this.owner() ? site.fragment() : '';
+    var previous = this.edited ? this.values() : null;
+    var restored = null;
+    if (!this.started) {
+      this.started = true;
+      var draft = site.readDraft(this.id);
+      if (draft && draft.form && (!frag || draft.hash === frag)) {
+        restored = draft;
+        frag = '';
+      } else if (draft && draft.form && draft.edited) {
+        previous = draft.form;
+      }
+    }
+    if (restored) {
+      this.fill(restored.form);
+      this.edited = !!restored.edited;
+    }
     var seq = ++this.seq;
     var t0 = performance.now();
     var first = frag ? this.call({ fragment: frag }) : this.call({});
     first.then(function (out) {
       if (seq !== self.seq) return null;
       if (frag && out.error) {
-        self.pendingNotice = 'The settings in this link were not used (' + out.error.message + '). Showing the defaults instead.';
+        // Not the link's doing (the engine refuses a link's bad settings
+        // one by one); show the defaults rather than nothing.
+        self.pendingNotice = 'This link could not be shown (' + out.error.message + '). Showing the defaults instead.';
         return self.call({}).then(function (d) { return { out: d, linked: false }; });
       }
       return { out: out, linked: !!frag };
     }).then(function (r) {
       if (!r || seq !== self.seq) return;
       self.answered = seq;
-      if (r.linked && r.out.form) self.fill(r.out.form);
+      if (r.linked && r.out.form) {
+        self.fill(r.out.form);
+        self.edited = false;
+        if (r.out.notice) self.pendingNotice = r.out.notice;
+      }
       // The address changes only when it held settings (at once: a
-      // refused link must not stay there), or once the user edits: an
+      // refused setting must not stay there), or once the user edits: an
       // ordinary in-page anchor stays as it was.
       self.apply(r.out, t0, frag ? 'now' : false);
-      if (r.linked && !r.out.error && r.out.form) {
-        self.el.dispatchEvent(new CustomEvent('zport:link', { detail: r.out.form }));
-      }
+      var settled = r.linked ? r.out.form : restored ? self.values() : null;
+      if (settled) self.el.dispatchEvent(new CustomEvent('zport:link', { detail: settled }));
+      if (r.linked && previous && inputsOf(previous) !== inputsOf(self.values())) self.offerPrevious(previous);
+      self.keepDraft();
       var buttons = self.el.querySelectorAll('button[data-action]');
       for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
       self.pins.refresh();
       site.settled(self);
+    });
+  };
+
+  // offerPrevious says that a link replaced the values the user had typed,
+  // and offers them back.
+  Calculator.prototype.offerPrevious = function (previous) {
+    var self = this;
+    site.offerRestore(this.el, 'The link replaced the values you had typed.', 'Restore your previous values', function () {
+      self.fill(previous);
+      self.edited = true;
+      self.keepDraft();
+      self.schedule();
+      self.el.dispatchEvent(new CustomEvent('zport:link', { detail: previous })); // the design aids' settings too
     });
   };
 
@@ -203,7 +277,7 @@
   Calculator.prototype.showError = function (err) {
     if (site.showFieldError(this.form, err)) return;
     var where = err.line ? 'line ' + err.line + ', column ' + err.column + ': ' : '';
-    this.notice.textContent = where + (err.param && err.param !== 'fragment' ? err.param + ': ' : '') + err.message;
+    this.notice.textContent = where + (err.param ? err.param + ': ' : '') + err.message;
     this.notice.hidden = false;
   };
 
@@ -230,6 +304,9 @@
   Calculator.prototype.reset = function () {
     var inputs = this.form.querySelectorAll('input[name], select[name]');
     for (var i = 0; i < inputs.length; i++) inputs[i].value = inputs[i].getAttribute('data-default');
+    this.edited = false;
+    site.dropRestore(this.el);
+    this.keepDraft();
     this.schedule();
   };
 

@@ -27,6 +27,23 @@
 // settings the engine writes (calc.Form.CircuitState), e.g.
 //   #c=…&ref=U1&port=out&src=Vin&out=out&f=100k&from=10&to=100M&points=400
 // The same encoding is used by the stage pages' "open as circuit" links.
+// The engine reads the settings by the site's one rule for links (see
+// zport/site/calc): what it cannot use is left out, the circuit's default
+// in its place, and its notice says which and why. A c= that cannot be
+// read (or is given twice) leaves the page's own circuit in place.
+//
+// The text, valid or not, and the choices are kept as a draft (zport.js):
+// a reload brings them back. Anything that replaces the user's own text —
+// a link, an example, a file — keeps it, with a button that restores it.
+//
+// Input limits: text is refused before the textarea takes it when it would
+// go past MAX_TEXT characters, however it arrives (beforeinput covers
+// typing, pasting, dropping, input methods, dictation and spelling fixes;
+// paste and drop are caught earlier still, and a dropped file is opened as
+// the Open button would). An insert no event could refuse (an input
+// method's composition) is undone. The work an edit causes runs once per
+// animation frame, so an insert that the browser delivers line by line
+// costs one update, not one per line.
 //
 // Pins (zportSite.PinBar) keep the text and choices as they are; a pin
 // whose text differs from the current one adds pinN.c=<its text, encoded
@@ -48,6 +65,7 @@
   var SLOW_MS = 120; // a recompute slower than this throttles the next ones
   var BUDGET_MS = 300; // the sweep of one recompute; the engine shortens it to fit
   var GUTTER_SPARE = 40; // line numbers drawn beyond the visible ones
+  var BULK_LINES = 20; // an insertText of more lines goes in at once (see guard)
 
   function role(r) { return el.querySelector('[data-role="' + r + '"]'); }
 
@@ -101,7 +119,9 @@
     this.signature = {};
     this.preset = null; // an example's settings, for the next recompute
     this.fresh = false; // the text came from a link or a file
-    this.saved = null; // the user's own text, kept when an example replaced it
+    this.saved = null; // the user's own text, kept when something replaced it
+    this.accepted = this.ta.value; // the text as of the last edit within the limit
+    this.editFrame = 0;
     this.linkSeq = 0;
     this.seq = 0; // the latest recompute; an older answer is dropped
     this.answered = 0; // the latest recompute answered (zportSite.settle)
@@ -145,32 +165,42 @@
   Editor.prototype.wire = function () {
     var self = this;
     this.ta.addEventListener('input', function () {
-      self.updateGutter();
-      self.syncScroll();
       if (self.pasted) {
         // A whole new text: what the pickers showed no longer applies, and
         // nor does the example's description.
         self.pasted = false;
         self.fresh = true;
         self.markExample(true);
-      } else {
-        self.markExample();
       }
+      self.afterEdit();
       self.schedule();
     });
     this.ta.addEventListener('scroll', function () { self.syncScroll(); });
-    // A paste that would take the text past the limit is refused before
-    // the textarea has to lay it out.
+    this.ta.addEventListener('beforeinput', function (e) { self.guard(e); });
     this.ta.addEventListener('paste', function (e) {
       var add = e.clipboardData ? e.clipboardData.getData('text/plain') : '';
-      var keep = self.ta.value.length - (self.ta.selectionEnd - self.ta.selectionStart);
-      if (add.length + keep > MAX_TEXT) {
+      if (self.tooLong(add.length, true, 'pasted')) {
         e.preventDefault();
-        self.fileMsg.textContent = 'Not pasted: the text would be ' + Math.round((add.length + keep) / 1024) +
-          ' KB, and circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
         return;
       }
+      // A paste over the whole text is a new circuit (see the input
+      // listener).
+      var keep = self.ta.value.length - (self.ta.selectionEnd - self.ta.selectionStart);
       self.pasted = keep === 0 && add.trim() !== '';
+    });
+    this.ta.addEventListener('dragover', function (e) {
+      if (hasFiles(e)) e.preventDefault(); // so that a file can be dropped
+    });
+    this.ta.addEventListener('drop', function (e) {
+      if (hasFiles(e)) {
+        // A file dropped on the text opens as the Open button would (the
+        // browser would otherwise leave the page for the file).
+        e.preventDefault();
+        self.openFile(e.dataTransfer.files[0]);
+        return;
+      }
+      var add = e.dataTransfer ? e.dataTransfer.getData('text/plain') : '';
+      if (self.tooLong(add.length, false, 'dropped')) e.preventDefault();
     });
     el.querySelector('[data-action="full-sweep"]').addEventListener('click', function () {
       self.full = true;
@@ -182,7 +212,10 @@
       e.preventDefault();
       self.schedule();
     });
-    var changed = function () { self.schedule(); };
+    var changed = function () {
+      self.keepDraft();
+      self.schedule();
+    };
     this.form.addEventListener('input', changed);
     this.form.addEventListener('change', changed);
     this.exampleSel.addEventListener('change', function () {
@@ -204,14 +237,82 @@
     el.querySelector('[data-action="open-file"]').addEventListener('click', function () { self.fileInput.click(); });
     var saves = el.querySelectorAll('[data-action="save-file"]');
     for (var i = 0; i < saves.length; i++) saves[i].addEventListener('click', function () { self.saveText(); });
-    this.fileInput.addEventListener('change', function () { self.openFile(); });
+    this.fileInput.addEventListener('change', function () {
+      var file = self.fileInput.files && self.fileInput.files[0];
+      self.fileInput.value = '';
+      if (file) self.openFile(file);
+    });
     el.addEventListener('zport:settings', function (e) {
       if (!e.detail || !e.detail.key) return;
       self.outside[e.detail.key] = e.detail.values || {};
-      self.schedule();
+      changed();
     });
     site.onNarrow(function () { self.schedule(); });
     hashWatch(this);
+  };
+
+  function hasFiles(e) {
+    var types = e.dataTransfer ? e.dataTransfer.types : null;
+    return !!types && Array.prototype.indexOf.call(types, 'Files') >= 0;
+  }
+
+  // ---- input limits ----
+
+  // guard refuses an insert that would take the text past MAX_TEXT, before
+  // the textarea takes it: beforeinput comes for every way text arrives.
+  Editor.prototype.guard = function (e) {
+    var type = e.inputType || '';
+    if (type.indexOf('insert') !== 0 || !e.cancelable) return;
+    var add = typeof e.data === 'string' ? e.data.length : e.dataTransfer ? e.dataTransfer.getData('text/plain').length : 0;
+    // A drop inserts at the drop point; the rest replace the selection.
+    if (this.tooLong(add, type !== 'insertFromDrop', 'inserted')) {
+      e.preventDefault();
+      return;
+    }
+    // Chromium puts an inserted text in line by line (an input method's,
+    // an emoji keyboard's, a script's insertText), each line a whole edit
+    // of the textarea: a few thousand lines took minutes. Many lines go
+    // in at once instead, as one edit (which the browser's undo does not
+    // record).
+    if (type === 'insertText' && typeof e.data === 'string' && countLines(e.data) > BULK_LINES) {
+      e.preventDefault();
+      this.ta.setRangeText(e.data, this.ta.selectionStart, this.ta.selectionEnd, 'end');
+      this.ta.dispatchEvent(new InputEvent('input', { inputType: 'insertText', bubbles: true }));
+    }
+  };
+
+  // tooLong reports whether adding add characters (over the selection, if
+  // replacing) would take the text past the limit, and if so says so.
+  Editor.prototype.tooLong = function (add, replacing, verb) {
+    var keep = this.ta.value.length - (replacing ? this.ta.selectionEnd - this.ta.selectionStart : 0);
+    if (add + keep <= MAX_TEXT) return false;
+    this.fileMsg.textContent = 'Not ' + verb + ': the text would be ' + Math.round((add + keep) / 1024) +
+      ' KB, and circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
+    return true;
+  };
+
+  // afterEdit brings the gutter, the example list and the draft up to
+  // date once per animation frame, however many input events an insert
+  // fired (the browser may deliver a long paste line by line). Text past
+  // the limit that no event could refuse is undone.
+  Editor.prototype.afterEdit = function () {
+    if (this.editFrame) return;
+    var self = this;
+    this.editFrame = requestAnimationFrame(function () {
+      self.editFrame = 0;
+      if (self.ta.value.length > MAX_TEXT) {
+        var over = self.ta.value.length;
+        self.setText(self.accepted);
+        self.fileMsg.textContent = 'Undone: the text became ' + Math.round(over / 1024) +
+          ' KB, and circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
+        self.schedule();
+      }
+      self.accepted = self.ta.value;
+      self.updateGutter();
+      self.syncScroll();
+      self.markExample();
+      self.keepDraft();
+    });
   };
 
   // ---- the editor: gutter, scrolling, error marks ----
@@ -589,10 +690,11 @@
     // For tests and the benchmark: how many recomputes have run.
     el.setAttribute('data-recomputes', String(Number(el.getAttribute('data-recomputes') || 0) + 1));
     this.clearMessages();
+    this.keepDraft();
     var req = this.values();
     req.offered = this.offered();
     if (this.preset) {
-      // An example's settings, exactly.
+      // An example's settings, or a draft's, exactly.
       var p = this.preset;
       req.reference = p.reference;
       req.ports = p.ports;
@@ -600,6 +702,14 @@
       req.frequency = p.frequency;
       req.sweep = p.sweep;
       req.offered = null;
+      if (p.settings) {
+        site.fillSettings(this.form, p.settings);
+        this.outside = {};
+        for (var k in p.settings) {
+          if (!this.form.querySelector('[data-analysis="' + site.cssName(k) + '"]')) this.outside[k] = p.settings[k];
+        }
+        req.settings = Object.assign(site.settings(this.form), this.outside);
+      }
     } else if (this.fresh) {
       // A text from a link, a file or a paste: everything in it is new.
       req.ports = [];
@@ -642,8 +752,9 @@
     this.showProblems([]);
     if (res.form) this.updatePickers(ins, res.form);
     var out = res.output || { error: { message: 'the engine gave no analysis' } };
+    if (out.notice) this.pendingNotice = out.notice; // what a link's settings lost
     if (out.error) {
-      if (typeof fragment !== 'string') this.showError(out.error);
+      this.showError(out.error);
       this.setStale(true);
       return done(this, out);
     }
@@ -762,33 +873,88 @@
   }
 
   // splitFragment separates the c= value and the pins' pinN.c= values
-  // (by slot) from the other settings.
+  // (by slot) from the other settings; twice says that the link gives c=
+  // more than once.
   function splitFragment(frag) {
-    var c = null, rest = [], pins = {};
+    var c = null, rest = [], pins = {}, twice = false;
     var parts = frag.split('&');
     for (var i = 0; i < parts.length; i++) {
       var m = /^pin([1-4])\.c=(.*)$/.exec(parts[i]);
-      if (m) pins[m[1]] = m[2];
-      else if (parts[i].indexOf('c=') === 0 && c === null) c = parts[i].slice(2);
-      else if (parts[i]) rest.push(parts[i]);
+      if (m) {
+        pins[m[1]] = m[2];
+      } else if (parts[i].indexOf('c=') === 0) {
+        twice = twice || c !== null;
+        c = parts[i].slice(2);
+      } else if (parts[i]) {
+        rest.push(parts[i]);
+      }
     }
-    return { c: c, rest: rest.join('&'), pins: pins };
+    return { c: c, rest: rest.join('&'), pins: pins, twice: twice };
   }
 
-  // boot reads the address: a circuit link fills the editor and its
-  // settings; anything unreadable is ignored with a notice.
-  Editor.prototype.boot = function () {
+  // ---- drafts ----
+
+  var DRAFT = 'circuit';
+
+  // keepDraft keeps the text as typed, the choices, and the text a link,
+  // an example or a file replaced, with the address they belong to.
+  Editor.prototype.keepDraft = function () {
+    var self = this;
+    site.keepDraft(DRAFT, function () {
+      var f = self.values();
+      var text = f.circuit;
+      f.circuit = undefined; // kept once, as text
+      return { text: text, form: f, previous: self.saved, hash: shown() ? site.fragment() : '' };
+    });
+  };
+
+  // restoreDraft puts a draft back: its text, its choices for the next
+  // recompute, and the text it had kept.
+  Editor.prototype.restoreDraft = function (d) {
+    this.setText(d.text);
+    this.markExample(true);
+    var f = d.form || {};
+    this.preset = {
+      reference: f.reference || '', ports: f.ports || [], source: f.gain ? f.gain.source : '', output: f.gain ? f.gain.output : '',
+      frequency: f.frequency || '', sweep: f.sweep || {}, settings: f.settings || {}
+    };
+    if (typeof d.previous === 'string' && d.previous !== d.text) {
+      this.saved = d.previous;
+      this.offerPrevious('');
+    }
+  };
+
+  // boot reads the address. On the page's first boot a draft of this tab
+  // comes back first (unless the address holds a link the draft was not
+  // made from); a link's circuit then replaces the text, the text it
+  // replaced kept, and the engine reads the link's settings.
+  Editor.prototype.boot = function (first) {
     var self = this;
     var seq = ++this.bootSeq;
     var frag = shown() ? site.fragment() : '';
+    var restored = false;
+    if (first) {
+      var draft = site.readDraft(DRAFT);
+      if (draft && typeof draft.text === 'string') {
+        this.restoreDraft(draft);
+        restored = true;
+        if (draft.hash === frag) frag = ''; // the draft is the newest state of this address
+      }
+    }
     var parts = splitFragment(frag);
+    var instead = 'Showing ' + (this.ownText() ? 'your own circuit' : 'the example') + ' instead; the link’s other settings were not used either.';
     var ready;
     this.pinTexts = null;
-    if (parts.c !== null) {
+    if (parts.twice) {
+      this.pendingNotice = 'The circuit in this link was not used: the link gives it twice (“c=” appears twice). ' + instead;
+      ready = Promise.resolve(null);
+    } else if (parts.c !== null) {
       var slots = Object.keys(parts.pins);
       ready = Promise.all([site.decompress(parts.c, MAX_TEXT)].concat(slots.map(function (k) { return site.decompress(parts.pins[k], MAX_TEXT); }))).then(function (texts) {
+        if (texts[0] !== self.ta.value) self.keep('The link replaced your circuit text; it is kept.');
         self.setText(texts[0]);
         self.fresh = true;
+        self.preset = null;
         self.markExample(true);
         if (slots.length) {
           self.pinTexts = {};
@@ -796,7 +962,7 @@
         }
         return parts.rest;
       }, function (err) {
-        self.pendingNotice = 'The circuit in this link was not used (' + err.message + '). Showing the example instead.';
+        self.pendingNotice = 'The circuit in this link was not used (' + err.message + '). ' + instead;
         return null;
       });
     } else {
@@ -805,23 +971,19 @@
     ready.then(function (rest) {
       site.onEngine(function () {
         if (seq !== self.bootSeq) return;
-        self.start(rest);
+        self.start(rest, restored);
       });
     });
   };
 
-  Editor.prototype.start = function (rest) {
+  // start analyzes the text: with a link's settings (rest), at once
+  // rewriting the address to what was used, or with the page's own.
+  Editor.prototype.start = function (rest, restored) {
     var self = this;
     var linked = typeof rest === 'string';
-    // A link's address is rewritten at once (a refused setting must not
-    // stay there); the user's edits, once they pause.
+    if (linked) this.preset = null; // a link's settings stand on the circuit's defaults
     var done = this.recompute(linked ? 'now' : false, linked ? rest : undefined).then(function (out) {
-      if (linked && out && out.error) {
-        self.pendingNotice = 'The settings in this link were not used (' + (out.error.param ? out.error.param + ': ' : '') +
-          out.error.message + '). Showing the circuit with its own choices instead.';
-        return self.recompute('now');
-      }
-      if (linked && out && out.form) {
+      if ((linked || restored) && out && out.form) {
         var form = Object.assign({}, out.form, { circuit: self.ta.value });
         el.dispatchEvent(new CustomEvent('zport:link', { detail: form }));
       }
@@ -838,6 +1000,7 @@
 
   Editor.prototype.setText = function (text) {
     this.ta.value = text;
+    this.accepted = text;
     this.ta.scrollTop = 0;
     this.ta.scrollLeft = 0;
     this.updateGutter();
@@ -893,17 +1056,27 @@
     role('example-about').hidden = false;
   };
 
-  // keep saves the user's own text before something replaces it.
+  // keep saves the user's own text before something replaces it, and
+  // offers it back.
   Editor.prototype.keep = function (what) {
     if (!this.ownText()) return;
     this.saved = this.ta.value;
-    this.fileMsg.textContent = what + ' Your own circuit is kept: choose “Your own circuit” in the list to bring it back.';
+    this.offerPrevious(what);
+  };
+
+  // offerPrevious shows the button that brings the kept text back (so does
+  // choosing “Your own circuit” in the list of examples).
+  Editor.prototype.offerPrevious = function (what) {
+    var self = this;
+    site.offerRestore(el, what || 'Your previous circuit text is kept.', 'Restore your previous text', function () {
+      self.restore();
+    });
   };
 
   Editor.prototype.loadExample = function (id) {
     var ex = this.examples[id];
     if (!ex) return;
-    this.keep('Example loaded.');
+    this.keep('Example loaded; your circuit text is kept.');
     this.setText(ex.text);
     this.describe(ex);
     this.preset = ex.preset;
@@ -911,28 +1084,30 @@
   };
 
   Editor.prototype.restore = function () {
-    this.setText(this.saved);
-    this.saved = null;
-    this.fileMsg.textContent = 'Your own circuit is back.';
-    role('example-about').hidden = true;
+    var back = this.saved;
+    // What the restore replaces is kept in turn, so nothing is lost.
+    this.saved = this.ownText() && this.ta.value !== back ? this.ta.value : null;
+    this.setText(back);
+    this.fileMsg.textContent = 'Your previous text is back.';
+    site.dropRestore(el);
+    if (this.saved !== null) this.offerPrevious('');
+    this.markExample(true);
+    this.fresh = true;
     this.schedule();
   };
 
-  Editor.prototype.openFile = function () {
-    var file = this.fileInput.files && this.fileInput.files[0];
-    this.fileInput.value = '';
-    if (!file) return;
+  Editor.prototype.openFile = function (file) {
     var self = this;
     if (file.size > MAX_TEXT) {
       this.fileMsg.textContent = file.name + ' is ' + Math.round(file.size / 1024) + ' KB; circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
       return;
     }
     file.text().then(function (text) {
-      self.keep('Opened ' + file.name + '.');
+      self.keep('Opened ' + file.name + '; your circuit text is kept.');
       self.setText(text);
       self.fresh = true;
       self.markExample(true);
-      if (!self.saved) self.fileMsg.textContent = 'Opened ' + file.name + ' (read on this computer; nothing was uploaded).';
+      self.fileMsg.textContent = 'Opened ' + file.name + ' (read on this computer; nothing was uploaded).';
       self.schedule();
     }, function (err) {
       self.fileMsg.textContent = file.name + ' could not be read: ' + (err && err.message ? err.message : String(err));
@@ -995,5 +1170,5 @@
     });
   };
 
-  new Editor().boot();
+  new Editor().boot(true);
 })();

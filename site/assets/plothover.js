@@ -22,8 +22,11 @@
   var PREFIXES = { "-15": "f", "-12": "p", "-9": "n", "-6": "\u00b5", "-3": "m", "0": "", "3": "k", "6": "M", "9": "G", "12": "T" };
 
   // formatValue mirrors value.Format (zport/engine/value): sig significant
-  // digits, an SI prefix putting the mantissa in [1, 1000), U+2212 minus,
-  // "—" for non-finite values, an exponent beyond the prefixes.
+  // digits, rounded half up from the shortest decimal that reads back as v
+  // (from its exact value for a subnormal), an SI prefix putting the
+  // mantissa in [1, 1000), U+2212 minus, "—" for non-finite values, an
+  // exponent beyond the prefixes. String work only, so the smallest and the
+  // largest numbers cannot overflow into NaN.
   function formatValue(v, unit, sig) {
     if (sig < 1) sig = 1;
     if (!isFinite(v)) return "\u2014";
@@ -34,21 +37,50 @@
       sign = MINUS;
       v = -v;
     }
-    var e = Math.floor(Math.log10(v));
-    var scale = Math.pow(10, sig - 1 - e);
-    var r = Math.round(v * scale) / scale;
-    if (r >= Math.pow(10, e + 1)) e++;
+    var r = roundDigits(v, sig), d = r[0], e = r[1];
     var eng = 3 * Math.floor(e / 3);
     if (eng < -15 || eng > 12) {
-      var s = r.toExponential(sig - 1).replace("e", "\u00d710^");
-      return sign + s + sep + unit;
+      var exp = String(Math.abs(e));
+      if (exp.length < 2) exp = "0" + exp;
+      var mant = d.charAt(0) + (sig > 1 ? "." + d.slice(1) : "");
+      return sign + mant + "\u00d710^" + (e < 0 ? "-" : "+") + exp + sep + unit;
     }
-    var m = r / Math.pow(10, eng);
-    var decimals = Math.max(0, sig - 1 - (e - eng));
+    var whole = e - eng + 1; // digits before the point
+    var m = d;
+    while (m.length < whole) m += "0";
+    if (sig > whole) m = d.slice(0, whole) + "." + d.slice(whole);
     var sym = PREFIXES[String(eng)];
     if (unit === "" && sym !== "") sep = "";
     else if (sym !== "" || unit !== "") sep = " ";
-    return sign + m.toFixed(decimals) + sep + sym + unit;
+    return sign + m + sep + sym + unit;
+  }
+
+  // roundDigits returns [the first sig digits of v > 0, the power of ten
+  // of the first], as value.Format's roundDigits.
+  function roundDigits(v, sig) {
+    var s = v < 2.2250738585072014e-308 ? v.toExponential(sig - 1) : v.toExponential();
+    var i = s.indexOf("e");
+    var e = parseInt(s.slice(i + 1), 10);
+    var d = (s.charAt(0) + s.slice(2, i)).split("");
+    if (d.length <= sig) {
+      while (d.length < sig) d.push("0");
+      return [d.join(""), e];
+    }
+    var up = d[sig] >= "5";
+    d.length = sig;
+    for (var k = sig - 1; up && k >= 0; k--) {
+      if (d[k] === "9") {
+        d[k] = "0";
+        continue;
+      }
+      d[k] = String(Number(d[k]) + 1);
+      up = false;
+    }
+    if (up) {
+      d[0] = "1";
+      e++;
+    }
+    return [d.join(""), e];
   }
 
   // fixed writes v with d decimals and the typographic minus, for degrees

@@ -30,6 +30,11 @@
 //                      names (by name or data-param); false if none does
 //   clearFieldErrors(form)
 //   address(h)         puts h into the address bar once the user pauses
+//   readDraft(name), keepDraft(name, get)
+//                      the user's work as typed, kept across reloads (below)
+//   offerRestore(host, message, label, restore), dropRestore(host)
+//                      says that something replaced the user's work, with
+//                      a button that brings it back
 //   copyText, copyResults, saveFile, compress, decompress, hover,
 //   recomputed, fragment(), page(), single, cssName
 //   PinBar(host)       the pinned designs of a calculator (see below)
@@ -38,6 +43,19 @@
 //   onNarrow(fn)       calls fn when the phone width changes
 // and, for every page: the charts' "SVG" and "PNG" buttons, and printing
 // with every section open ("Print report" buttons print).
+//
+// Drafts: what the user typed into a calculator or the circuit editor,
+// valid or not, is kept in sessionStorage — this tab only, nothing leaves
+// the machine — under a key of the page (its path, and the calculator's
+// id), with the address it belongs to. A reload brings it back; a link
+// that opens other settings wins over it, and the page offers the draft
+// back ("your previous text"). The address itself holds only the last
+// valid state, which is what a share link should carry.
+//
+// Scripts off: the pages ship their inputs read-only (data-locked), with a
+// <noscript> line saying why; this script unlocks them as it starts, and
+// locks them again if the engine cannot start. The engine's status line is
+// empty and hidden until the script fills it.
 //
 // URL fragment: a calculator's settings live in the fragment, written by
 // the engine (package zport/site/calc), e.g.
@@ -125,10 +143,12 @@
       }
       exited.then(function () {
         engine = null;
+        lock(true);
         setStatus('failed', 'The live engine has stopped; reload the page to start it again.');
       });
       window.addEventListener('pagehide', function (e) {
         flushAddress();
+        saveDrafts();
         if (!e.persisted && engine) {
           var z = engine;
           engine = null;
@@ -175,6 +195,18 @@
     for (var i = 0; i < els.length; i++) {
       els[i].textContent = text;
       els[i].setAttribute('data-state', state);
+      els[i].hidden = false;
+    }
+  }
+
+  // lock makes the inputs the pages ship read-only (data-locked) read-only
+  // again, or editable: text inputs take readonly, choices disabled.
+  function lock(on) {
+    var els = document.querySelectorAll('[data-locked]');
+    for (var i = 0; i < els.length; i++) {
+      var e = els[i];
+      var attr = e.tagName === 'SELECT' || e.type === 'checkbox' ? 'disabled' : 'readOnly';
+      e[attr] = on;
     }
   }
 
@@ -297,9 +329,79 @@
     } catch (e) {
       // Some browsers refuse history changes on file://; the link still works.
     }
+    saveDrafts(); // a draft remembers the address it belongs to
   }
   function ownHash() {
     return location.hash === writtenHash || location.hash === pendingHash;
+  }
+
+  // ---- drafts (see the top of this file) ----
+
+  var drafts = {}; // name → the function that gives the draft to keep
+  var draftTimer = 0;
+
+  function draftKey(name) {
+    return 'zport.draft:' + location.pathname + ':' + name;
+  }
+
+  // readDraft returns the draft kept under name, or null.
+  function readDraft(name) {
+    try {
+      var d = JSON.parse(sessionStorage.getItem(draftKey(name)) || 'null');
+      return d && typeof d === 'object' ? d : null;
+    } catch (e) {
+      return null; // storage refused (a privacy setting) or damaged
+    }
+  }
+
+  // keepDraft keeps what get() returns (a JSON-able object) under name
+  // once edits pause, and at once when the page is left or the address is
+  // written; get runs then, so it sees the latest state.
+  function keepDraft(name, get) {
+    drafts[name] = get;
+    clearTimeout(draftTimer);
+    draftTimer = setTimeout(saveDrafts, ADDRESS_MS);
+  }
+
+  function saveDrafts() {
+    clearTimeout(draftTimer);
+    for (var name in drafts) {
+      try {
+        sessionStorage.setItem(draftKey(name), JSON.stringify(drafts[name]()));
+      } catch (e) {
+        // Storage full or refused: the address still holds the last
+        // valid state.
+      }
+    }
+  }
+
+  // offerRestore puts a note at the top of host's results (before its
+  // notice) saying that something replaced the user's work, with a button
+  // that calls restore and removes the note. One note per host.
+  function offerRestore(host, message, label, restore) {
+    dropRestore(host);
+    var note = document.createElement('p');
+    note.className = 'calc-notice restore-note';
+    note.setAttribute('data-role', 'restore');
+    var text = document.createElement('span');
+    text.textContent = message + ' ';
+    var b = document.createElement('button');
+    b.type = 'button';
+    b.setAttribute('data-action', 'restore-previous');
+    b.textContent = label;
+    b.addEventListener('click', function () {
+      dropRestore(host);
+      restore();
+    });
+    note.appendChild(text);
+    note.appendChild(b);
+    var before = host.querySelector('[data-role="notice"]');
+    before.parentNode.insertBefore(note, before);
+  }
+
+  function dropRestore(host) {
+    var old = host.querySelector('[data-role="restore"]');
+    if (old) old.remove();
   }
 
   // copyText puts text on the clipboard and says so through host.say; where
@@ -778,6 +880,10 @@
     clearFieldErrors: clearFieldErrors,
     address: address,
     ownHash: ownHash,
+    readDraft: readDraft,
+    keepDraft: keepDraft,
+    offerRestore: offerRestore,
+    dropRestore: dropRestore,
     copyText: copyText,
     copyResults: copyResults,
     saveFile: saveFile,
@@ -808,6 +914,7 @@
     showPage();
     window.addEventListener('hashchange', showPage);
     if (!document.querySelector('[data-calculator], [data-circuit-editor]')) return;
+    lock(false);
     setStatus('loading', statusText.loading);
     loadEngine().then(function (z) {
       engine = z;
@@ -817,6 +924,7 @@
       readyCallbacks = [];
       for (var n = 0; n < cbs.length; n++) cbs[n]();
     }, function (err) {
+      lock(true);
       setStatus('failed', 'The live engine could not start: ' + (err && err.message ? err.message : String(err)) +
         '. The results shown were computed when the page was built; the values cannot be edited here.');
     });

@@ -3,6 +3,7 @@ package calc
 import (
 	"encoding/json"
 	"fmt"
+	"strconv"
 	"strings"
 
 	"zport/engine/aids"
@@ -23,13 +24,86 @@ var designAids = Analysis{
 	Key:    aidsKey,
 	Title:  "Design aids",
 	Accept: studyKey,
-	Check: func(c *Context) *api.ErrorBody {
-		st, bad := studyOf(c.Values)
-		if bad == nil {
-			_, bad = st.ToleranceKey()
-		}
+	Check:  checkStudy,
+}
+
+// checkStudy checks the design aids' settings of a link as far as they
+// can be checked without running the study: every setting readable, the
+// seed, trials, distribution and targets, each tolerance and the part it
+// names, each opamp's spread, and the series. An error names the setting
+// as the link does ("aid.n", "aid.tol.R1", "aid.t2").
+func checkStudy(c *Context) *api.ErrorBody {
+	st, bad := studyOf(c.Values)
+	if bad != nil {
 		return bad
-	},
+	}
+	tr, bad := st.ToleranceKey()
+	if bad != nil {
+		return settingOf(bad, c.Values)
+	}
+	req, _, _, bad := AidsInput{Form: *c.Form}.base()
+	if bad != nil {
+		return nil // the form's own trouble, not the study's
+	}
+	api.Tolerance.Ask(&req, tr)
+	api.StandardValues.Ask(&req, st.StandardKey())
+	for _, check := range []func(api.Request) error{api.CheckTolerance, api.CheckStandardValues} {
+		if err := check(req); err != nil {
+			body := api.Body(err)
+			return settingOf(&body, c.Values)
+		}
+	}
+	return nil
+}
+
+// settingOf renames an error that names a field of the engine's request
+// ("tolerance.seed", "tolerance.parts.R1", "tolerance.targets[0].value",
+// "standardValues.series") after the design-aid setting that holds it
+// ("aid.seed", "aid.tol.R1", "aid.t1", "aid.e"), as a share link names
+// it; v are the settings. An error it cannot place is returned as it is.
+func settingOf(bad *api.ErrorBody, v Values) *api.ErrorBody {
+	p, name := bad.Param, ""
+	switch {
+	case p == "tolerance.default":
+		name = keyTol
+	case p == FieldDistribution:
+		name = keyDist
+	case p == FieldSeed:
+		name = keySeed
+	case p == FieldTrials:
+		name = keyTrials
+	case p == "standardValues.series":
+		name = keySeries
+	case p == "standardValues.capacitorSeries":
+		name = keyCapSeries
+	case strings.HasPrefix(p, "tolerance.parts."):
+		name = keyPartTol + strings.TrimPrefix(p, "tolerance.parts.")
+	case strings.HasPrefix(p, "tolerance.amps."):
+		amp, field, _ := strings.Cut(strings.TrimPrefix(p, "tolerance.amps."), ".")
+		name = keyA0Min + amp
+		if field == "gbwMin" || field == "" && v[keyA0Min+amp] == "" {
+			name = keyGBWMin + amp
+		}
+	case strings.HasPrefix(p, "tolerance.targets["):
+		// The study numbers its targets without the gaps of the link's
+		// t1 … t8: the i-th is the i-th of those given.
+		i, err := strconv.Atoi(strings.TrimPrefix(p[:strings.IndexByte(p, ']')], "tolerance.targets["))
+		for n := 1; err == nil && n <= MaxTargets; n++ {
+			k := keyTarget + strconv.Itoa(n)
+			if v[k] == "" {
+				continue
+			}
+			if i == 0 {
+				name = k
+				break
+			}
+			i--
+		}
+	}
+	if name == "" {
+		return bad
+	}
+	return &api.ErrorBody{Param: aidsKey + "." + name, Message: bad.Message}
 }
 
 // aidsKey is the design aids' key: their settings are "aid.…".

@@ -131,8 +131,8 @@ func TestAidsFormParamsMatchEngineErrors(t *testing.T) {
 }
 
 // A study goes into the calculator's share link as its settings and comes
-// back the same; a setting the study does not know refuses the whole link,
-// and a target it cannot read is named.
+// back the same; a setting the study does not know, or cannot read, is
+// refused by name.
 func TestStudySettings(t *testing.T) {
 	st := Study{Tolerance: "J", Parts: map[string]string{"R1": "0.5%", "Rp": "none"}, Amps: map[string]AmpStudy{"U1": {A0Min: "100k", GBWMin: "700k"}},
 		Distribution: "normal", Seed: "9007199254740991", Trials: "500", Series: "E96", CapSeries: "E6",
@@ -146,9 +146,9 @@ func TestStudySettings(t *testing.T) {
 			t.Errorf("fragment %s lacks %s", frag, want)
 		}
 	}
-	g, err := ReadFragment(frag, Form{Topology: "inverting"}, e)
-	if err != nil {
-		t.Fatal(err)
+	g, refused := ReadFragment(frag, Form{Topology: "inverting"}, e)
+	if len(refused) > 0 {
+		t.Fatal(refused)
 	}
 	back, bad := studyOf(g.Settings[aidsKey])
 	if bad != nil || !reflect.DeepEqual(back, st) {
@@ -159,19 +159,20 @@ func TestStudySettings(t *testing.T) {
 	}
 	for _, bad := range []string{"aid.x=1", "aid.t0=pm%3C1", "aid.t9=pm%3C1", "aid.t01=pm%3C1", "aid.tol.=J", "aid.seed=1&aid.seed=2",
 		"aid.tol=" + strings.Repeat("x", 65), "aid.tol=%0A"} {
-		if _, err := ReadFragment(bad, Form{Topology: "inverting"}, e); err == nil {
-			t.Errorf("ReadFragment(%q) accepted it", bad)
+		if _, refused := ReadFragment(bad, Form{Topology: "inverting"}, e); len(refused) != 1 || !strings.HasPrefix(refused[0].Key, "aid.") {
+			t.Errorf("ReadFragment(%q): refused %+v", bad, refused)
 		}
 	}
 	// Targets that cannot be read are refused, naming the setting; the
-	// calculator refuses such a link as it reads it.
+	// calculator refuses it as it reads the link, and uses the rest.
 	for _, bad := range []string{"pm45", "zz<1", "z<1", "pm:out<1", "pm<"} {
 		if _, err := studyOf(Values{"t1": bad}); err == nil || err.Param != "aid.t1" {
 			t.Errorf("target %q: %v", bad, err)
 		}
-		frag := "aid.t1=" + fragment.Escape(bad)
-		if out := Compute(Form{Topology: "inverting", Fragment: &frag}); out.Error == nil || !strings.Contains(out.Error.Message, "aid.t1") {
-			t.Errorf("link with target %q: %+v", bad, out.Error)
+		frag := "aid.t1=" + fragment.Escape(bad) + "&aid.n=500"
+		out := Compute(Form{Topology: "inverting", Fragment: &frag})
+		if out.Error != nil || len(out.Refused) != 1 || out.Refused[0].Key != "aid.t1" || out.Form.Settings[aidsKey]["n"] != "500" {
+			t.Errorf("link with target %q: %+v, %+v", bad, out.Error, out.Refused)
 		}
 	}
 }

@@ -43,7 +43,9 @@ type Analysis struct {
 
 	// Check, for an analysis without Ask, checks its settings, so that a
 	// bad value in a share link is refused when the link is read rather
-	// than when the analysis is run. An error names the setting.
+	// than when the analysis is run. An error names the setting as the
+	// link does (Field(name), "aid.n"), so that the page can refuse that
+	// setting alone and use the rest of the link.
 	Check func(c *Context) *api.ErrorBody
 	// Ask adds the analysis's request to req from its settings as typed,
 	// defaults filled in. An error names the setting by its path, which is

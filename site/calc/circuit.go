@@ -51,56 +51,6 @@ func (f Form) CircuitState() string {
 	return p.Encode()
 }
 
-// ReadCircuitFragment reads a URL fragment written by CircuitState (with
-// or without "#") over base: settings the fragment leaves out keep base's
-// values; port keys, when present, replace base's ports; src and out come
-// together. Like ReadFragment, it refuses the whole fragment when any part
-// of it is malformed or unknown, returning base unchanged. The keys p (the
-// single-file export's page) and c (the circuit text, read by the page's
-// script) are skipped.
-func ReadCircuitFragment(frag string, base Form) (Form, error) {
-	pairs, err := fragment.Parse(frag, fragment.Repeatable(append(pinKeys(keyPort), keyPort)...),
-		fragment.Skip(append(pinKeys(keyCircuit), keyCircuit, keyPage)...))
-	if err != nil {
-		return base, err
-	}
-	f := base
-	settings := settingsRead{}
-	pins := pinsRead{}
-	var ch choices
-	for _, pr := range pairs {
-		k, v := pr.Key, pr.Value
-		if ok, err := ch.read(k, v, k, "the link"); ok || err != nil {
-			if err != nil {
-				return base, err
-			}
-			continue
-		}
-		switch k {
-		case keyFrequency:
-			f.Frequency = v
-		case keyFrom:
-			f.Sweep.From = v
-		case keyTo:
-			f.Sweep.To = v
-		case keyPoints:
-			f.Sweep.Points = v
-		default:
-			if !settings.read(k, v) && !pins.read(k, v) {
-				return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for a circuit"}
-			}
-		}
-	}
-	if err := ch.apply(&f, "the gain"); err != nil {
-		return base, err
-	}
-	f.Settings = settings.over(base.Settings)
-	if f.Pins, err = pins.circuitPins(f); err != nil {
-		return base, err
-	}
-	return f, nil
-}
-
 // choices collects what a circuit's link says of a design's reference,
 // ports and gain (the keys ref, port, src and out), the current design's
 // or a pin's.
@@ -227,6 +177,12 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 	if c == nil {
 		return out
 	}
+	if req.Fragment != nil {
+		// A link's settings stand on the circuit's defaults, not on what
+		// the page showed before: its choices are made afresh for the text.
+		req.Reference, req.Ports, req.Gain, req.Offered = "", nil, nil, &Offered{}
+		req.Frequency, req.Sweep, req.Settings = circuitDefaults.Frequency, circuitDefaults.Sweep, nil
+	}
 	f := req.Form.Fit(ins, req.Offered)
 	if len(ins.References) == 0 {
 		f.Circuit, f.Fragment = "", nil
@@ -235,16 +191,10 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 			"Blackman’s formula needs one as its reference element"}}
 		return out
 	}
+	var refused []Refusal
 	if f.Fragment != nil {
-		g, err := ReadCircuitFragment(*f.Fragment, f)
-		f.Fragment, g.Fragment = nil, nil
-		if err != nil {
-			f.Circuit = ""
-			out.Form = &f
-			out.Output = &Output{Error: &api.ErrorBody{Param: FieldFragment, Message: err.Error()}}
-			return out
-		}
-		f = g
+		f, refused = readLink(*f.Fragment, f, nil, c)
+		f.Fragment = nil
 		for i := range f.Pins {
 			if t, ok := req.PinCircuits[strconv.Itoa(f.Pins[i].Slot)]; ok {
 				f.Pins[i].Circuit = t
@@ -252,7 +202,8 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 		}
 	}
 	o := compute(f, c)
-	// The page has the texts; echoing them would only make the answer
+	o.Refused, o.Notice = refused, LinkNotice(refused, true)
+	// The page has the text; echoing it twice would only make the answer
 	// longer (a pasted file is up to api.MaxCircuitBytes).
 	f = withoutTexts(f)
 	if o.Form != nil {

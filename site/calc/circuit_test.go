@@ -24,9 +24,9 @@ func TestCircuitStateRoundTrip(t *testing.T) {
 		if strings.ContainsAny(state, "<> #\"") {
 			t.Errorf("state %q is not escaped for a URL", state)
 		}
-		got, err := ReadCircuitFragment("#"+state, base)
-		if err != nil {
-			t.Fatalf("%q: %v", state, err)
+		got, refused := ReadCircuitFragment("#"+state, base)
+		if len(refused) > 0 {
+			t.Fatalf("%q: %+v", state, refused)
 		}
 		if !reflect.DeepEqual(got, f) {
 			t.Errorf("round trip of %q:\n got %+v\nwant %+v", state, got, f)
@@ -35,39 +35,52 @@ func TestCircuitStateRoundTrip(t *testing.T) {
 	// A fragment that names no ports and no gain keeps the base's.
 	b2 := base
 	b2.Ports, b2.Gain = []string{"keep"}, &api.GainSpec{Source: "V", Output: "o"}
-	got, err := ReadCircuitFragment("c=ignored&p=custom&f=3k", b2)
-	if err != nil || got.Frequency != "3k" || !reflect.DeepEqual(got.Ports, b2.Ports) || got.Gain != b2.Gain {
-		t.Errorf("partial fragment: %+v, %v", got, err)
+	got, refused := ReadCircuitFragment("c=ignored&p=custom&f=3k", b2)
+	if len(refused) > 0 || got.Frequency != "3k" || !reflect.DeepEqual(got.Ports, b2.Ports) || got.Gain != b2.Gain {
+		t.Errorf("partial fragment: %+v, %+v", got, refused)
 	}
 	// An empty source removes the gain.
-	got, err = ReadCircuitFragment("src=&out=", b2)
-	if err != nil || got.Gain != nil {
-		t.Errorf("src= out=: gain %+v, %v", got.Gain, err)
+	got, refused = ReadCircuitFragment("src=&out=", b2)
+	if len(refused) > 0 || got.Gain != nil {
+		t.Errorf("src= out=: gain %+v, %+v", got.Gain, refused)
 	}
 }
 
+// A setting that cannot be read, or that the circuit page does not know,
+// is refused by name and leaves the form's value for it alone; the rest of
+// the link is read.
 func TestCircuitFragmentRefused(t *testing.T) {
-	base := Form{Circuit: "text", Reference: "U1", Frequency: "1k"}
-	for _, frag := range []string{
-		"ref=U1&ref=U2",
-		"nope=1",
-		"R1=10k", // a topology's key means nothing here
-		"ref",
-		"ref=%zz",
-		"ref=%00",
-		"ref=" + strings.Repeat("x", fragment.MaxValue+1),
-		strings.Repeat("port=a&", maxFragmentPorts+1),
-		"src=Vin",
-		"out=o",
-		strings.Repeat("f", fragment.MaxLength+1),
+	base := Form{Circuit: "text", Reference: "U1", Frequency: "1k", Ports: []string{"p"}}
+	for _, c := range []struct{ frag, key string }{
+		{"ref=U1&ref=U2", "ref"},
+		{"nope=1", "nope"},
+		{"R1=10k", "R1"}, // a topology's key means nothing here
+		{"ref", ""},
+		{"ref=%zz", "ref"},
+		{"ref=%00", "ref"},
+		{"ref=" + strings.Repeat("x", fragment.MaxValue+1), "ref"},
+		{strings.Repeat("port=a&", maxFragmentPorts) + "port=b", "port"},
+		{"src=Vin", "src"},
+		{"out=o", "out"},
+		{strings.Repeat("f", fragment.MaxLength+1), ""},
 	} {
-		got, err := ReadCircuitFragment(frag, base)
-		if err == nil {
-			t.Errorf("%.60q: accepted as %+v", frag, got)
+		got, refused := ReadCircuitFragment(c.frag+"&points=7", base)
+		if len(refused) != 1 || refused[0].Key != c.key {
+			t.Errorf("%.60q: refused %+v, want one refusal of %q", c.frag, refused, c.key)
 			continue
 		}
-		if !reflect.DeepEqual(got, base) {
-			t.Errorf("%.60q: the refused fragment changed the form", frag)
+		want := base
+		if !refused[0].All {
+			want.Sweep.Points = "7" // the rest of the link is read
+		}
+		if c.key == "port" {
+			want.Ports = got.Ports // the first 32 ports are read
+			if len(got.Ports) != maxFragmentPorts || got.Ports[0] != "a" {
+				t.Errorf("%.60q: ports %q", c.frag, got.Ports)
+			}
+		}
+		if !reflect.DeepEqual(got, want) {
+			t.Errorf("%.60q: form %+v, want %+v", c.frag, got, want)
 		}
 	}
 }
@@ -80,16 +93,19 @@ func TestComputeCircuitFragment(t *testing.T) {
 	if out.Error != nil {
 		t.Fatal(out.Error.Message)
 	}
-	if out.State != frag {
-		t.Errorf("state %q, want %q", out.State, frag)
+	if out.State != frag || out.Notice != "" || len(out.Refused) > 0 {
+		t.Errorf("state %q, want %q; notice %q", out.State, frag, out.Notice)
 	}
 	if f := out.Form; f == nil || f.Frequency != "10k" || len(f.Ports) != 2 || f.Gain == nil || f.Fragment != nil {
 		t.Errorf("form %+v", out.Form)
 	}
-	bad := "ref=U1&zz=1"
+	bad := "ref=U1&zz=1&f=10k"
 	out = Compute(Form{Circuit: text, Frequency: "1k", Fragment: &bad})
-	if out.Error == nil || out.Error.Param != FieldFragment {
-		t.Errorf("bad fragment: %+v", out.Error)
+	if out.Error != nil || len(out.Refused) != 1 || out.Refused[0].Key != "zz" || out.Form.Frequency != "10k" {
+		t.Errorf("unknown key: %+v, %+v", out.Error, out.Refused)
+	}
+	if !strings.HasPrefix(out.Notice, `Not used from this link: zz = "1" (this page has no such setting). `) {
+		t.Errorf("notice %q", out.Notice)
 	}
 }
 
@@ -111,9 +127,9 @@ func TestCircuitLinkReproducesTopology(t *testing.T) {
 			t.Errorf("%s: state %q lacks the reference", e.ID, state)
 		}
 		// The page starts from its own defaults and reads the link over them.
-		cf, err := ReadCircuitFragment(state, Form{Circuit: want.Topology.Circuit, Frequency: "1"})
-		if err != nil {
-			t.Fatalf("%s: %v", e.ID, err)
+		cf, refused := ReadCircuitFragment(state, Form{Circuit: want.Topology.Circuit, Frequency: "1"})
+		if len(refused) > 0 {
+			t.Fatalf("%s: %+v", e.ID, refused)
 		}
 		creq, bad := cf.request()
 		if bad != nil {
@@ -226,10 +242,11 @@ func TestComputeCircuit(t *testing.T) {
 	if out.Output == nil || out.Output.Error != nil || out.Form.Frequency != "2k" || out.Form.Gain == nil || out.Form.Fragment != nil {
 		t.Errorf("link: %+v", out.Form)
 	}
-	hostile := "ref=" + fragment.Escape(hostile)
+	hostile := "ref=" + fragment.Escape(hostile) + "&f=3k"
 	linked.Fragment = &hostile
 	out = ComputeCircuit(CircuitRequest{Form: linked})
-	if out.Output == nil || out.Output.Error == nil || out.Output.Error.Param != "reference" {
+	if o := out.Output; o == nil || o.Error != nil || len(o.Refused) != 1 || o.Refused[0].Key != "ref" || o.Refused[0].Default != "U1" ||
+		out.Form.Reference != "U1" || out.Form.Frequency != "3k" {
 		t.Errorf("hostile reference in a link: %+v", out.Output)
 	}
 

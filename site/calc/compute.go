@@ -26,6 +26,11 @@ type Output struct {
 	// SweepCut, when set, says that the sweep was shortened to fit
 	// Form.Budget.
 	SweepCut *SweepCut `json:"sweepCut,omitempty"`
+	// Refused lists the settings of the form's link (Form.Fragment) that
+	// were not used, and Notice says so in a sentence for the page; the
+	// rest of the link is in Form.
+	Refused []Refusal `json:"refused,omitempty"`
+	Notice  string    `json:"notice,omitempty"`
 	// Error names the field at fault (Param) or the place in circuit text.
 	Error *api.ErrorBody `json:"error,omitempty"`
 }
@@ -50,33 +55,21 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		}
 		entry = &e
 		f = f.withDefaults(e)
-		if f.Fragment != nil {
-			g, err := ReadFragment(*f.Fragment, f, e)
-			if err != nil {
-				return Output{Error: &api.ErrorBody{Param: FieldFragment, Message: err.Error()}}
-			}
-			f = g
-		}
-	} else if f.Fragment != nil {
-		g, err := ReadCircuitFragment(*f.Fragment, f)
-		if err != nil {
-			return Output{Error: &api.ErrorBody{Param: FieldFragment, Message: err.Error()}}
-		}
-		f = g
 	}
 	if f.Fragment != nil {
-		// A link's settings of an analysis that runs only on request are
-		// checked now, not when the user next runs it.
-		for _, a := range Analyses {
-			if a.Check == nil || len(f.Settings[a.Key]) == 0 {
-				continue
-			}
-			if bad := a.Check(a.context(&f, entry, nil)); bad != nil {
-				return Output{Error: &api.ErrorBody{Param: FieldFragment, Message: bad.Param + ": " + bad.Message}}
-			}
+		// A link stands on the page's defaults, not on what the page showed
+		// before it: a setting it leaves out or that is refused takes its
+		// default.
+		base := f
+		if entry != nil {
+			base = DefaultForm(*entry)
+			base.ID, base.Budget, base.CSV = f.ID, f.Budget, f.CSV
 		}
+		var refused []Refusal
+		f, refused = readLink(*f.Fragment, base, entry, parsed)
+		f.Fragment = nil
+		defer func() { out.Refused, out.Notice = refused, LinkNotice(refused, entry == nil) }()
 	}
-	f.Fragment = nil
 	if bad := checkPins(f.Pins); bad != nil {
 		return Output{Error: bad}
 	}
@@ -86,16 +79,9 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 			f.Pins[i].Params = f.design(f.Pins[i]).withDefaults(*entry).Params
 		}
 	}
-	req, bad := f.request()
+	req, bad := f.ask(entry)
 	if bad != nil {
 		return Output{Error: bad}
-	}
-	for _, a := range Analyses {
-		if a.Ask != nil {
-			if bad := a.Ask(&req, a.context(&f, entry, nil)); bad != nil {
-				return Output{Error: bad}
-			}
-		}
 	}
 	resp, cut, err := analyzeWithin(req, time.Duration(f.Budget*float64(time.Millisecond)), parsed)
 	if err != nil {
@@ -120,6 +106,23 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		out.State = f.CircuitState()
 	}
 	return out
+}
+
+// ask turns the form into the engine's request: its own fields, then each
+// analysis's Ask; an error names the field or setting at fault.
+func (f Form) ask(entry *api.CatalogEntry) (api.Request, *api.ErrorBody) {
+	req, bad := f.request()
+	if bad != nil {
+		return req, bad
+	}
+	for _, a := range Analyses {
+		if a.Ask != nil {
+			if bad := a.Ask(&req, a.context(&f, entry, nil)); bad != nil {
+				return req, bad
+			}
+		}
+	}
+	return req, nil
 }
 
 // ComputeJSON is Compute on JSON: a Form in, an Output out. It never

@@ -33,9 +33,9 @@
 //	// or out.Error naming the field
 //
 // A bad field gives an Output whose Error names it (Param is the parameter
-// name, "frequency", "sweep.from", "sweep.to", "sweep.points", an
-// analysis's setting such as "admittance.unit", or "fragment"); the page
-// shows the message beside that input and keeps the last good panel.
+// name, "frequency", "sweep.from", "sweep.to", "sweep.points", or an
+// analysis's setting such as "admittance.unit"); the page shows the
+// message beside that input and keeps the last good panel.
 //
 // # URL fragment
 //
@@ -45,11 +45,19 @@
 // from, to and points (the sweep), then each analysis's settings under its
 // key ("aid.seed=7"), a declared setting only where it differs from its
 // default. The key p is reserved for the single-file export, which uses it
-// to choose the page, and is ignored here. Form.Fragment, when set, is read
-// back over the defaults by the same rules; anything malformed or unknown
-// is refused whole with an error whose Param is "fragment", and the page
-// falls back to its defaults with a notice. The settings of an analysis
-// that runs only on request are checked as the link is read (Check).
+// to choose the page, and is ignored here.
+//
+// Form.Fragment, when set, is a link to read, by one rule on every page:
+// the link stands on the page's defaults (not on what the page showed
+// before it); each setting the page knows and can use is used; each one it
+// cannot — unreadable, unknown, given twice, or a value that the form, the
+// engine's preparation, an analysis's Ask or Check refuses — is left out,
+// its default used in its place, and named in Output.Refused. Output.Notice
+// says so in one sentence, Output.Form holds the values in use for the
+// inputs, and Output.State the link the page writes back. Only a fragment
+// too long to be a link is refused whole. The settings of an analysis that
+// runs only on request are checked as the link is read (Check), so that
+// "aid.n=abc" is refused then, not when the study is run.
 //
 // # Pinned designs
 //
@@ -75,7 +83,9 @@
 // holding the page. Its URL fragment is the text compressed under c (by
 // the page's script) followed by Form.CircuitState — ref, port (one per
 // port), src, out, f, from, to, points, then the analyses' settings — read
-// back by ReadCircuitFragment as strictly as a topology's.
+// back by the same rule as a topology's (ReadCircuitFragment), over the
+// circuit's default choices: its first reference, every port line, no
+// gain, 1 kHz and a sweep from 10 Hz to 100 MHz in 400 points.
 // CircuitLinkState writes the same keys for a topology's response, for its
 // "open as an editable circuit" link.
 //

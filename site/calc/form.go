@@ -87,7 +87,6 @@ const (
 	FieldFrom      = "sweep.from"
 	FieldTo        = "sweep.to"
 	FieldPoints    = "sweep.points"
-	FieldFragment  = "fragment"
 )
 
 // fragment keys for the form's own fields; p is reserved for the
@@ -145,10 +144,14 @@ func (f Form) withDefaults(e api.CatalogEntry) Form {
 // Syntax writes a frequency or count in the engine's value syntax with an
 // SI prefix: 1000 → "1k", 1e8 → "100M", 2.5e-3 → "2.5m". It is how
 // defaults given as numbers appear in inputs, so it uses the fewest digits
-// that read back within 1e-14 of v.
+// that read back within 1e-14 of v. Below the smallest prefix (1 f) it
+// writes a decimal exponent, "1e-320", short enough for a share link.
 func Syntax(v float64) string {
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return "0"
+	}
+	if math.Abs(v) < 1e-15 {
+		return strconv.FormatFloat(v, 'g', -1, 64)
 	}
 	prefixes := []struct {
 		exp int
@@ -304,50 +307,4 @@ func (s settingsRead) over(base map[string]Values) map[string]Values {
 	}
 	maps.Copy(out, s)
 	return out
-}
-
-// ReadFragment reads a URL fragment (with or without "#") written by State
-// over base, a form of topology e: settings the fragment leaves out keep
-// base's values, except the analyses' settings, which the fragment
-// replaces whole when it has any. It refuses the whole fragment when any
-// part of it is malformed (see package fragment) or unknown, returning
-// base unchanged: the caller then keeps its defaults and says why.
-func ReadFragment(frag string, base Form, e api.CatalogEntry) (Form, error) {
-	base = base.withDefaults(e)
-	pairs, err := fragment.Parse(frag)
-	if err != nil {
-		return base, err
-	}
-	f := base
-	f.Params = maps.Clone(base.Params)
-	settings := settingsRead{}
-	pins := pinsRead{}
-	known := make(map[string]bool, len(e.Params))
-	for _, p := range e.Params {
-		known[p.Name] = true
-	}
-	for _, pr := range pairs {
-		k, v := pr.Key, pr.Value
-		switch {
-		case k == keyPage:
-		case k == keyFrequency:
-			f.Frequency = v
-		case k == keyFrom:
-			f.Sweep.From = v
-		case k == keyTo:
-			f.Sweep.To = v
-		case k == keyPoints:
-			f.Sweep.Points = v
-		case known[k]:
-			f.Params[k] = v
-		case settings.read(k, v), pins.read(k, v):
-		default:
-			return base, &fragment.Error{Key: k, Msg: "unknown setting " + strconv.Quote(k) + " for " + e.Title}
-		}
-	}
-	f.Settings = settings.over(base.Settings)
-	if f.Pins, err = pins.stagePins(f, e); err != nil {
-		return base, err
-	}
-	return f, nil
 }

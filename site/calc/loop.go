@@ -39,7 +39,7 @@ func loopSection(w *view.Writer, c *Context) {
 	r := c.Resp
 	w.Section(c.ID, "loop", "Loop")
 	w.Open("dl", "class", "kv")
-	w.KV("Return ratio T at "+value.Format(r.Frequency, "Hz", view.Sig), func() {
+	w.KV("Return ratio T at "+view.Magnitude(r.Frequency, "Hz"), func() {
 		w.Complex(view.Complex{Z: r.ReturnRatio, DB: true, Attrs: []string{"data-quantity", "T"}, Bounded: true, Err: r.ReturnRatioError})
 	})
 	tForm := loopForm(r)
@@ -243,7 +243,7 @@ func loopColumns(c *Context) []Column {
 
 func loopCopy(m *Markdown, c *Context) {
 	r := c.Resp
-	at := "T at " + value.Format(r.Frequency, "Hz", view.Sig)
+	at := "T at " + view.Magnitude(r.Frequency, "Hz")
 	t := "—"
 	if r.ReturnRatio != nil {
 		T := r.ReturnRatio.Value()

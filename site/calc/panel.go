@@ -23,14 +23,14 @@ func Panel(f *Form, entry *api.CatalogEntry, resp *api.Response, pins ...Pinned)
 	w.Open("div", "class", "panel", "id", id+"-panel", "data-frequency", view.Num(resp.Frequency), "data-reference", resp.Reference)
 	w.Open("p", "class", "panel-head")
 	w.Text("Results at ")
-	w.Elem("strong", value.Format(resp.Frequency, "Hz", view.Sig))
+	w.Elem("strong", view.Magnitude(resp.Frequency, "Hz"))
 	if resp.Reference != "" {
 		w.Text("; return ratios are those of ")
 		w.Elem("code", resp.Reference)
 	}
 	w.Text(".")
 	if s := resp.Sweep; s != nil && len(s.Frequency) > 0 {
-		w.Text(" Charts sweep from " + value.Format(s.Frequency[0], "Hz", 4) + " to " + value.Format(s.Frequency[len(s.Frequency)-1], "Hz", 4) +
+		w.Text(" Charts sweep from " + view.Magnitude(s.Frequency[0], "Hz") + " to " + view.Magnitude(s.Frequency[len(s.Frequency)-1], "Hz") +
 			", " + strconv.Itoa(len(s.Frequency)) + " points, log-spaced; move the pointer over a chart, or focus it with Tab and use the arrow keys, to read its values.")
 	}
 	w.Close("p")

@@ -234,9 +234,9 @@ func TestFragmentRoundTrip(t *testing.T) {
 		t.Errorf("State = %q", state)
 	}
 	for _, frag := range []string{state, "#" + state, "p=t&" + state, state + "&"} {
-		g, err := ReadFragment(frag, DefaultForm(entry), entry)
-		if err != nil {
-			t.Fatalf("ReadFragment(%q): %v", frag, err)
+		g, refused := ReadFragment(frag, DefaultForm(entry), entry)
+		if len(refused) > 0 {
+			t.Fatalf("ReadFragment(%q): %+v", frag, refused)
 		}
 		if g.State(entry) != state {
 			t.Errorf("round trip of %q gave %q", frag, g.State(entry))
@@ -245,41 +245,49 @@ func TestFragmentRoundTrip(t *testing.T) {
 	// A partial fragment keeps the base's other values.
 	base := DefaultForm(entry)
 	base.Params["R1"] = "2k2"
-	g, err := ReadFragment("R2=1M", base, entry)
-	if err != nil || g.Params["R1"] != "2k2" || g.Params["R2"] != "1M" {
-		t.Errorf("partial fragment: %v, %v", g.Params, err)
+	g, refused := ReadFragment("R2=1M", base, entry)
+	if len(refused) > 0 || g.Params["R1"] != "2k2" || g.Params["R2"] != "1M" {
+		t.Errorf("partial fragment: %v, %+v", g.Params, refused)
 	}
 	if base.Params["R2"] != "47k" {
 		t.Errorf("ReadFragment changed its base")
 	}
 }
 
+// A setting that cannot be read, or that the stage does not have, is
+// refused by name (or as unreadable) and leaves the base's value for it;
+// the rest of the link is read. A fragment too long to be a link is
+// refused whole.
 func TestFragmentRefused(t *testing.T) {
-	for _, frag := range []string{
-		hostile,
-		"R1=" + hostile + "&nope=1",
-		"R9=10k",
-		"R1=10k&R1=20k",
-		"R1=%zz",
-		"R1=%0",
-		"R1=%00",
-		"R1=a%0Ab",
-		"R1=%FF",
-		"R1",
-		"R1=" + strings.Repeat("9", fragment.MaxValue+1),
-		strings.Repeat("R1=1&", fragment.MaxLength/5+1),
-		"constructor=1",
-		"__proto__=1",
+	for _, c := range []struct{ frag, key string }{
+		{hostile, "<img src"}, // a key "<img src" with a value: unknown
+		{"R9=10k", "R9"},
+		{"R1=10k&R1=20k", "R1"},
+		{"R1=%zz", "R1"},
+		{"R1=%0", "R1"},
+		{"R1=%00", "R1"},
+		{"R1=a%0Ab", "R1"},
+		{"R1=%FF", "R1"},
+		{"R1", ""},
+		{"R1=" + strings.Repeat("9", fragment.MaxValue+1), "R1"},
+		{"constructor=1", "constructor"},
+		{"__proto__=1", "__proto__"},
 	} {
 		base := DefaultForm(entry)
-		g, err := ReadFragment(frag, base, entry)
-		if err == nil {
-			t.Errorf("ReadFragment(%q) accepted it: %v", frag, g)
+		g, refused := ReadFragment(c.frag+"&R2=1M", base, entry)
+		if len(refused) != 1 || refused[0].Key != c.key {
+			t.Errorf("ReadFragment(%q): refused %+v, want one refusal of %q", c.frag, refused, c.key)
 			continue
 		}
-		if g.State(entry) != base.State(entry) {
-			t.Errorf("ReadFragment(%q) did not return the base unchanged", frag)
+		want := DefaultForm(entry)
+		want.Params["R2"] = "1M"
+		if g.State(entry) != want.State(entry) {
+			t.Errorf("ReadFragment(%q) read %q, want the rest of the link alone", c.frag, g.State(entry))
 		}
+	}
+	g, refused := ReadFragment(strings.Repeat("R1=1&", fragment.MaxLength/5+1), DefaultForm(entry), entry)
+	if len(refused) != 1 || !refused[0].All || g.State(entry) != DefaultForm(entry).State(entry) {
+		t.Errorf("an over-long fragment: %+v", refused)
 	}
 }
 
@@ -288,14 +296,11 @@ func FuzzReadFragment(f *testing.F) {
 	f.Add(hostile)
 	f.Add("p=t&%zz=%%")
 	f.Fuzz(func(t *testing.T, frag string) {
-		g, err := ReadFragment(frag, DefaultForm(entry), entry)
-		if err != nil {
-			return
-		}
-		// What was accepted is written back and read again to the same form.
-		h, err := ReadFragment(g.State(entry), DefaultForm(entry), entry)
-		if err != nil || h.State(entry) != g.State(entry) {
-			t.Errorf("state %q does not round-trip: %v", g.State(entry), err)
+		g, _ := ReadFragment(frag, DefaultForm(entry), entry)
+		// What was read is written back and read again to the same form.
+		h, refused := ReadFragment(g.State(entry), DefaultForm(entry), entry)
+		if len(refused) > 0 || h.State(entry) != g.State(entry) {
+			t.Errorf("state %q does not round-trip: %+v", g.State(entry), refused)
 		}
 	})
 }

@@ -799,8 +799,9 @@ func TestCustomHostileLink(t *testing.T) {
 		{"not deflate", "c=" + base64.RawURLEncoding.EncodeToString(noise), "damaged", first.Text},
 		{"inflates to 16 MB", "c=" + bomb, "longer than 256 KB", first.Text},
 		{"not UTF-8", "c=" + edCompress(t, []byte{'#', 0xff, 0xfe, '\n'}), "not UTF-8", first.Text},
-		{"markup as reference", "c=" + good + "&ref=" + url.QueryEscape(edHostileName), "settings in this link were not used", examples.All()[1].Text},
-		{"unknown setting", "c=" + good + "&onload=alert(1)", "settings in this link were not used", examples.All()[1].Text},
+		{"markup as reference", "c=" + good + "&ref=" + url.QueryEscape(edHostileName), `Not used from this link: ref = "`, examples.All()[1].Text},
+		{"unknown setting", "c=" + good + "&onload=alert(1)", `Not used from this link: onload = "alert(1)" (this page has no such setting). The page shows the link’s circuit`, examples.All()[1].Text},
+		{"the circuit twice", "c=" + good + "&c=" + good, "“c=” appears twice", examples.All()[1].Text},
 	} {
 		edLoad(t, ctx, fileURL("custom", c.frag))
 		notice := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] [data-role="notice"]').textContent`)

@@ -22,6 +22,8 @@
 //	network_test.go      no request leaves the site's folder
 //	single_test.go       the single-file export from file://
 //	screenshots_test.go  every page at 1280×800 (light, dark) and 390×844, checked non-blank
+//	robust_test.go       drafts across reloads, links by one rule, tiny values, long tokens,
+//	                     scripts off, the editor's input limits
 //
 // Set ZPORT_SHOTS=DIR to keep the screenshots in DIR.
 package e2e

@@ -101,20 +101,30 @@ func newTab(t *testing.T, ctx context.Context) context.Context {
 // with (window.__e2e.hash), records uncaught errors, rejected promises and
 // policy violations in window.__e2e.errors, and it marks the results
 // panels the HTML itself carries (pre-rendered at build time) with
-// data-e2e-prerendered once the document is parsed: readyState becomes
-// "interactive" before deferred scripts run, so before the engine can
-// have replaced any panel. A panel the engine rendered has no mark.
+// data-e2e-prerendered when zport.js defines window.zportSite: every such
+// panel is in the document by then (the multi-page site runs its scripts
+// deferred, after parsing; the single file runs them inline at the end of
+// body), and the engine has not started, so none has been replaced. (The
+// end of parsing is too late a mark for the single file: its inline
+// scripts can start the engine, and render live panels, before
+// readyState becomes "interactive".) A panel the engine rendered has no
+// mark.
 const probeScript = `(function () {
   var p = window.__e2e = { errors: [], prerendered: -1, hash: location.hash };
   window.addEventListener('error', function (e) { p.errors.push('error: ' + e.message); });
   window.addEventListener('unhandledrejection', function (e) { p.errors.push('unhandled rejection: ' + e.reason); });
   document.addEventListener('securitypolicyviolation', function (e) { p.errors.push('csp: ' + e.violatedDirective + ' ' + e.blockedURI); });
-  document.addEventListener('readystatechange', function () {
-    if (document.readyState !== 'interactive') return;
-    var panels = document.querySelectorAll('[data-role="results"] > .panel');
-    for (var i = 0; i < panels.length; i++) panels[i].setAttribute('data-e2e-prerendered', '');
-    p.prerendered = panels.length;
-  });
+  var site;
+  Object.defineProperty(window, 'zportSite', { configurable: true, enumerable: true,
+    get: function () { return site; },
+    set: function (v) {
+      if (p.prerendered < 0) {
+        var panels = document.querySelectorAll('[data-role="results"] > .panel');
+        for (var i = 0; i < panels.length; i++) panels[i].setAttribute('data-e2e-prerendered', '');
+        p.prerendered = panels.length;
+      }
+      site = v;
+    } });
 })();`
 
 // probe is what a tab's probe saw on the Go side: JavaScript dialogs

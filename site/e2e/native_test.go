@@ -398,7 +398,9 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 		}
 		for i, x := range f {
 			v, err := strconv.ParseFloat(x, 64)
-			if err != nil || !scalar.EqualWithinRel(v, s.Frequency[i], 5.01e-6) {
+			// Relative however small the frequency (gonum's EqualWithinRel
+			// turns absolute below the smallest normal number).
+			if err != nil || math.Abs(v-s.Frequency[i]) > 5.01e-6*math.Max(v, s.Frequency[i]) {
 				bad = append(bad, fmt.Sprintf("chart %s: frequency %d is %s, native %v", c.ID, i, x, s.Frequency[i]))
 				break
 			}

@@ -129,31 +129,32 @@ func hostileFragments() []struct{ name, raw string } {
 	}
 }
 
-// A malformed or hostile fragment is ignored with a visible notice: no
-// script runs, nothing of it becomes markup, the page shows the defaults
-// and stays alive, and the address drops the hostile text.
+// A malformed or hostile fragment is refused, setting by setting, with a
+// visible notice saying exactly what was not used: no script runs, nothing
+// of it becomes markup, the page shows the rest of the link with defaults
+// in place of what was refused, stays alive, and the address drops the
+// hostile text.
 func TestHostileFragmentIsRefused(t *testing.T) {
 	ctx := start(t)
 	const id = "inverting"
 	e, _ := api.LookupEntry(id)
-	defaults := "#" + calc.DefaultForm(e).State(e)
 	load(t, ctx, fileURL(id, ""))
 	scripts := eval[int](t, ctx, `document.scripts.length`)
 
 	check := func(t *testing.T, frag string) {
 		t.Helper()
 		msg := calc.Compute(calc.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
-		if msg.Error == nil {
-			t.Fatalf("the native engine accepts the fragment %.80q", frag)
+		if msg.Error != nil || len(msg.Refused) == 0 {
+			t.Fatalf("the native engine refuses nothing of the fragment %.80q: %+v", frag, msg.Error)
 		}
-		want := "The settings in this link were not used (" + msg.Error.Message + "). Showing the defaults instead."
+		want := msg.Notice
 		poll(t, ctx, `(function () { var n = document.querySelector('[data-role="notice"]'); return !n.hidden && n.offsetHeight > 0 && n.textContent === `+jsString(want)+`; })()`, waitFor)
-		if got := inputs(t, ctx, id); !sameMap(got, defaultInputs(e)) {
-			t.Errorf("inputs after a refused link: %v", got)
+		if got := inputs(t, ctx, id); !sameMap(got, formInputs(*msg.Form)) {
+			t.Errorf("inputs after a refused link: %v, want %v", got, formInputs(*msg.Form))
 		}
 		checkAgainstNative(t, ctx, id)
-		if h := eval[string](t, ctx, `location.hash`); h != defaults {
-			t.Errorf("the address still holds %.80q, want the defaults", h)
+		if h := eval[string](t, ctx, `location.hash`); h != "#"+msg.State {
+			t.Errorf("the address holds %.80q, want the settings in use %.80q", h, msg.State)
 		}
 		if n := eval[int](t, ctx, `document.querySelectorAll('img, iframe, object, embed').length`); n != 0 {
 			t.Errorf("%d embedded elements appeared", n)
@@ -206,10 +207,12 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 }
 
 // defaultInputs is what a calculator's inputs hold at the catalog defaults.
-func defaultInputs(e api.CatalogEntry) map[string]string {
-	d := calc.DefaultForm(e)
-	m := map[string]string{"frequency": d.Frequency, "sweep.from": d.Sweep.From, "sweep.to": d.Sweep.To, "sweep.points": d.Sweep.Points}
-	for k, v := range d.Params {
+func defaultInputs(e api.CatalogEntry) map[string]string { return formInputs(calc.DefaultForm(e)) }
+
+// formInputs is what a calculator's inputs hold for a form.
+func formInputs(f calc.Form) map[string]string {
+	m := map[string]string{"frequency": f.Frequency, "sweep.from": f.Sweep.From, "sweep.to": f.Sweep.To, "sweep.points": f.Sweep.Points}
+	for k, v := range f.Params {
 		m[k] = v
 	}
 	for _, a := range calc.Analyses {

@@ -118,7 +118,7 @@ func TestSingleFileExport(t *testing.T) {
 	// A hostile one is refused there too.
 	loadFresh(t, ctx, singleURL("p=inverting&R1=<img src=x onerror=alert(1)>"))
 	shownSection(t, ctx, "inverting")
-	poll(t, ctx, `(function () { var n = document.querySelector('#page-inverting [data-role="notice"]'); return !n.hidden && /not used/.test(n.textContent); })()`, waitFor)
+	poll(t, ctx, `(function () { var n = document.querySelector('#page-inverting [data-role="notice"]'); return !n.hidden && /^Not used from this link: R1 = /.test(n.textContent); })()`, waitFor)
 	if got := inputs(t, ctx, "inverting"); !sameMap(got, defaultInputs(mustEntry(t, "inverting"))) {
 		t.Errorf("inputs after a refused link: %v", got)
 	}

@@ -3,12 +3,14 @@
 // reads them, so that a shared link reproduces what its sender saw.
 //
 // Writing keeps the order the caller gives, so two equal states give the
-// same link. Reading is strict: anything malformed — a pair without "=",
-// bad escaping, control characters or invalid UTF-8, an over-long key or
-// value, an over-long fragment, or a key given twice that may appear only
-// once — refuses the whole fragment with an *Error, and the page keeps its
-// defaults and says why. The package stands in for net/url, which would
-// bring net/netip into the WebAssembly module.
+// same link. Reading is strict, setting by setting: a fragment too long to
+// be a link is refused whole, and otherwise each setting that is malformed
+// — no "=", bad escaping, control characters or invalid UTF-8, an
+// over-long key or value, a key given twice that may appear only once — is
+// left out and reported with its key (an Errors list), while the others
+// are read. The page then uses what it can of a link and says exactly what
+// it did not use. The package stands in for net/url, which would bring
+// net/netip into the WebAssembly module.
 //
 //	var p fragment.Pairs
 //	p.Add("R1", "4k7")
@@ -67,14 +69,29 @@ func (p Pairs) Encode() string {
 	return b.String()
 }
 
-// Error is a fragment that could not be read. Key names the setting at
-// fault when there is one.
+// Error is a fragment, or one setting of it, that could not be read. Key
+// names the setting at fault when it could be read, and Value holds its
+// value when that could be read too.
 type Error struct {
-	Key string
-	Msg string
+	Key, Value string
+	Msg        string
 }
 
 func (e *Error) Error() string { return e.Msg }
+
+// Errors lists the settings of a fragment that could not be read, in the
+// order they came.
+type Errors []*Error
+
+func (e Errors) Error() string {
+	switch len(e) {
+	case 0:
+		return "no errors"
+	case 1:
+		return e[0].Msg
+	}
+	return e[0].Msg + " (and " + strconv.Itoa(len(e)-1) + " more)"
+}
 
 // Option adjusts Parse.
 type Option func(*options)
@@ -106,7 +123,12 @@ func Skip(keys ...string) Option {
 }
 
 // Parse reads a fragment, with or without its leading "#". Empty pieces
-// ("a=1&&b=2") are passed over.
+// ("a=1&&b=2") are passed over. A fragment longer than MaxLength is refused
+// whole: Parse returns nil and an *Error. Otherwise it returns the settings
+// it could read, in order, and, when some could not be read, an Errors
+// list of them: a key given twice that may appear only once is reported
+// once, and none of its values is returned. A skipped key is not read, but
+// it may not appear twice either.
 func Parse(frag string, opts ...Option) (Pairs, error) {
 	o := options{repeatable: map[string]bool{}, skip: map[string]bool{}}
 	for _, f := range opts {
@@ -117,39 +139,55 @@ func Parse(frag string, opts ...Option) (Pairs, error) {
 		return nil, &Error{Msg: "the link's settings are longer than " + strconv.Itoa(MaxLength) + " characters"}
 	}
 	var out Pairs
-	seen := map[string]bool{}
+	var bad Errors
+	seen := map[string]int{}
 	for _, part := range strings.Split(frag, "&") {
 		if part == "" {
 			continue
 		}
 		rawKey, rawVal, ok := strings.Cut(part, "=")
 		if !ok {
-			return nil, &Error{Msg: "a setting has no “=”"}
+			bad = append(bad, &Error{Msg: "a setting has no “=”"})
+			continue
 		}
 		k, err := Unescape(rawKey)
 		if err != nil {
-			return nil, err
+			bad = append(bad, &Error{Msg: "a setting's name is not properly escaped"})
+			continue
+		}
+		if !printable(k) || len(k) > MaxValue {
+			bad = append(bad, &Error{Msg: "a setting's name is longer than " + strconv.Itoa(MaxValue) + " characters or holds characters that are not allowed"})
+			continue
+		}
+		if seen[k]++; seen[k] == 2 && !o.repeatable[k] {
+			bad = append(bad, &Error{Key: k, Msg: "the setting " + strconv.Quote(k) + " appears twice"})
 		}
 		if o.skip[k] {
 			continue
 		}
 		v, err := Unescape(rawVal)
-		if err != nil {
-			return nil, err
+		switch {
+		case err != nil:
+			bad = append(bad, &Error{Key: k, Msg: "its value is not properly escaped"})
+		case !printable(v):
+			bad = append(bad, &Error{Key: k, Msg: "its value holds characters that are not allowed"})
+		case len(v) > MaxValue:
+			bad = append(bad, &Error{Key: k, Msg: "its value is longer than " + strconv.Itoa(MaxValue) + " characters"})
+		default:
+			out = append(out, Pair{k, v})
 		}
-		if !printable(k) || !printable(v) {
-			return nil, &Error{Msg: "a setting holds characters that are not allowed"}
-		}
-		if len(k) > MaxValue || len(v) > MaxValue {
-			return nil, &Error{Msg: "a setting is longer than " + strconv.Itoa(MaxValue) + " characters"}
-		}
-		if seen[k] && !o.repeatable[k] {
-			return nil, &Error{Key: k, Msg: "the setting " + strconv.Quote(k) + " appears twice"}
-		}
-		seen[k] = true
-		out = append(out, Pair{k, v})
 	}
-	return out, nil
+	// A key given twice is refused with all its values.
+	kept := out[:0]
+	for _, p := range out {
+		if seen[p.Key] < 2 || o.repeatable[p.Key] {
+			kept = append(kept, p)
+		}
+	}
+	if len(bad) > 0 {
+		return kept, bad
+	}
+	return kept, nil
 }
 
 // printable reports whether s is valid UTF-8 free of control characters.
