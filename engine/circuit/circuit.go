@@ -20,9 +20,14 @@ const (
 	CCVS
 	CCCS
 	OpAmp
+	// VNoise and INoise are noise sources: in every analysis but noise a
+	// VNoise is a 0 V source (a short with a branch current) and an INoise
+	// is open.
+	VNoise
+	INoise
 )
 
-var kindNames = [...]string{"resistor", "capacitor", "inductor", "vsource", "isource", "vcvs", "vccs", "ccvs", "cccs", "opamp"}
+var kindNames = [...]string{"resistor", "capacitor", "inductor", "vsource", "isource", "vcvs", "vccs", "ccvs", "cccs", "opamp", "vnoise", "inoise"}
 
 func (k Kind) String() string {
 	if k < 0 || int(k) >= len(kindNames) {
@@ -33,12 +38,18 @@ func (k Kind) String() string {
 
 // Controlled reports whether parts of kind k have a gain that can serve as
 // the reference for a return ratio.
-func (k Kind) Controlled() bool { return k >= VCVS }
+func (k Kind) Controlled() bool {
+	switch k {
+	case VCVS, VCCS, CCVS, CCCS, OpAmp:
+		return true
+	}
+	return false
+}
 
 // VoltageOutput reports whether the part forces a voltage between its first
 // two nodes (and so carries a branch current that can be sensed).
 func (k Kind) VoltageOutput() bool {
-	return k == Inductor || k == VSource || k == VCVS || k == CCVS
+	return k == Inductor || k == VSource || k == VCVS || k == CCVS || k == VNoise
 }
 
 // Gnd is the index of the reference node.
@@ -61,6 +72,8 @@ type Part struct {
 	Sense int
 	// Amp is set for an opamp.
 	Amp *Amp
+	// Noise is what the line says about the part's noise.
+	Noise Noise
 	// Line and Col locate the part's name in the text (1-based).
 	Line, Col int
 }
@@ -68,6 +81,24 @@ type Part struct {
 // Amp holds an opamp's model. A zero GBW, P2, Rid or Rcm means absent.
 type Amp struct {
 	A0, GBW, P2, Rid, Rcm, Ro float64
+}
+
+// Noise is what a part's line says about its noise; package
+// zport/engine/noise turns it into noise sources. The zero value is a
+// part's default: a resistor is noisy, an opamp is noiseless.
+type Noise struct {
+	// Off marks a resistor noiseless (noise=off): a load or a model
+	// resistance that is not a physical resistor of the design.
+	Off bool
+	// V is a voltage density in V/√Hz (an opamp's en, a vnoise's density)
+	// and VCorner its 1/f corner in hertz (0: none); I and ICorner are the
+	// same for a current density in A/√Hz (an opamp's in, an inoise's
+	// density). The power density is V²·(1 + VCorner/f).
+	V, VCorner, I, ICorner float64
+	// Shot is the DC current in amperes whose shot noise an inoise is
+	// (shot=); Thermal the conductance in siemens whose thermal noise it
+	// is at the analysis temperature (thermal=).
+	Shot, Thermal float64
 }
 
 // Gain returns the open-loop gain A(s) at s = j2πf.

@@ -3,6 +3,7 @@ package circuit
 import (
 	"errors"
 	"fmt"
+	"slices"
 	"sort"
 	"strings"
 	"unicode/utf8"
@@ -95,6 +96,12 @@ type option struct {
 	positive  bool   // must be > 0
 	nonneg    bool   // must be ≥ 0
 	isSense   string // "pair" for CP,CN; "part" for a part name
+	// words, when set, are the values the option takes instead of a
+	// number, and word stores the one given.
+	words []string
+	word  func(p *Part, w string)
+	// set stores a number; nil stores it as the part's Value.
+	set func(p *Part, v float64)
 }
 
 type shape struct {
@@ -108,7 +115,7 @@ var shapes = map[string]struct {
 	kind Kind
 	shape
 }{
-	"resistor":  {Resistor, shape{2, "Ω", true, nil}},
+	"resistor":  {Resistor, shape{2, "Ω", true, []option{noiseOff}}},
 	"capacitor": {Capacitor, shape{2, "F", true, nil}},
 	"inductor":  {Inductor, shape{2, "H", true, nil}},
 	"vsource":   {VSource, shape{2, "V", false, nil}},
@@ -118,10 +125,31 @@ var shapes = map[string]struct {
 	"ccvs":      {CCVS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "part"}, {key: "r", unit: "Ω", required: true}}}},
 	"cccs":      {CCCS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "part"}, {key: "gain", required: true}}}},
 	"opamp": {OpAmp, shape{3, "-", false, []option{
-		{key: "a0", positive: true}, {key: "gbw", unit: "Hz", positive: true}, {key: "p2", unit: "Hz", positive: true},
-		{key: "rid", unit: "Ω", positive: true}, {key: "rcm", unit: "Ω", positive: true}, {key: "ro", unit: "Ω", nonneg: true},
+		{key: "a0", positive: true, set: func(p *Part, v float64) { p.Amp.A0 = v }},
+		{key: "gbw", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Amp.GBW = v }},
+		{key: "p2", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Amp.P2 = v }},
+		{key: "rid", unit: "Ω", positive: true, set: func(p *Part, v float64) { p.Amp.Rid = v }},
+		{key: "rcm", unit: "Ω", positive: true, set: func(p *Part, v float64) { p.Amp.Rcm = v }},
+		{key: "ro", unit: "Ω", nonneg: true, set: func(p *Part, v float64) { p.Amp.Ro = v }},
+		{key: "en", unit: "V/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.V = v }},
+		{key: "fce", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.VCorner = v }},
+		{key: "in", unit: "A/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.I = v }},
+		{key: "fci", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.ICorner = v }},
+	}}},
+	"vnoise": {VNoise, shape{2, "-", false, []option{
+		{key: "density", unit: "V/√Hz", required: true, nonneg: true, set: func(p *Part, v float64) { p.Noise.V = v }},
+		{key: "fc", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.VCorner = v }},
+	}}},
+	"inoise": {INoise, shape{2, "-", false, []option{
+		{key: "density", unit: "A/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.I = v }},
+		{key: "fc", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.ICorner = v }},
+		{key: "shot", unit: "A", nonneg: true, set: func(p *Part, v float64) { p.Noise.Shot = v }},
+		{key: "thermal", unit: "S", nonneg: true, set: func(p *Part, v float64) { p.Noise.Thermal = v }},
 	}}},
 }
+
+// noiseOff is a resistor's noise= option: on (the default) or off.
+var noiseOff = option{key: "noise", words: []string{"on", "off"}, word: func(p *Part, w string) { p.Noise.Off = w == "off" }}
 
 func kindList() string {
 	names := make([]string, 0, len(shapes)+1)
@@ -375,7 +403,16 @@ func (p *parser) line(n int, line string) {
 				continue
 			}
 			p.senses = append(p.senses, pendingSense{len(p.c.Parts), token{rest, valCol}, n})
-		default:
+		case "":
+			if o.words != nil {
+				if !slices.Contains(o.words, rest) {
+					p.errorf(n, valCol, "option %s= takes %s, found %q", key, strings.Join(o.words, " or "), rest)
+					ok = false
+					continue
+				}
+				o.word(&part, rest)
+				continue
+			}
 			v, good := p.val(n, t, eq+1, o.unit, fmt.Sprintf("%s %s option %s=", kw.text, nameTok.text, key))
 			if !good {
 				ok = false
@@ -390,21 +427,8 @@ func (p *parser) line(n int, line string) {
 				ok = false
 				continue
 			}
-			if sh.kind == OpAmp {
-				switch key {
-				case "a0":
-					part.Amp.A0 = v
-				case "gbw":
-					part.Amp.GBW = v
-				case "p2":
-					part.Amp.P2 = v
-				case "rid":
-					part.Amp.Rid = v
-				case "rcm":
-					part.Amp.Rcm = v
-				case "ro":
-					part.Amp.Ro = v
-				}
+			if o.set != nil {
+				o.set(&part, v)
 			} else {
 				part.Value = v
 			}
@@ -417,11 +441,43 @@ func (p *parser) line(n int, line string) {
 			ok = false
 		}
 	}
+	if sh.kind == INoise && ok {
+		ok = p.oneNoise(n, kw.text, nameTok.text, toks, opts, seen)
+	}
 	if !ok {
 		return
 	}
 	p.c.parts[part.Name] = len(p.c.Parts)
 	p.c.Parts = append(p.c.Parts, part)
+}
+
+// oneNoise checks that an inoise line says what its noise is in exactly
+// one way (density=, shot= or thermal=), and gives a 1/f corner only to a
+// density.
+func (p *parser) oneNoise(n int, kw, name string, toks, opts []token, seen map[string]bool) bool {
+	var given []token
+	for _, t := range opts {
+		if k, _, _ := strings.Cut(t.text, "="); k == "density" || k == "shot" || k == "thermal" {
+			given = append(given, t)
+		}
+	}
+	switch {
+	case len(given) == 0:
+		end := toks[len(toks)-1]
+		p.errorf(n, end.col+utf8.RuneCountInString(end.text), "%s %s needs one of density=, shot= or thermal=", kw, name)
+		return false
+	case len(given) > 1:
+		p.errorf(n, given[1].col, "%s %s takes one of density=, shot= and thermal=, not two", kw, name)
+		return false
+	case seen["fc"] && !seen["density"]:
+		for _, t := range opts {
+			if strings.HasPrefix(t.text, "fc=") {
+				p.errorf(n, t.col, "fc= is the 1/f corner of a density=; shot= and thermal= are white")
+			}
+		}
+		return false
+	}
+	return true
 }
 
 func (p *parser) name(n int, t token) bool {
@@ -477,7 +533,7 @@ func (p *parser) resolveSenses() {
 		}
 		k := p.c.Parts[i].Kind
 		if !(k == Resistor || k == Capacitor || k.VoltageOutput()) {
-			p.errorf(s.line, s.tok.col, "sense=%s: the current of a %s cannot be sensed (sense a resistor, capacitor, inductor, vsource, vcvs or ccvs)", s.tok.text, k)
+			p.errorf(s.line, s.tok.col, "sense=%s: the current of a %s cannot be sensed (sense a resistor, capacitor, inductor, vsource, vcvs, ccvs or vnoise)", s.tok.text, k)
 			continue
 		}
 		p.c.Parts[s.part].Sense = i

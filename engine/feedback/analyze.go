@@ -160,8 +160,9 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 }
 
 // heldBy returns the ideal voltage sources on a path from node pa to node
-// pb, when there is one: vsources (other than the port's drivers), vcvs
-// outputs and opamp outputs without ro. A current injected into such a port
+// pb, when there is one: vsources (other than the port's drivers) and
+// vnoise sources (0 V outside the noise analysis), vcvs outputs and opamp
+// outputs without ro. A current injected into such a port
 // flows through the path and changes no other equation — unless a
 // current-controlled source senses a part on the path, in which case there
 // is no such rule and heldBy returns nil.
@@ -184,7 +185,7 @@ func heldBy(c *circuit.Circuit, pa, pb int, drivers []int) []string {
 	for i, p := range c.Parts {
 		switch {
 		case skip[i]:
-		case p.Kind == circuit.VSource || p.Kind == circuit.VCVS:
+		case p.Kind == circuit.VSource || p.Kind == circuit.VNoise || p.Kind == circuit.VCVS:
 			edges = append(edges, edge{p.Nodes[0], p.Nodes[1], i})
 		case p.Kind == circuit.OpAmp && p.Amp.Ro == 0:
 			edges = append(edges, edge{p.Nodes[2], circuit.Gnd, i})

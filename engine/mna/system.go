@@ -92,10 +92,11 @@ func New(c *circuit.Circuit) *System {
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
 			s.add(&s.c, br, br, -p.Value)
-		case circuit.VSource:
+		case circuit.VSource, circuit.VNoise:
+			// A noise source is 0 V here; package noise drives its branch.
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
-		case circuit.ISource:
+		case circuit.ISource, circuit.INoise:
 			// Only in the right-hand side.
 		case circuit.VCVS, circuit.CCVS:
 			s.branchKCL(a, b, br)
