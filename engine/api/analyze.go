@@ -70,6 +70,13 @@ type Prepared struct {
 	Values   topology.Values
 	Text     string
 	PortDefs []string
+
+	// Spot and Points are the analyzer's answers at the spot frequency
+	// and at each frequency of the sweep (nil without one), set by Run
+	// before the analyses run: an analysis that asked the analyzer for
+	// more in its Before (an adjoint solution) reads it here.
+	Spot   feedback.Point
+	Points []feedback.Point
 }
 
 // Prepare parses and resolves a request without analyzing it.
@@ -250,6 +257,9 @@ func Analyze(req Request) (*Response, error) {
 // Run analyzes a prepared request.
 func (p *Prepared) Run() (*Response, error) {
 	a := p.Analyzer
+	if err := p.beforeAnalyses(); err != nil {
+		return nil, err
+	}
 	a.Condition = true
 	pt, err := a.At(p.Req.Frequency)
 	a.Condition = false
@@ -264,21 +274,28 @@ func (p *Prepared) Run() (*Response, error) {
 		resp.Gain = p.gainResult(pt.Gain)
 	}
 	var notes []string
+	if a.Ref < 0 {
+		notes = append(notes, feedback.NoReferenceNote)
+	}
 	notes = append(notes, pt.Notes...)
+	p.Spot, p.Points = pt, nil
 	if s := p.Req.Sweep; s != nil {
 		grid := floats.LogSpan(make([]float64, s.Points), s.From, s.To)
 		pts, err := a.Sweep(grid)
 		if err != nil {
 			return nil, &Problem{Msg: err.Error()}
 		}
+		p.Points = pts
 		resp.Sweep = sweepResult(grid, pts)
 		resp.fillSweepNames()
-		T := make([]complex128, len(pts))
-		for i := range pts {
-			T[i] = pts[i].T
+		if a.Ref >= 0 {
+			T := make([]complex128, len(pts))
+			for i := range pts {
+				T[i] = pts[i].T
+			}
+			m := feedback.Margins(grid, T, a.ReturnRatio)
+			resp.Margins = margins(m)
 		}
-		m := feedback.Margins(grid, T, a.ReturnRatio)
-		resp.Margins = margins(m)
 		notes = append(notes, feedback.Notes(pts)...)
 	}
 	seen := map[string]bool{}

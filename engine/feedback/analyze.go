@@ -1,6 +1,7 @@
 package feedback
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -83,6 +84,10 @@ type Point struct {
 	// solved, when Analyzer.Condition is set (else 0): expect relative
 	// errors of about Cond·2⁻⁵³.
 	Cond float64
+	// Adjoint is the adjoint solution z, Mᵀz = d, of the full circuit at
+	// F for the read-out d = Analyzer.Adjoint (nil when not asked): the
+	// output's response to any right-hand side b is zᵀb.
+	Adjoint []complex128
 }
 
 // Analyzer analyzes one circuit for one reference element, a set of ports
@@ -91,14 +96,23 @@ type Point struct {
 type Analyzer struct {
 	C   *circuit.Circuit
 	Sys *mna.System
-	// Ref is the part index of the reference element.
+	// Ref is the part index of the reference element, −1 when there is
+	// none: then Blackman's terms, the return ratio and G₀, G∞, G are not
+	// defined, and the results hold the direct solution only.
 	Ref   int
-	ref   int // index in Sys.Controls
+	ref   int // index in Sys.Controls, −1 without a reference
 	Ports []Port
 	Gain  *Gain
 	// Condition asks At to estimate the condition of every system it
 	// solves (a few extra solves each; meant for spot analyses).
 	Condition bool
+	// Adjoint, when set, is a read-out d of an output from the unknowns
+	// (y = dᵀx): At then also solves the adjoint system Mᵀz = d of the
+	// full circuit with the factorization it makes anyway, into
+	// Point.Adjoint. One such solve gives the transfer from every source
+	// of the circuit to the output (Rohrer, Nagel, Meyer, Weber, IEEE
+	// J. Solid-State Circuits 6(4), 1971 [memory]); package noise uses it.
+	Adjoint []mna.Term
 
 	slots map[string]*slot
 	used  []*slot      // factored during the current At
@@ -117,29 +131,25 @@ type slot struct {
 	checked, dc bool
 }
 
-// New prepares an analysis of c with the named reference element.
+// New prepares an analysis of c with the named reference element. An
+// empty reference asks for the direct solution alone (see Analyzer.Ref):
+// a passive network has nothing else to offer.
 func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analyzer, error) {
 	if n := len(c.Nodes) - 1; n > MaxNodes {
 		return nil, fmt.Errorf("the circuit has %d nodes; zport analyzes up to %d so the page stays responsive", n, MaxNodes)
 	}
-	p, ok := c.Part(reference)
-	if !ok {
-		if reference == "" {
-			return nil, fmt.Errorf("no reference element given (choose one of: %s)", strings.Join(c.References(), ", "))
+	a := &Analyzer{C: c, Sys: mna.New(c), Ports: ports, Gain: gain, slots: map[string]*slot{}, Ref: -1, ref: -1}
+	if reference != "" {
+		i, ok := c.PartIndex(reference)
+		if !ok {
+			return nil, fmt.Errorf("reference %q: no part of that name (choose one of: %s)", reference, strings.Join(c.References(), ", "))
 		}
-		return nil, fmt.Errorf("reference %q: no part of that name (choose one of: %s)", reference, strings.Join(c.References(), ", "))
-	}
-	if !p.Kind.Controlled() {
-		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source or an opamp (one of: %s)", reference, p.Kind, strings.Join(c.References(), ", "))
-	}
-	sys := mna.New(c)
-	a := &Analyzer{C: c, Sys: sys, Ports: ports, Gain: gain, slots: map[string]*slot{}}
-	for i := range c.Parts {
-		if c.Parts[i].Name == reference {
-			a.Ref = i
+		if k := c.Parts[i].Kind; !k.Controlled() {
+			return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source or an opamp (one of: %s)", reference, k, strings.Join(c.References(), ", "))
 		}
+		a.Ref, a.ref = i, a.Sys.ControlOf(i)
 	}
-	a.ref = sys.ControlOf(a.Ref)
+	sys := a.Sys
 	for i := range a.Ports {
 		p := &a.Ports[i]
 		p.Drivers = drivers(c, p.A, p.B)
@@ -152,7 +162,9 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 		}
 	}
 	a.r = make([]complex128, sys.N+1)
-	mna.Scatter(a.r, sys.Controls[a.ref].R)
+	if a.ref >= 0 {
+		mna.Scatter(a.r, sys.Controls[a.ref].R)
+	}
 	for i := range a.bufs {
 		a.bufs[i] = make([]complex128, sys.N+1)
 	}
@@ -261,8 +273,15 @@ func (a *Analyzer) returnRatio(s *slot, f float64, n int, x []complex128) comple
 	return -a.gainAt(f) * a.Sys.ControlSignal(a.ref, f, x)
 }
 
+// ErrNoReference is ReturnRatio's error for an analyzer without a
+// reference element.
+var ErrNoReference = errors.New("no reference element: the return ratio needs a controlled source or an opamp as reference")
+
 // ReturnRatio returns T at f with every independent source zeroed.
 func (a *Analyzer) ReturnRatio(f float64) (complex128, error) {
+	if a.ref < 0 {
+		return cmplx.NaN(), ErrNoReference
+	}
 	cfg := mna.Config{F: f, Ref: a.ref}
 	s, err := a.factor("base0", cfg)
 	if err != nil {
@@ -296,6 +315,13 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	}
 	if mp := baseK.lu.MinPivot(); !a.Condition && mp < 1e-8 {
 		note("%s: the equations are ill-conditioned (smallest relative pivot %.1e): expect about %d good digits, not 15", hz(f), mp, max(1, int(16+math.Log10(mp))))
+	}
+	if a.Adjoint != nil {
+		pt.Adjoint = make([]complex128, N)
+		a.adjoint(baseK, pt.Adjoint)
+	}
+	if a.ref < 0 {
+		return a.direct(pt, baseK, note), nil
 	}
 	cfg0 := mna.Config{F: f, Ref: a.ref}
 	base0, err0 := a.factor("base0", cfg0)
@@ -345,15 +371,106 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	for pi := range a.Ports {
 		pt.Ports = append(pt.Ports, a.port(pi, f, base0, err0, baseK, pt.T, note))
 	}
-	if a.Condition {
-		for _, s := range a.used {
-			pt.Cond = math.Max(pt.Cond, s.lu.Cond())
-		}
-		if digits := -math.Log10(pt.Cond * 0x1p-53); digits < 9 {
-			note("%s: the equations are ill-conditioned (condition ≈ %.1e): expect about %d good digits, not 15", hz(f), pt.Cond, max(1, int(digits)))
-		}
-	}
+	a.condition(&pt, note)
 	return pt, nil
+}
+
+// NoReferenceNote says what an analysis without a reference element leaves
+// out; a response carries it once, not per frequency.
+const NoReferenceNote = "no reference element: Blackman’s terms, the return ratio, the margins and the asymptotic gain terms need a controlled source or an opamp as reference; impedances and gain are those of the direct nodal solution"
+
+// direct completes pt from the full circuit alone, for an analyzer without
+// a reference: every port's direct impedance and the direct gain.
+func (a *Analyzer) direct(pt Point, baseK *slot, note func(string, ...any)) Point {
+	N := a.Sys.N
+	x, b := a.bufs[2], a.bufs[1]
+	if a.Gain != nil {
+		a.sourceVector(b[:N])
+		baseK.lu.SolveTo(x[:N], b[:N])
+		pt.Gain = &GainResult{G0: nan, GInf: nan, G: nan, GDirect: a.output(x), Agreement: math.NaN()}
+	}
+	for i := range a.Ports {
+		p := &a.Ports[i]
+		res := PortResult{Z0: nan, TShort: nan, TOpen: nan, Z: nan, ZDirect: nan, Y: nan, Agreement: math.NaN()}
+		s, err := baseK, error(nil)
+		if len(p.Drivers) > 0 {
+			cfg := mna.Config{F: pt.F, Ref: -1, RefGain: true, Removed: p.Drivers}
+			s, err = a.factor(p.key("openK"), cfg)
+		}
+		if err != nil {
+			note("%s: port %s: with the port open the circuit has no solution, so the direct impedance is infinite", hz(pt.F), p.Name)
+		} else {
+			a.portVector(p, b)
+			s.lu.SolveTo(x[:N], b[:N])
+			res.ZDirect = portVoltage(p, x)
+		}
+		pt.Ports = append(pt.Ports, res)
+	}
+	a.condition(&pt, note)
+	return pt
+}
+
+// portVector writes a unit test current into port p's A node, out of its
+// B node.
+func (a *Analyzer) portVector(p *Port, b []complex128) {
+	clear(b)
+	if v := mna.NodeVar(p.A); v >= 0 {
+		b[v] = 1
+	}
+	if v := mna.NodeVar(p.B); v >= 0 {
+		b[v] = -1
+	}
+}
+
+// portVoltage reads V(A) − V(B) of port p from a solution.
+func portVoltage(p *Port, x []complex128) complex128 {
+	var v complex128
+	if i := mna.NodeVar(p.A); i >= 0 {
+		v += x[i]
+	}
+	if i := mna.NodeVar(p.B); i >= 0 {
+		v -= x[i]
+	}
+	return v
+}
+
+// condition sets pt.Cond from the systems factored at this point, when
+// asked, with a note when it leaves fewer than nine good digits.
+func (a *Analyzer) condition(pt *Point, note func(string, ...any)) {
+	if !a.Condition {
+		return
+	}
+	for _, s := range a.used {
+		pt.Cond = math.Max(pt.Cond, s.lu.Cond())
+	}
+	if digits := -math.Log10(pt.Cond * 0x1p-53); digits < 9 {
+		note("%s: the equations are ill-conditioned (condition ≈ %.1e): expect about %d good digits, not 15", hz(pt.F), pt.Cond, max(1, int(digits)))
+	}
+}
+
+// adjoint solves the adjoint system of the factored full circuit s for
+// the read-out a.Adjoint into z (length Sys.N).
+func (a *Analyzer) adjoint(s *slot, z []complex128) {
+	d := a.bufs[3]
+	mna.Scatter(d, a.Adjoint)
+	s.lu.SolveTransTo(z, d[:a.Sys.N])
+}
+
+// AdjointAt solves the adjoint system Mᵀz = d of the full circuit at
+// f > 0 for the read-out d = a.Adjoint (which must be set) into z (length
+// Sys.N). Within one frequency it reuses the factorization At made, and
+// the structure of earlier ones.
+func (a *Analyzer) AdjointAt(f float64, z []complex128) error {
+	if a.Adjoint == nil {
+		panic("feedback: AdjointAt without an Adjoint read-out")
+	}
+	cfg := mna.Config{F: f, Ref: a.ref, RefGain: true}
+	s, err := a.factor("baseK", cfg)
+	if err != nil {
+		return a.explain(err, cfg, "")
+	}
+	a.adjoint(s, z)
+	return nil
 }
 
 func (a *Analyzer) port(pi int, f float64, base0 *slot, err0 error, baseK *slot, T complex128, note func(string, ...any)) PortResult {
@@ -361,23 +478,8 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, err0 error, baseK *slot,
 	N := a.Sys.N
 	res := PortResult{Z0: nan, TShort: nan, TOpen: nan, Z: nan, ZDirect: nan, Y: nan, Agreement: math.NaN()}
 	bp := a.bufs[1]
-	clear(bp)
-	if v := mna.NodeVar(p.A); v >= 0 {
-		bp[v] = 1
-	}
-	if v := mna.NodeVar(p.B); v >= 0 {
-		bp[v] = -1
-	}
-	vp := func(x []complex128) complex128 {
-		var v complex128
-		if i := mna.NodeVar(p.A); i >= 0 {
-			v += x[i]
-		}
-		if i := mna.NodeVar(p.B); i >= 0 {
-			v -= x[i]
-		}
-		return v
-	}
+	a.portVector(p, bp)
+	vp := func(x []complex128) complex128 { return portVoltage(p, x) }
 	x := a.bufs[2]
 	if len(p.HeldBy) > 0 && len(p.Drivers) == 0 && err0 == nil {
 		// Exactly zero by structure; the direct solution still runs, so
