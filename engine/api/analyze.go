@@ -228,19 +228,9 @@ func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
 			src = i
 		}
 	}
-	a, b, pair := strings.Cut(g.Output, ",")
-	ia, ok := c.Node(strings.TrimSpace(a))
-	if !ok {
-		return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(a))
-	}
-	ib := circuit.Gnd
-	if pair {
-		if ib, ok = c.Node(strings.TrimSpace(b)); !ok {
-			return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(b))
-		}
-	}
-	if ia == ib {
-		return nil, fieldErr("gain.output", "the output %q has both ends on one node", g.Output)
+	ia, ib, bad := nodePair(c, g.Output)
+	if bad != "" {
+		return nil, fieldErr("gain.output", "%s", bad)
 	}
 	return &feedback.Gain{Source: src, OutA: ia, OutB: ib, SourceName: g.Source, OutputName: g.Output}, nil
 }

@@ -547,18 +547,31 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, err0 error, baseK *slot,
 
 func (a *Analyzer) sourceVector(b []complex128) {
 	clear(b)
+	for _, t := range a.InputRHS() {
+		b[t.I] += complex(t.V, 0)
+	}
+}
+
+// InputRHS is the gain's source as a unit right-hand side of the
+// equations: 1 in its branch row for a vsource; for an isource 1 into its
+// TO node and −1 at its FROM node. It is nil without a gain.
+func (a *Analyzer) InputRHS() []mna.Term {
 	g := a.Gain
+	if g == nil {
+		return nil
+	}
 	src := a.C.Parts[g.Source]
 	if src.Kind == circuit.VSource {
-		b[a.Sys.Branch[g.Source]] = 1
-		return
+		return []mna.Term{{I: a.Sys.Branch[g.Source], V: 1}}
 	}
+	var t []mna.Term
 	if v := mna.NodeVar(src.Nodes[1]); v >= 0 {
-		b[v] += 1
+		t = append(t, mna.Term{I: v, V: 1})
 	}
 	if v := mna.NodeVar(src.Nodes[0]); v >= 0 {
-		b[v] -= 1
+		t = append(t, mna.Term{I: v, V: -1})
 	}
+	return t
 }
 
 func (a *Analyzer) output(x []complex128) complex128 {

@@ -25,31 +25,24 @@ func newSetup(t *testing.T, text, ref, out, input string, T float64) *setup {
 	if err != nil {
 		t.Fatal(err)
 	}
-	a, err := feedback.New(c, ref, nil, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
 	o, ok := c.Node(out)
 	if !ok {
 		t.Fatalf("no node %s", out)
 	}
-	a.Adjoint = []mna.Term{{I: mna.NodeVar(o), V: 1}}
-	var in []mna.Term
+	var gain *feedback.Gain
 	if input != "" {
 		i, ok := c.PartIndex(input)
 		if !ok {
 			t.Fatalf("no source %s", input)
 		}
-		p := c.Parts[i]
-		if p.Kind == circuit.VSource {
-			in = []mna.Term{{I: a.Sys.Branch[i], V: 1}}
-		} else {
-			in = []mna.Term{{I: mna.NodeVar(p.Nodes[1]), V: 1}}
-			if v := mna.NodeVar(p.Nodes[0]); v >= 0 {
-				in = append(in, mna.Term{I: v, V: -1})
-			}
-		}
+		gain = &feedback.Gain{Source: i, OutA: o, SourceName: input, OutputName: out}
 	}
+	a, err := feedback.New(c, ref, nil, gain)
+	if err != nil {
+		t.Fatal(err)
+	}
+	a.Adjoint = []mna.Term{{I: mna.NodeVar(o), V: 1}}
+	in := a.InputRHS()
 	return &setup{c: c, a: a, n: noise.New(a.Sys, T, in)}
 }
 

@@ -33,7 +33,7 @@ var capload = &Topology{
 		{Name: "R1", Symbol: "R₁", Meaning: "gain resistor, − input to gnd (empty: follower)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
 		{Name: "Cf", Symbol: "C_f", Meaning: "in-loop feedback capacitor, pin to − input (empty: feedback at the pin through Rf)", Unit: "F", Default: "1n", Min: 1e-15, Max: 1e-2, Optional: true, Group: "network"},
 		{Name: "Riso", Symbol: "R_iso", Meaning: "isolation resistor, pin to load (empty: none)", Unit: "Ω", Default: "50", Min: 1e-3, Max: 1e6, Optional: true, Group: "network"},
-	}, append(opmAmpParams("200k", "5M", "30M", "1M", "1G", "50"), []Param{
+	}, append(append(opmAmpParams("200k", "5M", "30M", "1M", "1G", "50"), opmNoiseParams("7n", "10", "1p", "200")...), []Param{
 		{Name: "RL", Symbol: "R_L", Meaning: "load resistance (empty: none)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
 		{Name: "CL", Symbol: "C_L", Meaning: "load capacitance", Unit: "F", Default: "10n", Min: 1e-15, Max: 1, Group: "load"},
 	}...)...),

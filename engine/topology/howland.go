@@ -162,6 +162,7 @@ func init() {
 		{Name: "Rs", Symbol: "R_s", Meaning: "source resistance, in series with R1 (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("100k", "1M", "", "50")...)
+	params = append(params, opmNoiseParams("20n", "10", "0.5p", "100")...)
 	params = append(params, cfLoadParams("1k", true, "")...)
 	register(&Topology{
 		ID:    "howland",
