@@ -80,10 +80,13 @@
     var lf0 = Math.log10(Number(svg.getAttribute("data-fmin")));
     var lf1 = Math.log10(Number(svg.getAttribute("data-fmax")));
     var my = numbers(svg.getAttribute("data-my")); // top bottom lo hi
-    var py = numbers(svg.getAttribute("data-py"));
+    // A chart without data-py has no phase panel; its values are
+    // magnitudes alone (plot.Bode.NoPhase).
+    var py = svg.hasAttribute("data-py") ? numbers(svg.getAttribute("data-py")) : null;
+    var stride = py ? 2 : 1;
     var db = svg.getAttribute("data-mscale") === "db";
     var unit = svg.getAttribute("data-unit") || "";
-    if (!(freq.length > 0 && x1 > x0 && lf1 > lf0 && my.length === 4 && py.length === 4)) return;
+    if (!(freq.length > 0 && x1 > x0 && lf1 > lf0 && my.length === 4 && (!py || py.length === 4))) return;
 
     var xs = freq.map(function (f) {
       return f > 0 ? x0 + ((Math.log10(f) - lf0) / (lf1 - lf0)) * (x1 - x0) : NaN;
@@ -138,16 +141,16 @@
       var x = xs[i];
       ui.x = x;
       ui.g.removeAttribute("display");
-      ui.line.setAttribute("d", "M" + x.toFixed(1) + " " + my[0] + "V" + py[1]);
+      ui.line.setAttribute("d", "M" + x.toFixed(1) + " " + my[0] + "V" + (py ? py[1] : my[1]));
       ui.head.textContent = formatValue(freq[i], "Hz", 3);
       traces.forEach(function (t, k) {
-        var m = t.vals[2 * i], p = t.vals[2 * i + 1];
+        var m = t.vals[stride * i], p = py ? t.vals[stride * i + 1] : 0;
         var ok = m > 0 && isFinite(m) && isFinite(p);
         var ms = !ok ? "\u2014" : db ? fixed(20 * Math.log10(m), 1) + " dB" : formatValue(m, unit, 3);
-        var ps = ok ? fixed(p, 1) + "\u00b0" : "";
-        ui.rows[k].text.textContent = t.name + ": " + ms + (ok ? "  \u2220 " + ps : "");
+        var ps = ok && py ? "  \u2220 " + fixed(p, 1) + "\u00b0" : "";
+        ui.rows[k].text.textContent = t.name + ": " + ms + ps;
         place(ui.dots[k][0], ok ? panelY(my, db ? 20 * Math.log10(m) : Math.log10(m)) : NaN);
-        place(ui.dots[k][1], ok ? panelY(py, p) : NaN);
+        place(ui.dots[k][1], ok && py ? panelY(py, p) : NaN);
       });
       layout(x);
     }

@@ -61,6 +61,10 @@ type Bode struct {
 	Width   int  // pixels; default 640
 	Height  int  // pixels; default 400
 	NoStyle bool // omit the embedded <style> (the page includes CSS itself)
+	// NoPhase draws the magnitude panel alone, over the whole height, for
+	// quantities without a phase (a noise density): its traces' values
+	// are read as magnitudes, and the hover readout shows no phase.
+	NoPhase bool
 }
 
 // SVG returns the chart as a standalone SVG document fragment.
@@ -193,6 +197,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	const gap = 16.0
 	avail := max(py1-my0-gap, 80)
 	magH := math.Round(avail * 0.58)
+	if c.NoPhase {
+		magH = py1 - my0
+	}
 	my1 := my0 + magH
 	py0 := my1 + gap
 
@@ -204,11 +211,14 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		mag.ticks = logTicks(mag.lo, mag.hi, mag.pxPerUnit(), 18, c.MagUnit)
 	}
 	ph := axis{p0: py1, p1: py0}
-	ph.lo, ph.hi, ph.ticks = phaseRange(phLo, phHi, py1-py0)
-
+	vaxes := []*axis{&mag}
+	if !c.NoPhase {
+		ph.lo, ph.hi, ph.ticks = phaseRange(phLo, phHi, py1-py0)
+		vaxes = append(vaxes, &ph)
+	}
 	labelW := 0.0
-	for _, ts := range [][]tick{mag.ticks, ph.ticks} {
-		for _, t := range ts {
+	for _, a := range vaxes {
+		for _, t := range a.ticks {
 			labelW = max(labelW, textWidth(t.label, fontPx))
 		}
 	}
@@ -256,7 +266,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = appendAttrPx(b, "data-x0", x0)
 	b = appendAttrPx(b, "data-x1", x1)
 	b = appendRange(b, "data-my", my0, my1, mag.lo, mag.hi)
-	b = appendRange(b, "data-py", py0, py1, ph.lo, ph.hi)
+	if !c.NoPhase {
+		b = appendRange(b, "data-py", py0, py1, ph.lo, ph.hi)
+	}
 	if db {
 		b = append(b, ` data-mscale="db"`...)
 	} else {
@@ -281,9 +293,11 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 			g = &major
 		}
 		*g = appendVLine(*g, x, tenths(my0), tenths(my1))
-		*g = appendVLine(*g, x, tenths(py0), tenths(py1))
+		if !c.NoPhase {
+			*g = appendVLine(*g, x, tenths(py0), tenths(py1))
+		}
 	}
-	for _, a := range []*axis{&mag, &ph} {
+	for _, a := range vaxes {
 		for _, t := range a.ticks {
 			g := &minor
 			if t.major {
@@ -298,12 +312,14 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = append(b, major...)
 	b = append(b, `"/><path class="axis" fill="none" stroke="currentColor" stroke-opacity=".5" d="`...)
 	b = appendBox(b, x0, my0, x1, my1)
-	b = appendBox(b, x0, py0, x1, py1)
+	if !c.NoPhase {
+		b = appendBox(b, x0, py0, x1, py1)
+	}
 	b = append(b, `"/>`...)
 
 	// Tick labels and axis titles.
 	b = append(b, `<g class="tick" text-anchor="end">`...)
-	for _, a := range []*axis{&mag, &ph} {
+	for _, a := range vaxes {
 		for _, t := range a.ticks {
 			if t.label != "" {
 				b = appendText(b, "", x0-6, a.px(t.pos), ".35em", t.label)
@@ -322,7 +338,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		magTitle += " (" + c.MagUnit + ")"
 	}
 	b = appendVText(b, 18, (my0+my1)/2, magTitle)
-	b = appendVText(b, 18, (py0+py1)/2, "Phase (°)")
+	if !c.NoPhase {
+		b = appendVText(b, 18, (py0+py1)/2, "Phase (°)")
+	}
 	b = append(b, `<text class="axis-title" text-anchor="middle"`...)
 	b = appendAttrPx(b, "x", (x0+x1)/2)
 	b = appendAttrPx(b, "y", H-8)
@@ -334,6 +352,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		v, ok := hlineCoord(h, db)
 		a, top := &mag, my0
 		if h.Panel == PhasePanel {
+			if c.NoPhase {
+				continue
+			}
 			a, top = &ph, py0
 		}
 		if !ok || !a.in(v) {
@@ -363,7 +384,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		b = appendClassSuffix(b, "marker-", m.Class)
 		b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="3 3" d="`...)
 		b = appendVLine(b, tenths(x), tenths(my0), tenths(my1))
-		b = appendVLine(b, tenths(x), tenths(py0), tenths(py1))
+		if !c.NoPhase {
+			b = appendVLine(b, tenths(x), tenths(py0), tenths(py1))
+		}
 		b = append(b, `"/>`...)
 		if m.Label != "" {
 			labels = appendMarkerLabel(labels, x, x0, x1, my0+13+13*float64(slot%4), m.Label)
@@ -384,12 +407,17 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 				b = append(b, ' ')
 			}
 			b = appendSig6(b, s.abs[i])
-			b = append(b, ' ')
-			b = appendHundredths(b, s.ph[i])
+			if !c.NoPhase {
+				b = append(b, ' ')
+				b = appendHundredths(b, s.ph[i])
+			}
 		}
 		b = append(b, `" d="`...)
 		b = appendLine(b, xt, s.my, &mag, scratch)
 		b = append(b, `"/>`...)
+		if c.NoPhase {
+			continue
+		}
 		b = appendTraceOpen(b, s.class, tr.Dashed)
 		b = append(b, ` d="`...)
 		b = appendLine(b, xt, s.ph, &ph, scratch)
@@ -586,7 +614,11 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 		b = append(b, c.MagUnit...)
 		b = append(b, " on a log scale"...)
 	}
-	b = append(b, " above, phase in degrees below."...)
+	if c.NoPhase {
+		b = append(b, '.')
+	} else {
+		b = append(b, " above, phase in degrees below."...)
+	}
 	mag := func(v float64) string {
 		if c.MagUnit == "dB" {
 			return signed(strconv.FormatFloat(20*math.Log10(v), 'f', 1, 64)) + " dB"
@@ -603,8 +635,10 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 		}
 		b = append(b, ": "...)
 		b = appendSpan(b, mag(s.absLo), mag(s.absHi))
-		b = append(b, ", phase "...)
-		b = appendSpan(b, deg(s.phLo), deg(s.phHi))
+		if !c.NoPhase {
+			b = append(b, ", phase "...)
+			b = appendSpan(b, deg(s.phLo), deg(s.phHi))
+		}
 		b = append(b, '.')
 	}
 	if len(c.Traces) == 0 {
@@ -618,7 +652,7 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 		}
 	}
 	for _, h := range c.HLines {
-		if h.Label != "" {
+		if h.Label != "" && !(c.NoPhase && h.Panel == PhasePanel) {
 			b = append(b, " Reference line: "...)
 			b = append(b, h.Label...)
 			b = append(b, '.')
