@@ -10,9 +10,9 @@ import "zport/engine/value"
 func opmNoiseParams(en, fce, in, fci string) []Param {
 	return []Param{
 		{Name: "en", Symbol: "e_n", Meaning: "op-amp input voltage noise density (invented default; empty: none)", Unit: "V/√Hz", Default: en, Min: 0, Max: 1e-5, Optional: true, Group: "noise"},
-		{Name: "fce", Symbol: "f_ce", Meaning: "1/f corner of e_n (empty: white)", Unit: "Hz", Default: fce, Min: 1e-3, Max: 1e9, Optional: true, Group: "noise"},
+		{Name: "fce", Symbol: "f_ce", Meaning: "1/f corner of eₙ (empty: white)", Unit: "Hz", Default: fce, Min: 1e-3, Max: 1e9, Optional: true, Group: "noise"},
 		{Name: "in", Symbol: "i_n", Meaning: "op-amp input current noise density, at each input (invented default; empty: none)", Unit: "A/√Hz", Default: in, Min: 0, Max: 1e-6, Optional: true, Group: "noise"},
-		{Name: "fci", Symbol: "f_ci", Meaning: "1/f corner of i_n (empty: white)", Unit: "Hz", Default: fci, Min: 1e-3, Max: 1e9, Optional: true, Group: "noise"},
+		{Name: "fci", Symbol: "f_ci", Meaning: "1/f corner of iₙ (empty: white)", Unit: "Hz", Default: fci, Min: 1e-3, Max: 1e9, Optional: true, Group: "noise"},
 	}
 }
 

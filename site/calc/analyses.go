@@ -15,6 +15,7 @@ func init() {
 		&ports,
 		&gain,
 		&loop,
+		&noiseAnalysis,
 		&designValues,
 		&engineNotes,
 		&generated,

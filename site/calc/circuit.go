@@ -172,14 +172,9 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 	if c == nil {
 		return out
 	}
+	// A circuit without a controlled source has no reference (Fit leaves
+	// it empty): it gets the direct solution and its noise.
 	f := req.Form.Fit(ins, req.Offered)
-	if len(ins.References) == 0 {
-		f.Circuit, f.Fragment = "", nil
-		out.Form = &f
-		out.Output = &Output{Error: &api.ErrorBody{Param: "reference", Message: "the circuit has no controlled source (vcvs, vccs, ccvs, cccs) or opamp; " +
-			"Blackman’s formula needs one as its reference element"}}
-		return out
-	}
 	if f.Fragment != nil {
 		g, err := ReadCircuitFragment(*f.Fragment, f)
 		f.Fragment, g.Fragment = nil, nil

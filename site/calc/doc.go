@@ -8,7 +8,7 @@
 // # Analyses
 //
 // Everything a calculator shows is an Analysis, listed once in Analyses:
-// the port impedances, the gain, the loop and its margins, a stage's
+// the port impedances, the gain, the loop and its margins, the noise, a stage's
 // design values, the engine's notes, a stage's generated circuit text, the
 // design aids. An analysis declares its key, its settings, how it asks the
 // engine (Ask), and how it writes its section of the panel, its columns of
@@ -77,6 +77,11 @@
 //	           y (complex, the admittance, only where z is not finite)
 //	gain       g0 gInf g gDirect (complex), gainAgreement (real)
 //	loop       T (complex), fc (Hz), pm (degrees), gm (dB), verdict (text)
+//	noise      noiseOutput, noiseInput (densities at the spot frequency),
+//	           noiseRms, noiseRmsInput, noiseBandwidth, noiseTemperature,
+//	           noiseError (real); per source, with data-name,
+//	           contributorSpot, contributorRms, contributorShare (a
+//	           fraction, shown as a percentage)
 //	extras     extra, with data-name (real, in the extra's own unit)
 //
 // A value that is not finite has data-null="true" and shows a dash.

@@ -45,7 +45,7 @@ func CopyText(f *Form, entry *api.CatalogEntry, resp *api.Response) string {
 			a.Copy(&m, a.context(f, entry, resp))
 		}
 	}
-	m.Line("Small-signal linear analysis only (no slew, clipping, noise or large-signal behaviour); confirm on the bench.")
+	m.Line("Small-signal linear analysis only (no slew, clipping or large-signal behaviour; noise from the linear model's sources only); confirm on the bench.")
 	return m.String()
 }
 

@@ -114,6 +114,10 @@ func gainSection(w *view.Writer, c *Context) {
 			Markers: spotMarker(r),
 			NoStyle: true,
 		}
+		if r.Reference == "" {
+			// No reference: the direct solution is all there is.
+			b.Traces = []plot.Trace{{Name: "g direct", Class: "g", Values: view.Values(s.Gain.GDirect)}}
+		}
 		w.Figures(b.SVG())
 	}
 	w.Close("section")

@@ -33,6 +33,9 @@ func verdictClass(v string) string {
 
 func loopSection(w *view.Writer, c *Context) {
 	r := c.Resp
+	if r.Reference == "" {
+		return // no reference element: no loop to show (a note says so)
+	}
 	w.Section(c.ID, "loop", "Loop")
 	w.Open("dl", "class", "kv")
 	w.KV("Return ratio T at "+value.Format(r.Frequency, "Hz", view.Sig), func() {
@@ -133,6 +136,9 @@ func loopChart(c *Context) plot.Bode {
 
 func loopColumns(c *Context) []Column {
 	r := c.Resp
+	if r.Reference == "" {
+		return nil
+	}
 	if s := r.Sweep; s != nil {
 		return []Column{{Name: "T", Complex: s.ReturnRatio}}
 	}
@@ -141,6 +147,9 @@ func loopColumns(c *Context) []Column {
 
 func loopCopy(m *Markdown, c *Context) {
 	r := c.Resp
+	if r.Reference == "" {
+		return
+	}
 	at := "T at " + value.Format(r.Frequency, "Hz", view.Sig)
 	t := "—"
 	if r.ReturnRatio != nil {

@@ -38,7 +38,11 @@ func portsSection(w *view.Writer, c *Context) {
 		return
 	}
 	w.Section(c.ID, "ports", "Port impedances")
-	w.Explain("Blackman’s formula: Z = Z₀ · (1 + T short) / (1 + T open), checked against a direct nodal solution. Each value as magnitude ∠ phase, as real + j imaginary, and for impedances as the equivalent series pair at the spot frequency.")
+	if r.Reference == "" {
+		w.Explain("Direct nodal solution: without a reference element (a controlled source or an op amp) Blackman’s terms are not defined. Each value as magnitude ∠ phase, as real + j imaginary, and as the equivalent series pair at the spot frequency.")
+	} else {
+		w.Explain("Blackman’s formula: Z = Z₀ · (1 + T short) / (1 + T open), checked against a direct nodal solution. Each value as magnitude ∠ phase, as real + j imaginary, and for impedances as the equivalent series pair at the spot frequency.")
+	}
 	w.Open("div", "class", "table-wrap")
 	w.Open("table", "class", "results ports-table")
 	w.Open("thead")
@@ -193,6 +197,10 @@ func portCharts(c *Context) []string {
 			},
 			Markers: spotMarker(r),
 			NoStyle: true,
+		}
+		if r.Reference == "" {
+			// No reference: the direct solution is all there is.
+			b.Traces = []plot.Trace{{Name: "Z direct", Class: "z", Values: view.Values(ps.ZDirect)}}
 		}
 		out = append(out, b.SVG())
 	}

@@ -1,7 +1,8 @@
 // Package plot draws the charts of frequency-domain results as SVG: a
 // two-panel Bode chart (magnitude over phase on a shared log frequency
-// axis; NoPhase keeps the magnitude alone, for a noise density), a histogram (linear or log x axis) and a horizontal bar chart of
-// signed values (Bars, for rankings such as sensitivities). The same code
+// axis; NoPhase keeps the magnitude alone, for a noise density), a
+// histogram (linear or log x axis) and a horizontal bar chart of signed
+// values (Bars, for rankings such as sensitivities). The same code
 // runs when the site is built, to put pre-rendered charts into static
 // pages, and inside the WebAssembly engine, to redraw them as a user edits
 // values, so it uses only the standard library and zport/engine/value,
