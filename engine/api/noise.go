@@ -240,7 +240,8 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 	}
 	a := p.Analyzer
 	n := noise.New(a.Sys, st.T, a.InputRHS())
-	r := &NoiseResult{Node: st.node, Temperature: st.T, Unit: "V/√Hz", Notes: []string{}, Contributors: []NoiseContributor{}}
+	m := len(n.Sources)
+	r := &NoiseResult{Node: st.node, Temperature: st.T, Unit: "V/√Hz", Notes: []string{}, Contributors: make([]NoiseContributor, 0, m)}
 	r.Band.From, r.Band.To = st.from, st.to
 	r.Integration.Method = noiseMethod
 	if g := a.Gain; g != nil {
@@ -250,19 +251,60 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 			r.InputUnit = "A/√Hz"
 		}
 	}
-	if len(n.Sources) == 0 {
+	if m == 0 {
 		r.Notes = append(r.Notes, "the circuit has no noise sources: every resistor is noise=off, and there is no opamp en or in, vnoise or inoise")
 	}
 
+	// The band first: it ranks the sources.
+	band, err := n.Band(a.AdjointAt, a.Sys.N, st.from, st.to)
+	if err != nil {
+		r.Notes = append(r.Notes, "the band could not be integrated: "+err.Error())
+		band = noise.Band{Power: make([]float64, m)}
+	} else {
+		r.noiseBand(band, p)
+	}
+	spot := make([]float64, m)
+	r.Spot.Frequency = p.Spot.F
+	if p.Spot.Adjoint != nil {
+		r.Spot.Output, r.Spot.Input = noiseDensity(n, spot, p.Spot.Adjoint, p.Spot.F)
+	}
+	if p.Spot.F == 0 {
+		r.Notes = append(r.Notes, "at 0 Hz a 1/f noise is infinite: the spot densities are given where they are finite")
+	}
+	order := make([]int, m)
+	for k := range order {
+		order[k] = k
+	}
+	sort.SliceStable(order, func(i, j int) bool {
+		pi, pj := band.Power[order[i]], band.Power[order[j]]
+		if pi != pj {
+			return pi > pj
+		}
+		return n.Sources[order[i]].Name < n.Sources[order[j]].Name
+	})
+	for _, k := range order {
+		s := n.Sources[k]
+		c := NoiseContributor{Name: s.Name, Kind: s.Kind, Part: p.Circuit.Parts[s.Part].Name, Level: s.Density.Level,
+			Unit: s.Unit + "/√Hz", Corner: s.Density.Corner, Spot: F(math.Sqrt(spot[k]))}
+		if err == nil {
+			c.RMS = F(math.Sqrt(band.Power[k]))
+			if band.Total > 0 {
+				c.Share = F(band.Power[k] / band.Total)
+			}
+		}
+		r.Contributors = append(r.Contributors, c)
+	}
+
+	// Over the sweep, from the adjoint solutions its points made.
 	pts := p.Points
 	if pts == nil {
 		pts = []feedback.Point{p.Spot}
 	}
-	m := len(n.Sources)
+	plotted := order[:min(m, NoisePlotted)]
+	for j := range plotted {
+		r.Contributors[j].Density = make([]*float64, len(pts))
+	}
 	parts := make([]float64, m)
-	// Per point: each source's power density, for the densities of the
-	// largest contributors once the band has ranked them.
-	powers := make([][]float64, len(pts))
 	r.Frequency = make([]float64, len(pts))
 	r.Output = make([]*float64, len(pts))
 	if n.Input != nil {
@@ -278,78 +320,37 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 			continue
 		}
 		out, in := noiseDensity(n, parts, pt.Adjoint, pt.F)
-		powers[i] = append([]float64(nil), parts...)
 		r.Output[i] = out
 		if r.Input != nil {
 			r.Input[i] = in
+		}
+		for j, k := range plotted {
+			r.Contributors[j].Density[i] = F(math.Sqrt(parts[k]))
 		}
 		if ngain != nil {
 			r.NoiseGain[i], r.EnTransfer[i] = ngain(pt)
 		}
 	}
-	spot := make([]float64, m)
-	r.Spot.Frequency = p.Spot.F
-	if p.Spot.Adjoint != nil {
-		r.Spot.Output, r.Spot.Input = noiseDensity(n, spot, p.Spot.Adjoint, p.Spot.F)
-	}
-	if p.Spot.F == 0 {
-		r.Notes = append(r.Notes, "at 0 Hz a 1/f noise is infinite: the spot densities are given where they are finite")
-	}
-
-	band, err := n.Band(a.AdjointAt, a.Sys.N, st.from, st.to)
-	if err != nil {
-		r.Notes = append(r.Notes, "the band could not be integrated: "+err.Error())
-		band = noise.Band{Power: make([]float64, m)}
-	} else {
-		r.RMS.Output = F(band.RMS())
-		if band.Total > 0 {
-			r.Integration.Error = F(band.Error / band.Total)
-		} else {
-			r.Integration.Error = F(0)
-		}
-		r.Integration.Evaluations, r.Integration.Converged = band.Evaluations, band.Converged
-		if !band.Converged {
-			r.Notes = append(r.Notes, fmt.Sprintf("the band integral did not reach its tolerance in %d evaluations: its estimated relative error is %.1g", band.Evaluations, band.Error/band.Total))
-		}
-		if n.Input != nil && band.Peak > 0 {
-			r.RMS.Input = F(band.RMS() / band.Peak)
-			r.Bandwidth, r.PeakGain, r.PeakAt = F(band.Bandwidth()), F(band.Peak), F(band.PeakAt)
-			r.Notes = append(r.Notes, fmt.Sprintf("the input rms is the output rms over the largest gain in the band, |G| = %s at %s; the noise bandwidth is that of G from %s to %s",
-				value.Format(band.Peak, a.Gain.Unit(p.Circuit), 4), value.Format(band.PeakAt, "Hz", 4), r.Source, r.Node))
-		}
-	}
-	order := make([]int, m)
-	for k := range order {
-		order[k] = k
-	}
-	sort.SliceStable(order, func(i, j int) bool {
-		pi, pj := band.Power[order[i]], band.Power[order[j]]
-		if pi != pj {
-			return pi > pj
-		}
-		return n.Sources[order[i]].Name < n.Sources[order[j]].Name
-	})
-	for rank, k := range order {
-		s := n.Sources[k]
-		c := NoiseContributor{Name: s.Name, Kind: s.Kind, Part: p.Circuit.Parts[s.Part].Name, Level: s.Density.Level,
-			Unit: s.Unit + "/√Hz", Corner: s.Density.Corner, Spot: F(math.Sqrt(spot[k]))}
-		if err == nil {
-			c.RMS = F(math.Sqrt(band.Power[k]))
-			if band.Total > 0 {
-				c.Share = F(band.Power[k] / band.Total)
-			}
-		}
-		if rank < NoisePlotted {
-			c.Density = make([]*float64, len(pts))
-			for i := range pts {
-				if powers[i] != nil {
-					c.Density[i] = F(math.Sqrt(powers[i][k]))
-				}
-			}
-		}
-		r.Contributors = append(r.Contributors, c)
-	}
 	return r, nil
+}
+
+// noiseBand fills in what the band integral gives.
+func (r *NoiseResult) noiseBand(band noise.Band, p *Prepared) {
+	r.RMS.Output = F(band.RMS())
+	r.Integration.Error = F(0)
+	if band.Total > 0 {
+		r.Integration.Error = F(band.Error / band.Total)
+	}
+	r.Integration.Evaluations, r.Integration.Converged = band.Evaluations, band.Converged
+	if !band.Converged {
+		r.Notes = append(r.Notes, fmt.Sprintf("the band integral did not reach its tolerance in %d evaluations: its estimated relative error is %.1g", band.Evaluations, band.Error/band.Total))
+	}
+	if g := p.Analyzer.Gain; g != nil && band.Peak > 0 {
+		r.RMS.Input = F(band.RMS() / band.Peak)
+		r.Bandwidth, r.PeakGain, r.PeakAt = F(band.Bandwidth()), F(band.Peak), F(band.PeakAt)
+		r.Notes = append(r.Notes, fmt.Sprintf("the input rms is the output rms over the largest gain in the band, |G| = %s at %s; the noise bandwidth is that of G from %s to %s",
+			value.Format(band.Peak, g.Unit(p.Circuit), 4), value.Format(band.PeakAt, "Hz", 4), r.Source, r.Node))
+	}
 }
 
 // noiseDensity is the output density at f from the adjoint solution z,

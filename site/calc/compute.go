@@ -76,16 +76,9 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		}
 	}
 	f.Fragment = nil
-	req, bad := f.request()
+	req, bad := f.ask(entry)
 	if bad != nil {
 		return Output{Error: bad}
-	}
-	for _, a := range Analyses {
-		if a.Ask != nil {
-			if bad := a.Ask(&req, a.context(&f, entry, nil)); bad != nil {
-				return Output{Error: bad}
-			}
-		}
 	}
 	resp, cut, err := analyzeWithin(req, time.Duration(f.Budget*float64(time.Millisecond)), parsed)
 	if err != nil {
@@ -108,6 +101,38 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 		out.State = f.CircuitState()
 	}
 	return out
+}
+
+// Request is the engine request a calculator sends for f, a form with its
+// defaults filled in (as Output.Form has it): the base request and what
+// every analysis asks. A test that holds a page to the native engine
+// builds its request the same way.
+func (f Form) Request() (api.Request, *api.ErrorBody) {
+	var entry *api.CatalogEntry
+	if f.Topology != "" {
+		e, ok := api.LookupEntry(f.Topology)
+		if !ok {
+			return api.Request{}, &api.ErrorBody{Param: "topology", Message: fmt.Sprintf("no stage %q in the catalog", f.Topology)}
+		}
+		entry = &e
+	}
+	return f.ask(entry)
+}
+
+// ask is the base request of f with every analysis's Ask.
+func (f Form) ask(entry *api.CatalogEntry) (api.Request, *api.ErrorBody) {
+	req, bad := f.request()
+	if bad != nil {
+		return req, bad
+	}
+	for _, a := range Analyses {
+		if a.Ask != nil {
+			if bad := a.Ask(&req, a.context(&f, entry, nil)); bad != nil {
+				return req, bad
+			}
+		}
+	}
+	return req, nil
 }
 
 // ComputeJSON is Compute on JSON: a Form in, an Output out. It never

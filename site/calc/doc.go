@@ -79,7 +79,7 @@
 //	loop       T (complex), fc (Hz), pm (degrees), gm (dB), verdict (text)
 //	noise      noiseOutput, noiseInput (densities at the spot frequency),
 //	           noiseRms, noiseRmsInput, noiseBandwidth, noiseTemperature,
-//	           noiseError (real); per source, with data-name,
+//	           noiseError (real); per source, with data-source,
 //	           contributorSpot, contributorRms, contributorShare (a
 //	           fraction, shown as a percentage)
 //	extras     extra, with data-name (real, in the extra's own unit)

@@ -85,7 +85,7 @@ func noiseSection(w *view.Writer, c *Context) {
 		return
 	}
 	w.Section(c.ID, "noise", "Noise at "+n.Node)
-	text := "Thermal noise of every resistor at " + view.Magnitude(n.Temperature, "K") +
+	text := "Thermal noise of every resistor at " + kelvin(n.Temperature) +
 		" (except those marked noise=off, such as the load), the op amps’ eₙ and iₙ and the noise sources, each independent, carried to " +
 		n.Node + " by one adjoint solve per frequency."
 	if n.Source != "" {
@@ -113,7 +113,9 @@ func noiseSection(w *view.Writer, c *Context) {
 		})
 		w.KV("Equivalent noise bandwidth of the gain", func() { w.Real(n.Bandwidth, "Hz", "—", "data-quantity", "noiseBandwidth") })
 	}
-	w.KV("Temperature", func() { w.Real(&n.Temperature, "K", "—", "data-quantity", "noiseTemperature") })
+	w.KV("Temperature", func() {
+		w.Elem("span", kelvin(n.Temperature), "data-quantity", "noiseTemperature", "data-value", view.Num(n.Temperature))
+	})
 	w.KV("Band integral", func() {
 		w.Text(strconv.Itoa(n.Integration.Evaluations) + " frequencies, estimated error ")
 		w.Ratio(n.Integration.Error, "data-quantity", "noiseError")
@@ -126,12 +128,32 @@ func noiseSection(w *view.Writer, c *Context) {
 	w.Close("section")
 }
 
+// kelvin writes a temperature as typed: 300 K, 77 K, 293.15 K.
+func kelvin(t float64) string { return strconv.FormatFloat(t, 'g', 6, 64) + " K" }
+
 // gainUnit is the unit of the gain to an input of density unit u.
 func gainUnit(u string) string {
 	if u == "A/√Hz" {
 		return "V/A"
 	}
 	return "V/V"
+}
+
+// noiseRows is how many of the largest sources the table and the copied
+// results list; the rest are summed in one line (a circuit may have
+// thousands of resistors).
+const noiseRows = 12
+
+// noiseRest sums the sources after the first noiseRows: their number and
+// their share of the power.
+func noiseRest(n *api.NoiseResult) (count int, share float64) {
+	for _, k := range n.Contributors[min(len(n.Contributors), noiseRows):] {
+		count++
+		if k.Share != nil {
+			share += *k.Share
+		}
+	}
+	return count, share
 }
 
 // noiseTable ranks the contributors.
@@ -155,8 +177,8 @@ func noiseTable(w *view.Writer, n *api.NoiseResult) {
 	w.Close("tr")
 	w.Close("thead")
 	w.Open("tbody")
-	for _, k := range n.Contributors {
-		w.Open("tr", "data-name", k.Name)
+	for _, k := range n.Contributors[:min(len(n.Contributors), noiseRows)] {
+		w.Open("tr", "data-source", k.Name)
 		w.Elem("th", k.Name, "scope", "row")
 		w.Elem("td", kindText[k.Kind], "data-label", "Kind")
 		level := view.Magnitude(k.Level, k.Unit)
@@ -165,18 +187,28 @@ func noiseTable(w *view.Writer, n *api.NoiseResult) {
 		}
 		w.Elem("td", level, "data-label", "Density")
 		w.Open("td", "data-label", "At the output")
-		w.Real(k.Spot, n.Unit, "—", "data-quantity", "contributorSpot", "data-name", k.Name)
+		w.Real(k.Spot, n.Unit, "—", "data-quantity", "contributorSpot", "data-source", k.Name)
 		w.Close("td")
 		w.Open("td", "data-label", "rms")
-		w.Real(k.RMS, "V", "—", "data-quantity", "contributorRms", "data-name", k.Name)
+		w.Real(k.RMS, "V", "—", "data-quantity", "contributorRms", "data-source", k.Name)
 		w.Close("td")
 		w.Open("td", "data-label", "Share")
 		if k.Share != nil {
-			w.Elem("span", view.PlainN(100**k.Share, 3)+" %", "data-quantity", "contributorShare", "data-name", k.Name, "data-value", view.Num(*k.Share))
+			w.Elem("span", view.PlainN(100**k.Share, 3)+" %", "data-quantity", "contributorShare", "data-source", k.Name, "data-value", view.Num(*k.Share))
 		} else {
-			w.Elem("span", "—", "data-quantity", "contributorShare", "data-name", k.Name, "data-null", "true")
+			w.Elem("span", "—", "data-quantity", "contributorShare", "data-source", k.Name, "data-null", "true")
 		}
 		w.Close("td")
+		w.Close("tr")
+	}
+	if count, share := noiseRest(n); count > 0 {
+		w.Open("tr", "class", "rest")
+		w.Elem("th", "… "+strconv.Itoa(count)+" more", "scope", "row")
+		w.Elem("td", "", "data-label", "Kind")
+		w.Elem("td", "", "data-label", "Density")
+		w.Elem("td", "", "data-label", "At the output")
+		w.Elem("td", "", "data-label", "rms")
+		w.Elem("td", view.PlainN(100*share, 3)+" % together", "data-label", "Share")
 		w.Close("tr")
 	}
 	w.Close("tbody")
@@ -269,15 +301,18 @@ func noiseCopy(m *Markdown, c *Context) {
 		rows = append(rows, []string{"Input rms (through the peak gain)", opt(n.RMS.Input, strings.TrimSuffix(n.InputUnit, "/√Hz"))},
 			[]string{"Equivalent noise bandwidth", opt(n.Bandwidth, "Hz")})
 	}
-	rows = append(rows, []string{"Temperature", view.Magnitude(n.Temperature, "K")})
+	rows = append(rows, []string{"Temperature", kelvin(n.Temperature)})
 	m.Table([]string{"Noise at " + MD(n.Node), "Value"}, rows...)
 	var ks [][]string
-	for _, k := range n.Contributors {
+	for _, k := range n.Contributors[:min(len(n.Contributors), noiseRows)] {
 		share := "—"
 		if k.Share != nil {
 			share = view.PlainN(100**k.Share, 3) + " %"
 		}
 		ks = append(ks, []string{MD(k.Name), MD(kindText[k.Kind]), opt(k.RMS, "V"), share})
+	}
+	if count, share := noiseRest(n); count > 0 {
+		ks = append(ks, []string{"… " + strconv.Itoa(count) + " more", "", "", view.PlainN(100*share, 3) + " % together"})
 	}
 	if len(ks) > 0 {
 		m.Table([]string{"Noise source", "Kind", "rms at the output", "Share"}, ks...)

@@ -42,7 +42,7 @@ func TestNoiseSection(t *testing.T) {
 	seen := 0
 	for _, e := range sitetest.Parse(t, page.HTML) {
 		q := e.Attrs["data-quantity"]
-		if name := e.Attrs["data-name"]; name != "" {
+		if name := e.Attrs["data-source"]; name != "" {
 			q += ":" + name
 		}
 		w, ok := want[q]

@@ -50,6 +50,16 @@ func inputs(t *testing.T, ctx context.Context, id string) map[string]string {
 func form(id string, in map[string]string) calc.Form {
 	f := calc.Form{Topology: id, Params: map[string]string{}, ID: "calc-" + id}
 	for k, v := range in {
+		if key, name, ok := setting(k); ok {
+			if f.Settings == nil {
+				f.Settings = map[string]calc.Values{}
+			}
+			if f.Settings[key] == nil {
+				f.Settings[key] = calc.Values{}
+			}
+			f.Settings[key][name] = v
+			continue
+		}
 		switch {
 		case k == "frequency":
 			f.Frequency = v
@@ -69,9 +79,24 @@ func form(id string, in map[string]string) calc.Form {
 	return f
 }
 
+// setting splits an input's name into an analysis's key and its setting
+// ("noise.band.from" → "noise", "band.from"), when it is one.
+func setting(name string) (key, setting string, ok bool) {
+	key, setting, ok = strings.Cut(name, ".")
+	if !ok || key == "sweep" {
+		return "", "", false
+	}
+	for _, a := range calc.Analyses {
+		if a.Key == key {
+			return key, setting, true
+		}
+	}
+	return "", "", false
+}
+
 // native analyzes what the calculator's inputs say with the native
 // engine: the topology with those parameters, at that spot frequency, over
-// that sweep.
+// that sweep, with the noise the calculator's settings ask for.
 func native(t *testing.T, id string, in map[string]string) *api.Response {
 	t.Helper()
 	req := api.Request{Topology: id, Params: map[string]string{}}
@@ -83,7 +108,7 @@ func native(t *testing.T, id string, in map[string]string) *api.Response {
 		return v
 	}
 	for k, v := range in {
-		if k != "frequency" && !strings.HasPrefix(k, "sweep.") {
+		if _, _, isSetting := setting(k); k != "frequency" && !strings.HasPrefix(k, "sweep.") && !isSetting {
 			req.Params[k] = v
 		}
 	}
@@ -93,6 +118,12 @@ func native(t *testing.T, id string, in map[string]string) *api.Response {
 		t.Fatalf("%s: sweep points %q: %v", id, in["sweep.points"], err)
 	}
 	req.Sweep = &api.SweepSpec{From: parse("sweep.from"), To: parse("sweep.to"), Points: pts}
+	// The noise options exactly as the calculator asks for them.
+	asked, bad := form(id, in).Request()
+	if bad != nil {
+		t.Fatalf("%s: the calculator's request: %+v", id, bad)
+	}
+	api.Noise.Ask(&req, api.Noise.Asked(asked))
 	resp, err := api.Analyze(req)
 	if err != nil {
 		t.Fatalf("%s: native analysis of %v: %v", id, in, err)
@@ -118,6 +149,7 @@ func shownValues(t *testing.T, ctx context.Context, id string) []shown {
   return Array.from(root.querySelectorAll('[data-quantity], [data-closed-form]')).map(function (e) {
     var d = e.dataset, key;
     if (d.quantity === 'extra') key = 'extra:' + d.name;
+    else if (d.quantity && d.source) key = d.quantity + ':' + d.source;
     else if (d.quantity) key = (d.port ? d.port + '/' : '') + d.quantity;
     else key = 'closed:' + (d.port ? d.port + '/' : '') + d.closedForm;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true', text: e.textContent };
@@ -165,6 +197,22 @@ func expected(resp *api.Response) map[string]want {
 		x("gm", m.GainMargin, false)
 		v := m.Verdict
 		w["verdict"] = want{text: &v, kind: 't'}
+	}
+	if n := api.Noise.Result(resp); n != nil {
+		x("noiseOutput", n.Spot.Output, false)
+		x("noiseRms", n.RMS.Output, false)
+		x("noiseTemperature", &n.Temperature, false)
+		x("noiseError", n.Integration.Error, true)
+		if n.Source != "" {
+			x("noiseInput", n.Spot.Input, false)
+			x("noiseRmsInput", n.RMS.Input, false)
+			x("noiseBandwidth", n.Bandwidth, false)
+		}
+		for _, c := range n.Contributors {
+			x("contributorSpot:"+c.Name, c.Spot, false)
+			x("contributorRms:"+c.Name, c.RMS, false)
+			x("contributorShare:"+c.Name, c.Share, false)
+		}
 	}
 	if top := resp.Topology; top != nil {
 		for _, e := range top.Extras {
@@ -327,16 +375,41 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 	type series struct {
 		chart, trace string
 		v            []*api.Complex
+		magOnly      bool // a magnitude-only chart (plot.Bode.NoPhase)
 	}
 	var exp []series
 	prefix := calcID + "-plot-"
 	for i, p := range s.Ports {
 		c := prefix + "port" + strconv.Itoa(i)
-		exp = append(exp, series{c, "Z (Blackman)", p.Z}, series{c, "Z₀ (reference gain zero)", p.Z0})
+		exp = append(exp, series{c, "Z (Blackman)", p.Z, false}, series{c, "Z₀ (reference gain zero)", p.Z0, false})
 	}
-	exp = append(exp, series{prefix + "loop", "T", s.ReturnRatio})
+	exp = append(exp, series{prefix + "loop", "T", s.ReturnRatio, false})
 	if s.Gain != nil && resp.Gain != nil {
-		exp = append(exp, series{prefix + "gain", "g", s.Gain.G}, series{prefix + "gain", "g∞ (ideal)", s.Gain.GInf})
+		exp = append(exp, series{prefix + "gain", "g", s.Gain.G, false}, series{prefix + "gain", "g∞ (ideal)", s.Gain.GInf, false})
+	}
+	if n := api.Noise.Result(resp); n != nil {
+		reals := func(v []*float64) []*api.Complex {
+			out := make([]*api.Complex, len(v))
+			for i, x := range v {
+				if x != nil {
+					out[i] = &api.Complex{Re: *x}
+				}
+			}
+			return out
+		}
+		exp = append(exp, series{prefix + "noise", "total", reals(n.Output), true})
+		for _, c := range n.Contributors {
+			if c.Density != nil {
+				exp = append(exp, series{prefix + "noise", c.Name, reals(c.Density), true})
+			}
+		}
+		if n.Input != nil {
+			exp = append(exp, series{prefix + "noise-in", "input-referred", reals(n.Input), true})
+		}
+		if n.NoiseGain != nil {
+			exp = append(exp, series{prefix + "noise-gain", "noise gain 1/β", n.NoiseGain, true},
+				series{prefix + "noise-gain", "eₙ → " + n.Node + " (closed loop)", n.EnTransfer, true})
+		}
 	}
 	byID := map[string]chart{}
 	var bad []string
@@ -377,7 +450,7 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 			bad = append(bad, fmt.Sprintf("chart %s: no trace %q", e.chart, e.trace))
 			continue
 		}
-		if msg := compareTrace(vals, e.v); msg != "" {
+		if msg := compareTrace(vals, e.v, e.magOnly); msg != "" {
 			bad = append(bad, fmt.Sprintf("chart %s, trace %q: %s", e.chart, e.trace, msg))
 		}
 	}
@@ -385,20 +458,28 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 	return bad
 }
 
-// compareTrace holds a trace's data-values ("|v| phase" pairs) to the
-// native values: |v| within half a unit of the sixth digit, the phase
-// within 0.005° modulo 360° (the chart unwraps it). A gap (NaN) is right
-// only where the native value is not finite or zero.
-func compareTrace(vals string, v []*api.Complex) string {
+// compareTrace holds a trace's data-values ("|v| phase" pairs, or |v|
+// alone on a magnitude-only chart) to the native values: |v| within half a
+// unit of the sixth digit, the phase within 0.005° modulo 360° (the chart
+// unwraps it). A gap (NaN) is right only where the native value is not
+// finite or zero.
+func compareTrace(vals string, v []*api.Complex, magOnly bool) string {
 	f := strings.Fields(vals)
-	if len(f) != 2*len(v) {
-		return fmt.Sprintf("%d numbers, want %d", len(f), 2*len(v))
+	per := 2
+	if magOnly {
+		per = 1
+	}
+	if len(f) != per*len(v) {
+		return fmt.Sprintf("%d numbers, want %d", len(f), per*len(v))
 	}
 	for i, c := range v {
-		mag, err1 := strconv.ParseFloat(f[2*i], 64)
-		ph, err2 := strconv.ParseFloat(f[2*i+1], 64)
+		mag, err1 := strconv.ParseFloat(f[per*i], 64)
+		ph, err2 := 0.0, error(nil)
+		if !magOnly {
+			ph, err2 = strconv.ParseFloat(f[2*i+1], 64)
+		}
 		if err1 != nil || err2 != nil {
-			return fmt.Sprintf("point %d: unreadable %q %q", i, f[2*i], f[2*i+1])
+			return fmt.Sprintf("point %d: unreadable %q", i, f[per*i:per*i+per])
 		}
 		if c == nil || c.Value() == 0 {
 			if !math.IsNaN(mag) {
@@ -409,6 +490,9 @@ func compareTrace(vals string, v []*api.Complex) string {
 		z := c.Value()
 		if !scalar.EqualWithinRel(mag, cmplx.Abs(z), 5.01e-6) {
 			return fmt.Sprintf("point %d: |v| %v on the chart, native %v", i, mag, cmplx.Abs(z))
+		}
+		if magOnly {
+			continue
 		}
 		d := ph - cmplx.Phase(z)*180/math.Pi
 		d -= 360 * math.Round(d/360)

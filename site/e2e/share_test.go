@@ -205,12 +205,18 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 	})
 }
 
-// defaultInputs is what a calculator's inputs hold at the catalog defaults.
+// defaultInputs is what a calculator's inputs hold at the catalog
+// defaults, the analyses' settings included.
 func defaultInputs(e api.CatalogEntry) map[string]string {
 	d := calc.DefaultForm(e)
 	m := map[string]string{"frequency": d.Frequency, "sweep.from": d.Sweep.From, "sweep.to": d.Sweep.To, "sweep.points": d.Sweep.Points}
 	for k, v := range d.Params {
 		m[k] = v
+	}
+	for _, a := range calc.Analyses {
+		for _, s := range a.Settings {
+			m[a.Field(s.Name)] = s.Default
+		}
 	}
 	return m
 }
