@@ -11,6 +11,7 @@ import (
 	"zport/engine/feedback"
 	"zport/engine/mna"
 	"zport/engine/noise"
+	"zport/engine/numeric"
 	"zport/engine/value"
 )
 
@@ -266,7 +267,8 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 	spot := make([]float64, m)
 	r.Spot.Frequency = p.Spot.F
 	if p.Spot.Adjoint != nil {
-		r.Spot.Output, r.Spot.Input = noiseDensity(n, spot, p.Spot.Adjoint, p.Spot.F)
+		out, in := noiseDensity(n, spot, p.Spot.Adjoint, p.Spot.F)
+		r.Spot.Output, r.Spot.Input = F(out), F(in)
 	}
 	if p.Spot.F == 0 {
 		r.Notes = append(r.Notes, "at 0 Hz a 1/f noise is infinite: the spot densities are given where they are finite")
@@ -311,27 +313,53 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 		r.Input = make([]*float64, len(pts))
 	}
 	ngain := noiseGain(p)
+	var zs []Complex // one backing array for the noise gains, as for the sweep
 	if ngain != nil {
 		r.NoiseGain, r.EnTransfer = make([]*Complex, len(pts)), make([]*Complex, len(pts))
+		zs = make([]Complex, 0, 2*len(pts))
 	}
+	xs := make(floatArena, 0, len(pts)*(2+len(plotted)))
 	for i, pt := range pts {
 		r.Frequency[i] = pt.F
 		if pt.Adjoint == nil {
 			continue
 		}
 		out, in := noiseDensity(n, parts, pt.Adjoint, pt.F)
-		r.Output[i] = out
+		r.Output[i] = xs.f(out)
 		if r.Input != nil {
-			r.Input[i] = in
+			r.Input[i] = xs.f(in)
 		}
 		for j, k := range plotted {
-			r.Contributors[j].Density[i] = F(math.Sqrt(parts[k]))
+			r.Contributors[j].Density[i] = xs.f(math.Sqrt(parts[k]))
 		}
 		if ngain != nil {
-			r.NoiseGain[i], r.EnTransfer[i] = ngain(pt)
+			ng, en := ngain(pt)
+			for _, v := range [2]struct {
+				z   complex128
+				dst **Complex
+			}{{ng, &r.NoiseGain[i]}, {en, &r.EnTransfer[i]}} {
+				if numeric.Finite(v.z) {
+					zs = append(zs, Complex{real(v.z), imag(v.z)})
+					*v.dst = &zs[len(zs)-1]
+				}
+			}
 		}
 	}
 	return r, nil
+}
+
+// floatArena hands out pointers into one backing array: a page recomputes the
+// noise on every keystroke, and a pointer per number would be an
+// allocation per number. Its capacity must cover every value handed out.
+type floatArena []float64
+
+// f stores x and returns a pointer to it, or nil when x is not finite.
+func (a *floatArena) f(x float64) *float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil
+	}
+	*a = append(*a, x)
+	return &(*a)[len(*a)-1]
 }
 
 // noiseBand fills in what the band integral gives.
@@ -354,34 +382,34 @@ func (r *NoiseResult) noiseBand(band noise.Band, p *Prepared) {
 }
 
 // noiseDensity is the output density at f from the adjoint solution z,
-// and the input-referred one (nil without an input, or where the gain is
+// and the input-referred one (NaN without an input, or where the gain is
 // zero); parts receives each source's power density.
-func noiseDensity(n *noise.Analysis, parts []float64, z []complex128, f float64) (out, in *float64) {
+func noiseDensity(n *noise.Analysis, parts []float64, z []complex128, f float64) (out, in float64) {
 	g := n.At(parts, z, f)
 	total := 0.0
 	for _, x := range parts {
 		total += x
 	}
-	e := math.Sqrt(total)
+	out, in = math.Sqrt(total), math.NaN()
 	if n.Input != nil && g != 0 {
-		in = F(e / cmplx.Abs(g))
+		in = out / cmplx.Abs(g)
 	}
-	return F(e), in
+	return out, in
 }
 
 // noiseGain returns, when the reference is an opamp, the function giving
 // its noise gain and its en's transfer at a point (see noise.NoiseGain),
 // else nil.
-func noiseGain(p *Prepared) func(pt feedback.Point) (ng, en *Complex) {
+func noiseGain(p *Prepared) func(pt feedback.Point) (ng, en complex128) {
 	a := p.Analyzer
 	if a.Ref < 0 || p.Circuit.Parts[a.Ref].Kind != circuit.OpAmp {
 		return nil
 	}
 	part := &p.Circuit.Parts[a.Ref]
 	br := a.Sys.Branch[a.Ref]
-	return func(pt feedback.Point) (*Complex, *Complex) {
+	return func(pt feedback.Point) (complex128, complex128) {
 		k := part.Gain(pt.F)
 		h := pt.Adjoint[br]
-		return C(noise.NoiseGain(h, pt.T, k)), C(k * h)
+		return noise.NoiseGain(h, pt.T, k), k * h
 	}
 }
