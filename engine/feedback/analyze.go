@@ -174,10 +174,10 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 // heldBy returns the ideal voltage sources on a path from node pa to node
 // pb, when there is one: vsources (other than the port's drivers) and
 // vnoise sources (0 V outside the noise analysis), vcvs outputs and opamp
-// outputs without ro. A current injected into such a port
-// flows through the path and changes no other equation — unless a
-// current-controlled source senses a part on the path, in which case there
-// is no such rule and heldBy returns nil.
+// outputs without ro. A current injected into such a port flows through
+// the path and changes no other equation — unless a current-controlled
+// source senses a part on the path, in which case there is no such rule
+// and heldBy returns nil.
 func heldBy(c *circuit.Circuit, pa, pb int, drivers []int) []string {
 	skip := map[int]bool{}
 	for _, d := range drivers {
