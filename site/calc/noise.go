@@ -68,6 +68,11 @@ func noiseAsk(req *api.Request, c *Context) *api.ErrorBody {
 	return nil
 }
 
+// NoiseTrace is the name of a source's trace on the noise chart: its name
+// and kind, "R1 (thermal)". (A part's name alone would also be the
+// data-name of the design aids' input for that part.)
+func NoiseTrace(k api.NoiseContributor) string { return k.Name + " (" + kindText[k.Kind] + ")" }
+
 // kindText says what a contributor is.
 var kindText = map[string]string{
 	"thermal": "thermal", "shot": "shot, 2qI", "en": "op-amp eₙ", "in": "op-amp iₙ",
@@ -237,7 +242,7 @@ func noiseCharts(c *Context, n *api.NoiseResult) []string {
 		Traces: []plot.Trace{{Name: "total", Class: "noise", Values: reals(n.Output)}}}
 	for _, k := range n.Contributors {
 		if k.Density != nil {
-			out.Traces = append(out.Traces, plot.Trace{Name: k.Name, Values: reals(k.Density), Dashed: true})
+			out.Traces = append(out.Traces, plot.Trace{Name: NoiseTrace(k), Values: reals(k.Density), Dashed: true})
 		}
 	}
 	charts := []string{out.SVG()}

@@ -400,7 +400,7 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 		exp = append(exp, series{prefix + "noise", "total", reals(n.Output), true})
 		for _, c := range n.Contributors {
 			if c.Density != nil {
-				exp = append(exp, series{prefix + "noise", c.Name, reals(c.Density), true})
+				exp = append(exp, series{prefix + "noise", calc.NoiseTrace(c), reals(c.Density), true})
 			}
 		}
 		if n.Input != nil {
