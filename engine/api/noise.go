@@ -1,10 +1,11 @@
 package api
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/cmplx"
-	"sort"
+	"slices"
 	"strings"
 
 	"zport/engine/circuit"
@@ -137,6 +138,9 @@ type NoiseContributor struct {
 	Spot    *float64   `json:"spot"`
 	Density []*float64 `json:"density,omitempty"`
 }
+
+// densityUnit is the unit of a source's density by its Unit.
+var densityUnit = map[string]string{"V": "V/√Hz", "A": "A/√Hz"}
 
 const noiseMethod = "adjoint system per frequency (Rohrer, Nagel, Meyer, Weber 1971); band integral by adaptive 15-point Gauss–Kronrod over ln f, error estimate |Kronrod − Gauss|"
 
@@ -273,25 +277,26 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 	if p.Spot.F == 0 {
 		r.Notes = append(r.Notes, "at 0 Hz a 1/f noise is infinite: the spot densities are given where they are finite")
 	}
+	// Largest first; names are unique, so the order is total.
 	order := make([]int, m)
 	for k := range order {
 		order[k] = k
 	}
-	sort.SliceStable(order, func(i, j int) bool {
-		pi, pj := band.Power[order[i]], band.Power[order[j]]
-		if pi != pj {
-			return pi > pj
+	slices.SortFunc(order, func(i, j int) int {
+		if c := cmp.Compare(band.Power[j], band.Power[i]); c != 0 {
+			return c
 		}
-		return n.Sources[order[i]].Name < n.Sources[order[j]].Name
+		return strings.Compare(n.Sources[i].Name, n.Sources[j].Name)
 	})
+	each := make(floatArena, 0, 3*m)
 	for _, k := range order {
 		s := n.Sources[k]
 		c := NoiseContributor{Name: s.Name, Kind: s.Kind, Part: p.Circuit.Parts[s.Part].Name, Level: s.Density.Level,
-			Unit: s.Unit + "/√Hz", Corner: s.Density.Corner, Spot: F(math.Sqrt(spot[k]))}
+			Unit: densityUnit[s.Unit], Corner: s.Density.Corner, Spot: each.f(math.Sqrt(spot[k]))}
 		if err == nil {
-			c.RMS = F(math.Sqrt(band.Power[k]))
+			c.RMS = each.f(math.Sqrt(band.Power[k]))
 			if band.Total > 0 {
-				c.Share = F(band.Power[k] / band.Total)
+				c.Share = each.f(band.Power[k] / band.Total)
 			}
 		}
 		r.Contributors = append(r.Contributors, c)

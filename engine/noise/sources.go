@@ -78,7 +78,10 @@ func (s *Source) Transfer(z []complex128, f float64) complex128 {
 // Sources lists the noise generators of the circuit whose equations are
 // sys, at temperature T in kelvin, in the order of the circuit's parts.
 func Sources(sys *mna.System, T float64) []Source {
-	g := gen{sys: sys, T: T}
+	// Most parts give one source of at most two terms; a circuit may
+	// have thousands of resistors, so the terms share one array.
+	n := len(sys.C.Parts)
+	g := gen{sys: sys, T: T, out: make([]Source, 0, n), terms: make([]mna.Term, 0, 2*n)}
 	for i := range sys.C.Parts {
 		g.part(i)
 	}
@@ -87,9 +90,17 @@ func Sources(sys *mna.System, T float64) []Source {
 
 // gen collects the sources of one circuit.
 type gen struct {
-	sys *mna.System
-	T   float64
-	out []Source
+	sys   *mna.System
+	T     float64
+	out   []Source
+	terms []mna.Term // backing array of the sources' RHS
+}
+
+// rhs returns the terms as a slice of g.terms.
+func (g *gen) rhs(t ...mna.Term) []mna.Term {
+	start := len(g.terms)
+	g.terms = append(g.terms, t...)
+	return g.terms[start:len(g.terms):len(g.terms)]
 }
 
 // part adds the noise sources of part i. A new element kind gets its
@@ -136,22 +147,25 @@ func (g *gen) part(i int) {
 // unknown to (−1 for gnd); one with both ends at gnd drives nothing and is
 // left out.
 func (g *gen) current(part int, name, kind string, from, to int, d Density) {
-	var rhs []mna.Term
+	var t [2]mna.Term
+	n := 0
 	if to >= 0 {
-		rhs = append(rhs, mna.Term{I: to, V: 1})
+		t[n] = mna.Term{I: to, V: 1}
+		n++
 	}
 	if from >= 0 {
-		rhs = append(rhs, mna.Term{I: from, V: -1})
+		t[n] = mna.Term{I: from, V: -1}
+		n++
 	}
-	if len(rhs) == 0 {
+	if n == 0 {
 		return
 	}
-	g.out = append(g.out, Source{Name: name, Kind: kind, Part: part, Unit: "A", Density: d, RHS: rhs})
+	g.out = append(g.out, Source{Name: name, Kind: kind, Part: part, Unit: "A", Density: d, RHS: g.rhs(t[:n]...)})
 }
 
 // branch adds a noise voltage of density d in the branch equation row,
 // scaled by through(f) when not nil.
 func (g *gen) branch(part int, name, kind string, row int, d Density, through func(float64) complex128) {
 	g.out = append(g.out, Source{Name: name, Kind: kind, Part: part, Unit: "V", Density: d,
-		RHS: []mna.Term{{I: row, V: 1}}, Through: through})
+		RHS: g.rhs(mna.Term{I: row, V: 1}), Through: through})
 }
