@@ -30,11 +30,19 @@ func gainSection(w *view.Writer, c *Context) {
 	}
 	w.Section(c.ID, "gain", title)
 	w.Open("p", "class", "explain")
-	w.Text("Asymptotic gain model, from ")
+	if r.Reference == "" {
+		w.Text("Direct nodal solution, from ")
+	} else {
+		w.Text("Asymptotic gain model, from ")
+	}
 	w.Elem("code", g.Source)
 	w.Text(" to ")
 	w.Elem("code", g.Output)
-	w.Text(" in " + g.Unit + ": g = g∞ · T/(1 + T) + g₀/(1 + T).")
+	if r.Reference == "" {
+		w.Text(" in " + g.Unit + ": without a reference element the asymptotic gain model’s terms are not defined.")
+	} else {
+		w.Text(" in " + g.Unit + ": g = g∞ · T/(1 + T) + g₀/(1 + T).")
+	}
 	w.Close("p")
 	w.Open("div", "class", "table-wrap")
 	w.Open("table", "class", "results gain-table")
