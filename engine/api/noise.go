@@ -257,7 +257,7 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 		}
 	}
 	if m == 0 {
-		r.Notes = append(r.Notes, "the circuit has no noise sources: every resistor is noise=off, and there is no opamp en or in, vnoise or inoise")
+		r.Notes = append(r.Notes, "the circuit has no noise sources: no resistor without noise=off, no opamp with en or in, no vnoise or inoise")
 	}
 
 	// The band first: it ranks the sources.
