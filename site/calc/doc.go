@@ -8,9 +8,9 @@
 // # Analyses
 //
 // Everything a calculator shows is an Analysis, listed once in Analyses:
-// the port impedances, the gain, the loop and its margins, the noise, a stage's
-// design values, the engine's notes, a stage's generated circuit text, the
-// design aids. An analysis declares its key, its settings, how it asks the
+// the port impedances, the gain, the loop and its margins, the noise, a
+// stage's design values, the engine's notes, a stage's generated circuit
+// text, the design aids. An analysis declares its key, its settings, how it asks the
 // engine (Ask), and how it writes its section of the panel, its columns of
 // the CSV and its rows of the copied results. Adding one is writing one
 // file and adding it to the list; DEVELOPERS.md walks through it, and
