@@ -46,8 +46,9 @@ func TestNoiseOnStagePage(t *testing.T) {
 		t.Errorf("the link %q does not carry the temperature", state)
 	}
 	cold := checkAgainstNative(t, ctx, id)
-	if c := api.Noise.Result(cold); c.Temperature != 77 || rms() == warm {
-		t.Errorf("at 77 K: temperature %g, rms %s (was %s)", c.Temperature, rms(), warm)
+	coldRms := rms()
+	if c := api.Noise.Result(cold); c.Temperature != 77 || coldRms == warm {
+		t.Errorf("at 77 K: temperature %g, rms %s (was %s)", c.Temperature, coldRms, warm)
 	}
 
 	pasteInto(t, ctx, id, "noise.temperature", "0")
@@ -57,8 +58,11 @@ func TestNoiseOnStagePage(t *testing.T) {
 	}
 	msgSel := jsString(calcSel(id) + ` .field[data-field="noise.temperature"] [data-role="msg"]`)
 	poll(t, ctx, `document.querySelector(`+msgSel+`).textContent === `+jsString(out.Error.Message), waitFor)
-	if got := rms(); got != valueOf(shownValues(t, ctx, id), "noiseRms") || got == warm {
-		t.Errorf("the last good rms (77 K) is not kept: %s", got)
+	if got := rms(); got != coldRms {
+		t.Errorf("the rms shows %s after a bad temperature; the last good one (77 K) is %s", got, coldRms)
+	}
+	if !eval[bool](t, ctx, `document.querySelector(`+jsString(calcSel(id)+` [data-role="results"]`)+`).classList.contains('is-stale')`) {
+		t.Error("the results are not marked stale")
 	}
 	if h := eval[string](t, ctx, `location.hash`); h != state {
 		t.Errorf("the address changed to %q after a bad temperature", h)
