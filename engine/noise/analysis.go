@@ -32,10 +32,24 @@ func New(sys *mna.System, T float64, input []mna.Term) *Analysis {
 // without an Input). The output density is the sum of dst: the sources
 // are uncorrelated.
 func (n *Analysis) At(dst []float64, z []complex128, f float64) (gain complex128) {
+	// Source.Transfer and Density.PSD written out: a pasted circuit may
+	// have thousands of sources, each evaluated at every frequency.
 	for k := range n.Sources {
 		s := &n.Sources[k]
-		h := s.Transfer(z, f)
-		dst[k] = (real(h)*real(h) + imag(h)*imag(h)) * s.Density.PSD(f)
+		var re, im float64
+		for _, t := range s.RHS {
+			re += t.V * real(z[t.I])
+			im += t.V * imag(z[t.I])
+		}
+		if s.Through != nil {
+			h := complex(re, im) * s.Through(f)
+			re, im = real(h), imag(h)
+		}
+		p := s.Density.Level * s.Density.Level
+		if c := s.Density.Corner; c > 0 {
+			p *= 1 + c/f
+		}
+		dst[k] = (re*re + im*im) * p
 	}
 	if n.Input != nil {
 		gain = mna.Dot(n.Input, z)
