@@ -271,7 +271,8 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 	spot := make([]float64, m)
 	r.Spot.Frequency = p.Spot.F
 	if p.Spot.Adjoint != nil {
-		out, in := noiseDensity(n, spot, p.Spot.Adjoint, p.Spot.F)
+		n.At(spot, p.Spot.Adjoint, p.Spot.F)
+		out, in := noiseDensity(n, p.Spot.Adjoint, p.Spot.F)
 		r.Spot.Output, r.Spot.Input = F(out), F(in)
 	}
 	if p.Spot.F == 0 {
@@ -311,7 +312,6 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 	for j := range plotted {
 		r.Contributors[j].Density = make([]*float64, len(pts))
 	}
-	parts := make([]float64, m)
 	r.Frequency = make([]float64, len(pts))
 	r.Output = make([]*float64, len(pts))
 	if n.Input != nil {
@@ -329,13 +329,13 @@ func noiseRun(p *Prepared, q *NoiseRequest, base *Response) (*NoiseResult, error
 		if pt.Adjoint == nil {
 			continue
 		}
-		out, in := noiseDensity(n, parts, pt.Adjoint, pt.F)
+		out, in := noiseDensity(n, pt.Adjoint, pt.F)
 		r.Output[i] = xs.f(out)
 		if r.Input != nil {
 			r.Input[i] = xs.f(in)
 		}
 		for j, k := range plotted {
-			r.Contributors[j].Density[i] = xs.f(math.Sqrt(parts[k]))
+			r.Contributors[j].Density[i] = xs.f(math.Sqrt(n.Of(k, pt.F)))
 		}
 		if ngain != nil {
 			ng, en := ngain(pt)
@@ -388,13 +388,9 @@ func (r *NoiseResult) noiseBand(band noise.Band, p *Prepared) {
 
 // noiseDensity is the output density at f from the adjoint solution z,
 // and the input-referred one (NaN without an input, or where the gain is
-// zero); parts receives each source's power density.
-func noiseDensity(n *noise.Analysis, parts []float64, z []complex128, f float64) (out, in float64) {
-	g := n.At(parts, z, f)
-	total := 0.0
-	for _, x := range parts {
-		total += x
-	}
+// zero); n.Of then gives each source's share at f.
+func noiseDensity(n *noise.Analysis, z []complex128, f float64) (out, in float64) {
+	total, g := n.Total(z, f)
 	out, in = math.Sqrt(total), math.NaN()
 	if n.Input != nil && g != 0 {
 		in = out / cmplx.Abs(g)

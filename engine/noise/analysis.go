@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/cmplx"
 	"sort"
+	"strconv"
 
 	"zport/engine/mna"
 )
@@ -17,13 +18,88 @@ type Analysis struct {
 	// gain's vsource or isource), nil when the noise is not referred to
 	// an input.
 	Input []mna.Term
+
+	// Sources that enter the equations alike (the same right-hand side,
+	// no gain in the way: resistors between the same two nodes) have
+	// the same transfer, so the transfer is found once per group: a
+	// pasted circuit may hold thousands of resistors on a few nodes.
+	groups []group
+	of     []int     // source → its group
+	h2     []float64 // |transfer|² of each group, at the last frequency
+}
+
+// group is a set of sources with one transfer: their common RHS and
+// Through, and the sums of their white levels² and of levels²·corner, so
+// that the group's power density is |H|²·(white + flicker/f).
+type group struct {
+	rhs            []mna.Term
+	through        func(float64) complex128
+	white, flicker float64
 }
 
 // New is the noise analysis of the circuit whose equations are sys, at
 // temperature T in kelvin, referred to the input whose unit right-hand
 // side is input (nil for none).
 func New(sys *mna.System, T float64, input []mna.Term) *Analysis {
-	return &Analysis{Sources: Sources(sys, T), Input: input}
+	n := &Analysis{Sources: Sources(sys, T), Input: input}
+	n.group()
+	return n
+}
+
+// group sorts the sources into groups of one transfer.
+func (n *Analysis) group() {
+	n.of = make([]int, len(n.Sources))
+	index := map[string]int{}
+	var key []byte
+	for k := range n.Sources {
+		s := &n.Sources[k]
+		g := -1
+		if s.Through == nil {
+			key = key[:0]
+			for _, t := range s.RHS {
+				key = strconv.AppendInt(key, int64(t.I), 10)
+				key = append(key, ':')
+				key = strconv.AppendFloat(key, t.V, 'g', -1, 64)
+				key = append(key, ';')
+			}
+			if i, ok := index[string(key)]; ok {
+				g = i
+			} else {
+				index[string(key)] = len(n.groups)
+			}
+		}
+		if g < 0 {
+			g = len(n.groups)
+			n.groups = append(n.groups, group{rhs: s.RHS, through: s.Through})
+		}
+		l2 := s.Density.Level * s.Density.Level
+		n.groups[g].white += l2
+		n.groups[g].flicker += l2 * s.Density.Corner
+		n.of[k] = g
+	}
+	n.h2 = make([]float64, len(n.groups))
+}
+
+// transfers finds |H|² of every group at f from the adjoint solution z,
+// into n.h2, and returns the input's transfer (0 without an Input).
+func (n *Analysis) transfers(z []complex128, f float64) (gain complex128) {
+	for g := range n.groups {
+		gr := &n.groups[g]
+		var re, im float64
+		for _, t := range gr.rhs {
+			re += t.V * real(z[t.I])
+			im += t.V * imag(z[t.I])
+		}
+		if gr.through != nil {
+			h := complex(re, im) * gr.through(f)
+			re, im = real(h), imag(h)
+		}
+		n.h2[g] = re*re + im*im
+	}
+	if n.Input != nil {
+		gain = mna.Dot(n.Input, z)
+	}
+	return gain
 }
 
 // At writes each source's power density at the output at f > 0 into dst
@@ -32,29 +108,30 @@ func New(sys *mna.System, T float64, input []mna.Term) *Analysis {
 // without an Input). The output density is the sum of dst: the sources
 // are uncorrelated.
 func (n *Analysis) At(dst []float64, z []complex128, f float64) (gain complex128) {
-	// Source.Transfer and Density.PSD written out: a pasted circuit may
-	// have thousands of sources, each evaluated at every frequency.
+	gain = n.transfers(z, f)
 	for k := range n.Sources {
-		s := &n.Sources[k]
-		var re, im float64
-		for _, t := range s.RHS {
-			re += t.V * real(z[t.I])
-			im += t.V * imag(z[t.I])
-		}
-		if s.Through != nil {
-			h := complex(re, im) * s.Through(f)
-			re, im = real(h), imag(h)
-		}
-		p := s.Density.Level * s.Density.Level
-		if c := s.Density.Corner; c > 0 {
-			p *= 1 + c/f
-		}
-		dst[k] = (re*re + im*im) * p
-	}
-	if n.Input != nil {
-		gain = mna.Dot(n.Input, z)
+		dst[k] = n.h2[n.of[k]] * n.Sources[k].Density.PSD(f)
 	}
 	return gain
+}
+
+// Total is the output's power density at f > 0 (V²/Hz for a voltage
+// output), the sum of every source's, from the adjoint solution z; and
+// the input's transfer (0 without an Input). It costs one transfer per
+// group of sources, not one per source.
+func (n *Analysis) Total(z []complex128, f float64) (psd float64, gain complex128) {
+	gain = n.transfers(z, f)
+	for g := range n.groups {
+		gr := &n.groups[g]
+		psd += n.h2[g] * (gr.white + gr.flicker/f)
+	}
+	return psd, gain
+}
+
+// Of is source k's power density at the output at f, from the transfers
+// of the last At or Total (at that f).
+func (n *Analysis) Of(k int, f float64) float64 {
+	return n.h2[n.of[k]] * n.Sources[k].Density.PSD(f)
 }
 
 // Accuracy of Band: the relative error the integration aims at for the
@@ -107,13 +184,15 @@ func (b *Band) Bandwidth() float64 {
 // whose error estimate (|Kronrod − Gauss|, which overstates the Kronrod
 // result's error) weighs most until the total power and ∫|G|²df are both
 // within BandTolerance. The nodes depend on the band and the circuit only,
-// so the answer does not depend on any sweep. The peak of |G| is the
+// so the answer does not depend on any sweep. It integrates |H|² and
+// |H|²/f of each group of sources that share a transfer, so a source's
+// power with its 1/f corner follows exactly, and thousands of resistors
+// on a few nodes cost a few transfers. The peak of |G| is the
 // largest over the nodes and the band's ends, refined by golden-section
 // search between the neighbours of the largest.
 func (n *Analysis) Band(adjoint func(f float64, z []complex128) error, size int, from, to float64) (Band, error) {
-	m := len(n.Sources)
+	G := len(n.groups)
 	z := make([]complex128, size)
-	parts := make([]float64, m)
 	type node struct{ u, g2 float64 }
 	var seen []node
 	// g2 evaluates |G|² alone, for the peak's search.
@@ -124,17 +203,17 @@ func (n *Analysis) Band(adjoint func(f float64, z []complex128) error, size int,
 		g := mna.Dot(n.Input, z)
 		return real(g)*real(g) + imag(g)*imag(g), nil
 	}
-	q := quadrature{dim: 2 + m, ctrl: 2, rtol: BandTolerance, maxEval: MaxEvaluations,
+	// Per group, ∫|H|²df and ∫|H|²/f df: a source's power is then
+	// level²·(∫|H|²df + corner·∫|H|²/f df), exactly.
+	q := quadrature{dim: 2 + 2*G, ctrl: 2, rtol: BandTolerance, maxEval: MaxEvaluations,
 		f: func(u float64, v []float64) error {
 			f := math.Exp(u)
 			if err := adjoint(f, z); err != nil {
 				return err
 			}
-			g := n.At(parts, z, f)
-			total := 0.0
-			for k, p := range parts {
-				v[2+k] = p * f
-				total += p
+			total, g := n.Total(z, f)
+			for i, h2 := range n.h2 {
+				v[2+2*i], v[3+2*i] = h2*f, h2
 			}
 			v[0] = total * f
 			gg := real(g)*real(g) + imag(g)*imag(g)
@@ -148,8 +227,12 @@ func (n *Analysis) Band(adjoint func(f float64, z []complex128) error, size int,
 	if err != nil {
 		return Band{}, err
 	}
-	band := Band{From: from, To: to, Power: r.I[2:], Total: r.I[0], Error: r.E[0], Gain2: r.I[1],
+	band := Band{From: from, To: to, Power: make([]float64, len(n.Sources)), Total: r.I[0], Error: r.E[0], Gain2: r.I[1],
 		Evaluations: r.Evaluations, Converged: r.Converged}
+	for k, s := range n.Sources {
+		g := n.of[k]
+		band.Power[k] = s.Density.Level * s.Density.Level * (r.I[2+2*g] + s.Density.Corner*r.I[3+2*g])
+	}
 	if n.Input == nil {
 		return band, nil
 	}

@@ -92,3 +92,31 @@ func TestShot(t *testing.T) {
 	got, _, _ = s.density(t, 10)
 	within(t, "thermal=1m at 400 K into 1 kΩ", got, math.Sqrt(4*noise.Boltzmann*400*1e-3)*1e3, 1e-15)
 }
+
+// Sources that enter alike share one transfer (Analysis groups them): a
+// resistor and a noise current with a 1/f corner across the same RC node
+// (our values). With |H|² = R²/(1 + (f/fp)²) [circuit theory], over
+// [f1, f2]: ∫|H|²df = R²·fp·[atan(f/fp)] and ∫|H|²/f df =
+// R²·[ln f − ½·ln(1 + (f/fp)²)] [derived]; the resistor's power is
+// (4kT/R)·∫|H|²df and the current's d²·(∫|H|²df + fc·∫|H|²/f df).
+func TestGroupedSources(t *testing.T) {
+	const R, C, d, fc, T = 10e3, 1e-9, 3e-12, 1e3, 300.0
+	s := newSetup(t, "resistor R out gnd 10k\ncapacitor C out gnd 1n\ninoise In gnd out density=3p fc=1k\n", "", "out", "", T)
+	fp := 1 / (2 * math.Pi * R * C)
+	f1, f2 := 1.0, 1e8
+	A := R * R * fp * (math.Atan(f2/fp) - math.Atan(f1/fp))
+	lg := func(f float64) float64 { return math.Log(f) - 0.5*math.Log1p((f/fp)*(f/fp)) }
+	B := R * R * (lg(f2) - lg(f1))
+	b := s.band(t, f1, f2)
+	within(t, "resistor's power", b.Power[0], 4*noise.Boltzmann*T/R*A, 1e-9)
+	within(t, "noise current's power", b.Power[1], d*d*(A+fc*B), 1e-9)
+	within(t, "the parts add up to the total", b.Power[0]+b.Power[1], b.Total, 1e-12)
+	_, by, _ := s.density(t, 100)
+	z := make([]complex128, s.a.Sys.N)
+	if err := s.a.AdjointAt(100, z); err != nil {
+		t.Fatal(err)
+	}
+	total, _ := s.n.Total(z, 100)
+	within(t, "Total against the sum of At", total, by["R"]+by["In"], 1e-14)
+	within(t, "Of against At", s.n.Of(1, 100), by["In"], 1e-15)
+}
