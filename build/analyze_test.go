@@ -5,12 +5,14 @@ import (
 	"context"
 	"encoding/json"
 	"io"
+	"math"
 	"regexp"
 	"strings"
 	"testing"
 	"time"
 
 	"zport/engine/api"
+	"zport/engine/feedback"
 )
 
 // The analyze command answers the contract on stdout, and bad input with
@@ -40,7 +42,7 @@ func TestAnalyzeCommandErrors(t *testing.T) {
 		{`{"circuit": "resistor R1 a gnd 4k7k\n", "reference": "U1", "frequency": 1}`, "1:22: "},
 		{`{"circuit": "resistor R1 a gnd 1k\nvcvs E1 b gnd sense=a,gnd gain=2\n", "reference": "R1", "frequency": 1}`, "0:0: reference: "},
 		{`{"topology": "noninverting", "params": {"R1": "abc"}, "frequency": 1}`, "0:0: R1: "},
-		{`{"circuit": 5}`, "0:0: request is not valid JSON"},
+		{`{"circuit": 5}`, "0:0: circuit: want a string, not a JSON number"},
 		{`not json`, "0:0: request is not valid JSON"},
 	}
 	for _, c := range cases {
@@ -128,11 +130,21 @@ func TestAnalyzeCommandTimeout(t *testing.T) {
 }
 
 // A circuit with nothing that can be the reference says so, rather than
-// offering an empty list to choose from.
+// offering an empty list to choose from; without a reference asked for,
+// it is answered by the direct solution, with a note saying what that
+// leaves out.
 func TestAnalyzeCommandNoCandidates(t *testing.T) {
+	var out, errOut bytes.Buffer
+	passive := `{"circuit": "vsource V1 a gnd 1\nresistor R1 a b 1k\nresistor R2 b gnd 1k\nport p b gnd\n", "ports": ["p"], "frequency": 1}`
+	if code := runAnalyze(context.Background(), nil, strings.NewReader(passive), &out, &errOut); code != 0 {
+		t.Errorf("a passive network: exit %d (%s), want 0", code, errOut.String())
+	}
+	var resp api.Response
+	if err := json.Unmarshal(out.Bytes(), &resp); err != nil || len(resp.Ports) != 1 || resp.Ports[0].ZDirect == nil ||
+		math.Abs(resp.Ports[0].ZDirect.Re-500) > 1e-9 || len(resp.Notes) == 0 || resp.Notes[0] != feedback.NoReferenceNote {
+		t.Errorf("a passive network: %s (%v)", out.String(), err)
+	}
 	for _, c := range []struct{ req, stderr string }{
-		{`{"circuit": "vsource V1 a gnd 1\nresistor R1 a b 1k\nresistor R2 b gnd 1k\nport p b gnd\n", "ports": ["p"], "frequency": 1}`,
-			"0:0: reference: no reference element given (the circuit has none: add a controlled source (vcvs, vccs, ccvs, cccs), an opamp or a transistor (bjt, mos))\n"},
 		{`{"circuit": "resistor R1 a gnd 1k\n", "reference": "U1", "frequency": 1}`,
 			"0:0: reference: reference \"U1\": no part of that name (the circuit has none: add a controlled source (vcvs, vccs, ccvs, cccs), an opamp or a transistor (bjt, mos))\n"},
 		{`{"circuit": "resistor R1 a gnd 1k\nvcvs E2 b gnd sense=a,gnd gain=2\nvcvs E1 c gnd sense=a,gnd gain=2\n", "reference": "U1", "frequency": 1}`,

@@ -450,6 +450,7 @@ var groupTitles = map[string]string{
 	"source":    "Source",
 	"load":      "Load",
 	"amplifier": "Amplifier model",
+	"noise":     "Noise sources (invented defaults)",
 	"":          "Parameters",
 }
 

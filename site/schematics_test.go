@@ -44,6 +44,13 @@ func TestSchematicsMatchCircuits(t *testing.T) {
 					ports[f[1]] = true
 					continue
 				}
+				if f[0] == "vnoise" || f[0] == "inoise" {
+					// A noise generator is the noise model of a part that
+					// is drawn (the sensor's shot noise, a transistor's
+					// channel noise), named in the noise section, not a
+					// part of the schematic.
+					continue
+				}
 				parts[f[1]] = true
 				for _, n := range f[2:] {
 					if !strings.Contains(n, "=") {

@@ -211,7 +211,8 @@ func StageParams(t *topology.Topology, v topology.Values, c *circuit.Circuit) (p
 	direct := true
 	for _, tp := range t.Params {
 		x, ok := v[tp.Name]
-		if !ok || x == 0 {
+		if !ok || x == 0 || tp.Group == "noise" {
+			// Noise densities change no impedance, gain or margin.
 			continue
 		}
 		p := Param{Name: tp.Name, Unit: tp.Unit, Nominal: x, Class: Other, Part: -1}

@@ -41,6 +41,8 @@ type entry struct {
 	key    string
 	decode func(raw json.RawMessage) (any, error)
 	run    func(p *Prepared, q any, base *Response) (any, error)
+	// before, when set, runs ahead of the base answer (see Before).
+	before func(p *Prepared, q any) error
 	// result decodes an answer, for reading a response back.
 	result func(raw json.RawMessage) (any, error)
 }
@@ -123,6 +125,34 @@ func Analyses() []string {
 		keys[i] = e.key
 	}
 	return keys
+}
+
+// Before sets work the analysis does ahead of the base answer, and
+// returns the analysis, so that it reads
+//
+//	var Noise = api.Register("noise", run).Before(prepare)
+//
+// An analysis that needs more of the engine at every frequency of the
+// base answer than the response carries asks the analyzer for it here
+// (p.Analyzer.Adjoint: an adjoint solution at each point, from the
+// factorization the point makes anyway), and run reads it from p.Spot and
+// p.Points. Its error is the request's; it runs before anything is
+// analyzed, so it is also where the analysis's options are checked.
+func (a Analysis[Q, R]) Before(f func(p *Prepared, q *Q) error) Analysis[Q, R] {
+	lookup(a.key).before = func(p *Prepared, q any) error { return f(p, q.(*Q)) }
+	return a
+}
+
+// beforeAnalyses runs the Before of every analysis the request asks for.
+func (p *Prepared) beforeAnalyses() error {
+	for _, e := range p.Req.asked() {
+		if e.before != nil {
+			if err := e.before(p, p.Req.analyses[e.key]); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
 }
 
 // Key is the analysis's request and response key.

@@ -110,6 +110,13 @@ type Prepared struct {
 	PortDefs []string
 
 	ctx context.Context // of RunContext; nil means never stopped
+
+	// Spot and Points are the analyzer's answers at the spot frequency
+	// and at each frequency of the sweep (nil without one), set by Run
+	// before the analyses run: an analysis that asked the analyzer for
+	// more in its Before (an adjoint solution) reads it here.
+	Spot   feedback.Point
+	Points []feedback.Point
 }
 
 // Context is the context the request runs under (see RunContext): an
@@ -277,19 +284,9 @@ func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
 			src = i
 		}
 	}
-	a, b, pair := strings.Cut(g.Output, ",")
-	ia, ok := c.Node(strings.TrimSpace(a))
-	if !ok {
-		return nil, fieldErr("gain.output", "no node called %s", value.Quote(strings.TrimSpace(a)))
-	}
-	ib := circuit.Gnd
-	if pair {
-		if ib, ok = c.Node(strings.TrimSpace(b)); !ok {
-			return nil, fieldErr("gain.output", "no node called %s", value.Quote(strings.TrimSpace(b)))
-		}
-	}
-	if ia == ib {
-		return nil, fieldErr("gain.output", "the output %s has both ends on one node", value.Quote(g.Output))
+	ia, ib, bad := nodePair(c, g.Output)
+	if bad != "" {
+		return nil, fieldErr("gain.output", "%s", bad)
 	}
 	return &feedback.Gain{Source: src, OutA: ia, OutB: ib, SourceName: g.Source, OutputName: g.Output}, nil
 }
@@ -320,6 +317,9 @@ func (p *Prepared) Run() (*Response, error) { return p.RunContext(context.Backgr
 func (p *Prepared) RunContext(ctx context.Context) (*Response, error) {
 	p.ctx = ctx
 	a := p.Analyzer
+	if err := p.beforeAnalyses(); err != nil {
+		return nil, err
+	}
 	a.Condition = true
 	pt, err := a.At(p.Req.Frequency)
 	a.Condition = false
@@ -335,7 +335,11 @@ func (p *Prepared) RunContext(ctx context.Context) (*Response, error) {
 		resp.Gain = p.gainResult(pt.Gain)
 	}
 	var notes []string
+	if a.Ref < 0 {
+		notes = append(notes, feedback.NoReferenceNote)
+	}
 	notes = append(notes, pt.Notes...)
+	p.Spot, p.Points = pt, nil
 	if s := p.Req.Sweep; s != nil {
 		grid := numeric.LogSpan(make([]float64, s.Points), s.From, s.To)
 		pts, err := a.SweepContext(ctx, grid)
@@ -345,16 +349,19 @@ func (p *Prepared) RunContext(ctx context.Context) (*Response, error) {
 			}
 			return nil, &Problem{Msg: err.Error(), Err: err}
 		}
+		p.Points = pts
 		resp.Sweep = sweepResult(grid, pts)
 		sweepErrors(resp.Sweep, pts)
 		resp.fillSweepNames()
-		T := make([]complex128, len(pts))
-		for i := range pts {
-			T[i] = pts[i].T
+		if a.Ref >= 0 {
+			T := make([]complex128, len(pts))
+			for i := range pts {
+				T[i] = pts[i].T
+			}
+			m := feedback.Margins(grid, T, a.ReturnRatio)
+			resp.Margins = margins(m)
+			p.loopViews(resp.Sweep, resp.Margins)
 		}
-		m := feedback.Margins(grid, T, a.ReturnRatio)
-		resp.Margins = margins(m)
-		p.loopViews(resp.Sweep, resp.Margins)
 		notes = append(notes, feedback.Notes(pts)...)
 	}
 	seen := map[string]bool{}
@@ -544,6 +551,10 @@ func decodeRequest(in []byte) (Request, error) {
 		var p *Problem
 		if errors.As(err, &p) {
 			return req, err
+		}
+		var te *json.UnmarshalTypeError
+		if errors.As(err, &te) && te.Field != "" {
+			return req, fieldErr(te.Field, "want %s, not a JSON %s", jsonType(te.Type.String()), te.Value)
 		}
 		return req, &Problem{Msg: "request is not valid JSON for this contract: " + err.Error()}
 	}

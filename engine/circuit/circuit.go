@@ -22,9 +22,14 @@ const (
 	OpAmp
 	BJT
 	MOS
+	// VNoise and INoise are noise sources: in every analysis but noise a
+	// VNoise is a 0 V source (a short with a branch current) and an INoise
+	// is open.
+	VNoise
+	INoise
 )
 
-var kindNames = [...]string{"resistor", "capacitor", "inductor", "vsource", "isource", "vcvs", "vccs", "ccvs", "cccs", "opamp", "bjt", "mos"}
+var kindNames = [...]string{"resistor", "capacitor", "inductor", "vsource", "isource", "vcvs", "vccs", "ccvs", "cccs", "opamp", "bjt", "mos", "vnoise", "inoise"}
 
 func (k Kind) String() string {
 	if k < 0 || int(k) >= len(kindNames) {
@@ -36,7 +41,13 @@ func (k Kind) String() string {
 // Controlled reports whether parts of kind k have a gain that can serve as
 // the reference for a return ratio: the controlled sources, the opamp's
 // internal gain source, and a transistor's transconductance.
-func (k Kind) Controlled() bool { return k >= VCVS }
+func (k Kind) Controlled() bool {
+	switch k {
+	case VCVS, VCCS, CCVS, CCCS, OpAmp, BJT, MOS:
+		return true
+	}
+	return false
+}
 
 // Transistor reports whether k is bjt or mos.
 func (k Kind) Transistor() bool { return k == BJT || k == MOS }
@@ -44,7 +55,7 @@ func (k Kind) Transistor() bool { return k == BJT || k == MOS }
 // VoltageOutput reports whether the part forces a voltage between its first
 // two nodes (and so carries a branch current that can be sensed).
 func (k Kind) VoltageOutput() bool {
-	return k == Inductor || k == VSource || k == VCVS || k == CCVS
+	return k == Inductor || k == VSource || k == VCVS || k == CCVS || k == VNoise
 }
 
 // Gnd is the index of the reference node.
@@ -70,6 +81,8 @@ type Part struct {
 	Amp *Amp
 	// Dev is set for a bjt or a mos.
 	Dev *Device
+	// Noise is what the line says about the part's noise.
+	Noise Noise
 	// Line and Col locate the part's name in the text (1-based).
 	Line, Col int
 }
@@ -81,6 +94,24 @@ type Part struct {
 type Amp struct {
 	A0, GBW, P2, Rid, Rcm, Ro float64
 	Cid, Ccm                  float64
+}
+
+// Noise is what a part's line says about its noise; package
+// zport/engine/noise turns it into noise sources. The zero value is a
+// part's default: a resistor is noisy, an opamp is noiseless.
+type Noise struct {
+	// Off marks a resistor noiseless (noise=off): a load or a model
+	// resistance that is not a physical resistor of the design.
+	Off bool
+	// V is a voltage density in V/√Hz (an opamp's en, a vnoise's density)
+	// and VCorner its 1/f corner in hertz (0: none); I and ICorner are the
+	// same for a current density in A/√Hz (an opamp's in, an inoise's
+	// density). The power density is V²·(1 + VCorner/f).
+	V, VCorner, I, ICorner float64
+	// Shot is the DC current in amperes whose shot noise an inoise is
+	// (shot=); Thermal the conductance in siemens whose thermal noise it
+	// is at the analysis temperature (thermal=).
+	Shot, Thermal float64
 }
 
 // Gain returns the open-loop gain A(s) at s = j2πf.

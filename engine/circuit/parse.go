@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 	"unicode/utf8"
@@ -98,6 +99,13 @@ type option struct {
 	isSense   string // "pair" for CP,CN; "part" for a part name
 	isNode    bool   // the value is a node name
 	what      string // what the value is, for messages
+	// words, when set, are the values the option takes instead of a
+	// number, and word stores the one given.
+	words []string
+	word  func(p *Part, w string)
+	// set stores a number; nil stores it as the part's Value (or, for a
+	// transistor, among the options its model is derived from).
+	set func(p *Part, v float64)
 }
 
 // gainUnit marks an option that is a dimensionless gain: a plain number,
@@ -115,7 +123,7 @@ var shapes = map[string]struct {
 	kind Kind
 	shape
 }{
-	"resistor":  {Resistor, shape{2, "Ω", true, nil}},
+	"resistor":  {Resistor, shape{2, "Ω", true, []option{noiseOff}}},
 	"capacitor": {Capacitor, shape{2, "F", true, nil}},
 	"inductor":  {Inductor, shape{2, "H", true, nil}},
 	"vsource":   {VSource, shape{2, "V", false, nil}},
@@ -125,9 +133,18 @@ var shapes = map[string]struct {
 	"ccvs":      {CCVS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "part"}, {key: "r", unit: "Ω", required: true}}}},
 	"cccs":      {CCCS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "part"}, {key: "gain", unit: gainUnit, required: true}}}},
 	"opamp": {OpAmp, shape{3, "-", false, []option{
-		{key: "a0", unit: gainUnit, positive: true}, {key: "gbw", unit: "Hz", positive: true}, {key: "p2", unit: "Hz", positive: true},
-		{key: "rid", unit: "Ω", positive: true}, {key: "rcm", unit: "Ω", positive: true}, {key: "ro", unit: "Ω", nonneg: true},
-		{key: "cid", unit: "F", positive: true}, {key: "ccm", unit: "F", positive: true},
+		{key: "a0", unit: gainUnit, positive: true, set: func(p *Part, v float64) { p.Amp.A0 = v }},
+		{key: "gbw", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Amp.GBW = v }},
+		{key: "p2", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Amp.P2 = v }},
+		{key: "rid", unit: "Ω", positive: true, set: func(p *Part, v float64) { p.Amp.Rid = v }},
+		{key: "rcm", unit: "Ω", positive: true, set: func(p *Part, v float64) { p.Amp.Rcm = v }},
+		{key: "ro", unit: "Ω", nonneg: true, set: func(p *Part, v float64) { p.Amp.Ro = v }},
+		{key: "cid", unit: "F", positive: true, set: func(p *Part, v float64) { p.Amp.Cid = v }},
+		{key: "ccm", unit: "F", positive: true, set: func(p *Part, v float64) { p.Amp.Ccm = v }},
+		{key: "en", unit: "V/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.V = v }},
+		{key: "fce", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.VCorner = v }},
+		{key: "in", unit: "A/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.I = v }},
+		{key: "fci", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.ICorner = v }},
 	}}},
 	"bjt": {BJT, shape{3, "-", false, []option{
 		{key: "ic", unit: "A", positive: true, what: "the collector bias current"},
@@ -151,7 +168,20 @@ var shapes = map[string]struct {
 		{key: "b", isNode: true},
 		{key: "gamma", positive: true, what: "the channel-noise factor"},
 	}}},
+	"vnoise": {VNoise, shape{2, "-", false, []option{
+		{key: "density", unit: "V/√Hz", required: true, nonneg: true, set: func(p *Part, v float64) { p.Noise.V = v }},
+		{key: "fc", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.VCorner = v }},
+	}}},
+	"inoise": {INoise, shape{2, "-", false, []option{
+		{key: "density", unit: "A/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.I = v }},
+		{key: "fc", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.ICorner = v }},
+		{key: "shot", unit: "A", nonneg: true, set: func(p *Part, v float64) { p.Noise.Shot = v }},
+		{key: "thermal", unit: "S", nonneg: true, set: func(p *Part, v float64) { p.Noise.Thermal = v }},
+	}}},
 }
+
+// noiseOff is a resistor's noise= option: on (the default) or off.
+var noiseOff = option{key: "noise", words: []string{"on", "off"}, word: func(p *Part, w string) { p.Noise.Off = w == "off" }}
 
 func lineKinds() []string {
 	names := make([]string, 0, len(shapes)+1)
@@ -461,6 +491,15 @@ func (p *parser) line(n int, line string) {
 				bulk = i
 				continue
 			}
+			if o.words != nil {
+				if !slices.Contains(o.words, rest) {
+					p.errorf(n, valCol, "option %s= takes %s, found %q", key, strings.Join(o.words, " or "), rest)
+					ok = false
+					continue
+				}
+				o.word(&part, rest)
+				continue
+			}
 			v, good := p.val(n, t, eq+1, o.unit, fmt.Sprintf("%s %s option %s=", kw.text, nameTok.text, key))
 			if !good {
 				ok = false
@@ -483,25 +522,8 @@ func (p *parser) line(n int, line string) {
 				devOpts[key] = given{v, t.col}
 				continue
 			}
-			if sh.kind == OpAmp {
-				switch key {
-				case "a0":
-					part.Amp.A0 = v
-				case "gbw":
-					part.Amp.GBW = v
-				case "p2":
-					part.Amp.P2 = v
-				case "rid":
-					part.Amp.Rid = v
-				case "rcm":
-					part.Amp.Rcm = v
-				case "ro":
-					part.Amp.Ro = v
-				case "cid":
-					part.Amp.Cid = v
-				case "ccm":
-					part.Amp.Ccm = v
-				}
+			if o.set != nil {
+				o.set(&part, v)
 			} else {
 				part.Value = v
 			}
@@ -513,6 +535,9 @@ func (p *parser) line(n int, line string) {
 			p.errorf(n, end.col+utf8.RuneCountInString(end.text), "%s %s needs %s=", kw.text, nameTok.text, o.key)
 			ok = false
 		}
+	}
+	if sh.kind == INoise && ok {
+		ok = p.oneNoise(n, kw.text, nameTok.text, toks, opts, seen)
 	}
 	if !ok {
 		return
@@ -543,6 +568,35 @@ func (p *parser) senseSpaceHint(n int, sh shape, last, t token) bool {
 	a := strings.TrimSuffix(rest, ",")
 	col := last.col + utf8.RuneCountInString(last.text)
 	p.errorf(n, col, "sense= takes two nodes joined by a comma, with no space: did you mean sense=%s,%s?", a, t.text)
+	return true
+}
+
+// oneNoise checks that an inoise line says what its noise is in exactly
+// one way (density=, shot= or thermal=), and gives a 1/f corner only to a
+// density.
+func (p *parser) oneNoise(n int, kw, name string, toks, opts []token, seen map[string]bool) bool {
+	var given []token
+	for _, t := range opts {
+		if k, _, _ := strings.Cut(t.text, "="); k == "density" || k == "shot" || k == "thermal" {
+			given = append(given, t)
+		}
+	}
+	switch {
+	case len(given) == 0:
+		end := toks[len(toks)-1]
+		p.errorf(n, end.col+utf8.RuneCountInString(end.text), "%s %s needs one of density=, shot= or thermal=", kw, name)
+		return false
+	case len(given) > 1:
+		p.errorf(n, given[1].col, "%s %s takes one of density=, shot= and thermal=, not two", kw, name)
+		return false
+	case seen["fc"] && !seen["density"]:
+		for _, t := range opts {
+			if strings.HasPrefix(t.text, "fc=") {
+				p.errorf(n, t.col, "fc= is the 1/f corner of a density=; shot= and thermal= are white")
+			}
+		}
+		return false
+	}
 	return true
 }
 
@@ -599,7 +653,7 @@ func (p *parser) resolveSenses() {
 		}
 		k := p.c.Parts[i].Kind
 		if !(k == Resistor || k == Capacitor || k.VoltageOutput()) {
-			p.errorf(s.line, s.tok.col, "sense=%s: the current of a %s cannot be sensed (sense a resistor, capacitor, inductor, vsource, vcvs or ccvs)", s.tok.text, k)
+			p.errorf(s.line, s.tok.col, "sense=%s: the current of a %s cannot be sensed (sense a resistor, capacitor, inductor, vsource, vcvs, ccvs or vnoise)", s.tok.text, k)
 			continue
 		}
 		p.c.Parts[s.part].Sense = i

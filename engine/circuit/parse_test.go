@@ -46,6 +46,9 @@ port     in   in   gnd
 	if got := strings.Join(c.References(), " "); got != "E1 F1 G1 H1 U1" {
 		t.Errorf("References = %q", got)
 	}
+	if u1.Noise != (Noise{}) || r1.Noise.Off {
+		t.Errorf("noise defaults: U1 %+v, R1 %+v", u1.Noise, r1.Noise)
+	}
 	u0, _ := Parse("opamp U1 a b c\nresistor R1 c b 1k\nresistor R2 b gnd 1k\nresistor R3 a gnd 1k\n")
 	if p, _ := u0.Part("U1"); p.Amp.A0 != 100e3 || p.Amp.GBW != 0 || p.Amp.Ro != 0 {
 		t.Errorf("opamp defaults %+v", p.Amp)
@@ -99,7 +102,21 @@ func TestParseErrors(t *testing.T) {
 		{"tab separated", "resistor\tR1\ta\tgnd\t1^x", "unexpected \"x\""},
 		{"comment after", "resistor R1 a gnd ^k  # 1k", "no digits"},
 		{"empty", "^# nothing here", "no parts"},
-		{"options on resistor", "resistor R1 a gnd 1k ^tol=1%", "takes no options"},
+		{"unknown option on resistor", "resistor R1 a gnd 1k ^tol=1%", "unknown option \"tol=\" for resistor (takes noise=)"},
+		{"resistor noise word", "resistor R1 a gnd 1k noise=^no", "takes on or off"},
+		{"capacitor noise", "capacitor C1 a gnd 1n ^noise=off", "takes no options"},
+		{"opamp negative en", "opamp U1 a b out en=^-1n", "must be ≥ 0"},
+		{"opamp en unit", "opamp U1 a b out en=4n^A/√Hz", "unexpected \"A\""},
+		{"opamp zero corner", "opamp U1 a b out in=1p fci=^0", "must be > 0"},
+		{"vnoise needs density", "vnoise Vn a gnd^", "needs density="},
+		{"vnoise value", "vnoise Vn a gnd ^1n", "takes 2 nodes; unexpected"},
+		{"vnoise negative", "vnoise Vn a gnd density=^-1n", "must be ≥ 0"},
+		{"inoise needs one", "inoise In gnd a fc=1k^", "needs one of density=, shot= or thermal="},
+		{"inoise two ways", "inoise In gnd a density=1p ^shot=1u", "not two"},
+		{"inoise negative shot", "inoise In gnd a shot=^-1u", "must be ≥ 0"},
+		{"inoise shot with corner", "inoise In gnd a shot=1u ^fc=10", "1/f corner of a density="},
+		{"inoise shot unit", "inoise In gnd a shot=1u^V", "unexpected \"V\""},
+		{"sense inoise", "inoise In gnd a density=1p\nresistor R1 a gnd 1k\ncccs F1 b gnd sense=^In gain=2", "cannot be sensed"},
 
 		// Hints for the usual slips.
 		{"meg lower case", "resistor R1 a gnd 1^meg", "M is mega and m is milli (SI); did you mean 1M?"},
@@ -171,6 +188,48 @@ func TestParseErrors(t *testing.T) {
 	}
 }
 
+func TestParseNoise(t *testing.T) {
+	text := `# noise options and sources (invented values)
+opamp    U1 a b c en=4nV/√Hz fce=10Hz in=1fA/rtHz fci=100
+resistor RL c gnd 10k noise=off
+resistor R1 c b 1k noise=on
+vnoise   Vn a gnd density=2n fc=1k
+inoise   Ia gnd a density=3p
+inoise   Id gnd b shot=1u
+inoise   Ig gnd b thermal=1m
+`
+	c, err := Parse(text)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, want := range map[string]Noise{
+		"U1": {V: 4e-9, VCorner: 10, I: 1e-15, ICorner: 100},
+		"RL": {Off: true},
+		"R1": {},
+		"Vn": {V: 2e-9, VCorner: 1e3},
+		"Ia": {I: 3e-12},
+		"Id": {Shot: 1e-6},
+		"Ig": {Thermal: 1e-3},
+	} {
+		p, _ := c.Part(name)
+		if p.Noise != want {
+			t.Errorf("%s: noise %+v, want %+v", name, p.Noise, want)
+		}
+	}
+	if vn, _ := c.Part("Vn"); vn.Kind != VNoise || !vn.Kind.VoltageOutput() || vn.Kind.Controlled() {
+		t.Errorf("vnoise kind %v", vn.Kind)
+	}
+	if in, _ := c.Part("Ia"); in.Kind != INoise || in.Kind.String() != "inoise" {
+		t.Errorf("inoise kind %v", in.Kind)
+	}
+	if got := strings.Join(c.References(), " "); got != "U1" {
+		t.Errorf("References = %q: noise sources are not references", got)
+	}
+	if got := strings.Join(c.Sources(), " "); got != "" {
+		t.Errorf("Sources = %q: noise sources are not a gain's input", got)
+	}
+}
+
 func TestParseErrorLimit(t *testing.T) {
 	junk := strings.Repeat("bogus line\n", 10000)
 	_, err := Parse(junk)
@@ -195,6 +254,8 @@ func FuzzParse(f *testing.F) {
 		"mos M1 d g s id=200u vov=0.25 lambda=0.08 cgs=40f cgd=5f gmb=0.3m b=sub gamma=1",
 		"mos M1 d g s gm=1m ro=50k\nmos M2 d d gnd id=1u\nmos M3 d g s ID=1m bta=2",
 		"opamp U1 a b out a0=100dB cid=2p ccm=5p\nvcvs E1 x gnd sense=a b gain=-6dB\nresistor R1 a gnd 1MEG",
+		"resistor RL out gnd 10k noise=off\nvnoise Vn a b density=4nV/√Hz fc=10\ninoise Id gnd a shot=1u",
+		"opamp U1 a b c en=4n fce=10 in=1f fci=100",
 	} {
 		f.Add(s)
 	}

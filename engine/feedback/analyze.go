@@ -119,6 +119,10 @@ type Point struct {
 	// solved, when Analyzer.Condition is set (else 0): expect relative
 	// errors of about Cond·2⁻⁵³.
 	Cond float64
+	// Adjoint is the adjoint solution z, Mᵀz = d, of the full circuit at
+	// F for the read-out d = Analyzer.Adjoint (nil when not asked): the
+	// output's response to any right-hand side b is zᵀb.
+	Adjoint []complex128
 }
 
 // Analyzer analyzes one circuit for one reference element, a set of ports
@@ -127,9 +131,11 @@ type Point struct {
 type Analyzer struct {
 	C   *circuit.Circuit
 	Sys *mna.System
-	// Ref is the part index of the reference element.
+	// Ref is the part index of the reference element, −1 when there is
+	// none: then Blackman's terms, the return ratio and G₀, G∞, G are not
+	// defined, and the results hold the direct solution only.
 	Ref   int
-	ref   int // index in Sys.Controls
+	ref   int // index in Sys.Controls, −1 without a reference
 	Ports []Port
 	Gain  *Gain
 	// Condition asks At to estimate the condition of every system it
@@ -140,6 +146,13 @@ type Analyzer struct {
 	// that differences nearby results (a sensitivity) asks for more, so
 	// that every value is refined alike.
 	Tol float64
+	// Adjoint, when set, is a read-out d of an output from the unknowns
+	// (y = dᵀx): At then also solves the adjoint system Mᵀz = d of the
+	// full circuit with the factorization it makes anyway, into
+	// Point.Adjoint. One such solve gives the transfer from every source
+	// of the circuit to the output (Rohrer, Nagel, Meyer, Weber, IEEE
+	// J. Solid-State Circuits 6(4), 1971 [memory]); package noise uses it.
+	Adjoint []mna.Term
 
 	slots map[string]*slot
 	used  []*slot      // factored during the current At
@@ -207,24 +220,18 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	if n := len(c.Nodes) - 1; n > MaxNodes {
 		return nil, fmt.Errorf("the circuit has %d nodes; zport analyzes up to %d so the page stays responsive", n, MaxNodes)
 	}
-	p, ok := c.Part(reference)
-	if !ok {
-		if reference == "" {
-			return nil, fmt.Errorf("no reference element given (%s)", candidates(c))
+	a := &Analyzer{C: c, Sys: mna.New(c), Ports: ports, Gain: gain, slots: map[string]*slot{}, Ref: -1, ref: -1}
+	if reference != "" {
+		i, ok := c.PartIndex(reference)
+		if !ok {
+			return nil, fmt.Errorf("reference %s: no part of that name (%s)", value.Quote(reference), candidates(c))
 		}
-		return nil, fmt.Errorf("reference %s: no part of that name (%s)", value.Quote(reference), candidates(c))
-	}
-	if !p.Kind.Controlled() {
-		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source, an opamp or a transistor (%s)", reference, p.Kind, candidates(c))
-	}
-	sys := mna.New(c)
-	a := &Analyzer{C: c, Sys: sys, Ports: ports, Gain: gain, slots: map[string]*slot{}}
-	for i := range c.Parts {
-		if c.Parts[i].Name == reference {
-			a.Ref = i
+		if k := c.Parts[i].Kind; !k.Controlled() {
+			return nil, fmt.Errorf("reference %s is a %s; the reference must be a controlled source, an opamp or a transistor (%s)", value.Quote(reference), k, candidates(c))
 		}
+		a.Ref, a.ref = i, a.Sys.ControlOf(i)
 	}
-	a.ref = sys.ControlOf(a.Ref)
+	sys := a.Sys
 	for i := range a.Ports {
 		p := &a.Ports[i]
 		p.Drivers = drivers(c, p.A, p.B)
@@ -238,7 +245,9 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 		}
 	}
 	a.r = make([]complex128, sys.N+1)
-	mna.Scatter(a.r, sys.Controls[a.ref].R)
+	if a.ref >= 0 {
+		mna.Scatter(a.r, sys.Controls[a.ref].R)
+	}
 	a.buf = make([]complex128, sys.N+1)
 	a.prec = mna.NewPrecise(sys)
 	a.fns = make([]mna.Functional, readPort+len(a.Ports))
@@ -270,8 +279,9 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 }
 
 // heldBy returns the ideal voltage sources on a path from node pa to node
-// pb, when there is one: vsources (other than the port's drivers), vcvs
-// outputs and opamp outputs without ro, and with dc the inductors. A
+// pb, when there is one: vsources (other than the port's drivers), vnoise
+// sources (0 V outside the noise analysis), vcvs outputs and opamp outputs
+// without ro, and with dc the inductors. A
 // current injected into such a port flows through the path and changes no
 // other equation — unless a current-controlled source senses a part on the
 // path, in which case there is no such rule and heldBy returns nil.
@@ -294,7 +304,7 @@ func heldBy(c *circuit.Circuit, pa, pb int, drivers []int, dc bool) []string {
 	for i, p := range c.Parts {
 		switch {
 		case skip[i]:
-		case p.Kind == circuit.VSource || p.Kind == circuit.VCVS || dc && p.Kind == circuit.Inductor:
+		case p.Kind == circuit.VSource || p.Kind == circuit.VNoise || p.Kind == circuit.VCVS || dc && p.Kind == circuit.Inductor:
 			edges = append(edges, edge{p.Nodes[0], p.Nodes[1], i})
 		case p.Kind == circuit.OpAmp && p.Amp.Ro == 0:
 			edges = append(edges, edge{p.Nodes[2], circuit.Gnd, i})
@@ -366,6 +376,9 @@ func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
 // setFrequency prepares the bounds' per-frequency state.
 func (a *Analyzer) setFrequency(f float64) {
 	a.prec.At(f)
+	if a.ref < 0 {
+		return
+	}
 	a.fns[readCtl] = a.prec.Control(a.fns[readCtl][:0], a.ref)
 	a.k = a.prec.Gain(a.ref)
 	a.kAbs = cmplx.Abs(a.k.Complex128())
@@ -408,8 +421,15 @@ var (
 	readIDs2 = [...]int{readOut, readCtl}
 )
 
+// ErrNoReference is ReturnRatio's error for an analyzer without a
+// reference element.
+var ErrNoReference = errors.New("no reference element: the return ratio needs a controlled source, an opamp or a transistor as reference")
+
 // ReturnRatio returns T at f with every independent source zeroed.
 func (a *Analyzer) ReturnRatio(f float64) (complex128, error) {
+	if a.ref < 0 {
+		return cmplx.NaN(), ErrNoReference
+	}
 	cfg := mna.Config{F: f, Ref: a.ref}
 	s, err := a.factor("base0", cfg)
 	if !a.usable(s, err) {
@@ -440,6 +460,12 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	a.setFrequency(f)
 	cfgK := mna.Config{F: f, Ref: a.ref, RefGain: true}
 	baseK, errK := a.factor("baseK", cfgK)
+	if a.ref < 0 {
+		if !a.usable(baseK, errK) {
+			return Point{}, a.explain(errK, cfgK, "")
+		}
+		return a.direct(pt, baseK, note), nil
+	}
 	cfg0 := mna.Config{F: f, Ref: a.ref}
 	base0, err0 := a.factor("base0", cfg0)
 	ok0 := a.usable(base0, err0)
@@ -513,13 +539,110 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	for pi := range a.Ports {
 		pt.Ports = append(pt.Ports, a.port(pi, f, base0, ok0, baseK, T, closed, note))
 	}
-	a.noteDigits(&pt, note)
+	if a.Adjoint != nil && errK == nil {
+		pt.Adjoint = make([]complex128, a.Sys.N)
+		a.solveAdjoint(baseK, pt.Adjoint)
+	}
+	a.finish(&pt, note)
+	return pt, nil
+}
+
+// finish notes the digits the results keep and, when asked, the
+// condition of the systems solved at this point.
+func (a *Analyzer) finish(pt *Point, note func(string, ...any)) {
+	a.noteDigits(pt, note)
 	if a.Condition {
 		for _, s := range a.used {
 			pt.Cond = math.Max(pt.Cond, s.lu.Cond())
 		}
 	}
-	return pt, nil
+}
+
+// NoReferenceNote says what an analysis without a reference element leaves
+// out; a response carries it once, not per frequency.
+const NoReferenceNote = "no reference element: Blackman’s terms, the return ratio, the margins and the asymptotic gain terms need a controlled source, an opamp or a transistor as reference; impedances and gain are those of the direct nodal solution"
+
+// direct completes pt from the full circuit alone, for an analyzer without
+// a reference: every port's direct impedance and the direct gain, each
+// with its bound.
+func (a *Analyzer) direct(pt Point, baseK *slot, note func(string, ...any)) Point {
+	f := pt.F
+	if a.Gain != nil {
+		gr := &GainResult{G0: nan, GInf: nan, G: nan, GDirect: nan, Agreement: math.NaN(),
+			Err: GainErrors{math.NaN(), math.NaN(), math.NaN(), math.NaN()}}
+		gr.Sens = gr.Err
+		b := a.buf
+		a.sourceVector(b[:a.Sys.N])
+		a.eval(baseK, b, readIDs[1:2], a.balls[:1], nil)
+		GD := a.balls[0]
+		gr.GDirect, gr.Err.GDirect, gr.Sens.GDirect = GD.v, GD.e, GD.s
+		pt.Gain = gr
+	}
+	for pi := range a.Ports {
+		p := &a.Ports[pi]
+		s, ok := baseK, true
+		if len(p.Drivers) > 0 {
+			cfg := mna.Config{F: f, Ref: -1, RefGain: true, Removed: p.Drivers}
+			var err error
+			s, err = a.factor(p.key("openK"), cfg)
+			if ok = a.usable(s, err); !ok {
+				if valuesFailed(err) {
+					note("%s: port %s: the direct impedance cannot be computed: %v", hz(f), p.Name, a.explain(err, cfg, "with the port open"))
+				} else {
+					note("%s: port %s: with the port open the circuit has no solution, so the direct impedance is infinite", hz(f), p.Name)
+				}
+			}
+		}
+		ZD := nanBall
+		if ok {
+			a.portVector(p, a.buf)
+			ZD = a.read(s, a.buf, readPort+pi, nil)
+		}
+		pt.Ports = append(pt.Ports, portOf(nanBall, nanRatio, nanRatio, nanBall, ZD, nanBall))
+	}
+	if a.Adjoint != nil && baseK.err == nil {
+		pt.Adjoint = make([]complex128, a.Sys.N)
+		a.solveAdjoint(baseK, pt.Adjoint)
+	}
+	a.finish(&pt, note)
+	return pt
+}
+
+// portVector writes a unit test current into port p's A node, out of its
+// B node.
+func (a *Analyzer) portVector(p *Port, b []complex128) {
+	clear(b)
+	if v := mna.NodeVar(p.A); v >= 0 {
+		b[v] = 1
+	}
+	if v := mna.NodeVar(p.B); v >= 0 {
+		b[v] = -1
+	}
+}
+
+// solveAdjoint solves the adjoint system of the factored full circuit s for
+// the read-out a.Adjoint into z (length Sys.N).
+func (a *Analyzer) solveAdjoint(s *slot, z []complex128) {
+	d := a.sd
+	mna.Scatter(d, a.Adjoint)
+	s.lu.SolveTransTo(z, d[:a.Sys.N])
+}
+
+// AdjointAt solves the adjoint system Mᵀz = d of the full circuit at
+// f > 0 for the read-out d = a.Adjoint (which must be set) into z (length
+// Sys.N). Within one frequency it reuses the factorization At made, and
+// the structure of earlier ones.
+func (a *Analyzer) AdjointAt(f float64, z []complex128) error {
+	if a.Adjoint == nil {
+		panic("feedback: AdjointAt without an Adjoint read-out")
+	}
+	cfg := mna.Config{F: f, Ref: a.ref, RefGain: true}
+	s, err := a.factor("baseK", cfg)
+	if err != nil {
+		return a.explain(err, cfg, "")
+	}
+	a.solveAdjoint(s, z)
+	return nil
 }
 
 // gainModel returns the asymptotic gain model's g and g∞ from g₀, the
@@ -603,13 +726,7 @@ func zeroWithin(b ball) bool { return b.ok() && !math.IsInf(b.e, 1) && b.covers(
 func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T ratio, closed bool, note func(string, ...any)) PortResult {
 	p := &a.Ports[pi]
 	bp := a.buf
-	clear(bp)
-	if v := mna.NodeVar(p.A); v >= 0 {
-		bp[v] = 1
-	}
-	if v := mna.NodeVar(p.B); v >= 0 {
-		bp[v] = -1
-	}
+	a.portVector(p, bp)
 	id := readPort + pi
 	Z0, Z, ZD, Y := nanBall, nanBall, nanBall, nanBall
 	Ts, To := nanRatio, nanRatio
@@ -864,18 +981,31 @@ func certainDigits(v complex128, e float64) int {
 
 func (a *Analyzer) sourceVector(b []complex128) {
 	clear(b)
+	for _, t := range a.InputRHS() {
+		b[t.I] += complex(t.V, 0)
+	}
+}
+
+// InputRHS is the gain's source as a unit right-hand side of the
+// equations: 1 in its branch row for a vsource; for an isource 1 into its
+// TO node and −1 at its FROM node. It is nil without a gain.
+func (a *Analyzer) InputRHS() []mna.Term {
 	g := a.Gain
+	if g == nil {
+		return nil
+	}
 	src := a.C.Parts[g.Source]
 	if src.Kind == circuit.VSource {
-		b[a.Sys.Branch[g.Source]] = 1
-		return
+		return []mna.Term{{I: a.Sys.Branch[g.Source], V: 1}}
 	}
+	var t []mna.Term
 	if v := mna.NodeVar(src.Nodes[1]); v >= 0 {
-		b[v] += 1
+		t = append(t, mna.Term{I: v, V: 1})
 	}
 	if v := mna.NodeVar(src.Nodes[0]); v >= 0 {
-		b[v] -= 1
+		t = append(t, mna.Term{I: v, V: -1})
 	}
+	return t
 }
 
 // hz writes a frequency for notes.

@@ -68,7 +68,7 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 	uf := newUF(len(c.Nodes))
 	for i, p := range c.Parts {
 		switch p.Kind {
-		case circuit.ISource, circuit.CCCS:
+		case circuit.ISource, circuit.INoise, circuit.CCCS:
 			continue
 		case circuit.VCCS:
 			// A transconductance whose control includes its own output
@@ -147,7 +147,7 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 		switch {
 		case p.Kind == circuit.VSource && removed[i]:
 			continue
-		case p.Kind == circuit.VSource || p.Kind == circuit.VCVS || p.Kind == circuit.CCVS || p.Kind == circuit.Inductor && dc:
+		case p.Kind == circuit.VSource || p.Kind == circuit.VNoise || p.Kind == circuit.VCVS || p.Kind == circuit.CCVS || p.Kind == circuit.Inductor && dc:
 			edges = append(edges, edge{p.Nodes[0], p.Nodes[1], p.Name})
 		case p.Kind == circuit.OpAmp && p.Amp.Ro == 0:
 			edges = append(edges, edge{p.Nodes[2], circuit.Gnd, p.Name + " (output)"})

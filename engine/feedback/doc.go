@@ -34,6 +34,16 @@
 // there with the phase unwrapped continuously from the lowest frequency, the
 // −180° crossings with their gain margins, and a plain verdict.
 //
+// Without a reference element (New with ""), an Analyzer gives the direct
+// solution alone: every port's Z direct and the gain's G direct, with the
+// other terms NaN and ReturnRatio an error — what a passive network has.
+//
+// An Analyzer asked for an adjoint read-out (Analyzer.Adjoint, an output
+// y = dᵀx) also solves Mᵀz = d at every point, with the full circuit's
+// factorization the point makes anyway: y's response to any right-hand
+// side b is then zᵀb, the transfer from every source at once (package
+// zport/engine/noise).
+//
 // Quantities that are not finite at a frequency (an infinite Z₀ when the
 // port has no path at zero gain, a zero 1 + T open) are NaN in the results
 // and explained in the notes; callers show them as absent, never as NaN.

@@ -44,10 +44,15 @@ type System struct {
 	// base behind rb), indexed from len(C.Nodes)-1.
 	Internal []string
 
+	inner    []int // part index → its internal node's unknown, or −1
 	g, c     []entry
 	Controls []Control
 	ctrlOf   []int // part index → index in Controls, or −1
 }
+
+// InternalVar returns the unknown of part i's internal node (an opamp's
+// node behind ro, a bjt's base behind rb), or −1 when it has none.
+func (s *System) InternalVar(i int) int { return s.inner[i] }
 
 // NodeVar returns the unknown of circuit node n, or −1 for gnd.
 func NodeVar(n int) int { return n - 1 }
@@ -62,6 +67,7 @@ func New(c *circuit.Circuit) *System {
 	}
 	// Internal nodes first, so node unknowns come before branch currents.
 	inner := make([]int, len(c.Parts))
+	s.inner = inner
 	for i, p := range c.Parts {
 		inner[i] = -1
 		if p.Kind == circuit.OpAmp && p.Amp.Ro > 0 {
@@ -99,10 +105,11 @@ func New(c *circuit.Circuit) *System {
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
 			s.add(&s.c, br, br, -p.Value)
-		case circuit.VSource:
+		case circuit.VSource, circuit.VNoise:
+			// A noise source is 0 V here; package noise drives its branch.
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
-		case circuit.ISource:
+		case circuit.ISource, circuit.INoise:
 			// Only in the right-hand side.
 		case circuit.VCVS, circuit.CCVS:
 			s.branchKCL(a, b, br)
@@ -359,4 +366,13 @@ func Scatter(dst []complex128, t []Term) {
 	for _, e := range t {
 		dst[e.I] += complex(e.V, 0)
 	}
+}
+
+// Dot returns tᵀx for a sparse t.
+func Dot(t []Term, x []complex128) complex128 {
+	var s complex128
+	for _, e := range t {
+		s += complex(e.V, 0) * x[e.I]
+	}
+	return s
 }

@@ -33,7 +33,7 @@ var capload = &Topology{
 		{Name: "R1", Meaning: "gain resistor, − input to gnd (empty: follower)", Default: "10k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
 		{Name: "Cf", Meaning: "in-loop feedback capacitor, pin to − input (empty: feedback at the pin through Rf)", Default: "1n", Min: 1e-15, Max: 1e-2, Optional: true, Group: "network"},
 		{Name: "Riso", Note: ", pin to load (empty: none)", Default: "50", Min: 1e-3, Max: 1e6, Optional: true, Group: "network"},
-	}, append(opmAmpParams("200k", "5M", "30M", "1M", "1G", "50"), []Param{
+	}, append(append(opmAmpParams("200k", "5M", "30M", "1M", "1G", "50"), opmNoiseParams("7n", "10", "1p", "200")...), []Param{
 		{Name: "RL", Note: " (empty: none)", Default: "10k", Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
 		{Name: "CL", Default: "10n", Min: 1e-15, Max: 1, Group: "load"},
 	}...)...),

@@ -118,9 +118,13 @@ func degCircuit(v Values) string {
 		b.WriteString("# gate drive: Vin on the gate (zeroed, it AC-grounds the gate)\n")
 		b.WriteString("vsource  Vin g gnd 1\n")
 	}
-	b.WriteString("# M1 small-signal model: gm·vgs from drain to source, rO across them\n")
+	b.WriteString("# M1 small-signal model: gm·vgs from drain to source, rO across them (the model's, noiseless)\n")
 	fmt.Fprintf(&b, "vccs     Gm1 d s sense=%s,s gm=%s\n", g, value.Exact(v["gm"]))
-	fmt.Fprintf(&b, "resistor ro1 d s %s\n", value.Exact(v["ro"]))
+	fmt.Fprintf(&b, "resistor ro1 d s %s\n", noiseless(v["ro"]))
+	if v.Has("gamma") {
+		b.WriteString("# M1's channel noise, drain to source: 4kT·γ·gm, the thermal noise of the conductance γ·gm\n")
+		fmt.Fprintf(&b, "inoise   Ind1 d s thermal=%s\n", value.Exact(v["gamma"]*v["gm"]))
+	}
 	if v.Has("Cgs") {
 		fmt.Fprintf(&b, "capacitor Cgs1 %s s %s\n", g, value.Exact(v["Cgs"]))
 	}
@@ -204,6 +208,8 @@ func init() {
 			{Name: "Rg", Note: ", Vin to the gate (empty: Vin drives the gate directly)", Default: "", Min: 1e-3, Max: 1e12, Optional: true, Group: "source"},
 			{Name: "RL", Note: ", drain to AC ground (what else the drain node sees)", Default: "1M", Min: 1e-3, Max: 1e12, Group: "load"},
 			{Name: "CL", Note: " at the drain (empty: none)", Default: "", Min: 1e-18, Max: 1, Optional: true, Group: "load"},
+			{Name: "gamma", Note: ": drain noise current 4kT·γ·gm (2/3 for a long channel, Razavi ch. 7 [memory]; invented here; empty: none)",
+				Default: "0.667", Min: 0, Max: 10, Optional: true, Group: "noise"},
 		},
 		Reference: "Gm1",
 		Ports:     []PortDef{{Name: "out", Title: "drain to gnd: the output resistance", A: "d", B: "gnd"}},

@@ -51,11 +51,14 @@ var cfNaN = cmplx.NaN()
 
 // cfAmp is the op-amp model every op-amp stage uses, read from Values; a
 // zero gbw, p2, rid, rcm, cid or ccm means absent.
-type cfAmp struct{ a0, gbw, p2, rid, rcm, ro, cid, ccm float64 }
+type cfAmp struct {
+	a0, gbw, p2, rid, rcm, ro, cid, ccm float64
+	noise                               []string // the line's noise options
+}
 
 func cfAmpOf(v Values) cfAmp {
 	return cfAmp{a0: v["a0"], gbw: v.Or("gbw", 0), p2: v.Or("p2", 0), rid: v.Or("rid", 0), rcm: v.Or("rcm", 0), ro: v["ro"],
-		cid: v.Or("cid", 0), ccm: v.Or("ccm", 0)}
+		cid: v.Or("cid", 0), ccm: v.Or("ccm", 0), noise: opmNoiseOptions(v)}
 }
 
 // gain is the open-loop gain A(s) = a0/((1 + s/ω1)(1 + s/ω2)) with
@@ -113,6 +116,7 @@ func (m cfAmp) line(name, plus, minus, out string) string {
 	if m.ccm > 0 {
 		opts = append(opts, "ccm="+value.Exact(m.ccm))
 	}
+	opts = append(opts, m.noise...)
 	return fmt.Sprintf("opamp    %s %s %s %s %s\n", name, plus, minus, out, strings.Join(opts, " "))
 }
 
@@ -142,10 +146,10 @@ func cfLoadParams(rl string, rlOptional bool, cl string) []Param {
 func cfLoadLines(v Values, node string) string {
 	var b strings.Builder
 	if v.Has("RL") || v.Has("CL") {
-		b.WriteString("# load\n")
+		b.WriteString("# load (RL noiseless: it is not part of the design)\n")
 	}
 	if v.Has("RL") {
-		fmt.Fprintf(&b, "resistor RL %s gnd %s\n", node, value.Exact(v["RL"]))
+		fmt.Fprintf(&b, "resistor RL %s gnd %s\n", node, noiseless(v["RL"]))
 	}
 	if v.Has("CL") {
 		fmt.Fprintf(&b, "capacitor CL %s gnd %s\n", node, value.Exact(v["CL"]))
@@ -328,6 +332,7 @@ func init() {
 		{Name: "Rs2", Note: " (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("200k", "1M", "2M", "50")...)
+	params = append(params, opmNoiseParams("12n", "20", "0.4p", "100")...)
 	params = append(params, cfLoadParams("10k", false, "100p")...)
 	register(&Topology{
 		ID:    "difference",

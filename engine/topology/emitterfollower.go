@@ -99,7 +99,7 @@ func efCircuit(v Values) string {
 		w.part("resistor", "RE", "e", "gnd", value.Exact(v["RE"]))
 	}
 	w.comment("Load: RL ∥ CL")
-	w.part("resistor", "RL", "e", "gnd", value.Exact(v["RL"]))
+	w.part("resistor", "RL", "e", "gnd", noiseless(v["RL"]))
 	if v.Has("CL") {
 		w.part("capacitor", "CL", "e", "gnd", value.Exact(v["CL"]))
 	}

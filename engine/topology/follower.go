@@ -21,7 +21,7 @@ var follower = &Topology{
 	Params: append([]Param{
 		opmRs("10k"),
 		{Name: "Riso", Note: ", output pin to load (empty: none)", Default: "47", Min: 1e-3, Max: 1e7, Optional: true, Group: "network"},
-	}, append(opmAmpParams("150k", "3M", "20M", "1M", "1G", "50"), opmLoad("10k", "1n")...)...),
+	}, append(append(opmAmpParams("150k", "3M", "20M", "1M", "1G", "50"), opmNoiseParams("15n", "50", "20f", "")...), opmLoad("10k", "1n")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
 		{Name: "in", Title: "input, as the source Vin sees it (Rs included)", A: "src", B: "gnd"},

@@ -42,6 +42,14 @@ var glossary = []Term{
 	{ID: "ccm", Symbol: "c_cm", Label: "common-mode input capacitance, each input to gnd", Unit: "F"},
 	{ID: "Cin", Symbol: "C_in", Label: "op-amp input capacitance", Unit: "F"},
 
+	// Noise: the opamp options en=, fce=, in=, fci=, and the stages' own.
+	{ID: "en", Symbol: "e_n", Label: "op-amp input voltage noise density", Unit: "V/√Hz"},
+	{ID: "fce", Symbol: "f_ce", Label: "1/f corner of eₙ", Unit: "Hz"},
+	{ID: "in", Symbol: "i_n", Label: "op-amp input current noise density, at each input", Unit: "A/√Hz"},
+	{ID: "fci", Symbol: "f_ci", Label: "1/f corner of iₙ", Unit: "Hz"},
+	{ID: "Ipd", Symbol: "I_pd", Label: "sensor DC current, signal and dark, whose shot noise √(2q·I) enters the summing node", Unit: "A"},
+	{ID: "gamma", Symbol: "γ", Label: "channel noise coefficient"},
+
 	// Sources, sensors and loads.
 	{ID: "Rs", Symbol: "R_s", Label: "source resistance", Unit: "Ω"},
 	{ID: "Rs1", Symbol: "R_s1", Label: "source resistance of V1", Unit: "Ω"},

@@ -163,6 +163,7 @@ func init() {
 		{Name: "Rs", Note: ", in series with R1 (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("100k", "1M", "", "50")...)
+	params = append(params, opmNoiseParams("20n", "10", "0.5p", "100")...)
 	params = append(params, cfLoadParams("1k", true, "")...)
 	register(&Topology{
 		ID:    "howland",

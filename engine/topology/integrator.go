@@ -131,6 +131,7 @@ func init() {
 		{Name: "Rs", Note: " (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("100k", "1M", "1T", "100")...)
+	params = append(params, opmNoiseParams("15n", "50", "5f", "")...)
 	params = append(params, cfLoadParams("10k", false, "")...)
 	register(&Topology{
 		ID:    "integrator",

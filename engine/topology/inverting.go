@@ -49,7 +49,7 @@ var inverting = &Topology{
 		{Name: "R1", Meaning: "input resistor, source to summing node", Default: "10k", Min: 1, Max: 1e9, Group: "network"},
 		{Name: "R2", Meaning: "feedback resistor, output to summing node", Default: "47k", Min: 1, Max: 1e10, Group: "network"},
 		{Name: "Rp", Note: ", + input to gnd (empty: + input grounded)", Default: "8.87k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
-	}, append(opmAmpParams("200k", "1M", "8M", "2M", "1G", "75"), opmLoad("10k", "100p")...)...),
+	}, append(append(opmAmpParams("200k", "1M", "8M", "2M", "1G", "75"), opmNoiseParams("10n", "10", "0.5p", "100")...), opmLoad("10k", "100p")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
 		{Name: "in", Title: "input, as the source Vin sees it (Rs included)", A: "src", B: "gnd"},
@@ -341,6 +341,7 @@ func (b *opmText) opamp(v Values, plus, minus, out string) {
 			opts = append(opts, k+"="+value.Exact(v[k]))
 		}
 	}
+	opts = append(opts, opmNoiseOptions(v)...)
 	fmt.Fprintf(b, "%-9s %-5s %-5s %-5s %-5s %s\n", "opamp", "U1", plus, minus, out, strings.Join(opts, " "))
 }
 
@@ -349,9 +350,9 @@ func (b *opmText) load(v Values, node string) {
 	if !v.Has("RL") && !v.Has("CL") {
 		return
 	}
-	b.comment("Load: RL ∥ CL")
+	b.comment("Load: RL ∥ CL (RL noiseless: the load is not part of the design)")
 	if v.Has("RL") {
-		b.part("resistor", "RL", node, "gnd", value.Exact(v["RL"]))
+		b.part("resistor", "RL", node, "gnd", noiseless(v["RL"]))
 	}
 	if v.Has("CL") {
 		b.part("capacitor", "CL", node, "gnd", value.Exact(v["CL"]))

@@ -21,7 +21,7 @@ var noninverting = &Topology{
 		opmRs("10k"),
 		{Name: "R1", Meaning: "gain resistor, − input to gnd", Default: "2k", Min: 1e-3, Max: 1e10, Group: "network"},
 		{Name: "R2", Meaning: "feedback resistor, output to − input", Default: "18k", Min: 1e-3, Max: 1e10, Group: "network"},
-	}, append(opmAmpParams("100k", "1M", "10M", "1M", "500M", "100"), opmLoad("2k", "470p")...)...),
+	}, append(append(opmAmpParams("100k", "1M", "10M", "1M", "500M", "100"), opmNoiseParams("8n", "5", "0.8p", "50")...), opmLoad("2k", "470p")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
 		{Name: "in", Title: "input, as the source Vin sees it (Rs included)", A: "src", B: "gnd"},

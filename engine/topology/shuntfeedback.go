@@ -66,12 +66,15 @@ func sfCircuit(v Values) string {
 	w.WriteString("\n# source\n")
 	w.WriteString("vsource  Vin in gnd 1\n")
 	fmt.Fprintf(&w, "resistor Rs in b %s\n", value.Exact(v["Rs"]))
-	w.WriteString("# Q1 small-signal model (emitter at ground)\n")
+	w.WriteString("# Q1 small-signal model (emitter at ground); rπ and ro are the model's, noiseless\n")
 	fmt.Fprintf(&w, "vccs     Gm1 c gnd sense=b,gnd gm=%s\n", value.Exact(b.gm))
-	fmt.Fprintf(&w, "resistor rpi1 b gnd %s\n", value.Exact(b.rpi))
+	fmt.Fprintf(&w, "resistor rpi1 b gnd %s\n", noiseless(b.rpi))
 	if b.ro > 0 {
-		fmt.Fprintf(&w, "resistor ro1 c gnd %s\n", value.Exact(b.ro))
+		fmt.Fprintf(&w, "resistor ro1 c gnd %s\n", noiseless(b.ro))
 	}
+	w.WriteString("# Q1's noise: shot noise of the collector current, 2q·IC, and of the base current, 2q·IC/β\n")
+	fmt.Fprintf(&w, "inoise   Inc1 c gnd shot=%s\n", value.Exact(v["IC"]))
+	fmt.Fprintf(&w, "inoise   Inb1 b gnd shot=%s\n", value.Exact(v["IC"]/v["beta"]))
 	if v.Has("Cpi") {
 		fmt.Fprintf(&w, "capacitor Cpi1 b gnd %s\n", value.Exact(v["Cpi"]))
 	}

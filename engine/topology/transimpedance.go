@@ -37,7 +37,8 @@ var transimpedance = &Topology{
 		{Name: "Cin", Note: ", − input to gnd, besides the model's ccm and cid: the op amp's, or board and wiring (empty: none)", Default: "4p", Min: 1e-15, Max: 1e-6, Optional: true, Group: "amplifier"},
 		{Name: "Rf", Meaning: "feedback (transimpedance) resistor", Default: "1M", Min: 1, Max: 1e12, Group: "network"},
 		{Name: "Cf", Meaning: "feedback capacitor across Rf (empty: none)", Default: "1p", Min: 1e-16, Max: 1e-3, Optional: true, Group: "network"},
-	}, append(opmAmpParams("1M", "10M", "60M", "1T", "1T", "50"), opmLoad("10k", "50p")...)...),
+	}, append(append(append(opmAmpParams("1M", "10M", "60M", "1T", "1T", "50"), opmNoiseParams("8n", "100", "1f", "")...),
+		Param{Name: "Ipd", Note: " (invented default; empty: none)", Default: "100n", Min: 0, Max: 1, Optional: true, Group: "noise"}), opmLoad("10k", "50p")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
 		{Name: "in", Title: "summing node, as the sensor sees it (the sensor's own Cd, Rsh included)", A: "sum", B: "gnd"},
@@ -65,6 +66,10 @@ func transimpedanceCircuit(v Values) string {
 	}
 	if v.Has("Rsh") {
 		b.part("resistor", "Rsh", "sum", "gnd", value.Exact(v["Rsh"]))
+	}
+	if v.Has("Ipd") {
+		b.comment("The sensor's shot noise: √(2q·Ipd) of its DC current (signal and dark)")
+		b.part("inoise", "Ipd", "gnd", "sum", "shot="+value.Exact(v["Ipd"]))
 	}
 	if v.Has("Cin") {
 		b.comment("Op-amp input capacitance at the − input")

@@ -8,7 +8,8 @@
 //	2200        plain decimal
 //	2.2e3       decimal with exponent
 //	2.2k        SI prefix: f p n u µ m k M G T
-//	2.2kΩ       prefix and unit symbol (Ω or ohm, F, H, V, A, S, Hz)
+//	2.2kΩ       prefix and unit symbol (Ω or ohm, F, H, V, A, S, Hz, and the
+//	            noise densities V/√Hz and A/√Hz, also written V/rtHz, A/rtHz)
 //	2k2  4K7    RKM: the multiplier letter stands for the decimal point
 //	2R2  R47    RKM with R marking the decimal point of a plain number
 //	4n7  1µ0    RKM with the other prefixes

@@ -49,11 +49,15 @@ var Units = map[string][]string{
 	"A":  {"A"},
 	"S":  {"S"},
 	"Hz": {"Hz"},
+	// Noise densities, as data sheets and the trade write them.
+	"V/√Hz": {"V/√Hz", "V/rtHz"},
+	"A/√Hz": {"A/√Hz", "A/rtHz"},
 }
 
 // Parse reads one value. unit names the unit symbol that may follow the
-// number ("Ω", "F", "H", "V", "A", "S", "Hz" or "" for a plain number); any
-// other trailing text is an error. The result is always finite.
+// number ("Ω", "F", "H", "V", "A", "S", "Hz", "V/√Hz", "A/√Hz" or "" for a
+// plain number); any other trailing text is an error. The result is always
+// finite.
 func Parse(text, unit string) (float64, error) {
 	fail := func(off int, format string, args ...any) (float64, error) {
 		return 0, &SyntaxError{Text: text, Offset: off, Msg: fmt.Sprintf(format, args...)}

@@ -34,6 +34,8 @@ func TestParse(t *testing.T) {
 		{"1mA", "A", 1e-3, "milliampere"},
 		{"2mS", "S", 2e-3, "millisiemens"},
 		{"10uH", "H", 10e-6, "microhenry"},
+		{"4nV/√Hz", "V/√Hz", 4e-9, "noise voltage density"},
+		{"1.5pA/rtHz", "A/√Hz", 1.5e-12, "noise current density, ASCII spelling (common practice)"},
 		{"4k7", "Ω", 4700, "RKM 4K7 = 4.7 kΩ (IEC 60062:2016)"},
 		{"4K7", "Ω", 4700, "RKM capital K as the standard writes it (IEC 60062:2016)"},
 		{"47K3", "Ω", 47300, "RKM 47K3 = 47.3 kΩ (IEC 60062:2016)"},

@@ -563,7 +563,7 @@
   // text and sets them, and the fields, to the form it fitted to the text.
   Editor.prototype.updatePickers = function (ins, form) {
     var refs = ins.references.map(function (r) { return [r.name, r.name + ' (' + r.kind + ', line ' + r.line + ')']; });
-    if (!refs.length) refs = [['', 'none: add a controlled source or an opamp']];
+    if (!refs.length) refs = [['', 'none: direct solution only (Blackman’s terms need a controlled source or an opamp)']];
     this.fillSelect(this.refSel, 'ref', refs, form.reference || '');
 
     var want = form.ports || [];

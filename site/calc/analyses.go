@@ -17,6 +17,7 @@ func init() {
 		&gain,
 		&loop,
 		&closedLoop,
+		&noiseAnalysis,
 		&designValues,
 		&devices,
 		&engineNotes,

@@ -183,14 +183,9 @@ func ComputeCircuit(req CircuitRequest) (out CircuitOutput) {
 		req.Reference, req.Ports, req.Gain, req.Offered = "", nil, nil, &Offered{}
 		req.Frequency, req.Sweep, req.Settings = circuitDefaults.Frequency, circuitDefaults.Sweep, nil
 	}
+	// A circuit without a controlled source has no reference (Fit leaves
+	// it empty): it gets the direct solution and its noise.
 	f := req.Form.Fit(ins, req.Offered)
-	if len(ins.References) == 0 {
-		f.Circuit, f.Fragment = "", nil
-		out.Form = &f
-		out.Output = &Output{Error: &api.ErrorBody{Param: "reference", Message: "the circuit has no controlled source (vcvs, vccs, ccvs, cccs), opamp or transistor (bjt, mos); " +
-			"Blackman’s formula needs one as its reference element"}}
-		return out
-	}
 	var refused []Refusal
 	if f.Fragment != nil {
 		f, refused = readLink(*f.Fragment, f, nil, c)

@@ -250,8 +250,10 @@ func TestComputeCircuit(t *testing.T) {
 		t.Errorf("hostile reference in a link: %+v", out.Output)
 	}
 
-	js := string(ComputeCircuitJSON([]byte(`{"circuit": "resistor R1 a gnd 1k\n", "frequency": "1", "offered": null}`)))
-	if !strings.Contains(js, `"errors":[]`) || !strings.Contains(js, `"param":"reference","message":"the circuit has no controlled source`) {
+	// A passive circuit has no reference: the direct solution, and a note.
+	js := string(ComputeCircuitJSON([]byte(`{"circuit": "resistor R1 a gnd 1k\nport p a gnd\n", "frequency": "1", "ports": ["p"], "offered": null}`)))
+	if !strings.Contains(js, `"errors":[]`) || strings.Contains(js, `"error"`) || !strings.Contains(js, `data-quantity=\"zDirect\" data-re=\"1000`) ||
+		!strings.Contains(js, "no reference element") {
 		t.Errorf("JSON answer %s", js)
 	}
 	if js := string(ComputeCircuitJSON([]byte(`{"circuit": 1}`))); !strings.Contains(js, "not valid") {

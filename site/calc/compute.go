@@ -108,6 +108,22 @@ func compute(f Form, parsed *circuit.Circuit) (out Output) {
 	return out
 }
 
+// Request is the engine request a calculator sends for f, a form with its
+// defaults filled in (as Output.Form has it): the base request and what
+// every analysis asks. A test that holds a page to the native engine
+// builds its request the same way.
+func (f Form) Request() (api.Request, *api.ErrorBody) {
+	var entry *api.CatalogEntry
+	if f.Topology != "" {
+		e, ok := api.LookupEntry(f.Topology)
+		if !ok {
+			return api.Request{}, &api.ErrorBody{Param: "topology", Message: fmt.Sprintf("no stage %q in the catalog", f.Topology)}
+		}
+		entry = &e
+	}
+	return f.ask(entry)
+}
+
 // ask turns the form into the engine's request: its own fields, then each
 // analysis's Ask; an error names the field or setting at fault.
 func (f Form) ask(entry *api.CatalogEntry) (api.Request, *api.ErrorBody) {

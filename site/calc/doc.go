@@ -8,9 +8,9 @@
 // # Analyses
 //
 // Everything a calculator shows is an Analysis, listed once in Analyses:
-// the port impedances, the gain, the loop and its margins, a stage's
-// design values, the engine's notes, a stage's generated circuit text, the
-// design aids. An analysis declares its key, its settings, how it asks the
+// the port impedances, the gain, the loop and its margins, the noise, a
+// stage's design values, the engine's notes, a stage's generated circuit
+// text, the design aids. An analysis declares its key, its settings, how it asks the
 // engine (Ask), and how it writes its section of the panel, its columns of
 // the CSV and its rows of the copied results. Adding one is writing one
 // file and adding it to the list; DEVELOPERS.md walks through it, and
@@ -106,6 +106,11 @@
 //	           bandwidth, lowerCorner (Hz); per natural frequency, with
 //	           data-pole (its index in the engine's poles): poleFrequency
 //	           (Hz), poleQ, poleZeta, pole (complex, rad/s), poleWeight
+//	noise      noiseOutput, noiseInput (densities at the spot frequency),
+//	           noiseRms, noiseRmsInput, noiseBandwidth, noiseTemperature,
+//	           noiseError (real); per source, with data-source,
+//	           contributorSpot, contributorRms, contributorShare (a
+//	           fraction, shown as a percentage)
 //	extras     extra, with data-name (real, in the extra's own unit)
 //
 // A comparison with the pins carries, on each number, data-compare (the

@@ -48,7 +48,7 @@ func CopyText(f *Form, entry *api.CatalogEntry, resp *api.Response, pins ...Pinn
 		}
 		c.compareCopy(&m)
 	}
-	m.Line("Small-signal linear analysis only (no slew, clipping, noise or large-signal behaviour); confirm on the bench.")
+	m.Line("Small-signal linear analysis only (no slew, clipping or large-signal behaviour; noise from the linear model's sources only); confirm on the bench.")
 	return m.String()
 }
 

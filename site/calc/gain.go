@@ -31,11 +31,19 @@ func gainSection(w *view.Writer, c *Context) {
 	}
 	w.Section(c.ID, "gain", title)
 	w.Open("p", "class", "explain")
-	w.Text("Asymptotic gain model, from ")
+	if r.Reference == "" {
+		w.Text("Direct nodal solution, from ")
+	} else {
+		w.Text("Asymptotic gain model, from ")
+	}
 	w.Elem("code", g.Source)
 	w.Text(" to ")
 	w.Elem("code", g.Output)
-	w.Text(" in " + g.Unit + ": g = g∞ · T/(1 + T) + g₀/(1 + T).")
+	if r.Reference == "" {
+		w.Text(" in " + g.Unit + ": without a reference element the asymptotic gain model’s terms are not defined.")
+	} else {
+		w.Text(" in " + g.Unit + ": g = g∞ · T/(1 + T) + g₀/(1 + T).")
+	}
 	w.Close("p")
 	w.Open("div", "class", "table-wrap")
 	w.Open("table", "class", "results gain-table")
@@ -109,17 +117,26 @@ func gainSection(w *view.Writer, c *Context) {
 		if unit != "V/V" {
 			mag = unit
 		}
+		traces := []plot.Trace{
+			{Name: "g", Class: "g", Values: view.Values(s.Gain.G)},
+			{Name: "g∞ (ideal)", Class: "ginf", Values: view.Values(s.Gain.GInf), Dashed: true},
+		}
+		direct := r.Reference == ""
+		if direct {
+			// No reference: the direct solution is all there is.
+			traces = []plot.Trace{{Name: "g direct", Class: "g", Values: view.Values(s.Gain.GDirect)}}
+		}
 		b := plot.Bode{
 			ID:      c.ID + "-plot-gain",
 			Title:   "Closed-loop gain " + g.Source + " → " + g.Output + " (" + unit + ")",
 			Freq:    s.Frequency,
 			MagUnit: mag,
-			Traces: append([]plot.Trace{
-				{Name: "g", Class: "g", Values: view.Values(s.Gain.G)},
-				{Name: "g∞ (ideal)", Class: "ginf", Values: view.Values(s.Gain.GInf), Dashed: true},
-			}, c.BodePins("g", func(r *api.Response) []*api.Complex {
-				if r.Sweep.Gain == nil {
+			Traces: append(traces, c.BodePins("g", func(r *api.Response) []*api.Complex {
+				switch {
+				case r.Sweep.Gain == nil:
 					return nil
+				case direct:
+					return r.Sweep.Gain.GDirect
 				}
 				return r.Sweep.Gain.G
 			})...),
@@ -186,10 +203,14 @@ func gainCompared(c *Context) []Compared {
 	if g == nil {
 		return nil
 	}
+	direct := c.Resp.Reference == "" // no reference: the direct solution
 	return []Compared{{ID: "g", Label: "g, " + g.Source + " → " + g.Output, Unit: g.Unit,
 		Complex: func(r *api.Response) *api.Complex {
-			if r.Gain == nil {
+			switch {
+			case r.Gain == nil:
 				return nil
+			case direct:
+				return r.Gain.GDirect
 			}
 			return r.Gain.G
 		}}}

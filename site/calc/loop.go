@@ -37,6 +37,9 @@ func verdictClass(v string) string {
 
 func loopSection(w *view.Writer, c *Context) {
 	r := c.Resp
+	if r.Reference == "" {
+		return // no reference element: no loop to show (a note says so)
+	}
 	w.Section(c.ID, "loop", "Loop")
 	w.Open("dl", "class", "kv")
 	w.KV("Return ratio T at "+view.Magnitude(r.Frequency, "Hz"), func() {
@@ -231,6 +234,9 @@ func nyquistChart(c *Context) plot.Nyquist {
 
 func loopColumns(c *Context) []Column {
 	r := c.Resp
+	if r.Reference == "" {
+		return nil
+	}
 	if s := r.Sweep; s != nil {
 		cols := []Column{{Name: "T", Complex: s.ReturnRatio}}
 		if m := r.Margins; m != nil && len(m.OpenLoop) == len(s.Frequency) {
@@ -243,6 +249,9 @@ func loopColumns(c *Context) []Column {
 
 func loopCopy(m *Markdown, c *Context) {
 	r := c.Resp
+	if r.Reference == "" {
+		return
+	}
 	at := "T at " + view.Magnitude(r.Frequency, "Hz")
 	t := "—"
 	if r.ReturnRatio != nil {
@@ -272,6 +281,9 @@ func loopCopy(m *Markdown, c *Context) {
 // loopCompared compares T at the spot frequency and, over the sweep, the
 // crossover and the margins.
 func loopCompared(c *Context) []Compared {
+	if c.Resp.Reference == "" {
+		return nil
+	}
 	rows := []Compared{{ID: "T", Label: "T at " + value.Format(c.Resp.Frequency, "Hz", view.Sig), Unit: "",
 		Complex: func(r *api.Response) *api.Complex { return r.ReturnRatio }}}
 	if c.Resp.Margins == nil {

@@ -39,7 +39,11 @@ func portsSection(w *view.Writer, c *Context) {
 		return
 	}
 	w.Section(c.ID, "ports", "Port impedances")
-	w.Explain("Blackman’s formula: Z = Z₀ · (1 + T short) / (1 + T open), checked against a direct nodal solution. Each value as magnitude ∠ phase, as real + j imaginary, and for impedances as the equivalent series pair at the spot frequency.")
+	if r.Reference == "" {
+		w.Explain("Direct nodal solution: without a reference element (a controlled source or an op amp) Blackman’s terms are not defined. Each value as magnitude ∠ phase, as real + j imaginary, and as the equivalent series pair at the spot frequency.")
+	} else {
+		w.Explain("Blackman’s formula: Z = Z₀ · (1 + T short) / (1 + T open), checked against a direct nodal solution. Each value as magnitude ∠ phase, as real + j imaginary, and for impedances as the equivalent series pair at the spot frequency.")
+	}
 	w.Open("div", "class", "table-wrap")
 	w.Open("table", "class", "results ports-table")
 	w.Open("thead")
@@ -184,15 +188,22 @@ func portCharts(c *Context) []string {
 	}
 	var out []string
 	for i, ps := range s.Ports {
+		traces := []plot.Trace{
+			{Name: "Z (Blackman)", Class: "z", Values: view.Values(ps.Z)},
+			{Name: "Z₀ (reference gain zero)", Class: "z0", Values: view.Values(ps.Z0), Dashed: true},
+		}
+		pinned := func(r *api.Response) []*api.Complex { return sweepPort(r, ps.Name).Z }
+		if r.Reference == "" {
+			// No reference: the direct solution is all there is.
+			traces = []plot.Trace{{Name: "Z direct", Class: "z", Values: view.Values(ps.ZDirect)}}
+			pinned = func(r *api.Response) []*api.Complex { return sweepPort(r, ps.Name).ZDirect }
+		}
 		b := plot.Bode{
 			ID:      c.ID + "-plot-port" + strconv.Itoa(i),
 			Title:   portChartTitle(ps.Name, portTitle(c.Entry, ps.Name)),
 			Freq:    s.Frequency,
 			MagUnit: "Ω",
-			Traces: append([]plot.Trace{
-				{Name: "Z (Blackman)", Class: "z", Values: view.Values(ps.Z)},
-				{Name: "Z₀ (reference gain zero)", Class: "z0", Values: view.Values(ps.Z0), Dashed: true},
-			}, c.BodePins("Z", func(r *api.Response) []*api.Complex { return sweepPort(r, ps.Name).Z })...),
+			Traces:  append(traces, c.BodePins("Z", pinned)...),
 			Markers: spotMarker(r),
 			NoStyle: true,
 		}
@@ -244,11 +255,15 @@ func sweepPort(r *api.Response, name string) api.PortSweep {
 // the same name.
 func portsCompared(c *Context) []Compared {
 	var rows []Compared
+	direct := c.Resp.Reference == "" // no reference: the direct solution
 	for _, pr := range c.Resp.Ports {
 		name := pr.Name
 		rows = append(rows, Compared{ID: "z:" + name, Label: "Z at " + name, Unit: "Ω",
 			Complex: func(r *api.Response) *api.Complex {
 				for _, p := range r.Ports {
+					if p.Name == name && direct {
+						return p.ZDirect
+					}
 					if p.Name == name {
 						return p.Z
 					}

@@ -123,7 +123,7 @@ type edValue struct {
 const edValuesJS = `(function (root) {
   return Array.from(document.querySelectorAll(root + ' [data-role="results"] [data-quantity]')).map(function (e) {
     var d = e.dataset;
-    var key = d.quantity === 'extra' ? 'extra:' + d.name : d.quantity === 'device' ? 'device:' + d.part + '/' + d.name : (d.port ? d.port + '/' : '') + (d.pole ? 'pole' + d.pole + '/' : '') + d.quantity;
+    var key = d.quantity === 'extra' ? 'extra:' + d.name : d.quantity === 'device' ? 'device:' + d.part + '/' + d.name : d.source ? d.quantity + ':' + d.source : (d.port ? d.port + '/' : '') + (d.pole ? 'pole' + d.pole + '/' : '') + d.quantity;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true' };
   });
 })`
@@ -142,7 +142,10 @@ func edValues(t *testing.T, ctx context.Context, root string) map[string]edValue
 
 // edExpected lists the numbers the panel must show for resp.
 func edExpected(resp *api.Response) (complexes map[string]*api.Complex, reals map[string]*float64) {
-	complexes = map[string]*api.Complex{"T": resp.ReturnRatio}
+	complexes = map[string]*api.Complex{}
+	if resp.Reference != "" {
+		complexes["T"] = resp.ReturnRatio
+	}
 	reals = map[string]*float64{}
 	for _, p := range resp.Ports {
 		for q, z := range map[string]*api.Complex{"z0": p.Z0, "tShort": p.TShort, "tOpen": p.TOpen, "z": p.Z, "zDirect": p.ZDirect} {
@@ -470,12 +473,20 @@ func TestCustomErrorAtItsLine(t *testing.T) {
 		t.Errorf("frequency message %q", msg)
 	}
 
-	// A circuit without a controlled source says so at the reference.
+	// A circuit without a controlled source is analysed as it is: the
+	// reference picker says none, and the direct solution is shown.
 	eval[bool](t, ctx, `(function () { var i = document.querySelector('[data-circuit-editor] input[name="frequency"]');
   i.value = '1k'; return true; })()`)
 	edSetText(t, ctx, "resistor R1 a gnd 1k\nport p a gnd\n")
-	if msg := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] [data-field="reference"] [data-role="msg"]').textContent`); !strings.Contains(msg, "no controlled source") {
-		t.Errorf("reference message %q", msg)
+	if ref := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] [data-role="reference"]').selectedOptions[0].textContent`); !strings.HasPrefix(ref, "none") {
+		t.Errorf("reference picker shows %q", ref)
+	}
+	if edStale(t, ctx) {
+		t.Error("a passive circuit is marked stale")
+	}
+	z := edValues(t, ctx, "[data-circuit-editor]")["p/zDirect"]
+	if re, err := strconv.ParseFloat(z.Re, 64); err != nil || !scalar.EqualWithinRel(re, 1000, 1e-12) || z.Im != "0" {
+		t.Errorf("Z direct of 1 kΩ shows %+v", z)
 	}
 	checkHealthy(t, ctx)
 }

@@ -72,7 +72,7 @@ func form(id string, in map[string]string) calc.Form {
 
 // native analyzes what the calculator's inputs say with the native
 // engine: the topology with those parameters, at that spot frequency, over
-// that sweep.
+// that sweep, with the noise the calculator's settings ask for.
 func native(t *testing.T, id string, in map[string]string) *api.Response {
 	t.Helper()
 	req := api.Request{Topology: id, Params: map[string]string{}}
@@ -96,6 +96,13 @@ func native(t *testing.T, id string, in map[string]string) *api.Response {
 		t.Fatalf("%s: sweep points %q: %v", id, in["sweep.points"], err)
 	}
 	req.Sweep = &api.SweepSpec{From: parse("sweep.from"), To: parse("sweep.to"), Points: pts}
+	// The noise options exactly as the calculator asks for them.
+	asked, bad := form(id, in).Request()
+	if bad != nil {
+		t.Fatalf("%s: the calculator's request: %+v", id, bad)
+	}
+	api.Noise.Ask(&req, api.Noise.Asked(asked))
+	req.Temperature = asked.Temperature
 	resp, err := api.Analyze(req)
 	if err != nil {
 		t.Fatalf("%s: native analysis of %v: %v", id, in, err)
@@ -122,6 +129,7 @@ func shownValues(t *testing.T, ctx context.Context, id string) []shown {
     var d = e.dataset, key;
     if (d.quantity === 'extra') key = 'extra:' + d.name;
     else if (d.quantity === 'device') key = 'device:' + d.part + '/' + d.name;
+    else if (d.quantity && d.source) key = d.quantity + ':' + d.source;
     else if (d.quantity) key = (d.port ? d.port + '/' : '') + (d.pole ? 'pole' + d.pole + '/' : '') + d.quantity;
     else key = 'closed:' + (d.port ? d.port + '/' : '') + d.closedForm;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true', text: e.textContent };
@@ -173,6 +181,22 @@ func expected(resp *api.Response) map[string]want {
 	}
 	for k, v := range deviceValues(resp) {
 		x(k, v, false)
+	}
+	if n := api.Noise.Result(resp); n != nil {
+		x("noiseOutput", n.Spot.Output, false)
+		x("noiseRms", n.RMS.Output, false)
+		x("noiseTemperature", &n.Temperature, false)
+		x("noiseError", n.Integration.Error, true)
+		if n.Source != "" {
+			x("noiseInput", n.Spot.Input, false)
+			x("noiseRmsInput", n.RMS.Input, false)
+			x("noiseBandwidth", n.Bandwidth, false)
+		}
+		for _, c := range n.Contributors {
+			x("contributorSpot:"+c.Name, c.Spot, false)
+			x("contributorRms:"+c.Name, c.RMS, false)
+			x("contributorShare:"+c.Name, c.Share, false)
+		}
 	}
 	expectAnalyses(resp, w)
 	if top := resp.Topology; top != nil {
@@ -380,6 +404,30 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 	if s.Gain != nil && resp.Gain != nil {
 		exp = append(exp, series{prefix + "gain", "g", s.Gain.G}, series{prefix + "gain", "g∞ (ideal)", s.Gain.GInf})
 	}
+	if n := api.Noise.Result(resp); n != nil {
+		reals := func(v []*float64) []*api.Complex {
+			out := make([]*api.Complex, len(v))
+			for i, x := range v {
+				if x != nil {
+					out[i] = &api.Complex{Re: *x}
+				}
+			}
+			return out
+		}
+		exp = append(exp, series{prefix + "noise", "total", reals(n.Output)})
+		for _, c := range n.Contributors {
+			if c.Density != nil {
+				exp = append(exp, series{prefix + "noise", calc.NoiseTrace(c), reals(c.Density)})
+			}
+		}
+		if n.Input != nil {
+			exp = append(exp, series{prefix + "noise-in", "input-referred", reals(n.Input)})
+		}
+		if n.NoiseGain != nil {
+			exp = append(exp, series{prefix + "noise-gain", "noise gain 1/β", n.NoiseGain},
+				series{prefix + "noise-gain", "eₙ → " + n.Node + " (closed loop)", n.EnTransfer})
+		}
+	}
 	for _, l := range loopViewSeries(prefix, resp) {
 		exp = append(exp, series(l))
 	}
@@ -439,10 +487,11 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 	return bad
 }
 
-// compareTrace holds a trace's data-values ("|v| phase" pairs) to the
-// native values: |v| within half a unit of the sixth digit, the phase
-// within 0.005° modulo 360° (the chart unwraps it). A gap (NaN) is right
-// only where the native value is not finite or zero.
+// compareTrace holds a trace's data-values ("|v| phase" pairs; a
+// magnitude-only chart keeps the phases too) to the native values: |v|
+// within half a unit of the sixth digit, the phase within 0.005° modulo
+// 360° (the chart unwraps it). A gap (NaN) is right only where the native
+// value is not finite or zero.
 func compareTrace(vals string, v []*api.Complex) string {
 	f := strings.Fields(vals)
 	if len(f) != 2*len(v) {
@@ -452,7 +501,7 @@ func compareTrace(vals string, v []*api.Complex) string {
 		mag, err1 := strconv.ParseFloat(f[2*i], 64)
 		ph, err2 := strconv.ParseFloat(f[2*i+1], 64)
 		if err1 != nil || err2 != nil {
-			return fmt.Sprintf("point %d: unreadable %q %q", i, f[2*i], f[2*i+1])
+			return fmt.Sprintf("point %d: unreadable %q", i, f[2*i:2*i+2])
 		}
 		if c == nil || c.Value() == 0 {
 			if !math.IsNaN(mag) {

@@ -47,8 +47,8 @@ func checkTopologyPages(t *testing.T, ctx context.Context, url func(id string) s
 					t.Errorf("input %s = %q, the catalog's default is %q", name, in[name], v)
 				}
 			}
-			if len(in) != len(e.Params)+4+settingInputs() {
-				t.Errorf("%d inputs, want %d parameters, 4 analysis fields and %d analyses' settings", len(in), len(e.Params), settingInputs())
+			if want := defaultInputs(e); len(in) != len(want) {
+				t.Errorf("%d inputs, want %d parameters, 4 analysis fields and %d analyses' settings", len(in), len(e.Params), len(want)-len(e.Params)-4)
 			}
 			resp := checkAgainstNative(t, ctx, e.ID)
 			if n := eval[int](t, ctx, `document.querySelectorAll(`+jsString(calcSel(e.ID)+` tbody[data-port]`)+`).length`); n != len(resp.Ports) || n != len(e.Ports) {

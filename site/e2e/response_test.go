@@ -50,15 +50,6 @@ func setting(k, v string, into *map[string]calc.Values) bool {
 	return false
 }
 
-// settingInputs is how many inputs the analyses' settings add to a form.
-func settingInputs() int {
-	n := 0
-	for _, a := range calc.Analyses {
-		n += len(a.Settings)
-	}
-	return n
-}
-
 // askAnalyses adds to req what stage id's calculator asks the engine
 // beyond the base request: the closed-loop response where the stage has a
 // gain, on the time axis of its settings ("auto" leaves it to the engine).

@@ -36,7 +36,7 @@ type Example struct {
 // All returns the examples in the order the page lists them. The first is
 // the one the page opens with.
 func All() []Example {
-	return []Example{twoPole, cable, degenerated, twoStage, currentFeedback, commonEmitter}
+	return []Example{twoPole, cable, degenerated, twoStage, currentFeedback, commonEmitter, photodiodeNoise}
 }
 
 // Lookup returns the example called id.
@@ -243,4 +243,32 @@ port      in   src  gnd                         # what the source sees
 	Ports:     []string{"out", "in"},
 	Gain:      &api.GainSpec{Source: "Vs", Output: "c"},
 	Frequency: "10k", From: "10", To: "1G", Points: "400",
+}
+
+var photodiodeNoise = Example{
+	ID:    "pdnoise",
+	Title: "Photodiode front end: where its noise comes from",
+	Scenario: "The receiver of a short-range infrared data link: a 50 pF photodiode under about 2 µA of background light " +
+		"into a 100 kΩ transimpedance with 2 pF across it, on a FET-input op amp of 6 nV/√Hz (1/f below " +
+		"200 Hz) and 2 fA/√Hz, driving an ADC buffer that is not part of the design.",
+	Look: "Read the noise table and the density chart: at low frequency Rf's thermal noise and the shot noise " +
+		"of the background light share the output; above the noise gain's zero at 1/(2π·Rf·(Cd + Cf)) the op " +
+		"amp's eₙ, multiplied by 1 + Cd/Cf, takes over. Double Cf and watch eₙ's share fall and the bandwidth " +
+		"with it; raise shot= to see how much light the stage takes before shot noise rules.",
+	Text: `# Photodiode front end, noise budget (invented scenario): 2 µA of
+# background light on a 50 pF diode, 100 kΩ transimpedance.
+isource   Iph  gnd  sum  1                  # the signal photocurrent
+inoise    Ish  gnd  sum  shot=2u            # shot noise of 2 µA of light
+capacitor Cd   sum  gnd  50p                # diode capacitance
+resistor  Rf   out  sum  100k               # transimpedance
+capacitor Cf   out  sum  2p                 # feedback capacitor
+opamp     U1   gnd  sum  out  a0=1M gbw=20M ro=30 en=6n fce=200 in=2f
+resistor  RL   out  gnd  2k noise=off       # ADC buffer input, not ours
+port      in   sum  gnd                     # what the diode sees
+port      out  out  gnd
+`,
+	Reference: "U1",
+	Ports:     []string{"in", "out"},
+	Gain:      &api.GainSpec{Source: "Iph", Output: "out"},
+	Frequency: "1k", From: "10", To: "100M", Points: "400",
 }

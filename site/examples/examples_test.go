@@ -360,6 +360,51 @@ func TestCommonEmitterClosedForm(t *testing.T) {
 }
 
 // Request carries everything the example names.
+// The photodiode front end's noise at low frequency, far below the loop's
+// crossover, where the opamp is ideal to 1e-6: Rf's thermal noise 4kT·Rf,
+// the light's shot noise 2qI and the opamp's iₙ through Rf, and eₙ(f)
+// through the noise gain 1 + Zf/Zi, Zi = 1/(sCd), Zf = Rf ∥ 1/(sCf)
+// [derived from the node equations; Johnson 1928, Nyquist 1928, Schottky
+// 1918 for the sources]; 1/f as en²(1 + fce/f) (common practice).
+func TestPhotodiodeNoise(t *testing.T) {
+	const (
+		kT, q           = 1.380649e-23 * 300, 1.602176634e-19
+		rf, cf, cd, ish = 100e3, 2e-12, 50e-12, 2e-6
+		en, fce, in     = 6e-9, 200.0, 2e-15
+	)
+	req := photodiodeNoise.Request()
+	api.Noise.Ask(&req, &api.NoiseRequest{})
+	r, err := api.Analyze(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := api.Noise.Result(r)
+	for i, f := range n.Frequency {
+		if f > 100 {
+			break
+		}
+		zf := 1 / (1/complex(rf, 0) + s(f)*cf)
+		ng := 1 + zf*s(f)*cd
+		az := cmplx.Abs(zf)
+		want := math.Sqrt((4*kT/rf+2*q*ish+in*in)*az*az + en*en*(1+fce/f)*sq(cmplx.Abs(ng)))
+		if d := math.Abs(*n.Output[i]/want - 1); d > 1e-5 {
+			t.Errorf("at %.4g Hz: output density %.6g V/√Hz, want %.6g (%.2g)", f, *n.Output[i], want, d)
+		}
+		if d := math.Abs(*n.Input[i]*az/want - 1); d > 1e-5 {
+			t.Errorf("at %.4g Hz: input density %.6g A/√Hz, want %.6g", f, *n.Input[i], want/az)
+		}
+	}
+	names := map[string]bool{}
+	for _, c := range n.Contributors {
+		names[c.Name] = true
+	}
+	if !names["Ish"] || !names["Rf"] || !names["U1.en"] || names["RL"] || n.InputUnit != "A/√Hz" {
+		t.Errorf("contributors %v, input unit %s", names, n.InputUnit)
+	}
+}
+
+func sq(x float64) float64 { return x * x }
+
 func TestRequest(t *testing.T) {
 	req := twoStage.Request()
 	if req.Circuit != twoStage.Text || req.Reference != "U1" || len(req.Ports) != 2 || req.Gain == nil ||

@@ -671,7 +671,12 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 		b = append(b, " No traces."...)
 	}
 	b = appendLabels(b, " Marker: ", len(c.Markers), func(i int) string { return c.Markers[i].Label })
-	b = appendLabels(b, " Reference line: ", len(c.HLines), func(i int) string { return c.HLines[i].Label })
+	b = appendLabels(b, " Reference line: ", len(c.HLines), func(i int) string {
+		if c.NoPhase && c.HLines[i].Panel == PhasePanel {
+			return "" // not drawn
+		}
+		return c.HLines[i].Label
+	})
 	return string(b)
 }
 
