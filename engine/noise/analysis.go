@@ -7,6 +7,7 @@ import (
 	"strconv"
 
 	"zport/engine/mna"
+	"zport/engine/numeric"
 )
 
 // Analysis is a noise analysis of one circuit: its noise sources at one
@@ -221,8 +222,12 @@ func (n *Analysis) Band(adjoint func(f float64, z []complex128) error, size int,
 			seen = append(seen, node{u, gg})
 			return nil
 		}}
-	a, b := math.Log(from), math.Log(to)
-	panels := max(1, int(math.Ceil(math.Log10(to/from)-1e-9)))
+	// numeric.Log: a band may start at a subnormal frequency, which
+	// amd64's math.Log gets wrong; a panel a decade, but never more
+	// panels than the evaluations allow (a band from 1e-320 Hz has 328
+	// decades).
+	a, b := numeric.Log(from), numeric.Log(to)
+	panels := min(MaxEvaluations/15, max(1, int(math.Ceil((b-a)/math.Ln10-1e-9))))
 	r, err := q.integrate(a, b, panels)
 	if err != nil {
 		return Band{}, err

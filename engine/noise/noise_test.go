@@ -75,6 +75,24 @@ func TestKTC(t *testing.T) {
 	}
 }
 
+// A band from a subnormal frequency (a share link may ask a sweep from
+// 1e-320 Hz) spans 328 decades: more panels than the evaluations allow
+// are not made, and the RC low-pass still integrates to kT/C (the same
+// closed form as TestKTC), within the error the band reports.
+func TestBandFromSubnormal(t *testing.T) {
+	const C, T = 1e-9, 300.0
+	s := newSetup(t, "vsource Vin in gnd 0\nresistor R in out 10k\ncapacitor C out gnd 1n\n", "", "out", "Vin", T)
+	b, err := s.n.Band(s.a.AdjointAt, s.a.Sys.N, 1e-320, 1e8)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fc := 1 / (2 * math.Pi * 1e4 * C)
+	want := noise.Boltzmann * T / C * 2 / math.Pi * (math.Atan(1e8/fc) - math.Atan(1e-320/fc))
+	if math.Abs(b.Total-want) > math.Max(b.Error, 1e-6*want) {
+		t.Errorf("band power %.10g (error estimate %.2g, %d evaluations), want %.10g", b.Total, b.Error, b.Evaluations, want)
+	}
+}
+
 // Shot noise √(2qI) (W. Schottky, Ann. Phys. 57, 1918 [memory]) of 1 µA,
 // with q exact, into a noiseless 1 kΩ: the output density is √(2qI)·R.
 func TestShot(t *testing.T) {

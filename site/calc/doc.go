@@ -114,8 +114,10 @@
 //	extras     extra, with data-name (real, in the extra's own unit)
 //
 // A comparison with the pins carries, on each number, data-compare (the
-// row: z:PORT, g, T, fc, pm, gm, extra:N), data-pin (the pin's slot, 0 for
-// the current design), data-stat (value or diff) and the number
+// row: z:PORT, g, T, fc, pm, gm, extra:N, the response's overshoot,
+// riseTime, settling1, bandwidth, peaking, the noise's noiseOutput,
+// noiseRms, noiseInput), data-pin (the pin's slot, 0 for the current
+// design), data-stat (value or diff) and the number
 // (data-re/data-im, data-value, and for a complex difference data-phase);
 // its table carries data-compare-of, the analysis's key.
 //

@@ -29,6 +29,33 @@ var noiseAnalysis = Analysis{
 	Section: noiseSection,
 	Columns: noiseColumns,
 	Copy:    noiseCopy,
+	Compare: noiseCompared,
+}
+
+// noiseCompared are the noise figures a pinned design is set beside.
+func noiseCompared(c *Context) []Compared {
+	cur := api.Noise.Result(c.Resp)
+	if cur == nil {
+		return nil
+	}
+	of := func(get func(n *api.NoiseResult) *float64) func(r *api.Response) *float64 {
+		return func(r *api.Response) *float64 {
+			if n := api.Noise.Result(r); n != nil {
+				return get(n)
+			}
+			return nil
+		}
+	}
+	at := " at " + value.Format(cur.Spot.Frequency, "Hz", view.Sig)
+	rows := []Compared{
+		{ID: "noiseOutput", Label: "Output noise density" + at, Unit: cur.Unit, Real: of(func(n *api.NoiseResult) *float64 { return n.Spot.Output })},
+		{ID: "noiseRms", Label: "Output noise, rms over the band", Unit: "V", Real: of(func(n *api.NoiseResult) *float64 { return n.RMS.Output })},
+	}
+	if cur.Source != "" {
+		rows = append(rows, Compared{ID: "noiseInput", Label: "Referred to the input" + at, Unit: cur.InputUnit,
+			Real: of(func(n *api.NoiseResult) *float64 { return n.Spot.Input })})
+	}
+	return rows
 }
 
 // noiseAsk asks for the noise when there is an output to read it at (the
@@ -243,6 +270,26 @@ func noiseCharts(c *Context, n *api.NoiseResult) []string {
 		}
 		return out
 	}
+	// pinned is a pin's column of its noise result, as complex numbers.
+	pinned := func(col func(n *api.NoiseResult) []*float64) func(r *api.Response) []*api.Complex {
+		return func(r *api.Response) []*api.Complex {
+			pn := api.Noise.Result(r)
+			if pn == nil {
+				return nil
+			}
+			v := col(pn)
+			if v == nil {
+				return nil
+			}
+			out := make([]*api.Complex, len(v))
+			for i, x := range v {
+				if x != nil {
+					out[i] = &api.Complex{Re: *x}
+				}
+			}
+			return out
+		}
+	}
 	out := plot.Bode{ID: c.ID + "-plot-noise", Title: "Noise density at " + n.Node + " and its largest sources", Freq: n.Frequency,
 		MagUnit: n.Unit, NoPhase: true, NoStyle: true, Markers: spotMarker(c.Resp),
 		Traces: []plot.Trace{{Name: "total", Class: "noise", Values: reals(n.Output)}}}
@@ -251,20 +298,30 @@ func noiseCharts(c *Context, n *api.NoiseResult) []string {
 			out.Traces = append(out.Traces, plot.Trace{Name: NoiseTrace(k), Values: reals(k.Density), Dashed: true})
 		}
 	}
+	out.Traces = append(out.Traces, c.BodePins("total", pinned(func(n *api.NoiseResult) []*float64 { return n.Output }))...)
+	out.Width, out.Height = c.ChartSize(640, 400)
 	charts := []string{out.SVG()}
 	if n.Input != nil {
 		in := plot.Bode{ID: c.ID + "-plot-noise-in", Title: "Noise density referred to the input " + n.Source, Freq: n.Frequency,
 			MagUnit: n.InputUnit, NoPhase: true, NoStyle: true, Markers: spotMarker(c.Resp),
-			Traces: []plot.Trace{{Name: "input-referred", Class: "noise-in", Values: reals(n.Input)}}}
+			Traces: append([]plot.Trace{{Name: "input-referred", Class: "noise-in", Values: reals(n.Input)}},
+				c.BodePins("input-referred", pinned(func(n *api.NoiseResult) []*float64 { return n.Input }))...)}
+		in.Width, in.Height = c.ChartSize(640, 400)
 		charts = append(charts, in.SVG())
 	}
 	if n.NoiseGain != nil {
 		g := plot.Bode{ID: c.ID + "-plot-noise-gain", Title: "Noise gain of " + c.Resp.Reference, Freq: n.Frequency,
 			MagUnit: "dB", NoPhase: true, NoStyle: true, Markers: spotMarker(c.Resp),
-			Traces: []plot.Trace{
+			Traces: append([]plot.Trace{
 				{Name: "noise gain 1/β", Class: "ng", Values: view.Values(n.NoiseGain)},
 				{Name: "eₙ → " + n.Node + " (closed loop)", Class: "en", Values: view.Values(n.EnTransfer), Dashed: true},
-			}}
+			}, c.BodePins("1/β", func(r *api.Response) []*api.Complex {
+				if pn := api.Noise.Result(r); pn != nil {
+					return pn.NoiseGain
+				}
+				return nil
+			})...)}
+		g.Width, g.Height = c.ChartSize(640, 320)
 		charts = append(charts, g.SVG())
 	}
 	return charts
