@@ -11,13 +11,21 @@ const MaxTemperature = 1000.0
 
 // temperature returns the request's analysis temperature, checked: absent
 // is circuit.DefaultTemperature.
+// A noise request's temperature is the same setting, written there.
 func (r Request) temperature() (float64, error) {
-	if r.Temperature == nil {
+	field, given := "temperature", r.Temperature
+	if q := Noise.Asked(r); q != nil && q.Temperature != nil {
+		if given != nil && *given != *q.Temperature {
+			return 0, fieldErr("noise.temperature", "%g K differs from the request's temperature, %g K: they are one setting (the transistors' VT and the noise are taken at it); give one", *q.Temperature, *given)
+		}
+		field, given = "noise.temperature", q.Temperature
+	}
+	if given == nil {
 		return circuit.DefaultTemperature, nil
 	}
-	t := *r.Temperature
+	t := *given
 	if !(t > 0) || !(t <= MaxTemperature) {
-		return 0, fieldErr("temperature", "the analysis temperature is in kelvin, above 0 and at most %g K (300 K is about 27 °C); got %g", MaxTemperature, t)
+		return 0, fieldErr(field, "the analysis temperature is in kelvin, above 0 and at most %g K (300 K is about 27 °C); got %g", MaxTemperature, t)
 	}
 	return t, nil
 }

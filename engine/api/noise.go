@@ -25,6 +25,11 @@ type NoiseRequest struct {
 	// Output is where the noise is read: "NODE" (to gnd) or "NODE,NODE".
 	// Empty means the gain's output.
 	Output string `json:"output,omitempty"`
+	// Temperature is the request's temperature written here, where a
+	// noise request naturally says it: the two are one setting (the
+	// transistors' VT and every density are taken at it), so giving both
+	// with different values is an error.
+	Temperature *float64 `json:"temperature,omitempty"`
 	// Band is the band the rms is taken over; an end left out is the
 	// sweep's.
 	Band *NoiseBand `json:"band,omitempty"`

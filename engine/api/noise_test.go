@@ -17,6 +17,9 @@ func TestNoiseErrors(t *testing.T) {
 	rc := jsonString("vsource Vin in gnd 0\nresistor R in out 10k\ncapacitor C out gnd 1n\n")
 	for _, c := range []struct{ rest, param, frag string }{
 		{`"gain": {"source": "Vin", "output": "out"}, "temperature": 0, "noise": {}`, "temperature", "above 0"},
+		{`"gain": {"source": "Vin", "output": "out"}, "noise": {"temperature": 0}`, "noise.temperature", "above 0"},
+		{`"gain": {"source": "Vin", "output": "out"}, "noise": {"temperature": 1001}`, "noise.temperature", "at most 1000 K"},
+		{`"gain": {"source": "Vin", "output": "out"}, "temperature": 300, "noise": {"temperature": 77}`, "noise.temperature", "one setting"},
 		{`"gain": {"source": "Vin", "output": "out"}, "temperature": -3, "noise": {}`, "temperature", "above 0"},
 		{`"gain": {"source": "Vin", "output": "out"}, "temperature": 1001, "noise": {}`, "temperature", "at most 1000 K"},
 		{`"gain": {"source": "Vin", "output": "out"}, "noise": {"band": {"from": 1e3, "to": 1e3}}`, "noise.band.to", "end above its start"},
@@ -154,5 +157,32 @@ func TestCatalogNoise(t *testing.T) {
 		if d := math.Abs(*s.Input / *n.Input[i] - 1); d > 1e-13 {
 			t.Errorf("at %g Hz: sweep input density %g, spot %g", n.Frequency[i], *n.Input[i], *s.Input)
 		}
+	}
+}
+
+// noise.temperature and the request's temperature are one setting: given
+// in the noise request alone it sets the transistors' VT = kT/q (k, q the
+// exact SI constants) as well as the noise, which the response echoes.
+func TestNoiseTemperatureIsTheRequests(t *testing.T) {
+	out, ok := api.AnalyzeJSON([]byte(`{"circuit": "vsource Vin b gnd 1\nbjt Q1 c b gnd ic=1m\nresistor RC c gnd 1k noise=off\n",
+		"reference": "Q1", "frequency": 1000, "gain": {"source": "Vin", "output": "c"}, "noise": {"temperature": 400, "band": {"from": 10, "to": 1e4}}}`))
+	if !ok {
+		t.Fatalf("%s", out)
+	}
+	var resp struct {
+		Temperature float64 `json:"temperature"`
+		Devices     []struct {
+			VT float64 `json:"vt"`
+		} `json:"devices"`
+		Noise struct {
+			Temperature float64 `json:"temperature"`
+		} `json:"noise"`
+	}
+	if err := json.Unmarshal(out, &resp); err != nil {
+		t.Fatal(err)
+	}
+	vt := 1.380649e-23 * 400 / 1.602176634e-19
+	if resp.Temperature != 400 || resp.Noise.Temperature != 400 || len(resp.Devices) != 1 || math.Abs(resp.Devices[0].VT-vt) > 1e-15*vt {
+		t.Errorf("temperature %g, noise at %g, devices %+v; want 400 K and VT = %g", resp.Temperature, resp.Noise.Temperature, resp.Devices, vt)
 	}
 }
