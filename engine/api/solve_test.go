@@ -198,7 +198,7 @@ func TestSolveCaploadRiso(t *testing.T) {
 // (1 − ro²/X²)S² + 2·Re K·S + |K|² = 0, K = ro + a·R1.
 func TestSolveOutputImpedanceR2(t *testing.T) {
 	req := api.Request{
-		Circuit: "vsource Vin in gnd 1\nopamp U1 in fb out a0=100k gbw=1M ro=100\nresistor R1 fb gnd 2k\nresistor R2 out fb 18k\nport out out gnd\n",
+		Circuit:   "vsource Vin in gnd 1\nopamp U1 in fb out a0=100k gbw=1M ro=100\nresistor R1 fb gnd 2k\nresistor R2 out fb 18k\nport out out gnd\n",
 		Reference: "U1", Ports: []string{"out"},
 	}
 	closed := func(f, x float64) float64 {
