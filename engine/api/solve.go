@@ -479,6 +479,10 @@ func (r *SolveRun) Step(n int) (done, total int, finished bool) { return r.run.S
 // Stop ends the run early.
 func (r *SolveRun) Stop() { r.run.Stop() }
 
+// Counts tallies the run's work so far: circuits analyzed, return ratios
+// and closed-loop responses computed.
+func (r *SolveRun) Counts() solve.Counts { return r.run.Answer().Counts }
+
 // Result is the answer once the run has finished (before, what has been
 // found so far: the curve is incomplete).
 func (r *SolveRun) Result() *SolveResult { return r.plan.result(r.run.Answer()) }
