@@ -25,3 +25,4 @@ func BenchmarkDifference3Port400(b *testing.B)      { benchStage(b, "difference"
 func BenchmarkBoostedCascode2Port400(b *testing.B)  { benchStage(b, "boostedcascode") }
 func BenchmarkEmitterFollower2Port400(b *testing.B) { benchStage(b, "emitterfollower") }
 func BenchmarkMiller2Port400(b *testing.B)          { benchStage(b, "miller") }
+func BenchmarkCapload2Port400(b *testing.B)         { benchStage(b, "capload") }

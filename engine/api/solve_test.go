@@ -121,6 +121,38 @@ func TestSolveTransimpedanceCf(t *testing.T) {
 	}
 }
 
+// extra returns the design value called name of a catalog stage's answer.
+func extra(t *testing.T, resp *api.Response, name string) float64 {
+	t.Helper()
+	for _, x := range resp.Topology.Extras {
+		if x.Name == name {
+			if x.Value == nil {
+				t.Fatalf("%s has no value: %s", name, x.Note)
+			}
+			return *x.Value
+		}
+	}
+	t.Fatalf("no design value %q", name)
+	return 0
+}
+
+// The transimpedance page's "Cf for 45°" and "Cf for 60°", on the stage
+// reduced to the two-pole loop (REFERENCES.md §5's check: Rf = 1 MΩ,
+// Cd = 20 pF, gbw = 10 MHz, a0 = 10⁹; ro = 1 mΩ, whose effect on T is
+// below 10⁻⁹, because the stage needs one), against the closed form.
+func TestTransimpedanceDesignValuesFromTheSolver(t *testing.T) {
+	params := map[string]string{"Rsh": "", "Cd": "20p", "Cin": "", "Rf": "1M", "Cf": "", "a0": "1G", "gbw": "10M", "p2": "",
+		"rid": "", "rcm": "", "ro": "1m", "RL": "", "CL": ""}
+	resp, err := api.Analyze(api.Request{Topology: "transimpedance", Params: params, Frequency: 1e3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, pm := range []float64{45, 60} {
+		want := bisect(1e-15, 1e-9, func(cf float64) float64 { return tiaPM(1e6, 20e-12, 1e9, 10e6, cf) - pm })
+		within(t, fmt.Sprintf("design value Cf for %g°", pm), extra(t, resp, fmt.Sprintf("Cf for %g°", pm)), want, 1e-8)
+	}
+}
+
 // The standard values beside a solution are the IEC 60063 values on
 // either side of it (REFERENCES.md §6: E24 1.2 1.3 1.5 …; E96 137 140 …;
 // E192 137 138 140 …; E12 every second E24 value, E6 every fourth), here
@@ -186,6 +218,10 @@ func TestSolveCaploadRiso(t *testing.T) {
 		}
 		if r.Range.From != 1e-3 || r.Range.To != 1e6 || r.Unit != "Ω" {
 			t.Errorf("range %+v %s, want the stage's allowed 1 mΩ … 1 MΩ", r.Range, r.Unit)
+		}
+		// The page's own "Riso for 45°" and "Riso for 60°".
+		if c.target != 82 {
+			within(t, fmt.Sprintf("design value Riso for %g°", c.target), extra(t, resp, fmt.Sprintf("Riso for %g°", c.target)), c.want[0], 1e-9)
 		}
 	}
 }

@@ -52,11 +52,13 @@ type Counts struct {
 }
 
 // LoopGrid is where the loop's quantities look for the crossings of |T|
-// and of ∠T: 1 mHz to 1 THz, ten points a decade, each crossing refined
-// between grid points by Brent's method on the circuit itself. Ten points
-// a decade keep the phase unwrapped: between two of them a single pole
-// turns the phase by less than 7°, a complex pair by less than 180°.
-func LoopGrid() []float64 { return floats.LogSpan(make([]float64, 151), 1e-3, 1e12) }
+// and of ∠T: 1 mHz to 1 THz, eight points a decade, each crossing refined
+// between grid points by Brent's method on the circuit itself. Eight
+// points a decade keep the phase unwrapped — between two of them a single
+// pole turns the phase by less than 9°, a complex pair by less than 180° —
+// at four fifths of the cost of ten, which matters: the return ratios on
+// this grid are nearly all of a margin target's work.
+func LoopGrid() []float64 { return floats.LogSpan(make([]float64, 121), 1e-3, 1e12) }
 
 // loopGrid is LoopGrid, made once.
 var loopGrid = LoopGrid()
