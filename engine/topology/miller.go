@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 
+	"zport/engine/numeric"
 	"zport/engine/value"
 )
 
@@ -282,29 +283,24 @@ func mlExtras(v Values) []Extra {
 	return x
 }
 
-// mlCcFor finds, by bisection on log Cc between Cc/100 and 100·Cc, the Cc
-// at which the follower's phase margin reaches pm (it rises with Cc).
+// mlCcFor finds, by Brent's method on log Cc between Cc/100 and 100·Cc,
+// the Cc at which the follower's phase margin reaches pm (it rises with
+// Cc).
 func mlCcFor(v Values, pm float64) float64 {
-	at := func(c float64) float64 {
-		p, _ := mlFollower(opmWith(v, map[string]float64{"Cc": c}))
-		return p
+	at := func(u float64) (float64, bool) {
+		p, _ := mlFollower(opmWith(v, map[string]float64{"Cc": math.Exp(u)}))
+		return p - pm, !math.IsNaN(p)
 	}
-	lo, hi := v["Cc"]/100, v["Cc"]*100
-	if !(at(hi) >= pm) {
+	lo, hi := math.Log(v["Cc"]/100), math.Log(v["Cc"]*100)
+	ghi, _ := at(hi)
+	if !(ghi >= 0) {
 		return math.NaN()
 	}
-	if at(lo) >= pm {
-		return lo
+	glo, _ := at(lo)
+	if glo >= 0 {
+		return math.Exp(lo)
 	}
-	for i := 0; i < 60; i++ {
-		mid := math.Sqrt(lo * hi)
-		if at(mid) >= pm {
-			hi = mid
-		} else {
-			lo = mid
-		}
-	}
-	return math.Sqrt(lo * hi)
+	return math.Exp(numeric.Root(lo, hi, glo, ghi, at))
 }
 
 func init() {
