@@ -264,13 +264,17 @@ func engTicks(lo, hi, px float64, unit string) []tick {
 
 // engLabel writes the tick value v of a linear axis with the given step,
 // by value.Format in unit with the digits the step needs (4.65 kΩ for a
-// 10 Ω step); an angle takes no SI prefix (0.25°, not 250 m°).
+// 10 Ω step); an angle, a level in decibels and a percentage take no SI
+// prefix (0.25°, not 250 m°; 0.5 dB, not 500 mdB).
 func engLabel(v, step float64, unit string) string {
 	if math.Abs(v) < step*eps {
 		v = 0
 	}
-	if unit == "°" {
+	switch unit {
+	case "°":
 		return linLabel(v, step) + "°"
+	case "dB", "%":
+		return linLabel(v, step) + " " + unit
 	}
 	sig := 1
 	if v != 0 {
