@@ -179,7 +179,7 @@ func (p *Prepared) solveProblem(q *SolveRequest) (*solvePlan, error) {
 	if err != nil {
 		return nil, err
 	}
-	m.Build = part.build
+	m.Build = part.build()
 	from, to, err := solveRange(q.Range, part)
 	if err != nil {
 		return nil, err
@@ -234,7 +234,9 @@ func seriesNames() []string {
 
 // solvable is a part a solve can vary.
 type solvable struct {
-	build   func(x float64) (*circuit.Circuit, error)
+	// build makes the function that builds the circuit for a value of
+	// the part (made only for a solve: it costs a stage some checks).
+	build   func() func(x float64) (*circuit.Circuit, error)
 	unit    string
 	nominal float64 // NaN when absent
 	// min and max are the allowed values (a stage's limits), or the
@@ -271,7 +273,7 @@ func (p *Prepared) solvePart(name string) (*solvable, error) {
 	par := params[j]
 	m := &aids.Model{Circuit: p.Circuit, Params: params}
 	x := par.Nominal
-	s := &solvable{build: m.Vary(j), unit: par.Unit, nominal: x, min: x / 1000, max: x * 1000,
+	s := &solvable{build: func() func(float64) (*circuit.Circuit, error) { return m.Vary(j) }, unit: par.Unit, nominal: x, min: x / 1000, max: x * 1000,
 		passive: par.Class == aids.Passive}
 	// A controlled source's gain may have either sign; every other number
 	// (a resistance, an op amp's gbw, a transistor's gm) is above 0.
@@ -332,23 +334,27 @@ func (p *Prepared) solveStageParam(name string) (*solvable, error) {
 	if _, ok := map[string]bool{"Ω": true, "F": true, "H": true}[tp.Unit]; ok && tp.Group != "amplifier" {
 		s.passive = true
 	}
-	if x, ok := p.Values[name]; ok {
+	x, present := p.Values[name]
+	if present {
 		s.nominal = x
-		params, rebuild := aids.StageParams(t, p.Values, p.Circuit)
-		m := &aids.Model{Circuit: p.Circuit, Params: params, Rebuild: rebuild}
-		if j := m.Param(name); j >= 0 {
-			s.build = m.Vary(j)
-			return s, nil
+	}
+	s.build = func() func(float64) (*circuit.Circuit, error) {
+		if present {
+			params, rebuild := aids.StageParams(t, p.Values, p.Circuit)
+			m := &aids.Model{Circuit: p.Circuit, Params: params, Rebuild: rebuild}
+			if j := m.Param(name); j >= 0 {
+				return m.Vary(j)
+			}
 		}
-	}
-	values := topology.Values{}
-	for k, v := range p.Values {
-		values[k] = v
-	}
-	kelvin := p.Circuit.Temperature
-	s.build = func(x float64) (*circuit.Circuit, error) {
-		values[name] = x
-		return circuit.ParseWith(t.Circuit(values), circuit.Options{Temperature: kelvin})
+		values := topology.Values{}
+		for k, v := range p.Values {
+			values[k] = v
+		}
+		kelvin := p.Circuit.Temperature
+		return func(x float64) (*circuit.Circuit, error) {
+			values[name] = x
+			return circuit.ParseWith(t.Circuit(values), circuit.Options{Temperature: kelvin})
+		}
 	}
 	return s, nil
 }
@@ -494,4 +500,60 @@ func (r *SolveRun) ResultJSON() []byte {
 		b, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: "internal error: " + err.Error()}})
 	}
 	return b
+}
+
+// SolvablePart is a number a solve can vary, as a page lists it: its
+// name, its unit, its value as given (NaN when a stage's optional part is
+// absent), the default range of a search, and whether it takes standard
+// values.
+type SolvablePart struct {
+	Name     string
+	Unit     string
+	Nominal  float64
+	From, To float64
+	Standard bool
+}
+
+// SolvableParts lists what a solve of req can vary, in the order of the
+// stage's parameters or of the circuit text.
+func SolvableParts(req Request) ([]SolvablePart, error) {
+	p, err := Prepare(req.Base())
+	if err != nil {
+		return nil, err
+	}
+	var names []string
+	if p.Stage != nil {
+		for _, tp := range p.Stage.Params {
+			names = append(names, tp.Name)
+		}
+	} else {
+		for _, par := range aids.CircuitParams(p.Circuit) {
+			names = append(names, par.Name)
+		}
+	}
+	var out []SolvablePart
+	for _, n := range names {
+		s, err := p.solvePart(n)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, SolvablePart{Name: n, Unit: s.unit, Nominal: s.nominal, From: s.min, To: s.max, Standard: s.passive})
+	}
+	return out, nil
+}
+
+// CheckSolve checks req's "solve" key against its circuit without
+// solving: the part, the target, the port, the range and the series, each
+// error naming its field.
+func CheckSolve(req Request) error {
+	q := Solve.Asked(req)
+	if q == nil {
+		return fieldErr("solve", "the request has no \"solve\" object")
+	}
+	p, err := Prepare(req.Base())
+	if err != nil {
+		return err
+	}
+	_, err = p.solveProblem(q)
+	return err
 }

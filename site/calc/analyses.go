@@ -21,6 +21,7 @@ func init() {
 		&devices,
 		&engineNotes,
 		&generated,
+		&solveTarget,
 		&designAids,
 	}
 }
