@@ -165,7 +165,12 @@ func Find(q func(x float64) float64, from, to, target float64, angular bool, poi
 			near = append(near, approach{i: i, gap: b})
 		}
 	}
-	slices.SortStableFunc(near, func(x, y approach) int { return cmp.Compare(x.gap, y.gap) })
+	// The closest first (insertion: a handful at most).
+	for i := 1; i < len(near); i++ {
+		for j := i; j > 0 && near[j].gap < near[j-1].gap; j-- {
+			near[j], near[j-1] = near[j-1], near[j]
+		}
+	}
 	for _, a := range near[:min(len(near), maxExtremes)] {
 		f.extreme(us[a.i-1], us[a.i+1], ds[a.i-1], ds[a.i+1], math.Copysign(1, ds[a.i]))
 	}
@@ -185,7 +190,7 @@ func Find(q func(x float64) float64, from, to, target float64, angular bool, poi
 	}
 
 	byX := func(a, b Point) int { return cmp.Compare(a.X, b.X) }
-	slices.SortFunc(f.found.Solutions, byX)
+	slices.SortStableFunc(f.found.Solutions, byX)
 	f.found.Solutions = slices.CompactFunc(f.found.Solutions, func(a, b Point) bool {
 		return math.Abs(a.X-b.X) <= 2*Tolerance*math.Abs(a.X)
 	})
