@@ -448,7 +448,11 @@ func SolvePanel(r *api.SolveResult, l Layout) string {
 		w.Elem("th", label, "scope", "row")
 		w.Open("td", "class", "num", "data-label", r.Part)
 		v := p.Value
-		w.NumSpan(part(v), &v, "data-solve", kind, "data-stat", "value")
+		text := part(v)
+		if exact {
+			text = standardText(v, r.Unit)
+		}
+		w.NumSpan(text, &v, "data-solve", kind, "data-stat", "value")
 		w.Close("td")
 		w.Open("td", "class", "num", "data-label", r.Title)
 		w.NumSpan(quantityText(p.Achieved, qu), p.Achieved, "data-solve", kind, "data-stat", "achieved")
@@ -480,11 +484,11 @@ func SolvePanel(r *api.SolveResult, l Layout) string {
 		if i < len(r.Standard) {
 			sv := r.Standard[i]
 			if sv.Below.Value == sv.Above.Value {
-				row("standard", r.Series+" value (exact)", sv.Below, true, i, "Use "+ApplyText(sv.Below.Value, true))
+				row("standard", r.Series+" value (exact)", sv.Below, true, i, "Use "+standardText(sv.Below.Value, r.Unit))
 				continue
 			}
-			row("below", r.Series+" below", sv.Below, true, i, "Use "+ApplyText(sv.Below.Value, true))
-			row("above", r.Series+" above", sv.Above, true, i, "Use "+ApplyText(sv.Above.Value, true))
+			row("below", r.Series+" below", sv.Below, true, i, "Use "+standardText(sv.Below.Value, r.Unit))
+			row("above", r.Series+" above", sv.Above, true, i, "Use "+standardText(sv.Above.Value, r.Unit))
 		}
 	}
 	if b := r.Best; b != nil {
@@ -534,6 +538,17 @@ func SolvePanel(r *api.SolveResult, l Layout) string {
 	w.Figure(c.SVG(), "plot solve-curve")
 	w.Close("div")
 	return w.String()
+}
+
+// standardText writes a series value with the digits it has (39 Ω,
+// 4.7 kΩ, 1.37 pF), not padded to four.
+func standardText(x float64, unit string) string {
+	for sig := 1; sig < 4; sig++ {
+		if r, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', sig, 64), 64); r == x {
+			return value.Format(x, unit, sig)
+		}
+	}
+	return view.MagnitudeN(x, unit, 4)
 }
 
 func unitSuffix(unit string) string {
