@@ -408,8 +408,9 @@ func quantityText(x *float64, unit string) string {
 }
 
 // ApplyText is how a page writes a value it applies to an input or to
-// circuit text: a solution to seven digits (its quantity then meets the
-// target to about 10⁻⁷ of its slope), a standard value exactly.
+// circuit text: a solution with the fewest digits that stay within
+// 5·10⁻⁸ of it (seven or eight; its quantity then meets the target to
+// that fraction of its slope), a standard value exactly.
 func ApplyText(x float64, exact bool) string {
 	if exact {
 		return Syntax(x)
