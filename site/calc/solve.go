@@ -441,8 +441,13 @@ func SolvePanel(r *api.SolveResult, l Layout) string {
 	w.Elem("p", head+" ("+strconv.Itoa(r.Evaluations)+" analyses of the circuit.)", "class", "aid-head")
 
 	apply := func(x float64, exact bool, label string) {
+		text := part(x)
+		if exact {
+			text = standardText(x, r.Unit)
+		}
 		w.Elem("button", label, "type", "button", "class", "quiet apply", "data-solve-apply", "", "data-part", r.Part,
-			"data-text", ApplyText(x, exact), "data-value", view.Num(x), "aria-label", label+": set "+r.Part+" to "+part(x))
+			"data-text", ApplyText(x, exact), "data-value", view.Num(x), "aria-label", "Set "+r.Part+" to "+text,
+			"title", "Set "+r.Part+" to "+text+" in the calculator")
 	}
 	row := func(kind, label string, p api.SolvePoint, exact bool, idx int, button string) {
 		w.Open("tr", "data-solve", kind, "data-index", strconv.Itoa(idx))
@@ -481,19 +486,19 @@ func SolvePanel(r *api.SolveResult, l Layout) string {
 		if len(r.Solutions) > 1 {
 			label += " " + strconv.Itoa(i+1)
 		}
-		row("solution", label, s, false, i, "Use this value")
+		row("solution", label, s, false, i, "Use")
 		if i < len(r.Standard) {
 			sv := r.Standard[i]
 			if sv.Below.Value == sv.Above.Value {
-				row("standard", r.Series+" value (exact)", sv.Below, true, i, "Use "+standardText(sv.Below.Value, r.Unit))
+				row("standard", r.Series+" value (exact)", sv.Below, true, i, "Use")
 				continue
 			}
-			row("below", r.Series+" below", sv.Below, true, i, "Use "+standardText(sv.Below.Value, r.Unit))
-			row("above", r.Series+" above", sv.Above, true, i, "Use "+standardText(sv.Above.Value, r.Unit))
+			row("below", r.Series+" below", sv.Below, true, i, "Use")
+			row("above", r.Series+" above", sv.Above, true, i, "Use")
 		}
 	}
 	if b := r.Best; b != nil {
-		row("best", "Closest", *b, false, 0, "Use this value")
+		row("best", "Closest", *b, false, 0, "Use")
 	}
 	if n := r.Nominal; n != nil {
 		row("nominal", "As given", *n, false, 0, "")

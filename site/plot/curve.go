@@ -326,6 +326,7 @@ func (c *Curve) AppendSVG(dst []byte) []byte {
 	}
 	b = append(b, `</g>`...)
 
+	var placed [][3]float64 // the labels placed: x from, x to, baseline
 	for _, p := range c.Points {
 		a, y := math.Abs(p.X), coord(p.Y)
 		if !(a > 0) || math.IsNaN(y) || !xa.in(math.Log10(a)) || !ya.in(y) {
@@ -339,10 +340,32 @@ func (c *Curve) AppendSVG(dst []byte) []byte {
 		b = appendAttrPx(b, "cy", py)
 		b = append(b, `/>`...)
 		if p.Label != "" {
-			ly := py - 8
-			if ly-10 < top {
-				ly = py + 16
+			// Above the point, else below, else a line further out: the
+			// first place inside the plot that no earlier label takes (two
+			// points close together, a target met twice, keep theirs
+			// apart).
+			w := textWidth(p.Label, 11)
+			lx0, lx1 := px+4, px+4+w // appendMarkerLabel's placement
+			if px-x0 > x1-px {
+				lx0, lx1 = px-4-w, px-4
 			}
+			ly := py - 8
+			for _, cand := range []float64{py - 8, py + 16, py - 21, py + 29, py - 34, py + 42} {
+				if cand-10 < top || cand+3 > bottom {
+					continue
+				}
+				free := true
+				for _, r := range placed {
+					if lx0 < r[1] && r[0] < lx1 && math.Abs(cand-r[2]) < 12 {
+						free = false
+					}
+				}
+				if free {
+					ly = cand
+					break
+				}
+			}
+			placed = append(placed, [3]float64{lx0, lx1, ly})
 			labels = appendMarkerLabel(labels, px, x0, x1, ly, p.Label)
 		}
 	}
