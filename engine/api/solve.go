@@ -1,7 +1,6 @@
 package api
 
 import (
-	"bytes"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -451,30 +450,6 @@ func StartSolve(req Request) (*SolveRun, error) {
 		return nil, err
 	}
 	return &SolveRun{plan: sp, run: sp.prob.Start()}, nil
-}
-
-// StartSolveJSON is StartSolve on a JSON request. On bad input it returns
-// a nil run and an ErrorResponse as JSON. It never panics.
-func StartSolveJSON(in []byte) (run *SolveRun, errJSON []byte) {
-	defer func() {
-		if r := recover(); r != nil {
-			run = nil
-			errJSON, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: fmt.Sprintf("internal error: %v (please report this circuit)", r)}})
-		}
-	}()
-	var req Request
-	dec := json.NewDecoder(bytes.NewReader(in))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&req); err != nil {
-		errJSON, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: "request is not valid JSON for this contract: " + err.Error()}})
-		return nil, errJSON
-	}
-	run, err := StartSolve(req)
-	if err != nil {
-		errJSON, _ = json.Marshal(ErrorResponse{Error: Body(err)})
-		return nil, errJSON
-	}
-	return run, nil
 }
 
 // Step evaluates the circuit up to n more times; it returns the

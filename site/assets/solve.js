@@ -12,7 +12,8 @@
 // its settings (the circuit's parts and what can be reached). The search
 // runs only on "Solve" (or once when a link brings its settings), in
 // slices of about 8 ms of engine time, one task each, so the page keeps
-// answering; Cancel stops it and keeps the previous results. A result's
+// answering (zportSite.runSliced); Cancel stops it and keeps the previous
+// results. A result's
 // buttons apply a value: on a stage page to the parameter's input, on the
 // custom page to the part's value in the circuit text (the engine
 // rewrites that one token, calc.ApplyValue); the calculator then
@@ -34,7 +35,6 @@
 
   var site = globalThis.zportSite;
   if (!site) return;
-  var SLICE_MS = 8; // engine time per slice
   var KEY = 'solve'; // the analysis's key (calc.solveTarget)
 
   function empty(values) {
@@ -58,7 +58,7 @@
     this.autorun = false; // run once the form is rendered (a link's settings)
 
     var d = document.createElement('details');
-    d.className = 'aids solve';
+    d.className = 'solve';
     d.id = host.id + '-solve';
     d.hidden = true;
     d.setAttribute('data-solve-state', 'idle');
@@ -285,15 +285,7 @@
   // ---- the search ----
 
   Solve.prototype.setRunning = function (on) {
-    var run = this.q('[data-solve-action="run"]');
-    var cancel = this.q('[data-solve-action="cancel"]');
-    var bar = this.q('[data-role="progress"]');
-    var focus = document.activeElement;
-    if (run) run.disabled = on;
-    if (cancel) cancel.disabled = !on;
-    if (bar) bar.hidden = !on;
-    if (on && focus === run && cancel) cancel.focus();
-    if (!on && focus === cancel && run) run.focus();
+    site.runButtons(this.q('[data-solve-action="run"]'), this.q('[data-solve-action="cancel"]'), this.q('[data-role="progress"]'), on);
   };
 
   Solve.prototype.setState = function (state) {
@@ -321,7 +313,7 @@
       job.run = started.run;
       self.setState('running');
       self.progress(0, started.total);
-      site.later(function () { self.slice(job); });
+      self.slice(job);
     });
   };
 
@@ -335,37 +327,13 @@
   };
 
   Solve.prototype.slice = function (job) {
-    if (!job || job !== this.job) return; // cancelled
-    if (!site.ready()) return this.stop('The live engine stopped; the search did not finish.');
     var self = this;
-    var t = performance.now();
-    site.call('solveStep', job.run, job.n).then(function (st) {
-      var dt = performance.now() - t;
-      if (job !== self.job) return;
-      job.engineMs += dt;
-      if (st.error) return self.stop('The search stopped: ' + st.error.message);
-      // Aim each slice at SLICE_MS of engine time, changing by at most 2×.
-      var f = Math.min(2, Math.max(0.5, SLICE_MS / Math.max(dt, 0.25)));
-      job.n = Math.max(1, Math.min(200, Math.round(job.n * f)));
-      self.progress(st.done, st.total);
-      if (!st.finished) {
-        site.later(function () { self.slice(job); });
-        return;
-      }
-      self.finish();
-    });
-  };
-
-  // finish renders the answer in one task and puts it on the page in the
-  // next.
-  Solve.prototype.finish = function () {
-    var job = this.job;
-    var self = this;
-    site.call('solvePanel', job.run).then(function (out) {
-      site.call('solveRelease', job.run);
-      site.later(function () {
-        if (self.job === job) self.show(job, out);
-      });
+    site.runSliced(job, {
+      step: 'solveStep', panel: 'solvePanel', release: 'solveRelease', max: 200,
+      live: function () { return self.job === job; },
+      progress: function (done, total) { self.progress(done, total); },
+      done: function (out) { self.show(job, out); },
+      stopped: function (why) { self.stop('The search stopped: ' + why + '.'); }
     });
   };
 
@@ -405,13 +373,7 @@
   };
 
   Solve.prototype.markStale = function () {
-    var results = this.q('[data-role="solve-results"]');
-    if (!results || !results.firstChild || results.classList.contains('is-stale')) return;
-    results.classList.add('is-stale');
-    var note = document.createElement('p');
-    note.className = 'stale-note';
-    note.textContent = 'Out of date: these results are for earlier values of the circuit. Solve again.';
-    results.insertBefore(note, results.firstChild);
+    site.staleResults(this.q('[data-role="solve-results"]'), 'Out of date: these results are for earlier values of the circuit. Solve again.');
   };
 
   // ---- applying a value ----

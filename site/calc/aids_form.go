@@ -230,17 +230,26 @@ func (f *aidForm) tolerance() {
 	w.Elem("button", "Add a target", "type", "button", "class", "quiet", "data-aid-action", "add-target")
 	w.Close("fieldset")
 
+	runControls(w, "data-aid-action", "Run the study", "Trials run", "tolerance")
+	w.Close("section")
+}
+
+// runControls ends an on-request form: the Run button (a submit) and
+// Cancel, marked with the data attribute action ("run", "cancel"), a
+// progress bar labelled progress, the run's status, the form's notice
+// (data-role ROLE-msg) and, after the form, the results' place
+// (ROLE-results).
+func runControls(w *view.Writer, action, run, progress, role string) {
 	w.Open("div", "class", "aid-run")
-	w.Elem("button", "Run the study", "type", "submit", "data-aid-action", "run")
-	w.Elem("button", "Cancel", "type", "button", "class", "quiet", "data-aid-action", "cancel", "disabled?", "yes")
-	w.Open("progress", "data-role", "progress", "max", "1", "value", "0", "hidden?", "yes", "aria-label", "Trials run")
+	w.Elem("button", run, "type", "submit", action, "run")
+	w.Elem("button", "Cancel", "type", "button", "class", "quiet", action, "cancel", "disabled?", "yes")
+	w.Open("progress", "data-role", "progress", "max", "1", "value", "0", "hidden?", "yes", "aria-label", progress)
 	w.Close("progress")
 	w.Elem("span", "", "class", "run-status", "data-role", "run-status", "role", "status")
 	w.Close("div")
-	w.Elem("p", "", "class", "calc-notice", "data-role", "tolerance-msg", "role", "alert", "hidden?", "yes")
+	w.Elem("p", "", "class", "calc-notice", "data-role", role+"-msg", "role", "alert", "hidden?", "yes")
 	w.Close("form")
-	w.Elem("div", "", "class", "aid-results", "data-role", "tolerance-results")
-	w.Close("section")
+	w.Elem("div", "", "class", "aid-results", "data-role", role+"-results")
 }
 
 // targetQuantities lists the quantities a target can name, as select

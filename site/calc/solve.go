@@ -330,16 +330,7 @@ func (sf *solveForm) write() {
 	formSelect(w, sf.id+"-solve-series", "data-solve", "series", "Standard values (IEC 60063)", solveField["series"], series, sf.get("series", api.DefaultSolveSeries))
 	w.Close("fieldset")
 
-	w.Open("div", "class", "aid-run")
-	w.Elem("button", "Solve", "type", "submit", "data-solve-action", "run")
-	w.Elem("button", "Cancel", "type", "button", "class", "quiet", "data-solve-action", "cancel", "disabled?", "yes")
-	w.Open("progress", "data-role", "progress", "max", "1", "value", "0", "hidden?", "yes", "aria-label", "Circuits analyzed")
-	w.Close("progress")
-	w.Elem("span", "", "class", "run-status", "data-role", "run-status", "role", "status")
-	w.Close("div")
-	w.Elem("p", "", "class", "calc-notice", "data-role", "solve-msg", "role", "alert", "hidden?", "yes")
-	w.Close("form")
-	w.Elem("div", "", "class", "aid-results", "data-role", "solve-results")
+	runControls(w, "data-solve-action", "Solve", "Circuits analyzed", "solve")
 	w.Close("div")
 }
 

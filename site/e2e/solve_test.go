@@ -100,14 +100,6 @@ func solveApply(t *testing.T, ctx context.Context, root, kind string) string {
 	return text
 }
 
-// pagePM is the phase margin the calculator under root shows.
-func pagePM(t *testing.T, ctx context.Context, root string) float64 {
-	t.Helper()
-	s := eval[string](t, ctx, `(document.querySelector(`+jsString(root+` [data-role="results"] [data-quantity="pm"]`)+`) || {dataset: {}}).dataset.value || ''`)
-	v, _ := strconv.ParseFloat(s, 64)
-	return v
-}
-
 func TestSolveStagePage(t *testing.T) {
 	ctx := start(t)
 	const root = "#calc-transimpedance"

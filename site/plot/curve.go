@@ -161,11 +161,7 @@ func (c *Curve) AppendSVG(dst []byte) []byte {
 		}
 		ya.lo, ya.hi = lo, hi
 	}
-	labelW := 0.0
-	for _, t := range ya.ticks {
-		labelW = max(labelW, textWidth(t.label, fontPx))
-	}
-	x0 := math.Round(outer + 16 + labelW + 10)
+	x0 := plotLeft(ya.ticks)
 	x1 := W - 16
 	xa := axis{lo: lx0, hi: lx1, p0: x0, p1: x1}
 	xTicks := func() []tick {
@@ -232,40 +228,7 @@ func (c *Curve) AppendSVG(dst []byte) []byte {
 	b = appendTitleDesc(b, id, title, c.describe(finite))
 	b = appendStyle(b, c.NoStyle)
 
-	var major, minor []byte
-	for _, t := range xa.ticks {
-		g := &minor
-		if t.major {
-			g = &major
-		}
-		*g = appendVLine(*g, tenths(xa.px(t.pos)), tenths(top), tenths(bottom))
-	}
-	for _, t := range ya.ticks {
-		g := &minor
-		if t.major || !c.YLog {
-			g = &major
-		}
-		*g = appendHLine(*g, tenths(x0), tenths(ya.px(t.pos)), tenths(x1))
-	}
-	b = append(b, `<path class="grid grid-minor" fill="none" stroke="currentColor" stroke-opacity=".07" d="`...)
-	b = append(b, minor...)
-	b = append(b, `"/><path class="grid" fill="none" stroke="currentColor" stroke-opacity=".16" d="`...)
-	b = append(b, major...)
-	b = append(b, `"/><path class="axis" fill="none" stroke="currentColor" stroke-opacity=".5" d="`...)
-	b = appendBox(b, x0, top, x1, bottom)
-	b = append(b, `"/><g class="tick" text-anchor="end">`...)
-	for _, t := range ya.ticks {
-		if t.label != "" {
-			b = appendText(b, "", x0-6, ya.px(t.pos), ".35em", t.label)
-		}
-	}
-	b = append(b, `</g><g class="tick" text-anchor="middle">`...)
-	for _, t := range xa.ticks {
-		if t.label != "" {
-			b = appendText(b, "", xa.px(t.pos), bottom+16, "", t.label)
-		}
-	}
-	b = append(b, `</g>`...)
+	b = appendFrame(b, &xa, &ya, x0, x1, top, bottom)
 	if c.YLabel != "" {
 		b = appendVText(b, 18, (top+bottom)/2, c.YLabel)
 	}

@@ -130,11 +130,7 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	step := max(1, niceStep(float64(maxC)*1.08, n))
 	cy.lo, cy.hi = 0, math.Max(step, math.Ceil(float64(maxC)*1.08/step-eps)*step)
 	cy.ticks = linTicks(0, cy.hi, step, "")
-	labelW := 0.0
-	for _, t := range cy.ticks {
-		labelW = max(labelW, textWidth(t.label, fontPx))
-	}
-	x0 := math.Round(outer + 16 + labelW + 10)
+	x0 := plotLeft(cy.ticks)
 	x1 := W - 16
 	xa := axis{lo: lo, hi: hi, p0: x0, p1: x1}
 	ticks := func() []tick {
