@@ -1,6 +1,7 @@
 package calc
 
 import (
+	"math"
 	"regexp"
 	"strconv"
 	"strings"
@@ -161,5 +162,29 @@ func TestApplyValue(t *testing.T) {
 	out = ApplyValue(ApplyInput{Circuit: text, Part: "Vin", Text: "2"})
 	if out.Error == nil || out.Error.Param != "solve.part" || !regexp.MustCompile(`Vin`).MatchString(out.Error.Message) {
 		t.Errorf("applying to a source: %+v", out)
+	}
+}
+
+// The transimpedance page's classic Cf is named with the margin it gives,
+// so its name differs between designs; a pin's value is still compared,
+// by its place in the list.
+func TestDesignValueNamedWithAFigureIsCompared(t *testing.T) {
+	out := Compute(Form{Topology: "transimpedance", Pins: []Pin{{Name: "bigger diode", Slot: 1, Params: map[string]string{"Cd": "40p"}}}})
+	if out.Error != nil {
+		t.Fatal(out.Error)
+	}
+	re := regexp.MustCompile(`data-compare="extra:(\d+)" data-pin="1" data-stat="value"[^>]*data-value="([^"]+)"`)
+	var cf string
+	for _, m := range re.FindAllStringSubmatch(out.HTML, -1) {
+		if m[1] == "2" { // Ci, L, then the classic Cf
+			cf = m[2]
+		}
+	}
+	if !strings.Contains(out.HTML, "Cf (classic “45°” formula, gives") || cf == "" {
+		t.Fatalf("no pin value compared for the classic Cf")
+	}
+	// Cf = √(Ci/(2π·Rf·gbw)) with the pin's Ci = 40p + 4p.
+	if v, _ := strconv.ParseFloat(cf, 64); math.Abs(v-math.Sqrt(44e-12/(2*math.Pi*1e6*10e6))) > 1e-9*v {
+		t.Errorf("the pin's classic Cf %s", cf)
 	}
 }
