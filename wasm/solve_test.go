@@ -58,6 +58,27 @@ func TestSolveRunInSlices(t *testing.T) {
 	}
 }
 
+// A closed-loop target renders too: its curve (an overshoot that is 0
+// over part of the range) once ran the module out of memory, where a
+// float's conversion to int differs from native code.
+func TestSolveResponsePanel(t *testing.T) {
+	z, _ := setup(t)
+	m := call(t, z, "solveStart", `{"form": {"topology": "follower", "id": "w", "settings": {"solve": {"part": "gbw", "quantity": "overshoot", "value": "5"}}}}`)
+	if msg := errorMessage(m); msg != "" {
+		t.Fatalf("solveStart: %s", msg)
+	}
+	id := m["run"].(float64)
+	for i := 0; i < 200; i++ {
+		if st := call(t, z, "solveStep", id, 20); st["finished"] == true {
+			break
+		}
+	}
+	p := call(t, z, "solvePanel", id)
+	if html, _ := p["html"].(string); !strings.Contains(html, `class="zplot zplot-curve"`) {
+		t.Errorf("solvePanel: %v", errorMessage(p))
+	}
+}
+
 func TestSolveFormAndApply(t *testing.T) {
 	z, _ := setup(t)
 	f := call(t, z, "solveForm", solveInput)

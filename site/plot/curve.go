@@ -383,7 +383,7 @@ func (c *Curve) describe(finite int) string {
 			continue
 		}
 		b = append(b, ": "...)
-		b = appendSpan(b, engLabel(slo, math.Abs(slo)/1e3, c.Unit), engLabel(shi, math.Abs(shi)/1e3, c.Unit))
+		b = appendSpan(b, valueText(slo, c.Unit), valueText(shi, c.Unit))
 		b = append(b, '.')
 	}
 	if finite == 0 && len(c.Series) == 0 {
@@ -393,4 +393,16 @@ func (c *Curve) describe(finite int) string {
 	b = appendLabels(b, " Marker: ", len(c.Markers), func(i int) string { return c.Markers[i].Label })
 	b = appendLabels(b, " Point: ", len(c.Points), func(i int) string { return c.Points[i].Label })
 	return string(b)
+}
+
+// valueText writes a value for a chart's description: four significant
+// digits, degrees, decibels and percent without an SI prefix.
+func valueText(v float64, unit string) string {
+	switch unit {
+	case "°":
+		return signed(strconv.FormatFloat(v, 'g', 4, 64)) + "°"
+	case "dB", "%":
+		return signed(strconv.FormatFloat(v, 'g', 4, 64)) + " " + unit
+	}
+	return value.Format(v, unit, 4)
 }

@@ -92,6 +92,15 @@ func TestCurveLogNegativeEscapedEmpty(t *testing.T) {
 	if n := len(pathPoints(t, path.attr["d"])[0]); n != 2 {
 		t.Errorf("%d points drawn, want 2", n)
 	}
+	// A quantity that is 0 over the whole range (a step without
+	// overshoot) describes itself without a tick step to go by.
+	flat := &Curve{X: []float64{1, 10, 100}, Unit: "%", Series: []Series{{Name: "overshoot", Values: []float64{0, 0, 0}}}}
+	if d := parse(t, flat.SVG()).all(byName("desc")); len(d) != 1 || !strings.Contains(d[0].text, "overshoot: 0 %") {
+		t.Errorf("description of a flat curve: %v", d)
+	}
+	if got := linLabel(0, 0); got != "0" {
+		t.Errorf("linLabel(0, 0) = %q", got)
+	}
 	empty := parse(t, (&Curve{}).SVG())
 	if notes := empty.all(byClass("text", "note")); len(notes) != 1 {
 		t.Error("no note on an empty chart")
