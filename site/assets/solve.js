@@ -295,7 +295,10 @@
   Solve.prototype.run = function () {
     if (!site.ready() || this.job || !this.rendered) return;
     this.clearMessages();
-    this.notify(); // the share link gets the settings of this search
+    // The share link gets the settings of this search; they are usually
+    // there already (each edit sends them), and sending them again would
+    // recompute the calculator while the search runs.
+    if (JSON.stringify(this.collect()) !== JSON.stringify(this.values)) this.notify();
     var job = { t0: performance.now(), engineMs: 0, n: 2, key: this.circuitKey() };
     this.job = job;
     this.setRunning(true);
