@@ -95,7 +95,9 @@ func register(global js.Value, exit func()) (release func()) {
 		runs.release(args[0].Int())
 		return `{"released":true}`
 	}))
-	solves := &runList[*solveRun]{what: "solve", byID: map[int]*solveRun{}}
+	// A solve's run is a coroutine: one dropped unfinished must be
+	// stopped, or its goroutine would wait for ever.
+	solves := &runList[*solveRun]{what: "solve", byID: map[int]*solveRun{}, drop: func(r *solveRun) { r.run.Stop() }}
 	add("solveStart", guard(func(args []js.Value) string {
 		in, err := oneString(args)
 		if err != nil {
@@ -180,12 +182,14 @@ type solveRun struct {
 }
 
 // runList holds the page's runs of one kind by id. A page releases a run
-// when it is done or cancelled; past maxRuns the oldest is dropped, so a
-// page that forgets cannot make the module grow without end.
+// when it is done or cancelled; past maxRuns the oldest is dropped (and
+// given to drop, when set), so a page that forgets cannot make the module
+// grow without end.
 type runList[R any] struct {
 	what string
 	next int
 	byID map[int]R
+	drop func(R)
 }
 
 const maxRuns = 8
@@ -198,6 +202,9 @@ func (rs *runList[R]) add(r R) int {
 			break
 		}
 		if id <= rs.next-maxRuns {
+			if rs.drop != nil {
+				rs.drop(rs.byID[id])
+			}
 			delete(rs.byID, id)
 		}
 	}
