@@ -17,8 +17,9 @@
 //	assets/      style.css; zport.js (the one loader of the engine and
 //	             the library the page scripts share), calculator.js (the
 //	             stage calculators), circuit.js (the custom-circuit page's
-//	             editor), aids.js (the design aids of both), plothover.js
-//	             (chart readout); icon.svg
+//	             editor), solve.js (design to a target, on both), aids.js
+//	             (the design aids of both), plothover.js (chart readout);
+//	             icon.svg
 //	schematics/  one SVG schematic per topology, part names as in the
 //	             generated circuit text
 //

@@ -144,7 +144,7 @@ type pageData struct {
 	Name, Title string
 	Body        template.HTML
 	CSP         string
-	Engine      bool // the page holds a calculator or the editor and loads the engine and aids.js
+	Engine      bool // the page holds a calculator or the editor and loads the engine, solve.js and aids.js
 	Calculator  bool // the page holds a stage calculator and loads calculator.js
 	Editor      bool // the page holds the circuit editor and loads circuit.js
 	Hover       bool // plothover.js is part of the site
@@ -444,7 +444,7 @@ func Single(opt Options) ([]byte, error) {
 	scripts = append(scripts, zjs)
 	// The page scripts follow zport.js, whose helpers they use, in the
 	// order of page.html.
-	for _, name := range []string{"calculator.js", "circuit.js", "aids.js"} {
+	for _, name := range []string{"calculator.js", "circuit.js", "solve.js", "aids.js"} {
 		js, err := fs.ReadFile(b.src, "assets/"+name)
 		if err != nil {
 			return nil, err

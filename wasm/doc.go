@@ -26,6 +26,15 @@
 //	zport.toleranceStep(id, n)  run n more trials: {"done", "total"}
 //	zport.tolerancePanel(id)    the same rendered: {"html", "done", "total"}
 //	zport.toleranceRelease(id)  forget the run (after it is done or to cancel)
+//	zport.solveForm(inJSON)     a calculator's solve settings (calc.SolveInput
+//	                            in, calc.SolveOutput out)
+//	zport.solveStart(inJSON)    start a solve in slices: {"run", "done", "total"}
+//	zport.solveStep(id, n)      analyze the circuit up to n more times:
+//	                            {"done", "total", "finished"}
+//	zport.solvePanel(id)        the answer rendered: {"html", "done", "total"}
+//	zport.solveRelease(id)      stop and forget the run
+//	zport.solveApply(inJSON)    circuit text with one number set
+//	                            (calc.ApplyInput in, calc.ApplyOutput out)
 //	zport.exit()                releases the functions and ends main
 //
 // These are the functions the pages call, and no more: the engine's JSON

@@ -44,6 +44,8 @@ func register(global js.Value, exit func()) (release func()) {
 	for name, fn := range map[string]func([]byte) []byte{
 		"aidsForm":   calc.AidsFormJSON,
 		"aidsPanels": calc.AidsPanelsJSON,
+		"solveForm":  calc.SolveFormJSON,
+		"solveApply": calc.ApplyValueJSON,
 	} {
 		add(name, guard(func(args []js.Value) string {
 			in, err := oneString(args)
@@ -53,7 +55,7 @@ func register(global js.Value, exit func()) (release func()) {
 			return string(fn([]byte(in)))
 		}))
 	}
-	runs := &toleranceRuns{byID: map[int]*toleranceRun{}}
+	runs := &runList[*toleranceRun]{what: "tolerance run", byID: map[int]*toleranceRun{}}
 	add("toleranceStart", guard(func(args []js.Value) string {
 		in, err := oneString(args)
 		if err != nil {
@@ -93,6 +95,49 @@ func register(global js.Value, exit func()) (release func()) {
 		runs.release(args[0].Int())
 		return `{"released":true}`
 	}))
+	// A solve's run is a coroutine: one dropped unfinished must be
+	// stopped, or its goroutine would wait for ever.
+	solves := &runList[*solveRun]{what: "solve", byID: map[int]*solveRun{}, drop: func(r *solveRun) { r.run.Stop() }}
+	add("solveStart", guard(func(args []js.Value) string {
+		in, err := oneString(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		run, layout, errJSON := calc.StartSolveJSON([]byte(in))
+		if run == nil {
+			return string(errJSON)
+		}
+		n := solves.add(&solveRun{run: run, layout: layout})
+		_, total, _ := run.Step(0)
+		return fmt.Sprintf(`{"run":%d,"done":0,"total":%d}`, n, total)
+	}))
+	add("solveStep", guard(func(args []js.Value) string {
+		if len(args) != 2 || args[1].Type() != js.TypeNumber {
+			return errorJSON("zport.solveStep takes a run id and a number of evaluations")
+		}
+		r, err := solves.get(args[:1])
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		done, total, finished := r.run.Step(min(max(args[1].Int(), 1), 1000))
+		return fmt.Sprintf(`{"done":%d,"total":%d,"finished":%t}`, done, total, finished)
+	}))
+	add("solvePanel", guard(func(args []js.Value) string {
+		r, err := solves.get(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		return string(calc.EncodeSolve(calc.SolveOutputOf(r.run, r.layout)))
+	}))
+	add("solveRelease", guard(func(args []js.Value) string {
+		r, err := solves.get(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		r.run.Stop()
+		solves.release(args[0].Int())
+		return `{"released":true}`
+	}))
 	exited := false
 	add("exit", js.FuncOf(func(js.Value, []js.Value) any {
 		if !exited {
@@ -129,17 +174,27 @@ type toleranceRun struct {
 	layout calc.Layout
 }
 
-// toleranceRuns holds the page's runs by id. A page releases a run when it
-// is done or cancelled; past maxRuns the oldest is dropped, so a page that
-// forgets cannot make the module grow without end.
-type toleranceRuns struct {
+// solveRun is a solve run in slices from the page, and how its panel is
+// laid out.
+type solveRun struct {
+	run    *api.SolveRun
+	layout calc.Layout
+}
+
+// runList holds the page's runs of one kind by id. A page releases a run
+// when it is done or cancelled; past maxRuns the oldest is dropped (and
+// given to drop, when set), so a page that forgets cannot make the module
+// grow without end.
+type runList[R any] struct {
+	what string
 	next int
-	byID map[int]*toleranceRun
+	byID map[int]R
+	drop func(R)
 }
 
 const maxRuns = 8
 
-func (rs *toleranceRuns) add(r *toleranceRun) int {
+func (rs *runList[R]) add(r R) int {
 	rs.next++
 	rs.byID[rs.next] = r
 	for id := range rs.byID {
@@ -147,24 +202,28 @@ func (rs *toleranceRuns) add(r *toleranceRun) int {
 			break
 		}
 		if id <= rs.next-maxRuns {
+			if rs.drop != nil {
+				rs.drop(rs.byID[id])
+			}
 			delete(rs.byID, id)
 		}
 	}
 	return rs.next
 }
 
-func (rs *toleranceRuns) get(args []js.Value) (*toleranceRun, error) {
+func (rs *runList[R]) get(args []js.Value) (R, error) {
+	var zero R
 	if len(args) != 1 || args[0].Type() != js.TypeNumber {
-		return nil, fmt.Errorf("expected one argument, a tolerance run id")
+		return zero, fmt.Errorf("expected one argument, a %s id", rs.what)
 	}
 	r, ok := rs.byID[args[0].Int()]
 	if !ok {
-		return nil, fmt.Errorf("no tolerance run %d (a run is gone once released or cancelled)", args[0].Int())
+		return zero, fmt.Errorf("no %s %d (a run is gone once released or cancelled)", rs.what, args[0].Int())
 	}
 	return r, nil
 }
 
-func (rs *toleranceRuns) release(id int) { delete(rs.byID, id) }
+func (rs *runList[R]) release(id int) { delete(rs.byID, id) }
 
 func oneString(args []js.Value) (string, error) {
 	if len(args) != 1 || args[0].Type() != js.TypeString {

@@ -83,7 +83,7 @@ func TestOnlyWhatPagesCall(t *testing.T) {
 	for i := range keys.Length() {
 		names = append(names, keys.Index(i).String())
 	}
-	want := "aidsForm aidsPanels circuit exit panel tolerancePanel toleranceRelease toleranceStart toleranceStep"
+	want := "aidsForm aidsPanels circuit exit panel solveApply solveForm solvePanel solveRelease solveStart solveStep tolerancePanel toleranceRelease toleranceStart toleranceStep"
 	if slices.Sort(names); strings.Join(names, " ") != want {
 		t.Errorf("zport has %v, want %s", names, want)
 	}

@@ -138,6 +138,25 @@ func (m *Model) Nominal() []float64 {
 	return x
 }
 
+// Vary returns a function that builds the circuit with parameter j at x
+// and every other parameter at its nominal value, for a search along one
+// parameter (package zport/engine/solve). It writes into a scratch copy
+// of the circuit, which the next call changes again (or regenerates the
+// stage's text, when the model has Rebuild).
+func (m *Model) Vary(j int) func(x float64) (*circuit.Circuit, error) {
+	c := copyCircuit(m.Circuit)
+	xs := m.Nominal()
+	p := m.Params[j]
+	return func(x float64) (*circuit.Circuit, error) {
+		if m.Rebuild != nil {
+			xs[j] = x
+			return m.Rebuild(xs)
+		}
+		setField(&c.Parts[p.Part], p.Field, x)
+		return c, nil
+	}
+}
+
 // Param returns the index of the parameter called name, or −1.
 func (m *Model) Param(name string) int {
 	for i, p := range m.Params {

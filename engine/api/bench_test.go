@@ -34,6 +34,7 @@ func BenchmarkDifference3Port400(b *testing.B)      { benchStage(b, "difference"
 func BenchmarkBoostedCascode2Port400(b *testing.B)  { benchStage(b, "boostedcascode") }
 func BenchmarkEmitterFollower2Port400(b *testing.B) { benchStage(b, "emitterfollower") }
 func BenchmarkMiller2Port400(b *testing.B)          { benchStage(b, "miller") }
+func BenchmarkCapload2Port400(b *testing.B)         { benchStage(b, "capload") }
 
 func BenchmarkInverting3Port400Noise(b *testing.B)      { benchStageNoise(b, "inverting", true) }
 func BenchmarkTransimpedance2Port400Noise(b *testing.B) { benchStageNoise(b, "transimpedance", true) }

@@ -1,7 +1,9 @@
 package topology
 
 import (
+	"fmt"
 	"math"
+
 	"zport/engine/value"
 )
 
@@ -227,5 +229,44 @@ func caploadExtras(v Values) []Extra {
 		x = append(x, opmMarginExtras(caploadCircuit(opmWith(v, nil, "Riso")), "without Riso", "Riso removed (the pin drives CL directly)", opmSrcEngine)...)
 	}
 	x = append(x, opmMarginExtras(caploadCircuit(opmWith(v, nil, "CL")), "without CL", "the stage unloaded by CL, for comparison", opmSrcEngine)...)
+	with := ""
+	if v.Has("Cf") {
+		with = " (with Cf as given)"
+	}
+	for _, pm := range []float64{45, 60} {
+		guess := firstRoot(1e-3, 1e6, 37, func(r float64) float64 { pm0, _ := caploadSimple(v, r); return pm0 - pm })
+		_, fc := caploadSimple(v, guess)
+		x = append(x, Extra{Name: fmt.Sprintf("Riso for %g°", pm), Value: opmSolvePM("capload", v, "Riso", pm, guess, fc), Unit: "Ω",
+			Note:   fmt.Sprintf("the smallest Riso at which this stage's full model%s has exactly %g° of phase margin; none shown when no Riso within 3 times the simple loop's (%s) gives it", with, pm, value.Format(guess, "Ω", 4)),
+			Source: opmSrcSolve + "; the estimate from T = a·β·(1 + s·Riso·CL)/(1 + s(ro + Riso)CL), β = R1/(R1 + Rf) (1 without R1), with RL, rid, rcm, Cf and the feedback network's loading neglected [derived here]"})
+	}
 	return x
+}
+
+// caploadSimple is the phase margin and crossover (Hz) of the isolated
+// load's simple loop T = a(s)·β·(1 + s·Riso·CL)/(1 + s(ro + Riso)CL)
+// [derived here: the pin sees ro against Riso + 1/(sCL)], the estimate the
+// solver starts from.
+func caploadSimple(v Values, riso float64) (pm, fc float64) {
+	beta := 1.0
+	if v.Has("R1") {
+		beta = v["R1"] / (v["R1"] + v["Rf"])
+	}
+	m := opmAmpAt(v, 0)
+	tz, tp := riso*v["CL"], (v["ro"]+riso)*v["CL"]
+	T := func(w float64) complex128 {
+		s := complex(0, w)
+		return m.gain(w/(2*math.Pi)) * complex(beta, 0) * (1 + s*complex(tz, 0)) / (1 + s*complex(tp, 0))
+	}
+	phase := func(w float64) float64 {
+		p := math.Atan(w*tz) - math.Atan(w*tp)
+		if a := m.amp; a.GBW > 0 {
+			p -= math.Atan(w / (2 * math.Pi * a.GBW / a.A0))
+		}
+		if a := m.amp; a.P2 > 0 {
+			p -= math.Atan(w / (2 * math.Pi * a.P2))
+		}
+		return p * 180 / math.Pi
+	}
+	return idealPM(T, phase)
 }

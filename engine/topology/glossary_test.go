@@ -2,6 +2,7 @@ package topology
 
 import (
 	"math"
+	"math/cmplx"
 	"regexp"
 	"strings"
 	"testing"
@@ -63,20 +64,29 @@ func checkGnd(t *testing.T, what, label string) {
 }
 
 // The transimpedance stage's caution gives the phase margins of the two
-// Cf rules computed on the ideal model, not written by hand. The bisection
-// is checked against the crossing in closed form: with a = RfCf, b =
-// Rf(Ci + Cf), |T(jω)| = 1 is b²x² + (1 − ωt²a²)x − ωt² = 0 in x = ω², and
-// PM = 90° + math.Atan(ωa) − math.Atan(ωb) [derived]; and both against the check of
+// Cf rules computed on the ideal model, not written by hand. The closed
+// form of the crossing (|T(jω)| = 1 is a quadratic in ω²) is checked
+// against a bisection on |T(jω)| itself, T = (ωt/jω)(1 + jωRfCf)/
+// (1 + jωRf(Ci + Cf)) [derived]; and both against the check of
 // REFERENCES.md section 5 (Rf = 1 MΩ, Ci = 20 pF, gbw = 10 MHz: 52.52° and
 // 65.83°, computed there with a0 = 10⁹ in the engine [derived]).
 func TestTIAMarginsComputed(t *testing.T) {
-	closed := func(rf, ci, cf, gbw float64) float64 {
+	bisected := func(rf, ci, cf, gbw float64) float64 {
 		wt := 2 * math.Pi * gbw
-		a, b := rf*cf, rf*(ci+cf)
-		p := 1 - wt*wt*a*a
-		x := (-p + math.Sqrt(p*p+4*b*b*wt*wt)) / (2 * b * b)
-		w := math.Sqrt(x)
-		return 90 + (math.Atan(w*a)-math.Atan(w*b))*180/math.Pi
+		T := func(w float64) complex128 {
+			s := complex(0, w)
+			return complex(wt, 0) / s * (1 + s*complex(rf*cf, 0)) / (1 + s*complex(rf*(ci+cf), 0))
+		}
+		lo, hi := math.Log(1e-3), math.Log(1e15)
+		for range 200 {
+			mid := (lo + hi) / 2
+			if cmplx.Abs(T(math.Exp(mid))) > 1 {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		return 180 + cmplx.Phase(T(math.Exp(lo)))*180/math.Pi
 	}
 	rf, ci, gbw := 1e6, 20e-12, 10e6
 	wt := 2 * math.Pi * gbw
@@ -85,9 +95,9 @@ func TestTIAMarginsComputed(t *testing.T) {
 	for _, c := range []struct {
 		cf, want float64
 	}{{c45, 52.52}, {cbw, 65.83}} {
-		got := tiaIdealMargin(rf, ci, c.cf, gbw)
-		if d := got - closed(rf, ci, c.cf, gbw); d > 1e-9 || d < -1e-9 {
-			t.Errorf("Cf = %g: bisection %.12f°, closed form differs by %g°", c.cf, got, d)
+		got := tiaIdealPM(rf, ci, c.cf, gbw)
+		if d := got - bisected(rf, ci, c.cf, gbw); d > 1e-9 || d < -1e-9 {
+			t.Errorf("Cf = %g: closed form %.12f°, bisection differs by %g°", c.cf, got, d)
 		}
 		if d := got - c.want; d > 0.005 || d < -0.005 {
 			t.Errorf("Cf = %g: %.4f°, REFERENCES.md says %.2f°", c.cf, got, c.want)

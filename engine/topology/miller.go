@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 
+	"zport/engine/numeric"
 	"zport/engine/value"
 )
 
@@ -93,8 +94,8 @@ func mlTransfer(v Values) (num, den poly) {
 // mlFollower is the phase margin and unity-gain frequency of the amplifier
 // connected as a unity-gain follower, whose loop gain is the open-loop A(s)
 // (M1's gate draws no current, so closing the loop loads nothing): the
-// first downward crossing of |A| = 1, refined by bisection on log f, and
-// PM = 180° + ∠A there.
+// first downward crossing of |A| = 1, refined by Brent's method on log f,
+// and PM = 180° + ∠A there.
 func mlFollower(v Values) (pm, fu float64) {
 	num, den := mlTransfer(v)
 	zeros, poles := num.roots(), den.roots()
@@ -116,22 +117,12 @@ func mlFollower(v Values) (pm, fu float64) {
 	if !(math.Abs(a0) > 1) {
 		return math.NaN(), math.NaN()
 	}
-	lo := 1e-3
-	for hi := lo * 1.25; hi < 1e15; lo, hi = hi, hi*1.25 {
-		if mag(hi) < 1 {
-			for i := 0; i < 80; i++ {
-				mid := math.Sqrt(lo * hi)
-				if mag(mid) < 1 {
-					hi = mid
-				} else {
-					lo = mid
-				}
-			}
-			fu = math.Sqrt(lo * hi)
-			return 180 + rootPhase(2*math.Pi*fu, zeros, poles), fu
-		}
+	// |A| > 1 at the start, so the first crossing is downward.
+	fu = firstRoot(1e-3, 1e15, 187, func(f float64) float64 { return math.Log(mag(f)) })
+	if math.IsNaN(fu) {
+		return math.NaN(), math.NaN()
 	}
-	return math.NaN(), math.NaN()
+	return 180 + rootPhase(2*math.Pi*fu, zeros, poles), fu
 }
 
 func mlCircuit(v Values) string {
@@ -282,29 +273,24 @@ func mlExtras(v Values) []Extra {
 	return x
 }
 
-// mlCcFor finds, by bisection on log Cc between Cc/100 and 100·Cc, the Cc
-// at which the follower's phase margin reaches pm (it rises with Cc).
+// mlCcFor finds, by Brent's method on log Cc between Cc/100 and 100·Cc,
+// the Cc at which the follower's phase margin reaches pm (it rises with
+// Cc).
 func mlCcFor(v Values, pm float64) float64 {
-	at := func(c float64) float64 {
-		p, _ := mlFollower(opmWith(v, map[string]float64{"Cc": c}))
-		return p
+	at := func(u float64) (float64, bool) {
+		p, _ := mlFollower(opmWith(v, map[string]float64{"Cc": math.Exp(u)}))
+		return p - pm, !math.IsNaN(p)
 	}
-	lo, hi := v["Cc"]/100, v["Cc"]*100
-	if !(at(hi) >= pm) {
+	lo, hi := math.Log(v["Cc"]/100), math.Log(v["Cc"]*100)
+	ghi, _ := at(hi)
+	if !(ghi >= 0) {
 		return math.NaN()
 	}
-	if at(lo) >= pm {
-		return lo
+	glo, _ := at(lo)
+	if glo >= 0 {
+		return math.Exp(lo)
 	}
-	for i := 0; i < 60; i++ {
-		mid := math.Sqrt(lo * hi)
-		if at(mid) >= pm {
-			hi = mid
-		} else {
-			lo = mid
-		}
-	}
-	return math.Sqrt(lo * hi)
+	return math.Exp(numeric.Root(lo, hi, glo, ghi, at))
 }
 
 func init() {

@@ -23,8 +23,9 @@ var transimpedance = &Topology{
 		"op amp's summing node, and Rf turns its current into an output voltage of −Iin·Rf. The sensor's " +
 		"capacitance Cd and the op amp's input capacitance Cin sit at the summing node, where with Rf they put " +
 		"a second pole in the loop: without a feedback capacitor Cf the loop rings or oscillates. The page " +
-		"suggests Cf two ways — the approximate \"45°\" rule and the exact second-order Butterworth value — and " +
-		"shows the phase margin, crossover and closed-loop bandwidth each actually gives on this stage's full " +
+		"suggests Cf by two formulas — the classic \"45°\" one, whose label says the margin it really gives, and " +
+		"the exact second-order Butterworth value — with the phase margin, crossover and closed-loop bandwidth " +
+		"each gives on this stage's full model, and by the solver: the Cf for exactly 45° and for 60° on that " +
 		"model. The summing node is what the sensor sees: a low impedance that rises with frequency and, with a " +
 		"single-pole op amp, looks like an inductance Rf/(2π·gbw).",
 	Scenario: "Invented scenario: the light-level monitor of an optical test bench uses a photodiode with " +
@@ -135,12 +136,13 @@ const (
 	tiaSrcBW = "exact second-order Butterworth value for a = ωt/s, Z_T = −Rf/[1 + s(Rf·Cf + 1/ωt) + s²·Rf(Ci + Cf)/ωt] [derived here]"
 )
 
-// transimpedanceExtras suggests Cf by the approximate 45° rule and the exact
-// Butterworth formula, with Ci the whole summing-node capacitance
+// transimpedanceExtras suggests Cf by the classic "45°" formula and the
+// exact Butterworth formula, with Ci the whole summing-node capacitance
 // Cd + Cin + ccm + cid (the + input is grounded, so cid too goes to gnd; the
-// other parts at the node, Rsh, rid and rcm, are resistive), and
-// reports what each actually gives on this stage's full model: the engine
-// analyzes the stage with that Cf substituted.
+// other parts at the node, Rsh, rid and rcm, are resistive), and reports
+// what each actually gives on this stage's full model: the engine analyzes
+// the stage with that Cf substituted. Then the solver finds the Cf for
+// exactly 45° and 60° on the full model, starting from the ideal model's.
 func transimpedanceExtras(v Values) []Extra {
 	ci := tiaCi(v)
 	rf := v["Rf"]
@@ -157,13 +159,24 @@ func transimpedanceExtras(v Values) []Extra {
 		return x
 	}
 	c45 := math.Sqrt(ci / (wt * rf))
-	x = append(x, tiaCfExtras(v, "45° rule", c45, "Cf ≈ √(Ci/(2π·Rf·gbw))", tiaSrc45)...)
+	x = append(x, tiaCfExtras(v, tiaClassic, c45, "Cf ≈ √(Ci/(2π·Rf·gbw))", tiaSrc45)...)
 	if arg := 2*rf*ci*wt - 1; arg > 0 {
 		cbw := math.Sqrt(arg) / (rf * wt)
 		x = append(x, tiaCfExtras(v, "Butterworth", cbw, "Cf = √(2·Rf·Ci·ωt − 1)/(Rf·ωt)", tiaSrcBW)...)
 	}
+	for _, pm := range []float64{45, 60} {
+		guess := firstRoot(1e-18, 1, 37, func(cf float64) float64 { pm0, _ := tiaIdeal(rf, ci, cf, gbw); return pm0 - pm })
+		_, fc := tiaIdeal(rf, ci, guess, gbw)
+		x = append(x, Extra{Name: fmt.Sprintf("Cf for %g°", pm), Value: opmSolvePM("transimpedance", v, "Cf", pm, guess, fc), Unit: "F",
+			Note:   fmt.Sprintf("the Cf at which this stage's full model has exactly %g° of phase margin; none shown when no Cf within 3 times the ideal model's (%s) gives it", pm, value.Format(guess, "F", 4)),
+			Source: opmSrcSolve})
+	}
 	return x
 }
+
+// tiaClassic labels the classic Cf formula: "45°" in quotes, because it
+// gives more (its Cf's name says how much).
+const tiaClassic = "classic “45°” formula"
 
 // tiaCi is the summing node's capacitance to gnd: the sensor's Cd, the
 // extra Cin, and the op amp's ccm and cid (its + input is grounded).
@@ -180,18 +193,24 @@ func tiaCfExtras(v Values, label string, cf float64, formula, source string) []E
 	q := math.Sqrt(rf*(ci+cf)/wt) / (rf*cf + 1/wt)
 	w := opmWith(v, map[string]float64{"Cf": cf})
 	text := transimpedanceCircuit(w)
+	margins := opmMarginExtras(text, "with Cf ("+label+")", "the stage's full model with this Cf", opmSrcEngine)
+	name := "Cf (" + label + ")"
+	if pm := margins[0].Value; label == tiaClassic && !math.IsNaN(pm) {
+		// The name says what the formula really gives.
+		name = fmt.Sprintf("Cf (%s, gives %.1f°)", label, pm)
+	}
 	out := []Extra{
-		{Name: "Cf (" + label + ")", Value: cf, Unit: "F", Note: formula + ", Ci = Cd + Cin + ccm + cid", Source: source},
+		{Name: name, Value: cf, Unit: "F", Note: formula + ", Ci = Cd + Cin + ccm + cid", Source: source},
 		{Name: "Q with Cf (" + label + ")", Value: q, Unit: "", Note: "Q = √(Rf(Ci + Cf)/ωt)/(Rf·Cf + 1/ωt), on the ideal model a = ωt/s, no ro, no load", Source: tiaSrcBW},
 	}
-	out = append(out, opmMarginExtras(text, "with Cf ("+label+")", "the stage's full model with this Cf", opmSrcEngine)...)
+	out = append(out, margins...)
 	out = append(out, Extra{Name: "f−3dB with Cf (" + label + ")", Value: tiaBandwidth(text), Unit: "Hz",
 		Note: "where the closed-loop transimpedance falls 3 dB below its DC value", Source: opmSrcEngine})
 	return out
 }
 
 // tiaBandwidth finds the first frequency where |G| falls to |G(0)|/√2 for
-// the circuit text, by the engine, refined by bisection on log f.
+// the circuit text, by the engine, refined by Brent's method on log f.
 func tiaBandwidth(text string) float64 {
 	c, err := circuit.Parse(text)
 	if err != nil {
@@ -217,23 +236,7 @@ func tiaBandwidth(text string) float64 {
 	}
 	target := mag(0) / math.Sqrt2
 	grid := opmMarginGrid()
-	prev := grid[0]
-	for _, f := range grid {
-		if mag(f) < target {
-			lo, hi := math.Log(prev), math.Log(f)
-			for i := 0; i < 60; i++ {
-				mid := (lo + hi) / 2
-				if mag(math.Exp(mid)) < target {
-					hi = mid
-				} else {
-					lo = mid
-				}
-			}
-			return math.Exp((lo + hi) / 2)
-		}
-		prev = f
-	}
-	return math.NaN()
+	return firstRoot(grid[0], grid[len(grid)-1], len(grid), func(f float64) float64 { return mag(f) - target })
 }
 
 // tiaCfCaution says which phase margin the two Cf rules give on the ideal
@@ -252,27 +255,23 @@ func tiaCfCaution(t *Topology) string {
 	cbw := math.Sqrt(2*rf*ci*wt-1) / (rf * wt)
 	return fmt.Sprintf("The \"45°\" rule for Cf gives about %.0f° of phase margin on the ideal model (a single-pole op amp, no output resistance, no load) with this page's default sensor, the Butterworth value about %.0f°. "+
 		"A second pole or load capacitance lowers the margin: the design values show what each gives on the full model.",
-		tiaIdealMargin(rf, ci, c45, gbw), tiaIdealMargin(rf, ci, cbw, gbw))
+		tiaIdealPM(rf, ci, c45, gbw), tiaIdealPM(rf, ci, cbw, gbw))
 }
 
-// tiaIdealMargin is the phase margin of the ideal model with feedback
-// capacitor cf: T(s) = (ωt/s)·(1 + s·Rf·Cf)/(1 + s·Rf·(Ci + Cf)), whose
-// magnitude falls monotonically, so its one unity crossing is found by
-// bisection on log ω.
-func tiaIdealMargin(rf, ci, cf, gbw float64) float64 {
+func tiaIdealPM(rf, ci, cf, gbw float64) float64 {
+	pm, _ := tiaIdeal(rf, ci, cf, gbw)
+	return pm
+}
+
+// tiaIdeal is the phase margin and crossover (Hz) of the ideal model
+// with feedback capacitor cf: T(s) = (ωt/s)·(1 + s·τ1)/(1 + s·τ2),
+// τ1 = Rf·Cf, τ2 = Rf·(Ci + Cf), the two-pole loop [derived here]. |T| = 1
+// is a quadratic in ω², τ2²ω⁴ + (1 − ωt²τ1²)ω² − ωt² = 0, with one
+// positive root, and the margin is 90° + atan(ωτ1) − atan(ωτ2) there.
+func tiaIdeal(rf, ci, cf, gbw float64) (pm, fc float64) {
 	wt := 2 * math.Pi * gbw
-	T := func(w float64) complex128 {
-		s := complex(0, w)
-		return complex(wt, 0) / s * (1 + s*complex(rf*cf, 0)) / (1 + s*complex(rf*(ci+cf), 0))
-	}
-	lo, hi := math.Log(1e-3), math.Log(1e15)
-	for range 200 {
-		mid := (lo + hi) / 2
-		if cmplx.Abs(T(math.Exp(mid))) > 1 {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
-	return 180 + cmplx.Phase(T(math.Exp(lo)))*180/math.Pi
+	t1, t2 := rf*cf, rf*(ci+cf)
+	b := 1 - wt*wt*t1*t1
+	w := math.Sqrt((-b + math.Sqrt(b*b+4*t2*t2*wt*wt)) / (2 * t2 * t2))
+	return 90 + (math.Atan(w*t1)-math.Atan(w*t2))*180/math.Pi, w / (2 * math.Pi)
 }

@@ -13,7 +13,8 @@
 // its own (together some tens of milliseconds in the engine, too much to
 // redo on every key). The tolerance study runs only on "Run", in slices of
 // about 8 ms of engine time each, one task at a time, so the page keeps
-// answering; Cancel stops it and keeps the previous results.
+// answering (zportSite.runSliced); Cancel stops it and keeps the previous
+// results.
 //
 // The section attaches itself to every calculator element
 // ([data-calculator] or [data-circuit-editor], with a [data-role="aids"]
@@ -37,7 +38,6 @@
 
   var site = globalThis.zportSite;
   if (!site) return;
-  var SLICE_MS = 8; // engine time per slice
   var REFRESH_MS = 250; // quiet time before the fast panels follow an edit
   var KEY = 'aid'; // the analysis's key (calc.designAids)
 
@@ -326,18 +326,8 @@
 
   // ---- the tolerance study ----
 
-  // setRunning switches the Run and Cancel buttons, handing the focus
-  // from the one being disabled to the other.
   Aids.prototype.setRunning = function (on) {
-    var run = this.q('[data-aid-action="run"]');
-    var cancel = this.q('[data-aid-action="cancel"]');
-    var bar = this.q('[data-role="progress"]');
-    var focus = document.activeElement;
-    if (run) run.disabled = on;
-    if (cancel) cancel.disabled = !on;
-    if (bar) bar.hidden = !on;
-    if (on && focus === run && cancel) cancel.focus();
-    if (!on && focus === cancel && run) run.focus();
+    site.runButtons(this.q('[data-aid-action="run"]'), this.q('[data-aid-action="cancel"]'), this.q('[data-role="progress"]'), on);
   };
 
   Aids.prototype.setState = function (state) {
@@ -367,7 +357,7 @@
       job.total = started.total;
       self.setState('running');
       self.progress(0, started.total);
-      site.later(function () { self.slice(job); });
+      self.slice(job);
     });
   };
 
@@ -387,37 +377,13 @@
   };
 
   Aids.prototype.slice = function (job) {
-    if (!job || job !== this.job) return; // cancelled
-    if (!site.ready()) return this.stop('The live engine stopped; the study did not finish.');
     var self = this;
-    var t = performance.now();
-    site.call('toleranceStep', job.run, job.n).then(function (st) {
-      var dt = performance.now() - t;
-      if (job !== self.job) return;
-      job.engineMs += dt;
-      if (st.error) return self.stop('The study stopped: ' + st.error.message);
-      // Aim each slice at SLICE_MS of engine time, changing by at most 2×.
-      var f = Math.min(2, Math.max(0.5, SLICE_MS / Math.max(dt, 0.25)));
-      job.n = Math.max(1, Math.min(2000, Math.round(job.n * f)));
-      self.progress(st.done, st.total);
-      if (st.done < st.total) {
-        site.later(function () { self.slice(job); });
-        return;
-      }
-      self.finish();
-    });
-  };
-
-  // finish renders the panel in one task and puts it on the page in the
-  // next, so neither holds the page for long.
-  Aids.prototype.finish = function () {
-    var job = this.job;
-    var self = this;
-    site.call('tolerancePanel', job.run).then(function (out) {
-      site.call('toleranceRelease', job.run);
-      site.later(function () {
-        if (self.job === job) self.show(job, out);
-      });
+    site.runSliced(job, {
+      step: 'toleranceStep', panel: 'tolerancePanel', release: 'toleranceRelease', max: 2000,
+      live: function () { return self.job === job; },
+      progress: function (done, total) { self.progress(done, total); },
+      done: function (out) { self.show(job, out); },
+      stopped: function (why) { self.stop('The study stopped: ' + why + '.'); }
     });
   };
 
@@ -461,13 +427,7 @@
   };
 
   Aids.prototype.markStale = function () {
-    var results = this.q('[data-role="tolerance-results"]');
-    if (!results || !results.firstChild || results.classList.contains('is-stale')) return;
-    results.classList.add('is-stale');
-    var note = document.createElement('p');
-    note.className = 'stale-note';
-    note.textContent = 'Out of date: these results are for earlier values of the circuit. Run the study again.';
-    results.insertBefore(note, results.firstChild);
+    site.staleResults(this.q('[data-role="tolerance-results"]'), 'Out of date: these results are for earlier values of the circuit. Run the study again.');
   };
 
   // ---- standard values and sensitivity ----

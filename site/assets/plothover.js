@@ -1,7 +1,8 @@
 // plothover.js: a cursor and readout for the charts that zport/site/plot
-// draws: Bode charts (svg.zplot with data-freq), time charts (data-time)
-// and Nyquist charts (data-nyquist). Pointer movement or keyboard focus
-// shows a cursor and, inside the SVG, the frequency (or time) and each
+// draws: Bode charts (svg.zplot with data-freq), time charts (data-time),
+// Nyquist charts (data-nyquist) and curves of a quantity against a part
+// (data-curve). Pointer movement or keyboard focus shows a cursor and,
+// inside the SVG, the frequency (or time, or the part's value) and each
 // trace's value at the nearest point: magnitude and phase, the value, or
 // |T| and ∠T.
 // Arrow keys move the cursor (PageUp/PageDown by ten points, Home/End to
@@ -369,6 +370,54 @@
     }), ts.map(function (t) { return t.cls; }));
   }
 
+  // quantityText writes a value in unit: degrees, decibels and percent
+  // with two decimals, a ratio without a prefix, others as value.Format.
+  function quantityText(v, unit) {
+    if (unit === "\u00b0") return fixed(v, 2) + "\u00b0";
+    if (unit === "dB" || unit === "%") return fixed(v, 2) + " " + unit;
+    if (unit === "") return plain(v, 4);
+    return formatValue(v, unit, 4);
+  }
+
+  // A curve: a quantity against a part's value on a log axis (drawn by
+  // magnitude), on a linear or log value axis.
+  function attachCurve(svg) {
+    var xsv = numbers(svg.getAttribute("data-curve"));
+    var x0 = Number(svg.getAttribute("data-x0"));
+    var x1 = Number(svg.getAttribute("data-x1"));
+    var l0 = Math.log10(Number(svg.getAttribute("data-xmin")));
+    var l1 = Math.log10(Number(svg.getAttribute("data-xmax")));
+    var ya = numbers(svg.getAttribute("data-y"));
+    var ylog = svg.getAttribute("data-yscale") === "log";
+    var unit = svg.getAttribute("data-unit") || "";
+    var xunit = svg.getAttribute("data-xunit") || "";
+    var xname = svg.getAttribute("data-xname") || "";
+    if (!(xsv.length > 0 && x1 > x0 && l1 > l0 && ya.length === 4)) return;
+    var xs = xsv.map(function (v) {
+      var a = Math.abs(v);
+      return a > 0 && isFinite(a) ? x0 + ((Math.log10(a) - l0) / (l1 - l0)) * (x1 - x0) : NaN;
+    });
+    var ts = traces(svg);
+    cursor(svg, alongX(xs, x0, x1, ya[0], function (i) {
+      var x = xs[i];
+      return {
+        head: (xname ? xname + " = " : "") + formatValue(xsv[i], xunit, 4),
+        x: x,
+        line: "M" + x.toFixed(1) + " " + ya[0] + "V" + ya[1],
+        rows: ts.map(function (t) {
+          var v = t.vals[i];
+          var c = ylog ? (v > 0 ? Math.log10(v) : NaN) : v;
+          return {
+            text: t.name + ": " + quantityText(v, unit),
+            x: x,
+            y: isFinite(c) ? panelY(ya, c) : NaN,
+            y2: NaN,
+          };
+        }),
+      };
+    }), ts.map(function (t) { return t.cls; }));
+  }
+
   // A Nyquist chart: T at each frequency on the compressed polar plane.
   function attachNyquist(svg) {
     var freq = numbers(svg.getAttribute("data-nyquist"));
@@ -429,6 +478,7 @@
     if (svg.hasAttribute("data-freq")) attachBode(svg);
     else if (svg.hasAttribute("data-time")) attachTime(svg);
     else if (svg.hasAttribute("data-nyquist")) attachNyquist(svg);
+    else if (svg.hasAttribute("data-curve")) attachCurve(svg);
     else return;
     svg.zportHover = true;
   }

@@ -39,6 +39,10 @@
 //   recomputed, fragment(), page(), single, cssName
 //   PinBar(host)       the pinned designs of a calculator (see below)
 //   settle(host, fn), settled(host)  wait for a calculator's last recompute
+//   runSliced(job, spec)  work the engine does on request (a tolerance
+//                      study, a solve), run in slices (see below)
+//   runButtons(run, cancel, bar, on)  a run's buttons and progress bar
+//   staleResults(results, text)  marks on-request results out of date
 //   chartWidth(el)     the charts' width on a phone (calc.Form.ChartWidth)
 //   onNarrow(fn)       calls fn when the phone width changes
 // and, for every page: the charts' "SVG" and "PNG" buttons, and printing
@@ -772,7 +776,7 @@
   window.addEventListener('beforeprint', function () {
     var ds = document.querySelectorAll('main details:not([open])');
     for (var i = 0; i < ds.length; i++) {
-      if (ds[i].closest('.aids')) continue; // an unrun study has nothing to print
+      if (ds[i].closest('.aids, .solve')) continue; // an unrun study or solve has nothing to print
       ds[i].open = true;
       openedForPrint.push(ds[i]);
     }
@@ -846,6 +850,72 @@
     for (var i = 0; i < ws.length; i++) ws[i]();
   }
 
+  // ---- work run on request, in slices (aids.js, solve.js) ----
+
+  // runSliced steps an engine run in slices of about SLICE_MS of engine
+  // time, one task each, so that the page keeps answering, then renders
+  // it. job.run is the run's id (from the engine's start function), job.n
+  // the first slice's size; job.engineMs adds up the time spent in the
+  // engine. spec names the engine's functions — step(id, n) answering
+  // {done, total, finished?} (finished when absent: done ≥ total),
+  // panel(id) and release(id) — and max, the largest slice; it gives
+  // live() (false once the run is cancelled or superseded),
+  // progress(done, total) after each slice, done(out) with the panel's
+  // answer in a task of its own, and stopped(reason) when the engine
+  // stops the run.
+  var SLICE_MS = 8;
+  function runSliced(job, spec) {
+    function slice() {
+      if (!spec.live()) return;
+      if (!engine) return spec.stopped('the live engine stopped');
+      var t = performance.now();
+      call(spec.step, job.run, job.n).then(function (st) {
+        var dt = performance.now() - t;
+        if (!spec.live()) return;
+        job.engineMs += dt;
+        if (st.error) return spec.stopped(st.error.message);
+        // Aim each slice at SLICE_MS of engine time, changing by at most 2×.
+        var f = Math.min(2, Math.max(0.5, SLICE_MS / Math.max(dt, 0.25)));
+        job.n = Math.max(1, Math.min(spec.max, Math.round(job.n * f)));
+        spec.progress(st.done, st.total);
+        var finished = st.finished !== undefined ? st.finished : st.done >= st.total;
+        if (!finished) {
+          later(slice);
+          return;
+        }
+        call(spec.panel, job.run).then(function (out) {
+          call(spec.release, job.run);
+          later(function () {
+            if (spec.live()) spec.done(out);
+          });
+        });
+      });
+    }
+    later(slice);
+  }
+
+  // runButtons switches a run's Run and Cancel buttons and its progress
+  // bar, handing the focus from the button being disabled to the other.
+  function runButtons(run, cancel, bar, on) {
+    var focus = document.activeElement;
+    if (run) run.disabled = on;
+    if (cancel) cancel.disabled = !on;
+    if (bar) bar.hidden = !on;
+    if (on && focus === run && cancel) cancel.focus();
+    if (!on && focus === cancel && run) run.focus();
+  }
+
+  // staleResults marks on-request results (inside the element results)
+  // as out of date, with a note saying so first.
+  function staleResults(results, text) {
+    if (!results || !results.firstChild || results.classList.contains('is-stale')) return;
+    results.classList.add('is-stale');
+    var note = document.createElement('p');
+    note.className = 'stale-note';
+    note.textContent = text;
+    results.insertBefore(note, results.firstChild);
+  }
+
   // copyResults copies a result's Markdown followed by its share link.
   function copyResults(host, markdown, link) {
     copyText(host, markdown + '\nLink to these results: ' + link + '\n', 'Results copied as Markdown tables, with the link.');
@@ -890,6 +960,9 @@
     PinBar: PinBar,
     settle: settle,
     settled: settled,
+    runSliced: runSliced,
+    runButtons: runButtons,
+    staleResults: staleResults,
     chartWidth: chartWidth,
     onNarrow: onNarrow,
     compress: compress,

@@ -409,29 +409,40 @@ func recoverAids(out *AidsOutput) {
 
 // ---- JSON ----
 
-// decodeAids reads an AidsInput strictly.
-func decodeAids(in []byte) (AidsInput, *api.ErrorBody) {
-	var a AidsInput
+// decodeStrict reads a page's JSON request (what names it in the message)
+// into dst, refusing unknown fields.
+func decodeStrict(in []byte, dst any, what string) *api.ErrorBody {
 	dec := json.NewDecoder(strings.NewReader(string(in)))
 	dec.DisallowUnknownFields()
-	if err := dec.Decode(&a); err != nil {
-		return a, &api.ErrorBody{Message: "the design-aid request is not valid: " + err.Error()}
+	if err := dec.Decode(dst); err != nil {
+		return &api.ErrorBody{Message: "the " + what + " request is not valid: " + err.Error()}
 	}
-	return a, nil
+	return nil
 }
 
-// EncodeAids writes an AidsOutput as JSON, markup unescaped (the page
-// reads it with JSON.parse). It never fails.
-func EncodeAids(out AidsOutput) []byte {
+// encode writes an answer to a page as JSON, markup unescaped (the page
+// reads it with JSON.parse). It never fails: an answer that cannot be
+// written becomes an error object.
+func encode(v any) []byte {
 	var b strings.Builder
 	enc := json.NewEncoder(&b)
 	enc.SetEscapeHTML(false)
-	if err := enc.Encode(out); err != nil {
+	if err := enc.Encode(v); err != nil {
 		b.Reset()
 		_ = enc.Encode(AidsOutput{Error: &api.ErrorBody{Message: "internal error: " + err.Error()}})
 	}
 	return []byte(strings.TrimSuffix(b.String(), "\n"))
 }
+
+// decodeAids reads an AidsInput strictly.
+func decodeAids(in []byte) (AidsInput, *api.ErrorBody) {
+	var a AidsInput
+	return a, decodeStrict(in, &a, "design-aid")
+}
+
+// EncodeAids writes an AidsOutput as JSON, markup unescaped (the page
+// reads it with JSON.parse). It never fails.
+func EncodeAids(out AidsOutput) []byte { return encode(out) }
 
 // AidsFormJSON is AidsForm on JSON: an AidsInput in, an AidsOutput out.
 func AidsFormJSON(in []byte) []byte {

@@ -68,11 +68,22 @@ func (f *aidForm) write() {
 
 // field writes one labelled text input of the study.
 func (f *aidForm) field(key, label, hint, val, param string, extra ...string) {
-	w := &f.w
-	id := f.id + "-aid-" + key
+	formField(&f.w, f.id+"-aid-"+key, "data-study", key, label, hint, val, param, extra...)
+}
+
+func (f *aidForm) selectField(key, label, param string, options [][2]string, selected string) {
+	formSelect(&f.w, f.id+"-aid-"+key, "data-study", key, label, param, options, selected)
+}
+
+// formField writes one labelled text input of an on-request form (the
+// design aids', a solve's): id is its element id, attr="key" the data
+// attribute by which the page's script reads it ("data-study"), param the
+// contract path that the engine's errors name, so that a message lands
+// beside it; extra are further attributes of the input.
+func formField(w *view.Writer, id, attr, key, label, hint, val, param string, extra ...string) {
 	w.Open("div", "class", "field")
 	w.Elem("label", label, "for", id)
-	attrs := append([]string{"id", id, "type", "text", "value", val, "data-study", key, "data-param", param,
+	attrs := append([]string{"id", id, "type", "text", "value", val, attr, key, "data-param", param,
 		"spellcheck", "false", "autocapitalize", "off", "autocomplete", "off", "aria-describedby", id + "-hint " + id + "-msg"}, extra...)
 	w.Open("span", "class", "input-unit")
 	w.Open("input", attrs...)
@@ -82,12 +93,12 @@ func (f *aidForm) field(key, label, hint, val, param string, extra ...string) {
 	w.Close("div")
 }
 
-func (f *aidForm) selectField(key, label, param string, options [][2]string, selected string) {
-	w := &f.w
-	id := f.id + "-aid-" + key
+// formSelect writes one labelled choice of an on-request form, as
+// formField does an input; options are value and text pairs.
+func formSelect(w *view.Writer, id, attr, key, label, param string, options [][2]string, selected string) {
 	w.Open("div", "class", "field")
 	w.Elem("label", label, "for", id)
-	w.Open("select", "id", id, "data-study", key, "data-param", param, "aria-describedby", id+"-msg")
+	w.Open("select", "id", id, attr, key, "data-param", param, "aria-describedby", id+"-msg")
 	for _, o := range options {
 		sel := ""
 		if o[0] == selected {
@@ -219,17 +230,26 @@ func (f *aidForm) tolerance() {
 	w.Elem("button", "Add a target", "type", "button", "class", "quiet", "data-aid-action", "add-target")
 	w.Close("fieldset")
 
+	runControls(w, "data-aid-action", "Run the study", "Trials run", "tolerance")
+	w.Close("section")
+}
+
+// runControls ends an on-request form: the Run button (a submit) and
+// Cancel, marked with the data attribute action ("run", "cancel"), a
+// progress bar labelled progress, the run's status, the form's notice
+// (data-role ROLE-msg) and, after the form, the results' place
+// (ROLE-results).
+func runControls(w *view.Writer, action, run, progress, role string) {
 	w.Open("div", "class", "aid-run")
-	w.Elem("button", "Run the study", "type", "submit", "data-aid-action", "run")
-	w.Elem("button", "Cancel", "type", "button", "class", "quiet", "data-aid-action", "cancel", "disabled?", "yes")
-	w.Open("progress", "data-role", "progress", "max", "1", "value", "0", "hidden?", "yes", "aria-label", "Trials run")
+	w.Elem("button", run, "type", "submit", action, "run")
+	w.Elem("button", "Cancel", "type", "button", "class", "quiet", action, "cancel", "disabled?", "yes")
+	w.Open("progress", "data-role", "progress", "max", "1", "value", "0", "hidden?", "yes", "aria-label", progress)
 	w.Close("progress")
 	w.Elem("span", "", "class", "run-status", "data-role", "run-status", "role", "status")
 	w.Close("div")
-	w.Elem("p", "", "class", "calc-notice", "data-role", "tolerance-msg", "role", "alert", "hidden?", "yes")
+	w.Elem("p", "", "class", "calc-notice", "data-role", role+"-msg", "role", "alert", "hidden?", "yes")
 	w.Close("form")
-	w.Elem("div", "", "class", "aid-results", "data-role", "tolerance-results")
-	w.Close("section")
+	w.Elem("div", "", "class", "aid-results", "data-role", role+"-results")
 }
 
 // targetQuantities lists the quantities a target can name, as select

@@ -22,6 +22,7 @@ func init() {
 		&devices,
 		&engineNotes,
 		&generated,
+		&solveTarget,
 		&designAids,
 	}
 }

@@ -148,4 +148,23 @@
 // engine's errors ("tolerance.parts.R1", "tolerance.targets[0].value",
 // "standardValues.series"), so a message lands beside its input. The
 // panels' numbers are described in package zport/site/view.
+//
+// # Design to a target
+//
+// The "Design to a target" section (site/assets/solve.js) is another
+// analysis that runs on request: the engine's "solve" key. Its settings,
+// SolveSettings, are the part, the quantity and its port, the target
+// value, the range and the series, in the link as
+//
+//	solve.part=Cf&solve.quantity=pm&solve.value=45
+//
+// and its inputs carry data-solve (the setting) and data-param (the
+// contract path: solve.part, solve.target.quantity, solve.target.value,
+// solve.range.from …). SolveForm renders them, StartSolve and
+// SolveOutputOf run and render a search (SolvePanel), ApplyValue sets a
+// part's value in circuit text. The panel's rows are tr[data-solve]
+// (solution, below, above, standard, best, nominal) with data-index;
+// their numbers carry data-stat (value, achieved) and data-value; each
+// button that applies a value carries data-solve-apply, data-part and
+// data-text (the value as typed into the input or the text).
 package calc

@@ -144,13 +144,18 @@ func (f Form) withDefaults(e api.CatalogEntry) Form {
 // Syntax writes a frequency or count in the engine's value syntax with an
 // SI prefix: 1000 → "1k", 1e8 → "100M", 2.5e-3 → "2.5m". It is how
 // defaults given as numbers appear in inputs, so it uses the fewest digits
-// that read back within 1e-14 of v. Below the smallest prefix (1 f) it
-// writes a decimal exponent, "1e-320", short enough for a share link.
-func Syntax(v float64) string {
+// that read back within 1e-14 of v. Below a thousandth of the smallest
+// prefix (1 f) it writes a decimal exponent, "1e-320", short enough for a
+// share link.
+func Syntax(v float64) string { return SyntaxWithin(v, 1e-14) }
+
+// SyntaxWithin is Syntax with the fewest digits that read back within
+// rel of v (relative): 1.38325850079699e-12 within 5e-8 is "1.383259p".
+func SyntaxWithin(v, rel float64) string {
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return "0"
 	}
-	if math.Abs(v) < 1e-15 {
+	if math.Abs(v) < 1e-18 {
 		return strconv.FormatFloat(v, 'g', -1, 64)
 	}
 	prefixes := []struct {
@@ -171,7 +176,7 @@ func Syntax(v float64) string {
 			if strings.ContainsRune(s, 'e') {
 				continue
 			}
-			if got, err := value.Parse(s+p.sym, ""); err == nil && math.Abs(got-v) <= 1e-14*a {
+			if got, err := value.Parse(s+p.sym, ""); err == nil && math.Abs(got-v) <= rel*a {
 				return s + p.sym
 			}
 		}

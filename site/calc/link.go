@@ -334,12 +334,32 @@ func blame(param string, pairs fragment.Pairs, dropped []bool, f *Form) []int {
 		}
 		keys, value = []string{keyPort}, f.Ports[i]
 	}
+	analysis := ""
+	if i, j := strings.IndexByte(param, '.'), strings.LastIndexByte(param, '.'); i > 0 && !strings.HasPrefix(param, "gain.") {
+		// An analysis's setting: its link key is the analysis's key and
+		// the field's last name ("solve.target.value" is "solve.value").
+		analysis = param[:i]
+		if j > i {
+			keys = append(keys, analysis+param[j:])
+		}
+	}
 	for _, k := range keys {
 		for i, p := range pairs {
 			if !dropped[i] && p.Key == k && (value == "" || p.Value == value) {
 				return []int{i}
 			}
 		}
+	}
+	if analysis != "" {
+		// What is wrong is a setting the link leaves out (a port its
+		// quantity needs): the analysis's settings go together.
+		var out []int
+		for i, p := range pairs {
+			if !dropped[i] && strings.HasPrefix(p.Key, analysis+".") {
+				out = append(out, i)
+			}
+		}
+		return out
 	}
 	return nil
 }

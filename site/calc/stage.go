@@ -43,7 +43,9 @@ func designSection(w *view.Writer, c *Context) {
 }
 
 // designCompared compares each design value with the pin's of the same
-// name.
+// name — or, where a name carries a computed figure ("Cf (classic “45°”
+// formula, gives 51.8°)") and so differs between designs, with the pin's
+// at the same place in a list of the same length and unit.
 func designCompared(c *Context) []Compared {
 	t := c.Resp.Topology
 	if t == nil {
@@ -51,15 +53,19 @@ func designCompared(c *Context) []Compared {
 	}
 	var rows []Compared
 	for i, x := range t.Extras {
-		name := x.Name
+		name, unit, n := x.Name, x.Unit, len(t.Extras)
 		rows = append(rows, Compared{ID: "extra:" + strconv.Itoa(i), Label: name, Unit: x.Unit,
 			Real: func(r *api.Response) *float64 {
-				if r.Topology != nil {
-					for _, y := range r.Topology.Extras {
-						if y.Name == name {
-							return y.Value
-						}
+				if r.Topology == nil {
+					return nil
+				}
+				for _, y := range r.Topology.Extras {
+					if y.Name == name {
+						return y.Value
 					}
+				}
+				if ys := r.Topology.Extras; len(ys) == n && ys[i].Unit == unit {
+					return ys[i].Value
 				}
 				return nil
 			}})

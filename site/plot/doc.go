@@ -3,8 +3,10 @@
 // magnitude alone with NoPhase), a Time chart (values against time on
 // linear axes, for a step response), a Nyquist chart (a return ratio on
 // the complex plane with a compressed radius; see NyquistRadius), a
-// histogram (linear or log x axis) and a horizontal bar chart of signed
-// values (Bars, for rankings such as sensitivities). The same code
+// histogram (linear or log x axis), a horizontal bar chart of signed
+// values (Bars, for rankings such as sensitivities) and a Curve of a
+// quantity against a part's value on a log axis (a phase margin against a
+// feedback capacitor, the target and the solutions marked). The same code
 // runs when the site is built, to put pre-rendered charts into static
 // pages, and inside the WebAssembly engine, to redraw them as a user edits
 // values, so it uses only the standard library and zport/engine/value,
@@ -84,4 +86,12 @@
 // readout shows the frequency or time and each trace's value at the point
 // nearest the pointer (on a Nyquist chart, nearest in the plane), and the
 // arrow keys step through the points.
+//
+// A Curve's root carries data-curve (the part's values, signed), data-xmin
+// and data-xmax (the ends of its axis, which is log10 of |x|), data-x0 and
+// data-x1, data-y ("top bottom lo hi" of the value axis, in log10 of the
+// value when data-yscale is "log"), data-unit (the values'), data-xunit
+// and data-xname (the part's unit and name); each trace's path data-name
+// and data-values, one value per x. The readout shows "Cf = 1.383 pF" and
+// each trace's value there.
 package plot

@@ -130,11 +130,7 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	step := max(1, niceStep(float64(maxC)*1.08, n))
 	cy.lo, cy.hi = 0, math.Max(step, math.Ceil(float64(maxC)*1.08/step-eps)*step)
 	cy.ticks = linTicks(0, cy.hi, step, "")
-	labelW := 0.0
-	for _, t := range cy.ticks {
-		labelW = max(labelW, textWidth(t.label, fontPx))
-	}
-	x0 := math.Round(outer + 16 + labelW + 10)
+	x0 := plotLeft(cy.ticks)
 	x1 := W - 16
 	xa := axis{lo: lo, hi: hi, p0: x0, p1: x1}
 	ticks := func() []tick {
@@ -264,13 +260,17 @@ func engTicks(lo, hi, px float64, unit string) []tick {
 
 // engLabel writes the tick value v of a linear axis with the given step,
 // by value.Format in unit with the digits the step needs (4.65 kΩ for a
-// 10 Ω step); an angle takes no SI prefix (0.25°, not 250 m°).
+// 10 Ω step); an angle, a level in decibels and a percentage take no SI
+// prefix (0.25°, not 250 m°; 0.5 dB, not 500 mdB).
 func engLabel(v, step float64, unit string) string {
 	if math.Abs(v) < step*eps {
 		v = 0
 	}
-	if unit == "°" {
+	switch unit {
+	case "°":
 		return linLabel(v, step) + "°"
+	case "dB", "%":
+		return linLabel(v, step) + " " + unit
 	}
 	sig := 1
 	if v != 0 {

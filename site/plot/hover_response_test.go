@@ -75,3 +75,40 @@ func TestHoverTimeAndNyquist(t *testing.T) {
 		t.Errorf("page reported problems: %q", v)
 	}
 }
+
+// The readout of a curve names the part and its value and gives the
+// quantity there, by pointer and by keyboard.
+func TestHoverCurve(t *testing.T) {
+	ctx := browser(t)
+	c := curveSample()
+	c.NoStyle = true
+	srv := servePage(t, c.SVG(), "body{margin:0;font:14px sans-serif}")
+	if err := chromedp.Do(ctx, chromedp.Navigate(srv.URL), chromedp.WaitVisible("#c")); err != nil {
+		t.Fatal(err)
+	}
+	root := parse(t, c.SVG())
+	xs := attrFloats(t, root, "data-curve")
+	x0, x1 := attrFloats(t, root, "data-x0")[0], attrFloats(t, root, "data-x1")[0]
+	l0, l1 := math.Log10(xs[0]), math.Log10(xs[len(xs)-1])
+	vals := attrFloats(t, root.all(func(n *node) bool { _, ok := n.attr["data-values"]; return ok })[0], "data-values")
+	box := eval[[]float64](t, ctx, `(function () { var r = document.querySelector("#c").getBoundingClientRect(); return [r.left, r.top]; })()`)
+	xi := x0 + (math.Log10(xs[12])-l0)/(l1-l0)*(x1-x0)
+	if err := chromedp.Do(ctx, chromedp.MouseEvent(input.DispatchMouseEventTypeMouseMoved, box[0]+xi, box[1]+150)); err != nil {
+		t.Fatal(err)
+	}
+	want := func(i int) string {
+		return "Cf = " + value.Format(xs[i], "F", 4) + "|phase margin: " + strconv.FormatFloat(vals[i], 'f', 2, 64) + "°"
+	}
+	if got := strings.Join(readout(t, ctx, "c"), "|"); got != want(12) {
+		t.Errorf("curve readout %q, want %q", got, want(12))
+	}
+	if err := chromedp.Do(ctx, chromedp.Focus("#c"), chromedp.KeyEvent(kb.ArrowLeft)); err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(readout(t, ctx, "c"), "|"); got != want(11) {
+		t.Errorf("curve readout after an arrow %q, want %q", got, want(11))
+	}
+	if v := eval[[]string](t, ctx, `window.zprobe`); len(v) > 0 {
+		t.Errorf("page reported problems: %q", v)
+	}
+}

@@ -109,11 +109,7 @@ func (c *Time) AppendSVG(dst []byte) []byte {
 		hi = max(hi, ya.ticks[len(ya.ticks)-1].pos)
 	}
 	ya.lo, ya.hi = lo, hi
-	labelW := 0.0
-	for _, t := range ya.ticks {
-		labelW = max(labelW, textWidth(t.label, fontPx))
-	}
-	x0 := math.Round(outer + 16 + labelW + 10)
+	x0 := plotLeft(ya.ticks)
 	x1 := W - 16
 	xa := axis{lo: t0, hi: t1, p0: x0, p1: x1}
 	xa.ticks = engTicks(t0, t1, x1-x0, "s")
@@ -161,24 +157,7 @@ func (c *Time) AppendSVG(dst []byte) []byte {
 	b = appendTitleDesc(b, id, title, c.describe(t0, t1, finite))
 	b = appendStyle(b, c.NoStyle)
 
-	b = append(b, `<path class="grid" fill="none" stroke="currentColor" stroke-opacity=".16" d="`...)
-	for _, t := range xa.ticks {
-		b = appendVLine(b, tenths(xa.px(t.pos)), tenths(top), tenths(bottom))
-	}
-	for _, t := range ya.ticks {
-		b = appendHLine(b, tenths(x0), tenths(ya.px(t.pos)), tenths(x1))
-	}
-	b = append(b, `"/><path class="axis" fill="none" stroke="currentColor" stroke-opacity=".5" d="`...)
-	b = appendBox(b, x0, top, x1, bottom)
-	b = append(b, `"/><g class="tick" text-anchor="end">`...)
-	for _, t := range ya.ticks {
-		b = appendText(b, "", x0-6, ya.px(t.pos), ".35em", t.label)
-	}
-	b = append(b, `</g><g class="tick" text-anchor="middle">`...)
-	for _, t := range xa.ticks {
-		b = appendText(b, "", xa.px(t.pos), bottom+16, "", t.label)
-	}
-	b = append(b, `</g>`...)
+	b = appendFrame(b, &xa, &ya, x0, x1, top, bottom)
 	if c.YLabel != "" {
 		b = appendVText(b, 18, (top+bottom)/2, c.YLabel)
 	}
