@@ -166,6 +166,11 @@ type Analyzer struct {
 	k      dd.Complex // the reference's gain at the current frequency
 	kAbs   float64
 
+	vals   []complex128 // the coefficients' values at valsF
+	mags   []float64
+	valsF  float64
+	valsOK bool
+
 	// Solves counts the solves by how they ended: [1] with the float64
 	// factorization alone, [2] refined with it, [3] with the double-double
 	// factorization, [0] singular even so or not settled (no bound).
@@ -174,7 +179,6 @@ type Analyzer struct {
 
 type slot struct {
 	lu  mna.LU
-	mat []complex128
 	err error
 	f   float64
 	ok  bool
@@ -343,13 +347,26 @@ func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
 	if s.act == nil {
 		s.act = a.prec.Active(cfg)
 	}
-	s.mat = a.Sys.Assemble(s.mat, cfg)
-	s.err = s.lu.Factor(s.mat, a.Sys.Size(cfg))
+	a.values(cfg.F)
+	s.act.At(a.vals, a.mags)
+	s.err = s.lu.FactorMatrix(s.act.Matrix())
 	s.f, s.ok = cfg.F, true
 	if s.err == nil {
 		a.used = append(a.used, s)
 	}
 	return s, s.err
+}
+
+// values computes the equations' coefficients at f (mna.Precise.Values)
+// and their magnitudes, once per frequency for every configuration.
+func (a *Analyzer) values(f float64) {
+	if a.valsOK && a.valsF == f {
+		return
+	}
+	a.prec.At(f)
+	a.vals = a.prec.Values(a.vals)
+	a.mags = mna.Magnitudes(a.mags, a.vals)
+	a.valsF, a.valsOK = f, true
 }
 
 // setFrequency prepares the bounds' per-frequency state.

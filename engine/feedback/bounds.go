@@ -18,9 +18,12 @@ import (
 // exactly yᵀ(b − A·x̂), where y solves the adjoint system Aᵀ·y = ℓ; so with
 // w a componentwise bound on the exact residual, |ℓᵀx − ℓᵀx̂| ≤ |y|ᵀw. The
 // adjoint is one more solve with the same factorization, and w comes from
-// the parts' own coefficients (mna.Precise), which is what makes the bound
-// componentwise and honest where the assembled matrix has lost a small
-// conductance. A factor of 2 covers the adjoint's own rounding while the
+// the float64 residual of the assembled entries plus what that residual
+// and the assembly's rounding can hide, counted against the sums S of the
+// magnitudes of the parts' coefficients meeting in each entry
+// (mna.Active.ResidualBound): that is what makes the bound componentwise
+// and honest where the assembled matrix has lost a small conductance, and
+// refinement then works from the parts' own coefficients. A factor of 2 covers the adjoint's own rounding while the
 // factorization is a good inverse; where it is not, the double-double one
 // gives the adjoints (see eval). The formulas then carry the bounds by
 // first-order ball arithmetic, with their midpoints in double-double.
@@ -210,10 +213,10 @@ func abs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) }
 // It is the one place where accuracy is decided:
 //
 //  1. Solve with the float64 factorization, bound the exact residual from
-//     the parts (mna.Precise.ResidualBound) and each read-out through its
-//     adjoint. If every bound leaves 12 digits (or meets its target), that
-//     is the answer: the common case costs one pass over the parts and
-//     one adjoint solve per read-out and configuration.
+//     the assembled entries (mna.Active.ResidualBound) and each read-out
+//     through its adjoint. If every bound leaves 12 digits (or meets its
+//     target), that is the answer: the common case costs one pass over the
+//     entries and one adjoint solve per read-out and configuration.
 //  2. Otherwise refine x in double-double with the float64 factorization
 //     (classical mixed-precision refinement, residual from the parts,
 //     Demmel et al., ACM TOMS 32(2), 2006), until the bounds leave 12
@@ -244,7 +247,7 @@ func (a *Analyzer) eval(s *slot, b []complex128, ids []int, out []ball, tgt []fl
 	}
 	w, mag := a.sw[:n], a.smag[:n]
 	for pass := 0; ; pass++ {
-		a.prec.ResidualBound(w, mag, r, s.act, b[:n], x)
+		s.act.ResidualBound(w, mag, r, b[:n], x)
 		need, floor := false, true
 		for k, id := range ids {
 			y := a.adjoint(s, id)
@@ -268,7 +271,7 @@ func (a *Analyzer) eval(s *slot, b []complex128, ids []int, out []ball, tgt []fl
 		// The residual, not its rounding, is what is large: the float64
 		// elimination has left some component off (one that should be
 		// zero, say). One step of refinement in float64 — the residual
-		// computed from the parts, the correction from the same
+		// of the assembled entries, the correction from the same
 		// factorization — restores componentwise backward stability
 		// (Skeel, Math. Comp. 35, 1980 [memory]), at the price of a solve.
 		d := a.sd[:n]
