@@ -28,20 +28,9 @@ type Port struct {
 	HeldBy []string
 	// HeldAtDC is HeldBy with the inductors, which are shorts at DC.
 	HeldAtDC []string
-	keys     map[string]string
-}
-
-// key names the port's cached factorization of one kind.
-func (p *Port) key(kind string) string {
-	if k, ok := p.keys[kind]; ok {
-		return k
-	}
-	if p.keys == nil {
-		p.keys = map[string]string{}
-	}
-	k := kind + ":" + p.Name
-	p.keys[kind] = k
-	return k
+	// The port's factorizations: open (its driver removed) at zero and
+	// full reference gain, shorted at zero gain.
+	open0, openK, short0 *slot
 }
 
 // Gain is a resolved gain request.
@@ -139,17 +128,19 @@ type Analyzer struct {
 	// that every value is refined alike.
 	Tol float64
 
-	slots map[string]*slot
-	used  []*slot      // factored during the current At
-	r     []complex128 // reference injection, length Sys.N+1
-	buf   []complex128 // a right-hand side: the gain source, a port current
+	base0, baseK *slot        // the circuit at zero and full reference gain
+	slots        []*slot      // every configuration factored
+	used         []*slot      // factored during the current At
+	r            []complex128 // reference injection, length Sys.N+1
+	buf          []complex128 // a right-hand side: the gain source, a port current
 
 	prec     *mna.Precise
 	fns      []mna.Functional // the read-outs by id; fns[readCtl] changes with the frequency
 	same     []int            // the first read-out with the same functional, by id
-	ys       [2][]complex128  // refine's work space
+	ys       [2][]float64     // refine's work space: adjoints' moduli
 	ls       [2]mna.Functional
 	sx       []complex128 // eval's work space, length Sys.N+1
+	sadj     []complex128 // an adjoint solution being formed
 	sr, sd   []complex128
 	sxd      []dd.Complex
 	sw       []float64
@@ -161,7 +152,7 @@ type Analyzer struct {
 		v complex128
 		e float64
 	}
-	sy     [2][]complex128
+	sy     [2][]float64 // adjoints' moduli from the double-double LU
 	portID [1]int
 	k      dd.Complex // the reference's gain at the current frequency
 	kAbs   float64
@@ -170,6 +161,8 @@ type Analyzer struct {
 	mags   []float64
 	valsF  float64
 	valsOK bool
+
+	residuals int // entries of the residual bounds so far (MulAdds)
 
 	// Solves counts the solves by how they ended: [1] with the float64
 	// factorization alone, [2] refined with it, [3] with the double-double
@@ -211,7 +204,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 		return nil, fmt.Errorf("reference %q is a %s; the reference must be a controlled source, an opamp or a transistor (one of: %s)", reference, p.Kind, strings.Join(c.References(), ", "))
 	}
 	sys := mna.New(c)
-	a := &Analyzer{C: c, Sys: sys, Ports: ports, Gain: gain, slots: map[string]*slot{}}
+	a := &Analyzer{C: c, Sys: sys, Ports: ports, Gain: gain}
 	for i := range c.Parts {
 		if c.Parts[i].Name == reference {
 			a.Ref = i
@@ -220,6 +213,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	a.ref = sys.ControlOf(a.Ref)
 	for i := range a.Ports {
 		p := &a.Ports[i]
+		p.open0, p.openK, p.short0 = nil, nil, nil // a Port reused from another analyzer
 		p.Drivers = drivers(c, p.A, p.B)
 		p.HeldBy = heldBy(c, p.A, p.B, p.Drivers, false)
 		p.HeldAtDC = heldBy(c, p.A, p.B, p.Drivers, true)
@@ -252,6 +246,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 		}
 	}
 	a.sx = make([]complex128, sys.N+1)
+	a.sadj = make([]complex128, sys.N+1)
 	a.sr = make([]complex128, sys.N+1)
 	a.sd = make([]complex128, sys.N+1)
 	a.sxd = make([]dd.Complex, sys.N+1)
@@ -323,12 +318,13 @@ func drivers(c *circuit.Circuit, pa, pb int) []int {
 }
 
 // factor returns the factorization of the system for cfg at cfg.F, cached
-// under key for that frequency.
-func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
-	s := a.slots[key]
+// in *sp for that frequency.
+func (a *Analyzer) factor(sp **slot, cfg mna.Config) (*slot, error) {
+	s := *sp
 	if s == nil {
 		s = &slot{}
-		a.slots[key] = s
+		*sp = s
+		a.slots = append(a.slots, s)
 	}
 	if s.ok && s.f == cfg.F {
 		return s, s.err
@@ -367,6 +363,18 @@ func (a *Analyzer) values(f float64) {
 	a.vals = a.prec.Values(a.vals)
 	a.mags = mna.Magnitudes(a.mags, a.vals)
 	a.valsF, a.valsOK = f, true
+}
+
+// MulAdds returns the complex multiply-adds of the analyzer's float64
+// work so far: factorizations, solves and residual bounds (mna.LU.MulAdds,
+// and one per entry of a residual bound) — what its time is held against
+// in the benchmarks. Refinement in double-double is not counted.
+func (a *Analyzer) MulAdds() int {
+	n := a.residuals
+	for _, s := range a.slots {
+		n += s.lu.MulAdds()
+	}
+	return n
 }
 
 // setFrequency prepares the bounds' per-frequency state.
@@ -417,7 +425,7 @@ var (
 // ReturnRatio returns T at f with every independent source zeroed.
 func (a *Analyzer) ReturnRatio(f float64) (complex128, error) {
 	cfg := mna.Config{F: f, Ref: a.ref}
-	s, err := a.factor("base0", cfg)
+	s, err := a.factor(&a.base0, cfg)
 	if !a.usable(s, err) {
 		return cmplx.NaN(), a.explain(err, cfg, "with the reference gain at zero")
 	}
@@ -434,9 +442,12 @@ func (a *Analyzer) At(f float64) (Point, error) {
 		return Point{}, fmt.Errorf("frequency %g Hz: it must be finite and ≥ 0", f)
 	}
 	pt := Point{F: f, T: nan, TErr: math.NaN(), TSens: math.NaN()}
-	notes := map[string]bool{}
+	var notes map[string]bool // made with the first note: most points have none
 	note := func(format string, args ...any) {
 		s := fmt.Sprintf(format, args...)
+		if notes == nil {
+			notes = map[string]bool{}
+		}
 		if !notes[s] {
 			notes[s] = true
 			pt.Notes = append(pt.Notes, s)
@@ -445,9 +456,9 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	a.used = a.used[:0]
 	a.setFrequency(f)
 	cfgK := mna.Config{F: f, Ref: a.ref, RefGain: true}
-	baseK, errK := a.factor("baseK", cfgK)
+	baseK, errK := a.factor(&a.baseK, cfgK)
 	cfg0 := mna.Config{F: f, Ref: a.ref}
-	base0, err0 := a.factor("base0", cfg0)
+	base0, err0 := a.factor(&a.base0, cfg0)
 	ok0 := a.usable(base0, err0)
 	okK := a.usable(baseK, errK)
 	if !okK && !ok0 {
@@ -640,17 +651,17 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		// The port's driver is removed for the open port; the driver,
 		// zeroed, is itself the short.
 		cfg := mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}
-		open0, errOpen0 = a.factor(p.key("open0"), cfg)
+		open0, errOpen0 = a.factor(&p.open0, cfg)
 		okOpen0 = a.usable(open0, errOpen0)
 		cfg.RefGain = true
-		openK, errOpenK = a.factor(p.key("openK"), cfg)
+		openK, errOpenK = a.factor(&p.openK, cfg)
 		okOpenK = a.usable(openK, errOpenK)
 		Ts = T
 		okShort0 = ok0
 	} else {
 		open0, openK = base0, baseK
 		cfg := mna.Config{F: f, Ref: a.ref, Short: &[2]int{p.A, p.B}}
-		short0, errShort0 = a.factor(p.key("short0"), cfg)
+		short0, errShort0 = a.factor(&p.short0, cfg)
 		if okShort0 = a.usable(short0, errShort0); okShort0 {
 			Ts = a.returned(short0, nil)
 		}

@@ -119,6 +119,10 @@ func (a *Active) At(v []complex128, av []float64) {
 	}
 }
 
+// Entries is the number of the matrix's distinct entries: the complex
+// multiply-adds of a ResidualBound.
+func (a *Active) Entries() int { return len(a.asm.val) }
+
 // Gamma returns the relative bounds of the last ResidualBound, row by row.
 func (a *Active) Gamma() []float64 { return a.asm.gamma }
 

@@ -10,28 +10,18 @@ import (
 // Factor accepts.
 const PivotTolerance = 1e-14
 
-// Matrix is a sparse n×n matrix written as the terms that make up its
-// entries: entry (I[t], J[t]) is the sum, in the order of t, of V[K[t]]
-// (of V[t] when K is nil). The terms of a circuit's equations are its
-// parts' stamps, and several configurations draw on one array of values
-// (V, filled once per frequency) through their own K.
+// Matrix is a sparse n×n matrix as its entries: entry e is V[e], at row
+// I[e] and column J[e]. Each position appears at most once, and the
+// entries go row by row (rows ascending), as Active.Matrix gives them.
 //
-// I, J and K are the matrix's structure: an LU records its factorization's
+// I and J are the matrix's structure: an LU records its factorization's
 // structure for them and reuses it for as long as they are the same slices
 // (so they must not be changed in place once factored); V may change
 // between factorizations.
 type Matrix struct {
-	N       int
-	I, J, K []int32
-	V       []complex128
-}
-
-// value returns term t's value.
-func (m *Matrix) value(t int) complex128 {
-	if m.K == nil {
-		return m.V[t]
-	}
-	return m.V[m.K[t]]
+	N    int
+	I, J []int32
+	V    []complex128
 }
 
 // LU is a factorization P·Dr·A·Dc = L·U of a complex matrix.
@@ -58,11 +48,15 @@ type LU struct {
 	a  []complex128
 	nz []int
 
-	sym    *symbolic    // the structure recorded for the Matrix's terms
+	sym    *symbolic    // the structure of the factors in vals
+	syms   []*symbolic  // the structures recorded, the last used first
 	vals   []complex128 // the factors in sym's layout, while sparse is true
 	sparse bool
 	full   int    // dense factorizations so far
 	dm     Matrix // Factor's matrix, as terms
+
+	count int // complex multiply-adds so far (MulAdds)
+	nnz   int // nonzeros of the dense factors, a dense solve's count
 }
 
 // Singular reports a failed factorization: the equilibrated matrix has a
@@ -76,11 +70,11 @@ type Singular struct {
 func (e *Singular) Error() string { return "singular system (" + e.Kind + ")" }
 
 // Factor factors the n×n row-major matrix a, which it leaves unchanged.
-// Its nonzeros are the terms of a Matrix, whose structure is kept while
+// Its nonzeros are the entries of a Matrix, whose structure is kept while
 // the nonzeros of later matrices stay within it.
 func (lu *LU) Factor(a []complex128, n int) error {
 	m := &lu.dm
-	same := m.N == n && lu.sym != nil
+	same := m.N == n && len(lu.syms) > 0
 	if same {
 		// Within the recorded structure: its positions, the new values.
 		seen := 0
@@ -126,10 +120,17 @@ func (lu *LU) FactorMatrix(m *Matrix) error {
 	}
 	lu.piv, lu.rs, lu.cs, lu.cmax = lu.piv[:n], lu.rs[:n], lu.cs[:n], lu.cmax[:n]
 	lu.inv, lu.work = lu.inv[:n], lu.work[:n]
-	if s := lu.sym; s != nil && s.of(m) {
-		if lu.refactor(m) {
-			lu.sparse = true
-			return nil
+	if len(lu.syms) > 0 && lu.syms[0].of(m) && lu.equilibrate(m) {
+		// Circuits switch between a few pivot orders across a sweep:
+		// each recorded structure is tried, the last used first.
+		for i, s := range lu.syms {
+			if lu.refactor(m, s) {
+				copy(lu.syms[1:i+1], lu.syms[:i])
+				lu.syms[0] = s
+				lu.sym, lu.sparse = s, true
+				lu.count += len(s.upd) + len(s.candPos) + n
+				return nil
+			}
 		}
 	}
 	lu.sparse = false
@@ -139,25 +140,41 @@ func (lu *LU) FactorMatrix(m *Matrix) error {
 	a := lu.a[:n*n]
 	lu.a = a
 	clear(a)
-	for t := range m.I {
-		a[int(m.I[t])*n+int(m.J[t])] += m.value(t)
+	for e, v := range m.V {
+		a[int(m.I[e])*n+int(m.J[e])] = v
 	}
 	if err := lu.factorDense(a, n); err != nil {
-		lu.sym = nil
 		return err
+	}
+	lu.nnz = 0
+	for _, v := range a {
+		if v != 0 {
+			lu.nnz++
+		}
 	}
 	// The structure pays for itself only when the same system comes back
 	// (a sweep); a one-off factorization (a Monte Carlo trial) skips it.
-	lu.sym = nil
+	if len(lu.syms) > 0 && !lu.syms[0].of(m) {
+		lu.syms = lu.syms[:0] // another matrix
+	}
 	if lu.full > 0 {
-		lu.sym = symbolicOf(m, lu.piv)
-		if cap(lu.vals) < len(lu.sym.cols) {
-			lu.vals = make([]complex128, len(lu.sym.cols))
+		s := symbolicOf(m, lu.piv)
+		if len(lu.syms) < maxStructures {
+			lu.syms = append(lu.syms, nil)
+		}
+		copy(lu.syms[1:], lu.syms)
+		lu.syms[0] = s
+		if cap(lu.vals) < len(s.cols) {
+			lu.vals = make([]complex128, len(s.cols))
 		}
 	}
 	lu.full++
 	return nil
 }
+
+// maxStructures is how many structures an LU keeps: the pivot orders a
+// sweep keeps coming back to.
+const maxStructures = 4
 
 // factorDense equilibrates and factors the dense a in place.
 func (lu *LU) factorDense(a []complex128, n int) error {
@@ -218,7 +235,9 @@ func (lu *LU) colScales() error {
 			return &Singular{Index: j, Kind: "column"}
 		}
 		s := pow2inv(c)
-		lu.norm1 = math.Max(lu.norm1, lu.cs[j]*s) // the 1-norm, for Cond
+		if x := lu.cs[j] * s; x > lu.norm1 {
+			lu.norm1 = x // the 1-norm, for Cond
+		}
 		lu.cs[j] = s
 	}
 	return nil
@@ -256,11 +275,13 @@ func (lu *LU) eliminate(a []complex128, n int) error {
 			}
 		}
 		lu.nz = nz
+		lu.count++
 		for i := k + 1; i < n; i++ {
 			l := a[i*n+k]
 			if l == 0 {
 				continue
 			}
+			lu.count += 1 + len(nz)
 			l *= inv
 			a[i*n+k] = l
 			ri := a[i*n : i*n+n]
@@ -273,71 +294,56 @@ func (lu *LU) eliminate(a []complex128, n int) error {
 	return nil
 }
 
-// refactor assembles m into the recorded layout and eliminates along it
-// when partial pivoting picks the recorded pivots again; it reports false
-// (and the caller runs the dense elimination, which also reports what is
-// singular) as soon as it would not. Every operation is the dense
-// elimination's, in its order, on the same values: only the search for
-// nonzeros is saved, never a pivoting decision.
-func (lu *LU) refactor(m *Matrix) bool {
-	s := lu.sym
-	n := s.n
-	vals := lu.vals[:len(s.cols)]
-	clear(vals)
-	if m.K == nil {
-		for t, q := range s.termPos {
-			vals[q] += m.V[t]
-		}
-	} else {
-		for t, q := range s.termPos {
-			vals[q] += m.V[m.K[t]]
+// equilibrate computes the row and column scales of m as factorDense
+// does: row maxima, then the column maxima and sums of the row-scaled
+// entries, summed in row order. It reports false when a row or a column
+// is zero (the dense elimination then says which).
+func (lu *LU) equilibrate(m *Matrix) bool {
+	rows, cols := m.I, m.J
+	rmax := lu.rs
+	clear(rmax)
+	for e, v := range m.V {
+		if x := abs1(v); x > rmax[rows[e]] {
+			rmax[rows[e]] = x
 		}
 	}
-	// Equilibrate as factorDense does, rows in their original order.
-	for r := 0; r < n; r++ {
-		i := s.final[r]
-		mx := 0.0
-		for _, v := range vals[s.rowStart[i]:s.rowStart[i+1]] {
-			if v != 0 {
-				if x := abs1(v); x > mx {
-					mx = x
-				}
-			}
-		}
-		if mx == 0 {
+	for r, x := range rmax {
+		if x == 0 {
 			return false
 		}
-		lu.rs[r] = pow2inv(mx)
+		rmax[r] = pow2inv(x)
 	}
 	cmax, csum := lu.cmax, lu.cs
 	clear(cmax)
 	clear(csum)
-	for r := 0; r < n; r++ {
-		i, ri := s.final[r], lu.rs[r]
-		lo, hi := s.rowStart[i], s.rowStart[i+1]
-		for p, v := range vals[lo:hi] {
-			if v != 0 {
-				j := s.cols[lo+int32(p)]
-				x := abs1(v) * ri
-				csum[j] += x
-				if x > cmax[j] {
-					cmax[j] = x
-				}
+	for e, v := range m.V {
+		if v != 0 {
+			j := cols[e]
+			x := abs1(v) * lu.rs[rows[e]]
+			csum[j] += x
+			if x > cmax[j] {
+				cmax[j] = x
 			}
 		}
 	}
-	if lu.colScales() != nil {
-		return false
+	return lu.colScales() == nil
+}
+
+// refactor places m's entries, equilibrated, in the layout of s and
+// eliminates along it when partial pivoting picks the pivots of s again;
+// it reports false as soon as it would not. Every operation is the dense
+// elimination's, in its order, on the same values: only the search for
+// nonzeros is saved, never a pivoting decision.
+func (lu *LU) refactor(m *Matrix, s *symbolic) bool {
+	n := s.n
+	rows, cols := m.I, m.J
+	vals := lu.vals[:len(s.cols)]
+	for _, q := range s.fill {
+		vals[q] = 0
 	}
-	for i := 0; i < n; i++ {
-		ri := lu.rs[s.order[i]]
-		lo, hi := s.rowStart[i], s.rowStart[i+1]
-		for p, v := range vals[lo:hi] {
-			if v != 0 {
-				sc := ri * lu.cs[s.cols[lo+int32(p)]]
-				vals[lo+int32(p)] = complex(real(v)*sc, imag(v)*sc)
-			}
-		}
+	for e, v := range m.V {
+		sc := lu.rs[rows[e]] * lu.cs[cols[e]]
+		vals[s.entryPos[e]] = complex(real(v)*sc, imag(v)*sc)
 	}
 	c, u := 0, 0 // the next candidate, and its update positions
 	for k := 0; k < n; k++ {
@@ -346,24 +352,22 @@ func (lu *LU) refactor(m *Matrix) bool {
 		if pm <= PivotTolerance {
 			return false
 		}
-		// Partial pivoting takes the first largest candidate in the rows'
-		// order at this step: the recorded pivot must beat those before it
-		// and not lose to those after.
-		ce := s.candEnd[k]
-		for q := c; q < ce; q++ {
-			m := abs1(vals[s.candPos[q]])
-			if m > pm || m == pm && s.candBefore[q] {
-				return false
-			}
-		}
 		inv := recip(vals[d])
 		lu.inv[k] = inv
 		urow := vals[d+1 : s.rowStart[k+1]]
-		for ; c < ce; c++ {
+		for ce := s.candEnd[k]; c < ce; c++ {
 			q := s.candPos[c]
 			upd := s.upd[u : u+len(urow)]
 			u += len(urow)
 			l := vals[q]
+			// Partial pivoting takes the first largest candidate in the
+			// rows' order at this step: the recorded pivot must beat those
+			// before it and not lose to those after. (Updating a candidate
+			// leaves the others' column k alone; on failure the caller
+			// places the entries again.)
+			if m := abs1(l); m > pm || m == pm && s.candBefore[c] {
+				return false
+			}
 			if l == 0 {
 				continue
 			}
@@ -384,16 +388,16 @@ func (lu *LU) refactor(m *Matrix) bool {
 // pivot order, and a layout holding L and U row by row (fill included),
 // with the elimination's steps written out as positions in it.
 type symbolic struct {
-	n       int
-	I, J, K []int32 // the Matrix's structure it was made for
-	piv     []int   // row interchanges, as LU.piv
-	order   []int32 // row i of the factors is row order[i] of the matrix
-	final   []int32 // and row r of the matrix row final[r] of the factors
+	n     int
+	I, J  []int32 // the Matrix's structure it was made for
+	piv   []int   // row interchanges, as LU.piv
+	order []int32 // row i of the factors is row order[i] of the matrix
 
 	rowStart []int32 // row i's entries are rowStart[i]:rowStart[i+1]
 	cols     []int32 // the column of each entry, ascending within a row
 	diag     []int32 // the position of row i's diagonal: L before it, U after
-	termPos  []int32 // where each term of the Matrix is summed
+	entryPos []int32 // where each entry of the Matrix goes
+	fill     []int32 // the positions no entry of the Matrix takes
 
 	// Step k eliminates column k from the rows candPos[candEnd[k−1]:candEnd[k]]
 	// (the positions of their column-k entries), each along U's row k at the
@@ -407,7 +411,7 @@ type symbolic struct {
 
 // of reports whether s was recorded for m's structure.
 func (s *symbolic) of(m *Matrix) bool {
-	return s.n == m.N && same(s.I, m.I) && same(s.J, m.J) && same(s.K, m.K)
+	return s.n == m.N && same(s.I, m.I) && same(s.J, m.J)
 }
 
 // same reports whether a and b are the same slice.
@@ -419,9 +423,9 @@ func same(a, b []int32) bool {
 // order piv, full-row interchanges as the dense elimination makes them.
 func symbolicOf(m *Matrix, piv []int) *symbolic {
 	n := m.N
-	s := &symbolic{n: n, I: m.I, J: m.J, K: m.K, piv: append([]int(nil), piv...),
-		order: make([]int32, n), final: make([]int32, n), rowStart: make([]int32, n+1),
-		diag: make([]int32, n), termPos: make([]int32, len(m.I)), candEnd: make([]int, n)}
+	s := &symbolic{n: n, I: m.I, J: m.J, piv: append([]int(nil), piv...),
+		order: make([]int32, n), rowStart: make([]int32, n+1),
+		diag: make([]int32, n), entryPos: make([]int32, len(m.I)), candEnd: make([]int, n)}
 	b := make([]bool, n*n) // by the matrix's own rows
 	for t := range m.I {
 		b[int(m.I[t])*n+int(m.J[t])] = true
@@ -454,7 +458,6 @@ func symbolicOf(m *Matrix, piv []int) *symbolic {
 		}
 		cur[k], cur[p] = cur[p], cur[k]
 		s.order[k] = r
-		s.final[r] = int32(k)
 	}
 	// The layout, and where each (row, column) of the matrix lies in it.
 	at := make([]int32, n*n)
@@ -472,8 +475,16 @@ func symbolicOf(m *Matrix, piv []int) *symbolic {
 		}
 	}
 	s.rowStart[n] = int32(len(s.cols))
-	for t := range m.I {
-		s.termPos[t] = at[int(m.I[t])*n+int(m.J[t])]
+	taken := make([]bool, len(s.cols))
+	for e := range m.I {
+		q := at[int(m.I[e])*n+int(m.J[e])]
+		s.entryPos[e] = q
+		taken[q] = true
+	}
+	for q, t := range taken {
+		if !t {
+			s.fill = append(s.fill, int32(q))
+		}
 	}
 	for k := 0; k < n; k++ {
 		ucols := s.cols[s.diag[k]+1 : s.rowStart[k+1]]
@@ -490,36 +501,44 @@ func symbolicOf(m *Matrix, piv []int) *symbolic {
 	return s
 }
 
-// MulAdds returns the complex multiply-adds of the last factorization's
-// structure: a refactorization (one per update and per multiplier), a
-// solve (one per nonzero of L and U), both 0 before a structure is
-// recorded.
-func (lu *LU) MulAdds() (factor, solve int) {
-	if s := lu.sym; s != nil {
-		return len(s.upd) + len(s.candPos) + s.n, len(s.cols)
+// MulAdds returns the complex multiply-adds lu has done so far, in its
+// factorizations (one per update of an entry, per multiplier and per
+// reciprocal pivot) and solves (one per nonzero of L and U): the
+// arithmetic its work needs, which benchmarks hold its time against.
+func (lu *LU) MulAdds() int { return lu.count }
+
+// solveCount is the multiply-adds of one solve with the current factors.
+func (lu *LU) solveCount() int {
+	if lu.sparse {
+		return len(lu.sym.cols)
 	}
-	return 0, 0
+	return lu.nnz
 }
 
 // SolveTo solves A·x = b into dst (len n), leaving b unchanged. dst and b
 // may be the same slice.
 func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
 	n, y := lu.n, lu.work
-	for i := 0; i < n; i++ {
-		y[i] = b[i] * complex(lu.rs[i], 0)
-	}
-	for k := 0; k < n; k++ {
-		if p := lu.piv[k]; p != k {
-			y[k], y[p] = y[p], y[k]
-		}
-	}
 	if lu.sparse {
+		// The rows in the factors' order: the interchanges, at once.
+		for i, r := range lu.sym.order {
+			y[i] = scale(b[r], lu.rs[r])
+		}
 		lu.sparseSolve(y)
 	} else {
+		for i := 0; i < n; i++ {
+			y[i] = scale(b[i], lu.rs[i])
+		}
+		for k := 0; k < n; k++ {
+			if p := lu.piv[k]; p != k {
+				y[k], y[p] = y[p], y[k]
+			}
+		}
 		lu.denseSolve(y)
 	}
+	lu.count += lu.solveCount()
 	for i := 0; i < n; i++ {
-		dst[i] = y[i] * complex(lu.cs[i], 0)
+		dst[i] = scale(y[i], lu.cs[i])
 	}
 	return dst
 }
@@ -584,20 +603,24 @@ func (lu *LU) SolveTransTo(dst, b []complex128) []complex128 {
 	// A = Dr⁻¹·Pᵀ·L·U·Dc⁻¹, so Uᵀ·Lᵀ·(P·Dr⁻¹·x) = Dc·b.
 	n, v := lu.n, lu.work
 	for i := 0; i < n; i++ {
-		v[i] = b[i] * complex(lu.cs[i], 0)
+		v[i] = scale(b[i], lu.cs[i])
 	}
+	lu.count += lu.solveCount()
 	if lu.sparse {
 		lu.sparseSolveTrans(v)
-	} else {
-		lu.denseSolveTrans(v)
+		for i, r := range lu.sym.order {
+			dst[r] = scale(v[i], lu.rs[r])
+		}
+		return dst
 	}
+	lu.denseSolveTrans(v)
 	for k := n - 1; k >= 0; k-- {
 		if p := lu.piv[k]; p != k {
 			v[k], v[p] = v[p], v[k]
 		}
 	}
 	for i := 0; i < n; i++ {
-		dst[i] = v[i] * complex(lu.rs[i], 0)
+		dst[i] = scale(v[i], lu.rs[i])
 	}
 	return dst
 }
@@ -673,6 +696,9 @@ func (lu *LU) work2(n int) []complex128 {
 	}
 	return lu.spare[:n]
 }
+
+// scale is z·s for a real s (a power of two here, so exact).
+func scale(z complex128, s float64) complex128 { return complex(real(z)*s, imag(z)*s) }
 
 // recip is 1/z without the care Go's complex division takes for values
 // near overflow: pivots here are equilibrated to magnitudes near 1.
