@@ -360,8 +360,7 @@ func (a *Analyzer) values(f float64) {
 		return
 	}
 	a.prec.At(f)
-	a.vals = a.prec.Values(a.vals)
-	a.mags = mna.Magnitudes(a.mags, a.vals)
+	a.vals, a.mags = a.prec.Values(a.vals, a.mags)
 	a.valsF, a.valsOK = f, true
 }
 

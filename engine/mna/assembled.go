@@ -107,7 +107,7 @@ func (a *Active) assemble(s *System) {
 func (a *Active) Matrix() *Matrix { return &a.asm.m }
 
 // At sums the entries from the values v of Precise.Values and their
-// magnitudes av (Magnitudes).
+// magnitudes av.
 func (a *Active) At(v []complex128, av []float64) {
 	m := &a.asm
 	copy(m.val, m.base)
@@ -172,17 +172,4 @@ func (a *Active) ResidualBound(w, mag []float64, r []complex128, b, x []complex1
 		r[i], mag[i], m.gamma[i] = ri, mi, g
 		w[i] = Abs(ri)*(1+4*dd.U) + g*mi
 	}
-}
-
-// Magnitudes writes |v[k]| for every value of v into dst (grown as
-// needed) and returns it.
-func Magnitudes(dst []float64, v []complex128) []float64 {
-	if cap(dst) < len(v) {
-		dst = make([]float64, len(v))
-	}
-	dst = dst[:len(v)]
-	for k, z := range v {
-		dst[k] = Abs(z)
-	}
-	return dst
 }

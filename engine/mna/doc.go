@@ -38,8 +38,8 @@
 //	p := mna.NewPrecise(sys)
 //	act := p.Active(cfg)               // cfg's coefficients, once
 //	p.At(f)
-//	v := p.Values(nil)                 // every coefficient at f
-//	act.At(v, mna.Magnitudes(nil, v))  // cfg's entries at f
+//	v, av := p.Values(nil, nil)        // every coefficient at f
+//	act.At(v, av)                      // cfg's entries at f
 //	lu.FactorMatrix(act.Matrix())
 //	act.ResidualBound(w, mag, r, b, x) // |b − A·x| ≤ w, in one float64 pass
 //	p.Refine(&lu, act, b, xdd, w, mag, rnd, false, 0, 4, good) // refine x in double-double

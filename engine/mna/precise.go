@@ -122,34 +122,36 @@ func (p *Precise) At(f float64) {
 	}
 }
 
-// Values writes into dst (grown as needed) and returns the value at the
-// frequency of the last At of every coefficient of the equations, the
-// terms that each configuration's matrix sums (Active.At): 1 and −1, the
-// conductance-like entries, j·ω times the capacitance-like ones, and the
-// controlled sources' −k·r·c — each the double-double coefficient
-// rounded, within 2⁻⁵⁴ of the exact one. Computed once per frequency,
-// they serve every configuration.
-func (p *Precise) Values(dst []complex128) []complex128 {
+// Values writes into v and av (grown as needed) and returns the value at
+// the frequency of the last At of every coefficient of the equations, and
+// its magnitude: the terms that each configuration's matrix sums
+// (Active.At) — 1 and −1, the conductance-like entries, j·ω times the
+// capacitance-like ones, and the controlled sources' −k·r·c — each the
+// double-double coefficient rounded, within 2⁻⁵⁴ of the exact one.
+// Computed once per frequency, they serve every configuration.
+func (p *Precise) Values(v []complex128, av []float64) ([]complex128, []float64) {
 	s := p.s
-	if n := s.Terms(); cap(dst) < n {
-		dst = make([]complex128, n)
-	} else {
-		dst = dst[:n]
+	n := s.Terms()
+	if cap(v) < n {
+		v = make([]complex128, n)
+		av = make([]float64, n)
 	}
-	dst[0], dst[1] = 1, -1
-	v := dst[2:]
-	for k, e := range s.g {
-		v[k] = complex(e.v, 0)
+	v, av = v[:n], av[:n]
+	v[0], v[1], av[0], av[1] = 1, -1, 1, 1
+	k := 2
+	for _, e := range s.g {
+		v[k], av[k] = complex(e.v, 0), math.Abs(e.v)
+		k++
 	}
-	v = v[len(s.g):]
-	for k, w := range p.cw {
-		v[k] = complex(0, w.Hi)
+	for _, w := range p.cw {
+		v[k], av[k] = complex(0, w.Hi), math.Abs(w.Hi)
+		k++
 	}
-	v = v[len(s.c):]
-	for k := range p.ctl {
-		v[k] = p.ctl[k].d
+	for i := range p.ctl {
+		v[k], av[k] = p.ctl[i].d, p.ctl[i].abs
+		k++
 	}
-	return dst
+	return v, av
 }
 
 // Gain returns Controls[ci]'s gain k at the frequency of the last At, in

@@ -216,8 +216,7 @@ func TestResidualBoundHolds(t *testing.T) {
 		checked, tight, worst := 0, 0, 0.0
 		for _, f := range []float64{0, 1, 1e3, 1e6, 1e9} {
 			p.At(f)
-			v := p.Values(nil)
-			av := Magnitudes(nil, v)
+			v, av := p.Values(nil, nil)
 			for ci, cfg := range cfgs {
 				cfg.F = f
 				act := p.Active(cfg)

@@ -329,8 +329,7 @@ func (s *System) Assemble(dst []complex128, cfg Config) []complex128 {
 	act := s.Active(cfg)
 	p := NewPrecise(s)
 	p.At(cfg.F)
-	v := p.Values(nil)
-	act.At(v, Magnitudes(nil, v))
+	act.At(p.Values(nil, nil))
 	m := act.Matrix()
 	for e := range m.I {
 		dst[int(m.I[e])*n+int(m.J[e])] = m.V[e]
