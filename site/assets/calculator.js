@@ -121,6 +121,10 @@
       }
       return { out: out, linked: !!frag };
     }).then(function (r) {
+      // The engine answers: the actions work from now on, even when an
+      // edit made meanwhile has superseded this answer.
+      var buttons = self.el.querySelectorAll('button[data-action]');
+      for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
       if (!r || seq !== self.seq) return;
       if (r.linked && r.out.form) self.fill(r.out.form);
       // The address changes only when it held settings (at once: a
@@ -130,8 +134,6 @@
       if (r.linked && !r.out.error && r.out.form) {
         self.el.dispatchEvent(new CustomEvent('zport:link', { detail: r.out.form }));
       }
-      var buttons = self.el.querySelectorAll('button[data-action]');
-      for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
     });
   };
 

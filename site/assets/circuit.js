@@ -42,6 +42,7 @@
   var MAX_LISTED = 60; // errors listed and marked (the parser stops after 50)
   var SLOW_MS = 120; // a recompute slower than this throttles the next ones
   var BUDGET_MS = 300; // the sweep of one recompute; the engine shortens it to fit
+  var FAST_PASTE = 64 * 1024; // a paste longer than this skips the browser's editing commands
   var GUTTER_SPARE = 40; // line numbers drawn beyond the visible ones
 
   function role(r) { return el.querySelector('[data-role="' + r + '"]'); }
@@ -150,6 +151,13 @@
         e.preventDefault();
         self.fileMsg.textContent = 'Not pasted: the text would be ' + Math.round((add.length + keep) / 1024) +
           ' KB, and circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
+      } else if (add.length > FAST_PASTE) {
+        // The browser's own paste of a long text holds the page for
+        // seconds (its editing commands walk the text); put it in place
+        // directly. Such a paste cannot be undone with Ctrl+Z.
+        e.preventDefault();
+        self.ta.setRangeText(add, self.ta.selectionStart, self.ta.selectionEnd, 'end');
+        self.ta.dispatchEvent(new Event('input', { bubbles: true }));
       }
     });
     el.querySelector('[data-action="full-sweep"]').addEventListener('click', function () {
@@ -562,8 +570,6 @@
   // a newer recompute has superseded this one.
   Editor.prototype.recompute = function (address, fragment) {
     var t0 = performance.now();
-    // For tests and the benchmark: how many recomputes have run.
-    el.setAttribute('data-recomputes', String(Number(el.getAttribute('data-recomputes') || 0) + 1));
     this.clearMessages();
     var req = this.values();
     req.offered = this.offered();
@@ -590,7 +596,11 @@
     var self = this;
     return this.analyze(req).then(function (res) {
       if (seq !== self.seq) return null;
-      return self.show(res, req, t0, address, fragment);
+      var out = self.show(res, req, t0, address, fragment);
+      // For tests and the benchmark: how many recomputes have shown
+      // their answer (one a newer edit superseded does not count).
+      el.setAttribute('data-recomputes', String(Number(el.getAttribute('data-recomputes') || 0) + 1));
+      return out;
     });
   };
 
@@ -736,6 +746,9 @@
   Editor.prototype.boot = function () {
     var self = this;
     var seq = ++this.bootSeq;
+    // Not live until this address is read and analyzed (the engine answers
+    // in its own time: a link opened over another waits for it too).
+    el.removeAttribute('data-live');
     var frag = shown() ? site.fragment() : '';
     var parts = splitFragment(frag);
     var ready;
