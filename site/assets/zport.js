@@ -294,7 +294,7 @@
   // pay for that, the engine is warmed while the page is idle: the last
   // recompute is repeated a few times with a short sweep (the same code,
   // a fraction of the time, so an edit never waits long behind it), its
-  // answers dropped.
+  // answers dropped, until the user's first edit.
   var WARM_RUNS = 8;
   var WARM_POINTS = 20;
   var warm = { runs: 0, name: '', arg: '' };
@@ -392,6 +392,7 @@
       }
       var c = { id: nextCall++, name: name, args: args, resolve: resolve, lane: laneOf(name, raw) };
       if (!c.lane) return send(c);
+      if (live) warm.runs = WARM_RUNS; // the user edits: warming is over
       var l = lanes[c.lane] || (lanes[c.lane] = { running: null, next: null });
       if (!l.running) {
         l.running = c;
