@@ -65,9 +65,11 @@
 // every page as a section chosen by the fragment (#p=NAME), with its style
 // sheet and scripts inline and allowed by their SHA-256 hashes in its
 // Content-Security-Policy. The engine is written as zport-engine.js, the
-// module gzip-compressed and base64-encoded into one global string (see
-// EngineScript), because browsers refuse to fetch a .wasm file from
-// file://. Every page carries the Content-Security-Policy CSP; nothing is
+// module gzip-compressed and base-122-encoded into one global string
+// beside Go's wasm_exec.js as the body of a function (see EngineScript),
+// because browsers refuse to fetch a .wasm file from file:// or to start
+// a worker from one: zport.js runs the engine in a worker made from a
+// blob:. Every page carries the Content-Security-Policy CSP; nothing is
 // inline but the data of the pages themselves, and every link is relative.
 //
 // Output is deterministic: files are produced in lexical order, the

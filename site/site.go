@@ -36,12 +36,13 @@ import (
 var Sources embed.FS
 
 // CSP is the Content-Security-Policy of every page of the multi-file site:
-// scripts, styles and images only from the page's own folder, and the
-// WebAssembly compile the engine needs. Images may also be data: URLs. No
+// scripts, styles and images only from the page's own folder, the
+// WebAssembly compile the engine needs, and its worker from a blob: (the
+// loader makes it from zport-engine.js). Images may also be data: URLs. No
 // plugins, no <base> to move relative links, and no form submission
 // anywhere (the calculators compute in the page). The single-file export
 // has the same policy, with hashes for its inline parts.
-const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; style-src 'self'; img-src 'self' data:; connect-src 'self'; " + cspLocks
+const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; worker-src blob:; style-src 'self'; img-src 'self' data:; connect-src 'self'; " + cspLocks
 
 // cspLocks are the directives that default-src does not cover: plugins,
 // the document's base URL and form targets, all refused.
@@ -87,15 +88,24 @@ func (f Files) Write(dir string) error {
 	return nil
 }
 
-// EngineGlobal is the name of the global string zport-engine.js sets.
-const EngineGlobal = "zportEngine"
+// EngineGlobal is the name of the global string zport-engine.js sets, and
+// EngineRuntime that of the function holding Go's wasm_exec.js.
+const (
+	EngineGlobal  = "zportEngine"
+	EngineRuntime = "zportGo"
+)
 
-// EngineScript wraps a WebAssembly module as the classic script the
-// loader reads: the module gzip-compressed at the best level, with no name
-// or time in the header so the bytes depend on the module alone, then
-// base64-encoded into one global string. Browsers refuse to fetch or
-// stream-compile a .wasm file from file://, but they run a script.
-func EngineScript(wasm []byte) ([]byte, error) {
+// EngineScript wraps a WebAssembly module and Go's wasm_exec.js as the
+// classic script the loader reads: the module gzip-compressed at the best
+// level, with no name or time in the header so the bytes depend on the
+// module alone, then written into one global string in a base-122
+// encoding (base122.go: a seventh smaller than base64); and
+// wasm_exec.js as the body of a global function, which the loader does not
+// call but reads back as source (Function.prototype.toString) to start the
+// engine's worker with. Browsers refuse to fetch or stream-compile a .wasm
+// file from file://, and to start a worker from a file, but they run a
+// script and a worker from a blob: of the page's own making.
+func EngineScript(wasm, wasmExec []byte) ([]byte, error) {
 	var gz bytes.Buffer
 	zw, err := gzip.NewWriterLevel(&gz, gzip.BestCompression)
 	if err != nil {
@@ -107,12 +117,14 @@ func EngineScript(wasm []byte) ([]byte, error) {
 	if err := zw.Close(); err != nil {
 		return nil, err
 	}
-	enc := base64.StdEncoding.EncodeToString(gz.Bytes())
+	enc := base122Encode(gz.Bytes())
 	var b bytes.Buffer
-	b.WriteString("// zport engine: gzip-compressed WebAssembly, base64-encoded (see zport.js).\n")
+	b.WriteString("// zport engine: gzip-compressed WebAssembly, base-122-encoded, and Go's wasm_exec.js (see zport.js).\n")
 	b.WriteString("globalThis." + EngineGlobal + "=\"")
 	b.WriteString(enc)
-	b.WriteString("\";\n")
+	b.WriteString("\";\nglobalThis." + EngineRuntime + "=function(){\n")
+	b.Write(wasmExec)
+	b.WriteString("\n};\n")
 	return b.Bytes(), nil
 }
 
@@ -360,7 +372,7 @@ func (b *builder) nav(current string, titles map[string]string, single bool) (na
 var navTitles = map[string]string{"index": "Start", "method": "Method", "custom": "Your circuit", "about": "About and cautions"}
 
 // Build renders the multi-file site: one HTML file per page of content/,
-// the style sheet, the scripts, the icon, wasm_exec.js and the engine.
+// the style sheet, the scripts, the icon and the engine.
 func Build(opt Options) (Files, error) {
 	if len(opt.Engine) == 0 || len(opt.WasmExec) == 0 {
 		return nil, errors.New("site: Options.Engine and Options.WasmExec are required")
@@ -404,8 +416,7 @@ func Build(opt Options) (Files, error) {
 		return nil, err
 	}
 	files["style.css"] = b.styleCSS
-	files["wasm_exec.js"] = opt.WasmExec
-	eng, err := EngineScript(opt.Engine)
+	eng, err := EngineScript(opt.Engine, opt.WasmExec)
 	if err != nil {
 		return nil, err
 	}
@@ -425,7 +436,7 @@ func Single(opt Options) ([]byte, error) {
 	if err != nil {
 		return nil, err
 	}
-	eng, err := EngineScript(opt.Engine)
+	eng, err := EngineScript(opt.Engine, opt.WasmExec)
 	if err != nil {
 		return nil, err
 	}
@@ -433,7 +444,7 @@ func Single(opt Options) ([]byte, error) {
 	if err != nil {
 		return nil, err
 	}
-	scripts := [][]byte{opt.WasmExec, eng}
+	scripts := [][]byte{eng}
 	if b.hover {
 		h, err := fs.ReadFile(b.src, "assets/plothover.js")
 		if err != nil {
@@ -473,7 +484,7 @@ func Single(opt Options) ([]byte, error) {
 		scriptHashes = append(scriptHashes, hash(s))
 	}
 	csp := "default-src 'self'; script-src " + strings.Join(scriptHashes, " ") +
-		" 'wasm-unsafe-eval'; style-src " + styleHash + "; img-src 'self' data:; connect-src 'self'; " + cspLocks
+		" 'wasm-unsafe-eval'; worker-src blob:; style-src " + styleHash + "; img-src 'self' data:; connect-src 'self'; " + cspLocks
 
 	titles := map[string]string{}
 	conv := map[string]converted{}

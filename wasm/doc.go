@@ -5,8 +5,10 @@
 //
 // (go run ./build does this and packs the module into zport-engine.js).
 //
-// Started by Go's wasm_exec.js, main registers one global object, zport,
-// and waits until zport.exit() is called. Its functions take and return
+// Started by Go's wasm_exec.js — on the pages, in the engine's Web Worker
+// (site/assets/zport.js), whose global scope it then shares — main
+// registers one global object, zport, and waits until zport.exit() is
+// called (the pages end the worker instead). Its functions take and return
 // strings of JSON; none of them throws:
 //
 //	zport.circuit(requestJSON)  one edit of the custom-circuit page

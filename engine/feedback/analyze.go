@@ -30,20 +30,9 @@ type Port struct {
 	HeldBy []string
 	// HeldAtDC is HeldBy with the inductors, which are shorts at DC.
 	HeldAtDC []string
-	keys     map[string]string
-}
-
-// key names the port's cached factorization of one kind.
-func (p *Port) key(kind string) string {
-	if k, ok := p.keys[kind]; ok {
-		return k
-	}
-	if p.keys == nil {
-		p.keys = map[string]string{}
-	}
-	k := kind + ":" + p.Name
-	p.keys[kind] = k
-	return k
+	// The port's factorizations: open (its driver removed) at zero and
+	// full reference gain, shorted at zero gain.
+	open0, openK, short0 *slot
 }
 
 // Gain is a resolved gain request.
@@ -154,17 +143,19 @@ type Analyzer struct {
 	// J. Solid-State Circuits 6(4), 1971 [memory]); package noise uses it.
 	Adjoint []mna.Term
 
-	slots map[string]*slot
-	used  []*slot      // factored during the current At
-	r     []complex128 // reference injection, length Sys.N+1
-	buf   []complex128 // a right-hand side: the gain source, a port current
+	base0, baseK *slot        // the circuit at zero and full reference gain
+	slots        []*slot      // every configuration factored
+	used         []*slot      // factored during the current At
+	r            []complex128 // reference injection, length Sys.N+1
+	buf          []complex128 // a right-hand side: the gain source, a port current
 
 	prec     *mna.Precise
 	fns      []mna.Functional // the read-outs by id; fns[readCtl] changes with the frequency
 	same     []int            // the first read-out with the same functional, by id
-	ys       [2][]complex128  // refine's work space
+	ys       [2][]float64     // refine's work space: adjoints' moduli
 	ls       [2]mna.Functional
 	sx       []complex128 // eval's work space, length Sys.N+1
+	sadj     []complex128 // an adjoint solution being formed
 	sr, sd   []complex128
 	sxd      []dd.Complex
 	sw       []float64
@@ -176,10 +167,17 @@ type Analyzer struct {
 		v complex128
 		e float64
 	}
-	sy     [2][]complex128
+	sy     [2][]float64 // adjoints' moduli from the double-double LU
 	portID [1]int
 	k      dd.Complex // the reference's gain at the current frequency
 	kAbs   float64
+
+	vals   []complex128 // the coefficients' values at valsF
+	mags   []float64
+	valsF  float64
+	valsOK bool
+
+	residuals int // entries of the residual bounds so far (MulAdds)
 
 	// Solves counts the solves by how they ended: [1] with the float64
 	// factorization alone, [2] refined with it, [3] with the double-double
@@ -189,7 +187,6 @@ type Analyzer struct {
 
 type slot struct {
 	lu  mna.LU
-	mat []complex128
 	err error
 	f   float64
 	ok  bool
@@ -220,7 +217,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	if n := len(c.Nodes) - 1; n > MaxNodes {
 		return nil, fmt.Errorf("the circuit has %d nodes; zport analyzes up to %d so the page stays responsive", n, MaxNodes)
 	}
-	a := &Analyzer{C: c, Sys: mna.New(c), Ports: ports, Gain: gain, slots: map[string]*slot{}, Ref: -1, ref: -1}
+	a := &Analyzer{C: c, Sys: mna.New(c), Ports: ports, Gain: gain, Ref: -1, ref: -1}
 	if reference != "" {
 		i, ok := c.PartIndex(reference)
 		if !ok {
@@ -234,6 +231,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 	sys := a.Sys
 	for i := range a.Ports {
 		p := &a.Ports[i]
+		p.open0, p.openK, p.short0 = nil, nil, nil // a Port reused from another analyzer
 		p.Drivers = drivers(c, p.A, p.B)
 		p.HeldBy = heldBy(c, p.A, p.B, p.Drivers, false)
 		p.HeldAtDC = heldBy(c, p.A, p.B, p.Drivers, true)
@@ -268,6 +266,7 @@ func New(c *circuit.Circuit, reference string, ports []Port, gain *Gain) (*Analy
 		}
 	}
 	a.sx = make([]complex128, sys.N+1)
+	a.sadj = make([]complex128, sys.N+1)
 	a.sr = make([]complex128, sys.N+1)
 	a.sd = make([]complex128, sys.N+1)
 	a.sxd = make([]dd.Complex, sys.N+1)
@@ -340,12 +339,13 @@ func drivers(c *circuit.Circuit, pa, pb int) []int {
 }
 
 // factor returns the factorization of the system for cfg at cfg.F, cached
-// under key for that frequency.
-func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
-	s := a.slots[key]
+// in *sp for that frequency.
+func (a *Analyzer) factor(sp **slot, cfg mna.Config) (*slot, error) {
+	s := *sp
 	if s == nil {
 		s = &slot{}
-		a.slots[key] = s
+		*sp = s
+		a.slots = append(a.slots, s)
 	}
 	if s.ok && s.f == cfg.F {
 		return s, s.err
@@ -364,13 +364,37 @@ func (a *Analyzer) factor(key string, cfg mna.Config) (*slot, error) {
 	if s.act == nil {
 		s.act = a.prec.Active(cfg)
 	}
-	s.mat = a.Sys.Assemble(s.mat, cfg)
-	s.err = s.lu.Factor(s.mat, a.Sys.Size(cfg))
+	a.values(cfg.F)
+	s.act.At(a.vals, a.mags)
+	s.err = s.lu.FactorMatrix(s.act.Matrix())
 	s.f, s.ok = cfg.F, true
 	if s.err == nil {
 		a.used = append(a.used, s)
 	}
 	return s, s.err
+}
+
+// values computes the equations' coefficients at f (mna.Precise.Values)
+// and their magnitudes, once per frequency for every configuration.
+func (a *Analyzer) values(f float64) {
+	if a.valsOK && a.valsF == f {
+		return
+	}
+	a.prec.At(f)
+	a.vals, a.mags = a.prec.Values(a.vals, a.mags)
+	a.valsF, a.valsOK = f, true
+}
+
+// MulAdds returns the complex multiply-adds of the analyzer's float64
+// work so far: factorizations, solves and residual bounds (mna.LU.MulAdds,
+// and one per entry of a residual bound) — what its time is held against
+// in the benchmarks. Refinement in double-double is not counted.
+func (a *Analyzer) MulAdds() int {
+	n := a.residuals
+	for _, s := range a.slots {
+		n += s.lu.MulAdds()
+	}
+	return n
 }
 
 // setFrequency prepares the bounds' per-frequency state.
@@ -431,7 +455,7 @@ func (a *Analyzer) ReturnRatio(f float64) (complex128, error) {
 		return cmplx.NaN(), ErrNoReference
 	}
 	cfg := mna.Config{F: f, Ref: a.ref}
-	s, err := a.factor("base0", cfg)
+	s, err := a.factor(&a.base0, cfg)
 	if !a.usable(s, err) {
 		return cmplx.NaN(), a.explain(err, cfg, "with the reference gain at zero")
 	}
@@ -448,9 +472,12 @@ func (a *Analyzer) At(f float64) (Point, error) {
 		return Point{}, fmt.Errorf("frequency %g Hz: it must be finite and ≥ 0", f)
 	}
 	pt := Point{F: f, T: nan, TErr: math.NaN(), TSens: math.NaN()}
-	notes := map[string]bool{}
+	var notes map[string]bool // made with the first note: most points have none
 	note := func(format string, args ...any) {
 		s := fmt.Sprintf(format, args...)
+		if notes == nil {
+			notes = map[string]bool{}
+		}
 		if !notes[s] {
 			notes[s] = true
 			pt.Notes = append(pt.Notes, s)
@@ -459,7 +486,7 @@ func (a *Analyzer) At(f float64) (Point, error) {
 	a.used = a.used[:0]
 	a.setFrequency(f)
 	cfgK := mna.Config{F: f, Ref: a.ref, RefGain: true}
-	baseK, errK := a.factor("baseK", cfgK)
+	baseK, errK := a.factor(&a.baseK, cfgK)
 	if a.ref < 0 {
 		if !a.usable(baseK, errK) {
 			return Point{}, a.explain(errK, cfgK, "")
@@ -467,7 +494,7 @@ func (a *Analyzer) At(f float64) (Point, error) {
 		return a.direct(pt, baseK, note), nil
 	}
 	cfg0 := mna.Config{F: f, Ref: a.ref}
-	base0, err0 := a.factor("base0", cfg0)
+	base0, err0 := a.factor(&a.base0, cfg0)
 	ok0 := a.usable(base0, err0)
 	okK := a.usable(baseK, errK)
 	if !okK && !ok0 {
@@ -584,7 +611,7 @@ func (a *Analyzer) direct(pt Point, baseK *slot, note func(string, ...any)) Poin
 		if len(p.Drivers) > 0 {
 			cfg := mna.Config{F: f, Ref: -1, RefGain: true, Removed: p.Drivers}
 			var err error
-			s, err = a.factor(p.key("openK"), cfg)
+			s, err = a.factor(&p.openK, cfg)
 			if ok = a.usable(s, err); !ok {
 				if valuesFailed(err) {
 					note("%s: port %s: the direct impedance cannot be computed: %v", hz(f), p.Name, a.explain(err, cfg, "with the port open"))
@@ -637,7 +664,7 @@ func (a *Analyzer) AdjointAt(f float64, z []complex128) error {
 		panic("feedback: AdjointAt without an Adjoint read-out")
 	}
 	cfg := mna.Config{F: f, Ref: a.ref, RefGain: true}
-	s, err := a.factor("baseK", cfg)
+	s, err := a.factor(&a.baseK, cfg)
 	if err != nil {
 		return a.explain(err, cfg, "")
 	}
@@ -751,17 +778,17 @@ func (a *Analyzer) port(pi int, f float64, base0 *slot, ok0 bool, baseK *slot, T
 		// The port's driver is removed for the open port; the driver,
 		// zeroed, is itself the short.
 		cfg := mna.Config{F: f, Ref: a.ref, Removed: p.Drivers}
-		open0, errOpen0 = a.factor(p.key("open0"), cfg)
+		open0, errOpen0 = a.factor(&p.open0, cfg)
 		okOpen0 = a.usable(open0, errOpen0)
 		cfg.RefGain = true
-		openK, errOpenK = a.factor(p.key("openK"), cfg)
+		openK, errOpenK = a.factor(&p.openK, cfg)
 		okOpenK = a.usable(openK, errOpenK)
 		Ts = T
 		okShort0 = ok0
 	} else {
 		open0, openK = base0, baseK
 		cfg := mna.Config{F: f, Ref: a.ref, Short: &[2]int{p.A, p.B}}
-		short0, errShort0 = a.factor(p.key("short0"), cfg)
+		short0, errShort0 = a.factor(&p.short0, cfg)
 		if okShort0 = a.usable(short0, errShort0); okShort0 {
 			Ts = a.returned(short0, nil)
 		}

@@ -84,11 +84,16 @@ func benchSweepTol(b *testing.B, text string, ports [][3]string, gain *[3]string
 	a.Tol = tol
 	grid := floats.LogSpan(make([]float64, n), 10, 100e6)
 	b.ReportAllocs()
+	m0, sweeps := a.MulAdds(), 0
 	for b.Loop() {
 		if _, err := a.Sweep(grid); err != nil {
 			b.Fatal(err)
 		}
+		sweeps++
 	}
+	// The complex multiply-adds a point needs (factorizations, solves,
+	// residual bounds), against which build/bench/ratios times it.
+	b.ReportMetric(float64(a.MulAdds()-m0)/float64(sweeps*n), "muladds/point")
 }
 
 func BenchmarkSweep10Node2Port100(b *testing.B) {
@@ -117,6 +122,16 @@ func ladder(n int) string {
 
 func BenchmarkSweep50NodeLadder400(b *testing.B) {
 	benchSweep(b, ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 400)
+}
+
+// Time per point grows about linearly with the nodes: 200 against 50
+// (ladder(n) has n+1 nodes).
+func BenchmarkSweep200NodeLadder100(b *testing.B) {
+	benchSweep(b, ladder(199), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 100)
+}
+
+func BenchmarkSweep50NodeLadder100(b *testing.B) {
+	benchSweep(b, ladder(49), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 100)
 }
 
 func BenchmarkSpot50NodeLadder(b *testing.B) {

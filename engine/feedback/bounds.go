@@ -18,9 +18,12 @@ import (
 // exactly yᵀ(b − A·x̂), where y solves the adjoint system Aᵀ·y = ℓ; so with
 // w a componentwise bound on the exact residual, |ℓᵀx − ℓᵀx̂| ≤ |y|ᵀw. The
 // adjoint is one more solve with the same factorization, and w comes from
-// the parts' own coefficients (mna.Precise), which is what makes the bound
-// componentwise and honest where the assembled matrix has lost a small
-// conductance. A factor of 2 covers the adjoint's own rounding while the
+// the float64 residual of the assembled entries plus what that residual
+// and the assembly's rounding can hide, counted against the sums S of the
+// magnitudes of the parts' coefficients meeting in each entry
+// (mna.Active.ResidualBound): that is what makes the bound componentwise
+// and honest where the assembled matrix has lost a small conductance, and
+// refinement then works from the parts' own coefficients. A factor of 2 covers the adjoint's own rounding while the
 // factorization is a good inverse; where it is not, the double-double one
 // gives the adjoints (see eval). The formulas then carry the bounds by
 // first-order ball arithmetic, with their midpoints in double-double.
@@ -136,67 +139,80 @@ const (
 // functional returns read-out id at the current frequency.
 func (a *Analyzer) functional(id int) mna.Functional { return a.fns[id] }
 
-// adjoint returns the adjoint solution for read-out id on slot s (solved
-// with s's float64 factorization, cached for the frequency).
-func (a *Analyzer) adjoint(s *slot, id int) []complex128 {
-	id = a.same[id] // a port at the gain's output reads what the gain reads
-	for len(s.adj) <= id {
-		s.adj = append(s.adj, adjoint{})
-	}
-	ad := &s.adj[id]
+// adjoint returns the moduli |y| of the adjoint solution y for read-out
+// id on slot s (solved with s's float64 factorization, cached for the
+// frequency): what the bounds need of it.
+func (a *Analyzer) adjoint(s *slot, id int) []float64 {
+	ad := s.adjointFor(a.same[id]) // a port at the gain's output reads what the gain reads
 	if ad.ok && ad.f == s.f {
-		return ad.y
+		return ad.ay
 	}
 	n := s.act.N
-	if cap(ad.y) < n {
-		ad.y = make([]complex128, n)
-	}
-	ad.y = ad.y[:n]
-	a.functional(id).Scatter(ad.y)
-	s.lu.SolveTransTo(ad.y, ad.y)
-	ad.f, ad.ok = s.f, true
-	return ad.y
+	y := a.sadj[:n]
+	a.functional(id).Scatter(y)
+	s.lu.SolveTransTo(y, y)
+	ad.set(s.f, y)
+	return ad.ay
 }
 
 // setAdjoint caches y as the adjoint of read-out id on slot s.
 func (a *Analyzer) setAdjoint(s *slot, id int, y []complex128) {
-	id = a.same[id]
+	if ad := s.adjointFor(a.same[id]); !ad.ok || ad.f != s.f {
+		ad.set(s.f, y)
+	}
+}
+
+// adjointFor returns slot s's cache of read-out id's adjoint.
+func (s *slot) adjointFor(id int) *adjoint {
 	for len(s.adj) <= id {
 		s.adj = append(s.adj, adjoint{})
 	}
-	ad := &s.adj[id]
-	if ad.ok && ad.f == s.f {
-		return
-	}
-	ad.y = append(ad.y[:0], y...)
-	ad.f, ad.ok = s.f, true
+	return &s.adj[id]
 }
 
-// adjoint is a cached adjoint solution.
+// adjoint is a cached adjoint solution, as its moduli.
 type adjoint struct {
-	y  []complex128
+	ay []float64
 	f  float64
 	ok bool
 }
 
+// set caches y's moduli for frequency f.
+func (ad *adjoint) set(f float64, y []complex128) {
+	ad.ay = moduli(ad.ay, y)
+	ad.f, ad.ok = f, true
+}
+
+// moduli writes |y| into dst (grown as needed) and returns it.
+func moduli(dst []float64, y []complex128) []float64 {
+	if cap(dst) < len(y) {
+		dst = make([]float64, len(y))
+	}
+	dst = dst[:len(y)]
+	for i, v := range y {
+		dst[i] = mna.Abs(v)
+	}
+	return dst
+}
+
 // bounds returns 2·|y|ᵀw, the bound of a read-out (the factor 2 for the
-// adjoint's own error), and |y|ᵀmag, its sensitivity.
-func bounds(y []complex128, w, mag []float64) (e, s float64) {
+// adjoint's own error), and |y|ᵀmag, its sensitivity, from ay = |y|.
+func bounds(ay, w, mag []float64) (e, s float64) {
 	for i, wi := range w {
-		if ay := mna.Abs(y[i]); ay != 0 {
-			e += ay * wi
-			s += ay * mag[i]
+		if y := ay[i]; y != 0 {
+			e += y * wi
+			s += y * mag[i]
 		}
 	}
 	return 2 * e * (1 + 0x1p-40), s
 }
 
-// dotAbs is |y|ᵀv.
-func dotAbs(y []complex128, v []float64) float64 {
+// dotAbs is |y|ᵀv, from ay = |y|.
+func dotAbs(ay, v []float64) float64 {
 	s := 0.0
 	for i, vi := range v {
 		if vi != 0 {
-			s += mna.Abs(y[i]) * vi
+			s += ay[i] * vi
 		}
 	}
 	return s
@@ -210,10 +226,10 @@ func abs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) }
 // It is the one place where accuracy is decided:
 //
 //  1. Solve with the float64 factorization, bound the exact residual from
-//     the parts (mna.Precise.ResidualBound) and each read-out through its
-//     adjoint. If every bound leaves 12 digits (or meets its target), that
-//     is the answer: the common case costs one pass over the parts and
-//     one adjoint solve per read-out and configuration.
+//     the assembled entries (mna.Active.ResidualBound) and each read-out
+//     through its adjoint. If every bound leaves 12 digits (or meets its
+//     target), that is the answer: the common case costs one pass over the
+//     entries and one adjoint solve per read-out and configuration.
 //  2. Otherwise refine x in double-double with the float64 factorization
 //     (classical mixed-precision refinement, residual from the parts,
 //     Demmel et al., ACM TOMS 32(2), 2006), until the bounds leave 12
@@ -244,7 +260,8 @@ func (a *Analyzer) eval(s *slot, b []complex128, ids []int, out []ball, tgt []fl
 	}
 	w, mag := a.sw[:n], a.smag[:n]
 	for pass := 0; ; pass++ {
-		a.prec.ResidualBound(w, mag, r, s.act, b[:n], x)
+		s.act.ResidualBound(w, mag, r, b[:n], x)
+		a.residuals += s.act.Entries()
 		need, floor := false, true
 		for k, id := range ids {
 			y := a.adjoint(s, id)
@@ -268,7 +285,7 @@ func (a *Analyzer) eval(s *slot, b []complex128, ids []int, out []ball, tgt []fl
 		// The residual, not its rounding, is what is large: the float64
 		// elimination has left some component off (one that should be
 		// zero, say). One step of refinement in float64 — the residual
-		// computed from the parts, the correction from the same
+		// of the assembled entries, the correction from the same
 		// factorization — restores componentwise backward stability
 		// (Skeel, Math. Comp. 35, 1980 [memory]), at the price of a solve.
 		d := a.sd[:n]
@@ -281,12 +298,13 @@ func (a *Analyzer) eval(s *slot, b []complex128, ids []int, out []ball, tgt []fl
 }
 
 // dotGamma is |y|ᵀ(γ·mag), the part of a read-out's bound that comes from
-// the rounding of the float64 residual rather than from the residual.
-func dotGamma(y []complex128, mag []float64, act *mna.Active) float64 {
+// the rounding of the float64 residual rather than from the residual,
+// from ay = |y|.
+func dotGamma(ay, mag []float64, act *mna.Active) float64 {
 	s := 0.0
 	g := act.Gamma()
 	for i, m := range mag {
-		s += mna.Abs(y[i]) * g[i] * m
+		s += ay[i] * g[i] * m
 	}
 	return s
 }
@@ -390,10 +408,8 @@ func (a *Analyzer) refine(s *slot, b []complex128, ids []int, out []ball, tgt []
 			for _, t := range ls[k] {
 				bd[t.I] = bd[t.I].Add(t.V)
 			}
-			if cap(a.sy[k]) < n {
-				a.sy[k] = make([]complex128, n)
-			}
-			ys[k] = roundDD(a.sy[k][:n], ludd.SolveTransTo(bd, bd))
+			a.sy[k] = moduliDD(a.sy[k], ludd.SolveTransTo(bd, bd))
+			ys[k] = a.sy[k]
 		}
 		rep := p.Refine(ludd, s.act, bb, xd, w, mag, rnd, false, 0, 3, good)
 		if !good(w) && !(rep.Last <= 1e-10) {
@@ -424,9 +440,15 @@ func (a *Analyzer) ddFactor(s *slot) (*mna.LUDD, error) {
 	return &s.ludd, s.ddErr
 }
 
-func roundDD(dst []complex128, x []dd.Complex) []complex128 {
+// moduliDD writes the moduli of x, rounded, into dst (grown as needed)
+// and returns it.
+func moduliDD(dst []float64, x []dd.Complex) []float64 {
+	if cap(dst) < len(x) {
+		dst = make([]float64, len(x))
+	}
+	dst = dst[:len(x)]
 	for i, v := range x {
-		dst[i] = v.Complex128()
+		dst[i] = mna.Abs(v.Complex128())
 	}
 	return dst
 }

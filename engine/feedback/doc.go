@@ -51,7 +51,7 @@
 // Every value comes with an error bound (PortResult.Err, GainResult.Err,
 // Point.TErr): the exact value for the circuit as given lies within it. A
 // read-out's bound is |y|ᵀw, with y its adjoint solution and w a bound on
-// the residual formed from the parts' own coefficients; formulas carry the
+// the residual for the parts' own coefficients; formulas carry the
 // bounds by ball arithmetic. Where a bound leaves fewer than 12 digits the
 // solution is refined — in float64, in double-double with the float64 LU,
 // or with the double-double LU (see bounds.go and DEVELOPERS.md) — and a

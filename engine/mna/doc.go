@@ -16,12 +16,18 @@
 // replacing it by an independent test source, only touches its own term.
 //
 // A Config picks the variant being solved: the reference gain on or off, a
-// port driver removed, a port shorted. LU factors the assembled matrix
-// with row and column equilibration and partial pivoting, in complex128;
-// gonum has no complex LU, and a small dense one is about ten times faster
-// than gonum's real-equivalent 2n×2n path at the sizes zport meets (see
-// DEVELOPERS.md for the benchmark). SolveTransTo solves with the transpose,
-// for the adjoints that error bounds need.
+// port driver removed, a port shorted. Its Active lists the coefficients
+// that make up its matrix; Precise.Values gives every coefficient's value
+// at a frequency, once for all configurations, and Active.At sums them
+// into the matrix's distinct entries (a Matrix). LU factors it with row
+// and column equilibration and partial pivoting, in complex128: densely
+// at first, then — once it has recorded the factorization's structure —
+// straight in that structure's layout, in time proportional to its
+// nonzeros, with the same result bit for bit. gonum has no complex LU, and
+// ours is about ten times faster than gonum's real-equivalent 2n×2n path at
+// the sizes zport meets (see DEVELOPERS.md for the benchmark).
+// SolveTransTo solves with the transpose, for the adjoints that error
+// bounds need.
 //
 // Assembly in float64 loses a small conductance summed into a large
 // diagonal entry (1 TΩ beside 50 Ω keeps six digits), and with it whatever
@@ -30,9 +36,12 @@
 // the assembled matrix cannot give:
 //
 //	p := mna.NewPrecise(sys)
-//	p.At(f)
 //	act := p.Active(cfg)               // cfg's coefficients, once
-//	p.ResidualBound(w, mag, r, act, b, x) // |b − A·x| ≤ w, in one float64 pass
+//	p.At(f)
+//	v, av := p.Values(nil, nil)        // every coefficient at f
+//	act.At(v, av)                      // cfg's entries at f
+//	lu.FactorMatrix(act.Matrix())
+//	act.ResidualBound(w, mag, r, b, x) // |b − A·x| ≤ w, in one float64 pass
 //	p.Refine(&lu, act, b, xdd, w, mag, rnd, false, 0, 4, good) // refine x in double-double
 //
 // Refine runs mixed-precision iterative refinement: residuals from the

@@ -10,22 +10,53 @@ import (
 // Factor accepts.
 const PivotTolerance = 1e-14
 
-// LU is a factorization P·Dr·A·Dc = L·U of a dense complex matrix.
+// Matrix is a sparse n×n matrix as its entries: entry e is V[e], at row
+// I[e] and column J[e]. Each position appears at most once, and the
+// entries go row by row (rows ascending), as Active.Matrix gives them.
+//
+// I and J are the matrix's structure: an LU records its factorization's
+// structure for them and reuses it for as long as they are the same slices
+// (so they must not be changed in place once factored); V may change
+// between factorizations.
+type Matrix struct {
+	N    int
+	I, J []int32
+	V    []complex128
+}
+
+// LU is a factorization P·Dr·A·Dc = L·U of a complex matrix.
+//
+// The first factorizations of a Matrix run the dense elimination; from the
+// second on, the structure of the factorization (its pivot order and
+// where L and U have nonzeros, fill included) is recorded for the Matrix's
+// terms, and the next ones assemble the terms straight into that layout
+// and eliminate along it, in time proportional to the nonzeros, for as
+// long as partial pivoting picks the same pivots. Either way the result is
+// bit for bit what the dense elimination gives.
 type LU struct {
 	n      int
-	a      []complex128 // L below the diagonal (unit), U on and above
 	piv    []int
-	rs, cs []float64 // row and column scale factors
-	work   []complex128
-	nz     []int
-	pos    []int32      // nonzero positions of the assembled matrix
-	rowEnd []int        // where each row's nonzeros end in pos
-	sym    *symbolic    // the structure of the last full factorization
-	full   int          // full factorizations so far
-	orig   []complex128 // the equilibrated matrix, while a refactor is tried
+	rs, cs []float64    // row and column scale factors
 	inv    []complex128 // reciprocals of U's diagonal
 	norm1  float64      // 1-norm of the equilibrated matrix
+	work   []complex128
 	spare  []complex128
+	cmax   []float64
+
+	// The dense elimination: a holds L below the diagonal (unit) and U on
+	// and above, while sparse is false.
+	a  []complex128
+	nz []int
+
+	sym    *symbolic    // the structure of the factors in vals
+	syms   []*symbolic  // the structures recorded, the last used first
+	vals   []complex128 // the factors in sym's layout, while sparse is true
+	sparse bool
+	full   int    // dense factorizations so far
+	dm     Matrix // Factor's matrix, as terms
+
+	count int // complex multiply-adds so far (MulAdds)
+	nnz   int // nonzeros of the dense factors, a dense solve's count
 }
 
 // Singular reports a failed factorization: the equilibrated matrix has a
@@ -38,106 +69,177 @@ type Singular struct {
 
 func (e *Singular) Error() string { return "singular system (" + e.Kind + ")" }
 
-// Factor factors the n×n row-major matrix a in place (a is kept by lu and
-// must not be reused by the caller until the next Factor).
+// Factor factors the n×n row-major matrix a, which it leaves unchanged.
+// Its nonzeros are the entries of a Matrix, whose structure is kept while
+// the nonzeros of later matrices stay within it.
 func (lu *LU) Factor(a []complex128, n int) error {
+	m := &lu.dm
+	same := m.N == n && len(lu.syms) > 0
+	if same {
+		// Within the recorded structure: its positions, the new values.
+		seen := 0
+		for t := range m.I {
+			v := a[int(m.I[t])*n+int(m.J[t])]
+			m.V[t] = v
+			if v != 0 {
+				seen++
+			}
+		}
+		for _, v := range a[:n*n] {
+			if v != 0 {
+				seen--
+			}
+		}
+		same = seen == 0
+	}
+	if !same {
+		*m = Matrix{N: n}
+		for q, v := range a[:n*n] {
+			if v != 0 {
+				m.I = append(m.I, int32(q/n))
+				m.J = append(m.J, int32(q%n))
+				m.V = append(m.V, v)
+			}
+		}
+	}
+	return lu.FactorMatrix(m)
+}
+
+// FactorMatrix factors m.
+func (lu *LU) FactorMatrix(m *Matrix) error {
+	n := m.N
 	lu.n = n
-	lu.a = a
 	if cap(lu.piv) < n {
 		lu.piv = make([]int, n)
 		lu.rs = make([]float64, n)
 		lu.cs = make([]float64, n)
+		lu.cmax = make([]float64, n)
 		lu.work = make([]complex128, n)
 		lu.nz = make([]int, 0, n)
 		lu.inv = make([]complex128, n)
-		lu.pos = make([]int32, 0, 4*n)
 	}
-	lu.inv = lu.inv[:n]
-	lu.piv, lu.rs, lu.cs, lu.work = lu.piv[:n], lu.rs[:n], lu.cs[:n], lu.work[:n]
+	lu.piv, lu.rs, lu.cs, lu.cmax = lu.piv[:n], lu.rs[:n], lu.cs[:n], lu.cmax[:n]
+	lu.inv, lu.work = lu.inv[:n], lu.work[:n]
+	if len(lu.syms) > 0 && lu.syms[0].of(m) && lu.equilibrate(m) {
+		// Circuits switch between a few pivot orders across a sweep:
+		// each recorded structure is tried, the last used first.
+		for i, s := range lu.syms {
+			if lu.refactor(m, s) {
+				copy(lu.syms[1:i+1], lu.syms[:i])
+				lu.syms[0] = s
+				lu.sym, lu.sparse = s, true
+				lu.count += len(s.upd) + len(s.candPos) + n
+				return nil
+			}
+		}
+	}
+	lu.sparse = false
+	if cap(lu.a) < n*n {
+		lu.a = make([]complex128, n*n)
+	}
+	a := lu.a[:n*n]
+	lu.a = a
+	clear(a)
+	for e, v := range m.V {
+		a[int(m.I[e])*n+int(m.J[e])] = v
+	}
+	if err := lu.factorDense(a, n); err != nil {
+		return err
+	}
+	lu.nnz = 0
+	for _, v := range a {
+		if v != 0 {
+			lu.nnz++
+		}
+	}
+	// The structure pays for itself only when the same system comes back
+	// (a sweep); a one-off factorization (a Monte Carlo trial) skips it.
+	if len(lu.syms) > 0 && !lu.syms[0].of(m) {
+		lu.syms = lu.syms[:0] // another matrix
+	}
+	if lu.full > 0 {
+		s := symbolicOf(m, lu.piv)
+		if len(lu.syms) < maxStructures {
+			lu.syms = append(lu.syms, nil)
+		}
+		copy(lu.syms[1:], lu.syms)
+		lu.syms[0] = s
+		if cap(lu.vals) < len(s.cols) {
+			lu.vals = make([]complex128, len(s.cols))
+		}
+	}
+	lu.full++
+	return nil
+}
+
+// maxStructures is how many structures an LU keeps: the pivot orders a
+// sweep keeps coming back to.
+const maxStructures = 4
+
+// factorDense equilibrates and factors the dense a in place.
+func (lu *LU) factorDense(a []complex128, n int) error {
 	// Equilibrate rows, then columns, to largest magnitude 1 (powers of two
-	// so the scaling itself is exact). One pass over the whole matrix finds
-	// the nonzeros and the row maxima; the rest runs over the nonzeros only.
-	pos := lu.pos[:0]
-	if cap(lu.rowEnd) < n {
-		lu.rowEnd = make([]int, n)
-	}
-	rowEnd := lu.rowEnd[:n] // pos[rowEnd[i-1]:rowEnd[i]] are row i's
+	// so the scaling itself is exact).
 	for i := 0; i < n; i++ {
 		m := 0.0
-		row := a[i*n : i*n+n]
-		for j, v := range row {
+		for _, v := range a[i*n : i*n+n] {
 			if v != 0 {
-				pos = append(pos, int32(i*n+j))
 				if x := abs1(v); x > m {
 					m = x
 				}
 			}
 		}
-		rowEnd[i] = len(pos)
 		if m == 0 {
-			lu.pos = pos
 			return &Singular{Index: i, Kind: "row"}
 		}
 		lu.rs[i] = pow2inv(m)
 	}
-	lu.pos = pos
-	cmax, csum := lu.cs, lu.work[:n] // work holds column sums (real parts) for now
-	for j := range cmax {
-		cmax[j] = 0
-		csum[j] = 0
-	}
-	start := 0
-	for i, end := range rowEnd {
-		ri, base := lu.rs[i], i*n
-		for _, q := range pos[start:end] {
-			j := int(q) - base
-			x := abs1(a[q]) * ri
-			csum[j] += complex(x, 0)
-			if x > cmax[j] {
-				cmax[j] = x
+	cmax, csum := lu.cmax, lu.cs // cs holds column sums for now
+	clear(cmax)
+	clear(csum)
+	for i := 0; i < n; i++ {
+		ri := lu.rs[i]
+		for j, v := range a[i*n : i*n+n] {
+			if v != 0 {
+				x := abs1(v) * ri
+				csum[j] += x
+				if x > cmax[j] {
+					cmax[j] = x
+				}
 			}
 		}
-		start = end
 	}
-	lu.norm1 = 0
-	for j := 0; j < n; j++ {
-		if cmax[j] == 0 {
-			return &Singular{Index: j, Kind: "column"}
-		}
-		s := pow2inv(cmax[j])
-		lu.norm1 = math.Max(lu.norm1, real(csum[j])*s) // the 1-norm, for Cond
-		lu.cs[j] = s
-	}
-	start = 0
-	for i, end := range rowEnd {
-		ri, base := lu.rs[i], i*n
-		for _, q := range pos[start:end] {
-			sc := ri * lu.cs[int(q)-base]
-			v := a[q]
-			a[q] = complex(real(v)*sc, imag(v)*sc)
-		}
-		start = end
-	}
-	if sym := lu.sym; sym != nil && sym.n == n && sym.covers(pos) {
-		// The same structure as last time: eliminate along the recorded
-		// nonzeros while the pivots fall as they did.
-		lu.orig = append(lu.orig[:0], a...)
-		if lu.refactor(a, n) {
-			return nil
-		}
-		copy(a, lu.orig)
-	}
-	if err := lu.eliminate(a, n); err != nil {
-		lu.sym = nil
+	if err := lu.colScales(); err != nil {
 		return err
 	}
-	// The structure pays for itself only when the same system comes back
-	// (a sweep); a one-off factorization (a Monte Carlo trial) skips it.
-	lu.sym = nil
-	if lu.full > 0 {
-		lu.sym = symbolicOf(n, pos, lu.piv)
+	for i := 0; i < n; i++ {
+		ri := lu.rs[i]
+		row := a[i*n : i*n+n]
+		for j, v := range row {
+			if v != 0 {
+				sc := ri * lu.cs[j]
+				row[j] = complex(real(v)*sc, imag(v)*sc)
+			}
+		}
 	}
-	lu.full++
+	return lu.eliminate(a, n)
+}
+
+// colScales turns the column maxima (lu.cmax) and sums of the
+// row-equilibrated matrix (in lu.cs) into the column scales and the
+// 1-norm of the equilibrated matrix.
+func (lu *LU) colScales() error {
+	lu.norm1 = 0
+	for j, c := range lu.cmax {
+		if c == 0 {
+			return &Singular{Index: j, Kind: "column"}
+		}
+		s := pow2inv(c)
+		if x := lu.cs[j] * s; x > lu.norm1 {
+			lu.norm1 = x // the 1-norm, for Cond
+		}
+		lu.cs[j] = s
+	}
 	return nil
 }
 
@@ -173,11 +275,13 @@ func (lu *LU) eliminate(a []complex128, n int) error {
 			}
 		}
 		lu.nz = nz
+		lu.count++
 		for i := k + 1; i < n; i++ {
 			l := a[i*n+k]
 			if l == 0 {
 				continue
 			}
+			lu.count += 1 + len(nz)
 			l *= inv
 			a[i*n+k] = l
 			ri := a[i*n : i*n+n]
@@ -190,163 +294,277 @@ func (lu *LU) eliminate(a []complex128, n int) error {
 	return nil
 }
 
-// refactor eliminates a along the recorded structure when partial
-// pivoting picks the recorded pivot order again; it reports false (and the
-// caller runs the full elimination) as soon as it would not. So the result
-// is bit for bit what the full elimination gives, whatever was factored
-// before: only the search for nonzeros is saved, never a pivoting decision.
-func (lu *LU) refactor(a []complex128, n int) bool {
-	sym := lu.sym
-	for k := 0; k < n; k++ {
-		p, pm := k, abs1(a[k*n+k])
-		for i := k + 1; i < n; i++ {
-			if v := a[i*n+k]; v != 0 {
-				if m := abs1(v); m > pm {
-					p, pm = i, m
-				}
-			}
+// equilibrate computes the row and column scales of m as factorDense
+// does: row maxima, then the column maxima and sums of the row-scaled
+// entries, summed in row order. It reports false when a row or a column
+// is zero (the dense elimination then says which).
+func (lu *LU) equilibrate(m *Matrix) bool {
+	rows, cols := m.I, m.J
+	rmax := lu.rs
+	clear(rmax)
+	for e, v := range m.V {
+		if x := abs1(v); x > rmax[rows[e]] {
+			rmax[rows[e]] = x
 		}
-		if p != sym.piv[k] || pm <= PivotTolerance {
+	}
+	for r, x := range rmax {
+		if x == 0 {
 			return false
 		}
-		lu.piv[k] = p
-		if p != k {
-			rk, rp := a[k*n:k*n+n], a[p*n:p*n+n]
-			for j := range rk {
-				rk[j], rp[j] = rp[j], rk[j]
+		rmax[r] = pow2inv(x)
+	}
+	cmax, csum := lu.cmax, lu.cs
+	clear(cmax)
+	clear(csum)
+	for e, v := range m.V {
+		if v != 0 {
+			j := cols[e]
+			x := abs1(v) * lu.rs[rows[e]]
+			csum[j] += x
+			if x > cmax[j] {
+				cmax[j] = x
 			}
 		}
-		inv := recip(a[k*n+k])
+	}
+	return lu.colScales() == nil
+}
+
+// refactor places m's entries, equilibrated, in the layout of s and
+// eliminates along it when partial pivoting picks the pivots of s again;
+// it reports false as soon as it would not. Every operation is the dense
+// elimination's, in its order, on the same values: only the search for
+// nonzeros is saved, never a pivoting decision.
+func (lu *LU) refactor(m *Matrix, s *symbolic) bool {
+	n := s.n
+	rows, cols := m.I, m.J
+	vals := lu.vals[:len(s.cols)]
+	for _, q := range s.fill {
+		vals[q] = 0
+	}
+	for e, v := range m.V {
+		sc := lu.rs[rows[e]] * lu.cs[cols[e]]
+		vals[s.entryPos[e]] = complex(real(v)*sc, imag(v)*sc)
+	}
+	c, u := 0, 0 // the next candidate, and its update positions
+	for k := 0; k < n; k++ {
+		d := s.diag[k]
+		pm := abs1(vals[d])
+		if pm <= PivotTolerance {
+			return false
+		}
+		inv := recip(vals[d])
 		lu.inv[k] = inv
-		rk := a[k*n : k*n+n]
-		uc := sym.ucols[k]
-		for _, i := range sym.lrows[k] {
-			ri := a[int(i)*n : int(i)*n+n]
-			l := ri[k]
+		urow := vals[d+1 : s.rowStart[k+1]]
+		for ce := s.candEnd[k]; c < ce; c++ {
+			q := s.candPos[c]
+			upd := s.upd[u : u+len(urow)]
+			u += len(urow)
+			l := vals[q]
+			// Partial pivoting takes the first largest candidate in the
+			// rows' order at this step: the recorded pivot must beat those
+			// before it and not lose to those after. (Updating a candidate
+			// leaves the others' column k alone; on failure the caller
+			// places the entries again.)
+			if m := abs1(l); m > pm || m == pm && s.candBefore[c] {
+				return false
+			}
 			if l == 0 {
 				continue
 			}
 			l *= inv
-			ri[k] = l
-			for _, j := range uc {
-				if u := rk[j]; u != 0 {
-					ri[j] -= l * u
+			vals[q] = l
+			for t, w := range urow {
+				if w != 0 {
+					vals[upd[t]] -= l * w
 				}
 			}
 		}
 	}
+	copy(lu.piv, s.piv)
 	return true
 }
 
-// symbolic is the structure of a factorization: the pattern it was made
-// for, its pivot order, and where L and U have nonzeros (fill included).
+// symbolic is the structure of a factorization of a Matrix's terms: its
+// pivot order, and a layout holding L and U row by row (fill included),
+// with the elimination's steps written out as positions in it.
 type symbolic struct {
-	n       int
-	pattern []bool    // n×n: positions that may be nonzero in the matrix
-	piv     []int     // row interchanges, as LU.piv
-	lrows   [][]int32 // step k: rows below k with a nonzero in column k
-	ucols   [][]int32 // row k of U: columns after k that are nonzero
-	lcols   [][]int32 // row i of the final L: columns before i that are nonzero
+	n     int
+	I, J  []int32 // the Matrix's structure it was made for
+	piv   []int   // row interchanges, as LU.piv
+	order []int32 // row i of the factors is row order[i] of the matrix
+
+	rowStart []int32 // row i's entries are rowStart[i]:rowStart[i+1]
+	cols     []int32 // the column of each entry, ascending within a row
+	diag     []int32 // the position of row i's diagonal: L before it, U after
+	entryPos []int32 // where each entry of the Matrix goes
+	fill     []int32 // the positions no entry of the Matrix takes
+
+	// Step k eliminates column k from the rows candPos[candEnd[k−1]:candEnd[k]]
+	// (the positions of their column-k entries), each along U's row k at the
+	// next len(U row k) positions of upd; candBefore marks the rows that
+	// came before the pivot's in the dense elimination's order at step k.
+	candPos    []int32
+	candBefore []bool
+	candEnd    []int
+	upd        []int32
 }
 
-// covers reports whether every position in pos is in the pattern.
-func (s *symbolic) covers(pos []int32) bool {
-	for _, q := range pos {
-		if !s.pattern[q] {
-			return false
-		}
-	}
-	return true
+// of reports whether s was recorded for m's structure.
+func (s *symbolic) of(m *Matrix) bool {
+	return s.n == m.N && same(s.I, m.I) && same(s.J, m.J)
 }
 
-// symbolicOf runs the elimination on booleans: the pattern pos, the pivot
-// order piv, full-row interchanges as the numeric factorization makes them.
-func symbolicOf(n int, pos []int32, piv []int) *symbolic {
-	s := &symbolic{n: n, pattern: make([]bool, n*n), piv: append([]int(nil), piv...),
-		lrows: make([][]int32, n), ucols: make([][]int32, n), lcols: make([][]int32, n)}
-	b := make([]bool, n*n)
-	for _, q := range pos {
-		s.pattern[q] = true
-		b[q] = true
+// same reports whether a and b are the same slice.
+func same(a, b []int32) bool {
+	return len(a) == len(b) && (len(a) == 0 || &a[0] == &b[0])
+}
+
+// symbolicOf runs the elimination on booleans: m's structure, the pivot
+// order piv, full-row interchanges as the dense elimination makes them.
+func symbolicOf(m *Matrix, piv []int) *symbolic {
+	n := m.N
+	s := &symbolic{n: n, I: m.I, J: m.J, piv: append([]int(nil), piv...),
+		order: make([]int32, n), rowStart: make([]int32, n+1),
+		diag: make([]int32, n), entryPos: make([]int32, len(m.I)), candEnd: make([]int, n)}
+	b := make([]bool, n*n) // by the matrix's own rows
+	for t := range m.I {
+		b[int(m.I[t])*n+int(m.J[t])] = true
 	}
+	cur := make([]int32, n) // the dense elimination's row at each position
+	for i := range cur {
+		cur[i] = int32(i)
+	}
+	type cand struct {
+		row    int32
+		before bool
+	}
+	steps := make([][]cand, n)
 	for k := 0; k < n; k++ {
-		if p := piv[k]; p != k {
-			rk, rp := b[k*n:k*n+n], b[p*n:p*n+n]
-			for j := range rk {
-				rk[j], rp[j] = rp[j], rk[j]
-			}
-		}
-		for j := k + 1; j < n; j++ {
-			if b[k*n+j] {
-				s.ucols[k] = append(s.ucols[k], int32(j))
-			}
-		}
-		for i := k + 1; i < n; i++ {
-			if !b[i*n+k] {
+		p := int32(piv[k])
+		r := cur[p]
+		rr := b[int(r)*n : int(r)*n+n]
+		for pos := k; pos < n; pos++ {
+			c := cur[pos]
+			if c == r || !b[int(c)*n+k] {
 				continue
 			}
-			s.lrows[k] = append(s.lrows[k], int32(i))
-			for _, j := range s.ucols[k] {
-				b[i*n+int(j)] = true
+			steps[k] = append(steps[k], cand{c, int32(pos) < p})
+			rc := b[int(c)*n : int(c)*n+n]
+			for j := k + 1; j < n; j++ {
+				if rr[j] {
+					rc[j] = true
+				}
+			}
+		}
+		cur[k], cur[p] = cur[p], cur[k]
+		s.order[k] = r
+	}
+	// The layout, and where each (row, column) of the matrix lies in it.
+	at := make([]int32, n*n)
+	for i := 0; i < n; i++ {
+		r := int(s.order[i])
+		s.rowStart[i] = int32(len(s.cols))
+		for j, nz := range b[r*n : r*n+n] {
+			if nz {
+				if j == i {
+					s.diag[i] = int32(len(s.cols))
+				}
+				at[r*n+j] = int32(len(s.cols))
+				s.cols = append(s.cols, int32(j))
 			}
 		}
 	}
-	for i := 0; i < n; i++ {
-		for j := 0; j < i; j++ {
-			if b[i*n+j] {
-				s.lcols[i] = append(s.lcols[i], int32(j))
+	s.rowStart[n] = int32(len(s.cols))
+	taken := make([]bool, len(s.cols))
+	for e := range m.I {
+		q := at[int(m.I[e])*n+int(m.J[e])]
+		s.entryPos[e] = q
+		taken[q] = true
+	}
+	for q, t := range taken {
+		if !t {
+			s.fill = append(s.fill, int32(q))
+		}
+	}
+	for k := 0; k < n; k++ {
+		ucols := s.cols[s.diag[k]+1 : s.rowStart[k+1]]
+		for _, c := range steps[k] {
+			row := int(c.row) * n
+			s.candPos = append(s.candPos, at[row+k])
+			s.candBefore = append(s.candBefore, c.before)
+			for _, j := range ucols {
+				s.upd = append(s.upd, at[row+int(j)])
 			}
 		}
+		s.candEnd[k] = len(s.candPos)
 	}
 	return s
+}
+
+// MulAdds returns the complex multiply-adds lu has done so far, in its
+// factorizations (one per update of an entry, per multiplier and per
+// reciprocal pivot) and solves (one per nonzero of L and U): the
+// arithmetic its work needs, which benchmarks hold its time against.
+func (lu *LU) MulAdds() int { return lu.count }
+
+// solveCount is the multiply-adds of one solve with the current factors.
+func (lu *LU) solveCount() int {
+	if lu.sparse {
+		return len(lu.sym.cols)
+	}
+	return lu.nnz
 }
 
 // SolveTo solves A·x = b into dst (len n), leaving b unchanged. dst and b
 // may be the same slice.
 func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
 	n, y := lu.n, lu.work
-	for i := 0; i < n; i++ {
-		y[i] = b[i] * complex(lu.rs[i], 0)
-	}
-	for k := 0; k < n; k++ {
-		if p := lu.piv[k]; p != k {
-			y[k], y[p] = y[p], y[k]
+	if lu.sparse {
+		// The rows in the factors' order: the interchanges, at once.
+		for i, r := range lu.sym.order {
+			y[i] = scale(b[r], lu.rs[r])
 		}
-	}
-	sym := lu.sym
-	if sym == nil {
-		lu.denseSolve(y)
+		lu.sparseSolve(y)
 	} else {
-		lu.sparseSolve(y, sym)
+		for i := 0; i < n; i++ {
+			y[i] = scale(b[i], lu.rs[i])
+		}
+		for k := 0; k < n; k++ {
+			if p := lu.piv[k]; p != k {
+				y[k], y[p] = y[p], y[k]
+			}
+		}
+		lu.denseSolve(y)
 	}
+	lu.count += lu.solveCount()
 	for i := 0; i < n; i++ {
-		dst[i] = y[i] * complex(lu.cs[i], 0)
+		dst[i] = scale(y[i], lu.cs[i])
 	}
 	return dst
 }
 
-// sparseSolve runs the triangular solves along the recorded nonzeros.
-func (lu *LU) sparseSolve(y []complex128, sym *symbolic) {
-	n, a := lu.n, lu.a
-	for i := 1; i < n; i++ {
-		s := y[i]
-		row := a[i*n : i*n+n]
-		for _, j := range sym.lcols[i] {
-			if l := row[j]; l != 0 {
-				s -= l * y[j]
+// sparseSolve runs the triangular solves along the recorded layout.
+func (lu *LU) sparseSolve(y []complex128) {
+	s, vals := lu.sym, lu.vals
+	for i := 1; i < s.n; i++ {
+		sum := y[i]
+		lo, d := s.rowStart[i], s.diag[i]
+		for p, l := range vals[lo:d] {
+			if l != 0 {
+				sum -= l * y[s.cols[lo+int32(p)]]
 			}
 		}
-		y[i] = s
+		y[i] = sum
 	}
-	for i := n - 1; i >= 0; i-- {
-		s := y[i]
-		row := a[i*n : i*n+n]
-		for _, j := range sym.ucols[i] {
-			if u := row[j]; u != 0 {
-				s -= u * y[j]
+	for i := s.n - 1; i >= 0; i-- {
+		sum := y[i]
+		d, hi := s.diag[i]+1, s.rowStart[i+1]
+		for p, u := range vals[d:hi] {
+			if u != 0 {
+				sum -= u * y[s.cols[d+int32(p)]]
 			}
 		}
-		y[i] = s * lu.inv[i]
+		y[i] = sum * lu.inv[i]
 	}
 }
 
@@ -383,13 +601,67 @@ func (lu *LU) denseSolve(y []complex128) {
 // need: with Aᵀ·y = ℓ, the error of ℓᵀx is yᵀ(A·x_exact − A·x).
 func (lu *LU) SolveTransTo(dst, b []complex128) []complex128 {
 	// A = Dr⁻¹·Pᵀ·L·U·Dc⁻¹, so Uᵀ·Lᵀ·(P·Dr⁻¹·x) = Dc·b.
-	n, a, v := lu.n, lu.a, lu.work
+	n, v := lu.n, lu.work
 	for i := 0; i < n; i++ {
-		v[i] = b[i] * complex(lu.cs[i], 0)
+		v[i] = scale(b[i], lu.cs[i])
 	}
-	sym := lu.sym
+	lu.count += lu.solveCount()
+	if lu.sparse {
+		lu.sparseSolveTrans(v)
+		for i, r := range lu.sym.order {
+			dst[r] = scale(v[i], lu.rs[r])
+		}
+		return dst
+	}
+	lu.denseSolveTrans(v)
+	for k := n - 1; k >= 0; k-- {
+		if p := lu.piv[k]; p != k {
+			v[k], v[p] = v[p], v[k]
+		}
+	}
+	for i := 0; i < n; i++ {
+		dst[i] = scale(v[i], lu.rs[i])
+	}
+	return dst
+}
+
+// sparseSolveTrans solves Uᵀ·Lᵀ·x = v in place along the layout.
+func (lu *LU) sparseSolveTrans(v []complex128) {
+	s, vals := lu.sym, lu.vals
 	// Uᵀ is lower triangular: finish each unknown, then push it into the
 	// later rows along row i of U.
+	for i := 0; i < s.n; i++ {
+		w := v[i] * lu.inv[i]
+		v[i] = w
+		if w == 0 {
+			continue
+		}
+		d, hi := s.diag[i]+1, s.rowStart[i+1]
+		for p, u := range vals[d:hi] {
+			if u != 0 {
+				v[s.cols[d+int32(p)]] -= u * w
+			}
+		}
+	}
+	// Lᵀ is unit upper triangular: from the last unknown up, pushing along
+	// row i of L.
+	for i := s.n - 1; i > 0; i-- {
+		z := v[i]
+		if z == 0 {
+			continue
+		}
+		lo, d := s.rowStart[i], s.diag[i]
+		for p, l := range vals[lo:d] {
+			if l != 0 {
+				v[s.cols[lo+int32(p)]] -= l * z
+			}
+		}
+	}
+}
+
+// denseSolveTrans is sparseSolveTrans over the dense factor.
+func (lu *LU) denseSolveTrans(v []complex128) {
+	n, a := lu.n, lu.a
 	for i := 0; i < n; i++ {
 		w := v[i] * lu.inv[i]
 		v[i] = w
@@ -397,51 +669,24 @@ func (lu *LU) SolveTransTo(dst, b []complex128) []complex128 {
 			continue
 		}
 		row := a[i*n : i*n+n]
-		if sym != nil {
-			for _, j := range sym.ucols[i] {
-				if u := row[j]; u != 0 {
-					v[j] -= u * w
-				}
-			}
-			continue
-		}
 		for j := i + 1; j < n; j++ {
 			if u := row[j]; u != 0 {
 				v[j] -= u * w
 			}
 		}
 	}
-	// Lᵀ is unit upper triangular: from the last unknown up, pushing along
-	// row i of L.
 	for i := n - 1; i > 0; i-- {
 		z := v[i]
 		if z == 0 {
 			continue
 		}
 		row := a[i*n : i*n+n]
-		if sym != nil {
-			for _, j := range sym.lcols[i] {
-				if l := row[j]; l != 0 {
-					v[j] -= l * z
-				}
-			}
-			continue
-		}
 		for j := 0; j < i; j++ {
 			if l := row[j]; l != 0 {
 				v[j] -= l * z
 			}
 		}
 	}
-	for k := n - 1; k >= 0; k-- {
-		if p := lu.piv[k]; p != k {
-			v[k], v[p] = v[p], v[k]
-		}
-	}
-	for i := 0; i < n; i++ {
-		dst[i] = v[i] * complex(lu.rs[i], 0)
-	}
-	return dst
 }
 
 // work2 is scratch of length n for callers of SolveTo within the package.
@@ -451,6 +696,9 @@ func (lu *LU) work2(n int) []complex128 {
 	}
 	return lu.spare[:n]
 }
+
+// scale is z·s for a real s (a power of two here, so exact).
+func scale(z complex128, s float64) complex128 { return complex(real(z)*s, imag(z)*s) }
 
 // recip is 1/z without the care Go's complex division takes for values
 // near overflow: pivots here are equilibrated to magnitudes near 1.
@@ -466,7 +714,7 @@ func recip(z complex128) complex128 {
 // Cond·2⁻⁵³ is to be expected. It costs a few extra solves, so callers use
 // it at a spot frequency rather than in sweeps.
 func (lu *LU) Cond() float64 {
-	n := lu.n
+	n, a := lu.n, lu.dense()
 	x := make([]complex128, n)
 	y := make([]complex128, n)
 	for i := range x {
@@ -474,7 +722,7 @@ func (lu *LU) Cond() float64 {
 	}
 	est := 0.0
 	for iter := 0; iter < 5; iter++ {
-		lu.solveScaled(y, x, false)
+		lu.solveScaled(a, y, x, false)
 		e := 0.0
 		for _, v := range y {
 			e += cmplx.Abs(v)
@@ -490,7 +738,7 @@ func (lu *LU) Cond() float64 {
 				y[i] = 1
 			}
 		}
-		lu.solveScaled(x, y, true)
+		lu.solveScaled(a, x, y, true)
 		j, zmax := 0, 0.0
 		for i, v := range x {
 			if m := cmplx.Abs(v); m > zmax {
@@ -503,9 +751,25 @@ func (lu *LU) Cond() float64 {
 	return est * lu.norm1
 }
 
+// dense returns the factors as a dense n×n matrix.
+func (lu *LU) dense() []complex128 {
+	if !lu.sparse {
+		return lu.a
+	}
+	s, n := lu.sym, lu.n
+	a := make([]complex128, n*n)
+	for i := 0; i < n; i++ {
+		for p := s.rowStart[i]; p < s.rowStart[i+1]; p++ {
+			a[i*n+int(s.cols[p])] = lu.vals[p]
+		}
+	}
+	return a
+}
+
 // solveScaled solves the equilibrated system Ã·x = b, or Ãᴴ·x = b.
-func (lu *LU) solveScaled(dst, b []complex128, conjTrans bool) {
-	n, a := lu.n, lu.a
+// a is the factors as dense returns them.
+func (lu *LU) solveScaled(a, dst, b []complex128, conjTrans bool) {
+	n := lu.n
 	y := dst
 	copy(y, b)
 	if !conjTrans {

@@ -1,9 +1,11 @@
 package mna
 
 import (
+	"maps"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -168,7 +170,7 @@ func TestCondEstimate(t *testing.T) {
 		for j := 0; j < n; j++ {
 			clear(e)
 			e[j] = 1
-			lu.solveScaled(col, e, false)
+			lu.solveScaled(lu.dense(), col, e, false)
 			for i := 0; i < n; i++ {
 				inv[i*n+j] = col[i]
 			}
@@ -194,6 +196,7 @@ func TestCondEstimate(t *testing.T) {
 // the pivot order changes (trial 5) and the full elimination takes over.
 func TestRefactorMatchesFresh(t *testing.T) {
 	rng := rand.New(rand.NewPCG(8, 8))
+	along := 0
 	for n := 2; n <= 40; n += 3 {
 		a := randomSystem(rng, n, true)
 		var reused LU
@@ -228,6 +231,9 @@ func TestRefactorMatchesFresh(t *testing.T) {
 			if errF != nil {
 				continue
 			}
+			if reused.sparse {
+				along++
+			}
 			x1 := fresh.SolveTo(make([]complex128, n), rhs)
 			x2 := reused.SolveTo(make([]complex128, n), rhs)
 			var d, m float64
@@ -239,6 +245,149 @@ func TestRefactorMatchesFresh(t *testing.T) {
 				t.Errorf("n=%d trial %d: refactored solution differs by %.2g (|x| %.2g); it must be bit for bit the fresh one", n, trial, d, m)
 			}
 		}
+	}
+	if along < 10 {
+		t.Errorf("only %d of 78 factorizations ran along the recorded structure", along)
+	}
+}
+
+// termMatrix writes a random matrix the way circuit equations are made:
+// node rows first, then branch rows whose only entries are ±1 (a voltage
+// source between two nodes), with their ±1 in the nodes' rows too. Branch
+// rows sharing a node tie as pivot candidates. unit marks the ±1 entries.
+func termMatrix(rng *rand.Rand, n int) (m *Matrix, unit []bool) {
+	at := map[[2]int32]bool{}
+	add := func(i, j int, u bool) { at[[2]int32{int32(i), int32(j)}] = u }
+	nodes := (n + 1) / 2
+	for i := 0; i < nodes; i++ {
+		add(i, i, false)
+		for k := 0; k < 2; k++ {
+			j := rng.IntN(nodes)
+			add(i, j, false)
+			add(j, i, false)
+		}
+	}
+	// Branches between a node of their own and an earlier one (or the
+	// reference, left out): a forest, so no loop of sources.
+	for br := nodes; br < n; br++ {
+		a := br - nodes
+		add(br, a, true)
+		add(a, br, true)
+		if b := rng.IntN(a + 1); b < a {
+			add(br, b, true)
+			add(b, br, true)
+		}
+	}
+	keys := slices.SortedFunc(maps.Keys(at), func(x, y [2]int32) int {
+		if x[0] != y[0] {
+			return int(x[0] - y[0])
+		}
+		return int(x[1] - y[1])
+	})
+	m = &Matrix{N: n}
+	for _, k := range keys {
+		m.I = append(m.I, k[0])
+		m.J = append(m.J, k[1])
+		unit = append(unit, at[k])
+	}
+	m.V = make([]complex128, len(m.I))
+	return m, unit
+}
+
+// fill gives m's terms new values: ±1 for the unit terms, random
+// magnitudes over eight decades for the rest; or, with nudge, moves those
+// by up to 1 % (as the next frequency of a sweep does), so that the pivots
+// mostly stay.
+func fill(rng *rand.Rand, m *Matrix, unit []bool, nudge bool) {
+	for t := range m.V {
+		switch {
+		case unit[t]:
+			m.V[t] = complex(float64(1-2*(t%2)), 0)
+		case nudge:
+			m.V[t] *= complex(1+0.01*rng.Float64(), 0)
+		default:
+			m.V[t] = cmplx.Rect(math.Pow(10, rng.Float64()*8-4), rng.Float64()*2*math.Pi)
+		}
+	}
+}
+
+// A tie between the recorded pivot and a row the dense elimination meets
+// before it goes to that row: the structure must not be followed there.
+// Row equilibration makes both rows' largest entry 1; in the first matrix
+// row 1 leads column 0, in the second the two tie.
+func TestRefactorTieGoesFirst(t *testing.T) {
+	m := &Matrix{N: 2, I: []int32{0, 0, 1, 1}, J: []int32{0, 1, 0, 1}, V: []complex128{1, 4, 4, 1}}
+	var lu LU
+	for range 2 {
+		if err := lu.FactorMatrix(m); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if len(lu.syms) == 0 || lu.piv[0] != 1 {
+		t.Fatalf("structure %v, pivots %v: the set-up is not what the test needs", len(lu.syms) > 0, lu.piv)
+	}
+	m.V[0] = 4
+	if err := lu.FactorMatrix(m); err != nil {
+		t.Fatal(err)
+	}
+	if lu.sparse || lu.piv[0] != 0 {
+		t.Errorf("along the structure %v, pivot of column 0 in row %d; the dense elimination takes row 0", lu.sparse, lu.piv[0])
+	}
+}
+
+// FactorMatrix along a recorded structure against a fresh dense
+// factorization of the same terms, bit for bit, on matrices whose pivot
+// candidates often tie: the recorded pivot must be taken exactly where
+// the dense elimination would take it.
+func TestFactorMatrixMatchesFresh(t *testing.T) {
+	rng := rand.New(rand.NewPCG(12, 12))
+	along, changed := 0, 0
+	for n := 1; n <= 60; n++ {
+		m, unit := termMatrix(rng, n)
+		var reused LU
+		for trial := 0; trial < 8; trial++ {
+			fill(rng, m, unit, trial > 0 && trial < 7)
+			var fresh LU
+			c := *m
+			c.I, c.J = append([]int32(nil), m.I...), append([]int32(nil), m.J...) // a new structure: dense
+			errF := fresh.FactorMatrix(&c)
+			wasSym := len(reused.syms) > 0
+			errR := reused.FactorMatrix(m)
+			if (errF == nil) != (errR == nil) {
+				t.Fatalf("n=%d trial %d: fresh %v, reused %v", n, trial, errF, errR)
+			}
+			if errF != nil {
+				continue
+			}
+			if reused.sparse {
+				along++
+			} else if wasSym {
+				changed++
+			}
+			rhs := make([]complex128, n)
+			for i := range rhs {
+				rhs[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+			}
+			for _, trans := range []bool{false, true} {
+				var x1, x2 []complex128
+				if trans {
+					x1 = fresh.SolveTransTo(make([]complex128, n), rhs)
+					x2 = reused.SolveTransTo(make([]complex128, n), rhs)
+				} else {
+					x1 = fresh.SolveTo(make([]complex128, n), rhs)
+					x2 = reused.SolveTo(make([]complex128, n), rhs)
+				}
+				for i := range x1 {
+					if x1[i] != x2[i] {
+						t.Fatalf("n=%d trial %d trans=%v: x[%d] = %v along the structure, %v fresh", n, trial, trans, i, x2[i], x1[i])
+					}
+				}
+			}
+		}
+	}
+	t.Logf("%d factorizations along the recorded structure, %d where the pivots changed", along, changed)
+	if along < 60 || changed < 5 {
+		t.Errorf("%d factorizations along the structure and %d with new pivots: the test no longer exercises both", along, changed)
 	}
 }
 

@@ -122,6 +122,38 @@ func (p *Precise) At(f float64) {
 	}
 }
 
+// Values writes into v and av (grown as needed) and returns the value at
+// the frequency of the last At of every coefficient of the equations, and
+// its magnitude: the terms that each configuration's matrix sums
+// (Active.At) — 1 and −1, the conductance-like entries, j·ω times the
+// capacitance-like ones, and the controlled sources' −k·r·c — each the
+// double-double coefficient rounded, within 2⁻⁵⁴ of the exact one.
+// Computed once per frequency, they serve every configuration.
+func (p *Precise) Values(v []complex128, av []float64) ([]complex128, []float64) {
+	s := p.s
+	n := s.Terms()
+	if cap(v) < n {
+		v = make([]complex128, n)
+		av = make([]float64, n)
+	}
+	v, av = v[:n], av[:n]
+	v[0], v[1], av[0], av[1] = 1, -1, 1, 1
+	k := 2
+	for _, e := range s.g {
+		v[k], av[k] = complex(e.v, 0), math.Abs(e.v)
+		k++
+	}
+	for _, w := range p.cw {
+		v[k], av[k] = complex(0, w.Hi), math.Abs(w.Hi)
+		k++
+	}
+	for i := range p.ctl {
+		v[k], av[k] = p.ctl[i].d, p.ctl[i].abs
+		k++
+	}
+	return v, av
+}
+
 // Gain returns Controls[ci]'s gain k at the frequency of the last At, in
 // double-double.
 func (p *Precise) Gain(ci int) dd.Complex { return p.gains[ci] }
@@ -153,13 +185,9 @@ type Active struct {
 	c    []aterm // k: the index in System.c (the coefficient is j·ω·c)
 	k    []aterm // k: the index of the controlled-source term in Precise
 	unit []aterm // v: a removed branch's 1, a port short's ±1
-	ax   []float64
-	// gamma is, row by row, the relative bound ResidualBound puts on its
-	// float64 residual, in moduli: a sum of m terms rounds by at most
-	// (m−1)·2⁻⁵³ of the sum of their magnitudes, each product by 2⁻⁵³
-	// (2√2 of them for a complex one), each coefficient rounded to float64
-	// by 2⁻⁵⁴; with room.
-	gamma []float64
+	// I, J, K: the float64 matrix's terms (see Matrix).
+	I, J, K []int32
+	asm     assembled // the float64 matrix entry by entry (assembled.go)
 }
 
 // Symmetric reports whether the matrix of the Active is symmetric: no
@@ -167,9 +195,6 @@ type Active struct {
 // and the ±1 of branch currents, removed branches and shorts, are
 // symmetric as New writes them).
 func (a *Active) Symmetric() bool { return len(a.k) == 0 }
-
-// Gamma returns the relative bounds of ResidualBound, row by row.
-func (a *Active) Gamma() []float64 { return a.gamma }
 
 // aterm is one coefficient of an Active: row, column, where to find it,
 // its value and magnitude where they do not change with the frequency.
@@ -179,10 +204,11 @@ type aterm struct {
 }
 
 // Active returns cfg's set of coefficients (independent of cfg.F).
-func (p *Precise) Active(cfg Config) *Active {
-	s := p.s
+func (p *Precise) Active(cfg Config) *Active { return p.s.Active(cfg) }
+
+// Active returns cfg's set of coefficients (independent of cfg.F).
+func (s *System) Active(cfg Config) *Active {
 	a := &Active{N: s.Size(cfg)}
-	a.ax = make([]float64, a.N)
 	skip := make([]bool, s.N+1)
 	for _, pi := range cfg.Removed {
 		skip[s.Branch[pi]] = true
@@ -201,9 +227,10 @@ func (p *Precise) Active(cfg Config) *Active {
 	k := 0
 	for ci, ctl := range s.Controls {
 		for _, r := range ctl.R {
-			for _, c := range append(append([]Term(nil), ctl.C0...), ctl.C1...) {
-				if !(ci == cfg.Ref && !cfg.RefGain) && !skip[r.I] && !skip[c.I] {
-					a.k = append(a.k, aterm{int32(r.I), int32(c.I), int32(k), 0, 0})
+			for range len(ctl.C0) + len(ctl.C1) {
+				c := s.ctlTerms[k]
+				if !(ci == cfg.Ref && !cfg.RefGain) && !skip[r.I] && !skip[c.j] {
+					a.k = append(a.k, aterm{int32(r.I), int32(c.j), int32(k), 0, 0})
 				}
 				k++
 			}
@@ -213,21 +240,6 @@ func (p *Precise) Active(cfg Config) *Active {
 		br := int32(s.Branch[pi])
 		a.unit = append(a.unit, aterm{br, br, 0, 1, 1})
 	}
-	defer func() {
-		terms := make([]int, a.N)
-		for _, l := range [][]aterm{a.g, a.c, a.unit} {
-			for _, t := range l {
-				terms[t.i]++
-			}
-		}
-		for _, t := range a.k {
-			terms[t.i] += 3 // a complex product rounds by up to 2√2 units
-		}
-		a.gamma = make([]float64, a.N)
-		for i, m := range terms {
-			a.gamma[i] = float64(m+2) * dd.U * 1.01
-		}
-	}()
 	if cfg.Short != nil {
 		x, y, br := int32(NodeVar(cfg.Short[0])), int32(NodeVar(cfg.Short[1])), int32(s.N)
 		if x >= 0 {
@@ -237,6 +249,31 @@ func (p *Precise) Active(cfg Config) *Active {
 			a.unit = append(a.unit, aterm{y, br, 0, -1, 1}, aterm{br, y, 0, -1, 1})
 		}
 	}
+	// The float64 matrix: the same terms, in the order System.Assemble
+	// sums them, their values at s.Values' indices.
+	g, c := int32(len(s.g)), int32(len(s.c))
+	add := func(t aterm, k int32) {
+		a.I = append(a.I, t.i)
+		a.J = append(a.J, t.j)
+		a.K = append(a.K, k)
+	}
+	for _, t := range a.g {
+		add(t, 2+t.k)
+	}
+	for _, t := range a.c {
+		add(t, 2+g+t.k)
+	}
+	for _, t := range a.k {
+		add(t, 2+g+c+t.k)
+	}
+	for _, t := range a.unit {
+		if t.v > 0 {
+			add(t, 0)
+		} else {
+			add(t, 1)
+		}
+	}
+	a.assemble(s)
 	return a
 }
 
@@ -406,48 +443,6 @@ func (d *dot2) subImag(ah, al float64, x *dd.Complex) {
 	t2 := ah*x.Re.Lo + al*x.Re.Hi + al*x.Re.Lo
 	d.ic += q2 - e2 - t2
 	d.comp += math.Abs(q) + math.Abs(e) + math.Abs(t) + math.Abs(q2) + math.Abs(e2) + math.Abs(t2)
-}
-
-// ResidualBound writes w, a componentwise bound on the exact residual
-// |b − A·x| of a float64 x: the residual computed in float64 from the
-// parts' coefficients, plus what that computation and the rounding of the
-// coefficients to float64 can hide, γ·(|b| + S·|x|) row by row; mag receives
-// |b| + S·|x|. It costs one pass over the parts, several times cheaper
-// than Residual: it is the check that decides whether a solution needs
-// refining. The float64 residual itself is left in r.
-func (p *Precise) ResidualBound(w, mag []float64, r []complex128, act *Active, b, x []complex128) {
-	n := act.N
-	r, ax := r[:n], act.ax[:n]
-	for i := range r {
-		r[i] = b[i]
-		mag[i] = Abs(b[i])
-		ax[i] = Abs(x[i])
-	}
-	for _, t := range act.g {
-		xj := x[t.j]
-		r[t.i] -= complex(t.v*real(xj), t.v*imag(xj))
-		mag[t.i] += t.abs * ax[t.j]
-	}
-	if p.f != 0 {
-		cw := p.cw
-		for _, t := range act.c {
-			a, xj := cw[t.k].Hi, x[t.j]
-			r[t.i] -= complex(-a*imag(xj), a*real(xj))
-			mag[t.i] += math.Abs(a) * ax[t.j]
-		}
-	}
-	for _, t := range act.k {
-		st := &p.ctl[t.k]
-		r[t.i] -= st.d * x[t.j]
-		mag[t.i] += st.abs * ax[t.j]
-	}
-	for _, t := range act.unit {
-		r[t.i] -= complex(t.v, 0) * x[t.j]
-		mag[t.i] += ax[t.j]
-	}
-	for i, g := range act.gamma {
-		w[i] = Abs(r[i])*(1+4*dd.U) + g*mag[i]
-	}
 }
 
 // Abs is |z|, computed as √(re² + im²): without math.Hypot's guard

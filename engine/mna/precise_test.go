@@ -1,7 +1,9 @@
 package mna
 
 import (
+	"math"
 	"math/cmplx"
+	"math/rand/v2"
 	"testing"
 
 	"zport/engine/circuit"
@@ -185,6 +187,85 @@ func TestActiveSymmetric(t *testing.T) {
 		}
 		if got := p.Active(cfg).Symmetric(); got != sym {
 			t.Errorf("%+v: Symmetric() = %v, the matrix is symmetric: %v", cfg, got, sym)
+		}
+	}
+}
+
+// ResidualBound from the assembled entries must bound the exact residual
+// of the parts' coefficients, which Residual gives in double-double (its
+// own rounding, rnd, some 2⁻¹⁰⁰ of the terms, counted against the bound):
+// for the float64 solutions themselves, where the residual is at its
+// rounding floor and the bound's γ·S·|x| is what holds it, and for
+// solutions perturbed in their last bits. Every configuration of allKinds,
+// and the bootstrapped follower whose 1 TΩ the assembled matrix loses.
+func TestResidualBoundHolds(t *testing.T) {
+	rng := rand.New(rand.NewPCG(4, 4))
+	for _, text := range []string{allKinds, "vsource Vs src gnd 1\nresistor Rs src in 50\nopamp U1 in out out a0=1e6 gbw=10M rid=1T\nresistor RL out gnd 10k\n"} {
+		c, err := circuit.Parse(text)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := New(c)
+		p := NewPrecise(s)
+		in, _ := c.Node("in")
+		var cfgs []Config
+		for ref := range s.Controls {
+			cfgs = append(cfgs, Config{Ref: ref}, Config{Ref: ref, RefGain: true},
+				Config{Ref: ref, Removed: []int{0}}, Config{Ref: ref, RefGain: true, Short: &[2]int{in, circuit.Gnd}})
+		}
+		checked, tight, worst := 0, 0, 0.0
+		for _, f := range []float64{0, 1, 1e3, 1e6, 1e9} {
+			p.At(f)
+			v, av := p.Values(nil, nil)
+			for ci, cfg := range cfgs {
+				cfg.F = f
+				act := p.Active(cfg)
+				act.At(v, av)
+				n := act.N
+				var lu LU
+				if err := lu.FactorMatrix(act.Matrix()); err != nil {
+					continue // singular: nothing to bound
+				}
+				b := make([]complex128, n)
+				for i := range b {
+					b[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+				}
+				x := lu.SolveTo(make([]complex128, n), b)
+				for round := 0; round < 3; round++ {
+					if round > 0 {
+						for i := range x {
+							x[i] *= complex(1+float64(rng.IntN(9)-4)*0x1p-52, 0)
+						}
+					}
+					w, mag := make([]float64, n), make([]float64, n)
+					rf := make([]complex128, n)
+					act.ResidualBound(w, mag, rf, b, x)
+					r := make([]dd.Complex, n)
+					rmag, rnd := make([]float64, n), make([]float64, n)
+					p.Residual(r, rmag, rnd, act, b, ToDD(make([]dd.Complex, n), x), false)
+					g := act.Gamma()
+					for i := 0; i < n; i++ {
+						exact := cmplx.Abs(r[i].Complex128()) - rnd[i]
+						checked++
+						if exact > w[i] {
+							t.Errorf("f = %g Hz, configuration %d, round %d, row %d: exact residual %.3g beyond its bound %.3g", f, ci, round, i, exact, w[i])
+						}
+						if exact > w[i]/100 {
+							tight++
+						}
+						// What the float64 residual missed, against γ·mag.
+						hidden := cmplx.Abs(r[i].Sub(dd.C(rf[i])).Complex128()) - rnd[i]
+						worst = math.Max(worst, hidden/(g[i]*mag[i]))
+						if hidden > g[i]*mag[i] {
+							t.Errorf("f = %g Hz, configuration %d, round %d, row %d: the float64 residual missed %.3g, beyond γ·(|b| + S·|x|) = %.3g", f, ci, round, i, hidden, g[i]*mag[i])
+						}
+					}
+				}
+			}
+		}
+		t.Logf("%d residuals within their bounds, %d of them within a factor 100; what the float64 residual missed, at most %.2g of γ·(|b| + S·|x|)", checked, tight, worst)
+		if tight == 0 {
+			t.Error("no bound came within a factor 100 of its residual: the test would not notice a bound too small")
 		}
 	}
 }

@@ -1,8 +1,6 @@
 package mna
 
 import (
-	"math"
-
 	"zport/engine/circuit"
 	"zport/engine/dd"
 )
@@ -48,6 +46,16 @@ type System struct {
 	g, c     []entry
 	Controls []Control
 	ctrlOf   []int // part index → index in Controls, or −1
+	// ctlTerms lists the controlled sources' coefficients, control by
+	// control, output row by output row, C0 then C1.
+	ctlTerms []ctlTerm
+}
+
+// ctlTerm is one coefficient −k·r·c (times s for a C1 term) of control ci.
+type ctlTerm struct {
+	ci, i, j int
+	r, c     float64
+	s        bool
 }
 
 // InternalVar returns the unknown of part i's internal node (an opamp's
@@ -211,6 +219,16 @@ func New(c *circuit.Circuit) *System {
 			s.Controls = append(s.Controls, ctl)
 		}
 	}
+	for ci, ctl := range s.Controls {
+		for _, r := range ctl.R {
+			for _, c := range ctl.C0 {
+				s.ctlTerms = append(s.ctlTerms, ctlTerm{ci, r.I, c.I, r.V, c.V, false})
+			}
+			for _, c := range ctl.C1 {
+				s.ctlTerms = append(s.ctlTerms, ctlTerm{ci, r.I, c.I, r.V, c.V, true})
+			}
+		}
+	}
 	return s
 }
 
@@ -302,8 +320,12 @@ func (s *System) Size(cfg Config) int {
 	return s.N
 }
 
+// Terms is the number of coefficients Precise.Values writes.
+func (s *System) Terms() int { return 2 + len(s.g) + len(s.c) + len(s.ctlTerms) }
+
 // Assemble writes M(s) for cfg into dst (row-major, Size×Size, grown as
-// needed) and returns it.
+// needed) and returns it: the terms of cfg's Active at cfg.F, summed, as
+// the analyses factor it.
 func (s *System) Assemble(dst []complex128, cfg Config) []complex128 {
 	n := s.Size(cfg)
 	if cap(dst) < n*n {
@@ -311,51 +333,13 @@ func (s *System) Assemble(dst []complex128, cfg Config) []complex128 {
 	}
 	dst = dst[:n*n]
 	clear(dst)
-	w := 2 * math.Pi * cfg.F
-	jw := complex(0, w)
-	for _, e := range s.g {
-		dst[e.i*n+e.j] += complex(e.v, 0)
-	}
-	if w != 0 {
-		for _, e := range s.c {
-			dst[e.i*n+e.j] += complex(0, w*e.v)
-		}
-	}
-	for ci, ctl := range s.Controls {
-		if ci == cfg.Ref && !cfg.RefGain {
-			continue
-		}
-		k := s.C.Parts[ctl.Part].Gain(cfg.F)
-		for _, r := range ctl.R {
-			kr := k * complex(r.V, 0)
-			for _, c := range ctl.C0 {
-				dst[r.I*n+c.I] -= kr * complex(c.V, 0)
-			}
-			for _, c := range ctl.C1 {
-				dst[r.I*n+c.I] -= kr * jw * complex(c.V, 0)
-			}
-		}
-	}
-	for _, pi := range cfg.Removed {
-		br := s.Branch[pi]
-		// I = 0: clear the row and the column, so the source's KCL
-		// entries do not dwarf what else meets at its nodes.
-		clear(dst[br*n : br*n+n])
-		for i := 0; i < n; i++ {
-			dst[i*n+br] = 0
-		}
-		dst[br*n+br] = 1
-	}
-	if cfg.Short != nil {
-		a, b, br := NodeVar(cfg.Short[0]), NodeVar(cfg.Short[1]), s.N
-		if a >= 0 {
-			dst[a*n+br] += 1
-			dst[br*n+a] += 1
-		}
-		if b >= 0 {
-			dst[b*n+br] -= 1
-			dst[br*n+b] -= 1
-		}
+	act := s.Active(cfg)
+	p := NewPrecise(s)
+	p.At(cfg.F)
+	act.At(p.Values(nil, nil))
+	m := act.Matrix()
+	for e := range m.I {
+		dst[int(m.I[e])*n+int(m.J[e])] = m.V[e]
 	}
 	return dst
 }

@@ -342,6 +342,10 @@
     var job = { t0: t0, engineMs: 0, n: 25, key: this.circuitKey() };
     this.job = job;
     this.setRunning(true);
+    // Running from the click on: the engine's first answer comes later.
+    var bar = this.q('[data-role="progress"]');
+    if (bar) bar.value = 0;
+    this.setState('running');
     var self = this;
     this.call('toleranceStart').then(function (started) {
       if (self.job !== job) return;

@@ -195,6 +195,10 @@
       }
       return { out: out, linked: !!frag };
     }).then(function (r) {
+      // The engine answers: the actions work from now on, even when an
+      // edit made meanwhile has superseded this answer.
+      var buttons = self.el.querySelectorAll('button[data-action]');
+      for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
       if (!r || seq !== self.seq) return;
       self.answered = seq;
       if (r.linked && r.out.form) {
@@ -210,8 +214,6 @@
       if (settled) self.el.dispatchEvent(new CustomEvent('zport:link', { detail: settled }));
       if (r.linked && previous && inputsOf(previous) !== inputsOf(self.values())) self.offerPrevious(previous);
       self.keepDraft();
-      var buttons = self.el.querySelectorAll('button[data-action]');
-      for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
       self.pins.refresh();
       site.settled(self);
     });

@@ -64,6 +64,7 @@
   var MAX_LISTED = 60; // errors listed and marked (the parser stops after 50)
   var SLOW_MS = 120; // a recompute slower than this throttles the next ones
   var BUDGET_MS = 300; // the sweep of one recompute; the engine shortens it to fit
+  var FAST_PASTE = 64 * 1024; // a paste longer than this skips the browser's editing commands
   var GUTTER_SPARE = 40; // line numbers drawn beyond the visible ones
   var BULK_LINES = 20; // an insertText of more lines goes in at once (see guard)
 
@@ -187,6 +188,14 @@
       // listener).
       var keep = self.ta.value.length - (self.ta.selectionEnd - self.ta.selectionStart);
       self.pasted = keep === 0 && add.trim() !== '';
+      if (add.length > FAST_PASTE) {
+        // The browser's own paste of a long text holds the page for
+        // seconds (its editing commands walk the text); put it in place
+        // directly. Such a paste cannot be undone with Ctrl+Z.
+        e.preventDefault();
+        self.ta.setRangeText(add, self.ta.selectionStart, self.ta.selectionEnd, 'end');
+        self.ta.dispatchEvent(new InputEvent('input', { inputType: 'insertFromPaste', bubbles: true }));
+      }
     });
     this.ta.addEventListener('dragover', function (e) {
       if (hasFiles(e)) e.preventDefault(); // so that a file can be dropped
@@ -687,8 +696,6 @@
   // a newer recompute has superseded this one.
   Editor.prototype.recompute = function (address, fragment) {
     var t0 = performance.now();
-    // For tests and the benchmark: how many recomputes have run.
-    el.setAttribute('data-recomputes', String(Number(el.getAttribute('data-recomputes') || 0) + 1));
     this.clearMessages();
     this.keepDraft();
     var req = this.values();
@@ -730,6 +737,9 @@
       if (seq !== self.seq) return null;
       self.answered = seq;
       var out = self.show(res, req, t0, address, fragment);
+      // For tests and the benchmark: how many recomputes have shown
+      // their answer (one a newer edit superseded does not count).
+      el.setAttribute('data-recomputes', String(Number(el.getAttribute('data-recomputes') || 0) + 1));
       site.settled(self);
       return out;
     });
@@ -931,6 +941,9 @@
   Editor.prototype.boot = function (first) {
     var self = this;
     var seq = ++this.bootSeq;
+    // Not live until this address is read and analyzed (the engine answers
+    // in its own time: a link opened over another waits for it too).
+    el.removeAttribute('data-live');
     var frag = shown() ? site.fragment() : '';
     var restored = false;
     if (first) {

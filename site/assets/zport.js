@@ -8,19 +8,27 @@
 // engine rendered (and escaped) in Go.
 //
 // Loading: zport-engine.js sets the global string zportEngine, the wasm
-// module gzip-compressed and base64-encoded, because browsers will not
-// fetch or stream-compile a .wasm file from file://. It is decoded,
-// inflated with DecompressionStream and compiled with instantiateStreaming
-// from a synthetic Response. wasm_exec.js (Go's own) supplies Go. The
-// engine registers the global object zport (its functions are listed in
-// zport/wasm). The root element's data-engine says "loading", "ready" or
-// "failed"; a failure's reason is shown in every calculator.
+// module gzip-compressed and base-122-encoded, because browsers will not
+// fetch or stream-compile a .wasm file from file://, and the function
+// zportGo, whose body is Go's wasm_exec.js. The engine runs in a Web
+// Worker started from a blob: made of that function's source and this
+// file's engineWorker (a worker cannot be started from a file either): it
+// decodes the string, inflates it with DecompressionStream and compiles
+// it with instantiateStreaming from a synthetic Response; the engine
+// registers the global object zport there (its functions are listed in
+// zport/wasm). The page only renders. The root element's data-engine says
+// "loading", "ready" or "failed" (a failure's reason is shown in every
+// calculator), and data-busy="true" marks a call running for more than
+// 150 ms, when the engine status says "Computing…".
 //
 // zportSite, the shared part:
 //   onEngine(cb)       runs cb() once the engine is ready
-//   call(name, ...)    one engine call: object arguments go as JSON, the
-//                      answer is parsed; a promise of the answer object
-//                      (an unreadable answer becomes {error})
+//   call(name, ...)    one engine call, run in the worker: object arguments
+//                      go as JSON, the answer comes back parsed; a promise
+//                      of the answer object (an unreadable answer becomes
+//                      {error}). A calculator's recompute (panel or
+//                      circuit, with its id) supersedes one still waiting:
+//                      that one answers {superseded: true, error}
 //   insert(el, html)   puts markup rendered by the engine into el
 //   later(fn)          runs fn in a task of its own, soon
 //   markStale(…)       marks results as the last good ones, or clears it
@@ -67,11 +75,12 @@
 // In the single-file export, p=NAME comes first and selects the page.
 // A fragment without "=" is an ordinary in-page anchor and is left alone.
 //
-// Performance marks for the benchmark (go run ./build bench):
-// "zport-engine-ready" when the engine has started, "zport-first-live" when
-// the first panel computed by it is on the page, a measure
-// "zport-recompute" for every recompute (engine call, insertion, layout)
-// and "zport-engine-call" for every engine call.
+// Performance marks for the benchmarks (go run ./build/bench and
+// ./build/bench/ratios): "zport-engine-ready" when the engine has started,
+// "zport-first-live" when the first panel computed by it is on the page, a
+// measure "zport-recompute" for every recompute (from the edit's frame:
+// engine call, insertion, layout) and "zport-engine-call" for every engine
+// call (the engine's own time in the worker, from the request sent).
 (function () {
   'use strict';
 
@@ -113,7 +122,54 @@
   }
 
   // ---- engine ----
+  //
+  // The engine runs in a Web Worker, so that the page only ever renders:
+  // a classic script cannot start a worker from a file, and file:// allows
+  // no fetch, so the worker's code is a blob: made of two functions' own
+  // source — Go's wasm_exec.js, which zport-engine.js wraps as
+  // zportGo, and engineWorker below — and the engine's bytes are posted to
+  // it (the CSP admits workers from blob: only). Calls and answers cross
+  // as messages: a request object is sent as JSON text (what the bridge
+  // reads), the answer comes back parsed in the worker, so that neither
+  // side's main work waits on the other's JSON.
 
+  // decodeBase122 reads the engine's string, written by the site builder
+  // (zport/site, base122.go): "n:" and then seven bits per character, or
+  // fourteen in a two-byte one standing for a code a string cannot hold
+  // (NUL, LF, CR, the quote, the backslash, '<') and the next seven bits.
+  // It runs in the worker.
+  function decodeBase122(s) {
+    var banned = [0, 10, 13, 34, 92, 60];
+    var colon = s.indexOf(':');
+    var n = Number(s.slice(0, colon));
+    if (!(colon > 0) || !(n >= 0)) throw new Error('no length');
+    var out = new Uint8Array(n);
+    var o = 0, acc = 0, bits = 0;
+    for (var k = colon + 1; k < s.length && o < n; k++) {
+      var c = s.charCodeAt(k);
+      var g = c;
+      if (c >= 0x80) {
+        var i = (c - 0x80) >> 7;
+        if (i >= banned.length) throw new Error('a character out of range');
+        g = banned[i];
+      }
+      for (var two = 0; two < 2; two++) {
+        acc = (acc << 7) | g;
+        bits += 7;
+        if (bits >= 8 && o < n) {
+          bits -= 8;
+          out[o++] = acc >> bits;
+          acc &= (1 << bits) - 1;
+        }
+        if (c < 0x80) break;
+        g = c & 0x7f;
+      }
+    }
+    if (o !== n) throw new Error('the text ends early');
+    return out;
+  }
+
+  // decodeBase64 reads base64 into bytes.
   function decodeBase64(s) {
     if (typeof Uint8Array.fromBase64 === 'function') return Uint8Array.fromBase64(s);
     var bin = atob(s);
@@ -122,83 +178,277 @@
     return out;
   }
 
-  function loadEngine() {
-    var b64 = globalThis.zportEngine;
-    if (typeof b64 !== 'string') return Promise.reject(new Error('the engine file zport-engine.js did not load'));
-    if (typeof Go !== 'function') return Promise.reject(new Error('wasm_exec.js did not load'));
-    if (typeof DecompressionStream !== 'function') return Promise.reject(new Error('this browser has no DecompressionStream'));
-    if (typeof WebAssembly !== 'object' || typeof WebAssembly.instantiateStreaming !== 'function') {
-      return Promise.reject(new Error('this browser cannot run WebAssembly'));
+  // engineWorker is the worker's side: it decodes, inflates and starts the
+  // engine, then answers calls {id, name, args} with {id, out, ms}, ms
+  // being the time the engine took. It runs in the worker's global scope,
+  // from its source text and decodeBase122's alone, so it uses nothing
+  // else from outside itself.
+  function engineWorker() {
+    var zport = null;
+    function fail(msg) {
+      self.postMessage({ failed: msg });
     }
-    var bytes;
-    try {
-      bytes = decodeBase64(b64);
-    } catch (e) {
-      return Promise.reject(new Error('the engine file is damaged (' + e.message + ')'));
-    }
-    globalThis.zportEngine = undefined; // the text is no longer needed
-    var stream = new Blob([bytes]).stream().pipeThrough(new DecompressionStream('gzip'));
-    var go = new Go();
-    var wasm = new Response(stream, { headers: { 'Content-Type': 'application/wasm' } });
-    return WebAssembly.instantiateStreaming(wasm, go.importObject).then(function (result) {
-      var exited = go.run(result.instance); // runs main until it waits for exit
-      if (!globalThis.zport || typeof globalThis.zport.panel !== 'function') {
-        throw new Error('the engine started but did not register itself');
+    function start(text) {
+      if (typeof DecompressionStream !== 'function') return fail('this browser has no DecompressionStream');
+      if (typeof WebAssembly !== 'object' || typeof WebAssembly.instantiateStreaming !== 'function') {
+        return fail('this browser cannot run WebAssembly');
       }
-      exited.then(function () {
-        engine = null;
-        lock(true);
-        setStatus('failed', 'The live engine has stopped; reload the page to start it again.');
+      var bytes;
+      try {
+        bytes = decodeBase122(text);
+      } catch (e) {
+        return fail('the engine file is damaged (' + e.message + ')');
+      }
+      var stream = new Blob([bytes]).stream().pipeThrough(new DecompressionStream('gzip'));
+      var go = new Go();
+      var wasm = new Response(stream, { headers: { 'Content-Type': 'application/wasm' } });
+      WebAssembly.instantiateStreaming(wasm, go.importObject).then(function (result) {
+        go.run(result.instance).then(function () {
+          zport = null;
+          self.postMessage({ exited: true });
+        });
+        if (!self.zport || typeof self.zport.panel !== 'function') throw new Error('the engine started but did not register itself');
+        zport = self.zport;
+        self.postMessage({ ready: true });
+      }).catch(function (e) {
+        fail(e && e.message ? e.message : String(e));
       });
-      window.addEventListener('pagehide', function (e) {
-        flushAddress();
-        saveDrafts();
-        if (!e.persisted && engine) {
-          var z = engine;
-          engine = null;
-          z.exit();
+    }
+    self.onmessage = function (e) {
+      var m = e.data;
+      if (typeof m.engine === 'string') return start(m.engine);
+      var out;
+      var t0 = performance.now();
+      if (!zport || typeof zport[m.name] !== 'function') {
+        out = { error: { message: 'the live engine is not running' } };
+      } else {
+        try {
+          out = JSON.parse(zport[m.name].apply(zport, m.args));
+        } catch (err) {
+          out = { error: { message: 'the engine gave an unreadable answer' } };
         }
-      });
-      return globalThis.zport;
+      }
+      self.postMessage({ id: m.id, out: out, ms: performance.now() - t0 });
+    };
+  }
+
+  function loadEngine() {
+    var text = globalThis.zportEngine;
+    var goRuntime = globalThis.zportGo;
+    if (typeof text !== 'string' || typeof goRuntime !== 'function') {
+      return Promise.reject(new Error('the engine file zport-engine.js did not load'));
+    }
+    if (typeof Worker !== 'function') return Promise.reject(new Error('this browser cannot run a worker'));
+    var src = '(' + goRuntime + ')();\n' + decodeBase122 + '\n(' + engineWorker + ')();\n';
+    var url = URL.createObjectURL(new Blob([src], { type: 'text/javascript' }));
+    var w;
+    try {
+      w = new Worker(url);
+    } catch (e) {
+      URL.revokeObjectURL(url);
+      return Promise.reject(new Error('the engine worker could not start (' + e.message + ')'));
+    }
+    globalThis.zportEngine = undefined; // the text is no longer needed here
+    return new Promise(function (resolve, reject) {
+      w.onmessage = function (e) {
+        URL.revokeObjectURL(url);
+        if (e.data.ready) {
+          w.onmessage = answered;
+          w.onerror = null;
+          resolve(w);
+        } else {
+          reject(new Error(e.data.failed || 'the engine did not start'));
+        }
+      };
+      w.onerror = function (e) {
+        e.preventDefault();
+        URL.revokeObjectURL(url);
+        reject(new Error(e.message || 'the engine worker could not start'));
+      };
+      w.postMessage({ engine: text });
     });
   }
 
-  // call runs one engine function: object arguments are sent as JSON,
-  // strings and numbers as they are. The answer is parsed; an unreadable
-  // one, or a stopped engine, gives {error: {message}}. It returns a
-  // promise, so that callers need not change if the engine moves off the
-  // main thread.
+  // Calls in flight by id, and the lanes: a calculator's recompute (a
+  // panel or circuit call carrying the calculator's id) has at most one
+  // call in flight; a newer one waits, and supersedes any that was waiting
+  // before it, whose promise answers {superseded: true, error}. The worker
+  // cannot stop a call that has started: its answer simply arrives for a
+  // caller that has moved on.
+  var calls = {};
+  var nextCall = 1;
+  var lanes = {};
+  var busyTimer = 0;
+  var BUSY_MS = 150; // a call still running after this says "Computing…"
+
+  function laneOf(name, args) {
+    var a = args[0];
+    if ((name !== 'panel' && name !== 'circuit') || !a || typeof a !== 'object' || !a.id || a.csv) return '';
+    return name + ':' + a.id;
+  }
+
+  function send(c) {
+    c.t0 = performance.now();
+    calls[c.id] = c;
+    engine.postMessage({ id: c.id, name: c.name, args: c.args });
+    busy();
+  }
+
+  function answered(e) {
+    var m = e.data;
+    if (m.exited || m.failed) return stopped();
+    var c = calls[m.id];
+    if (!c) return;
+    delete calls[m.id];
+    if (!c.warm) performance.measure('zport-engine-call', { start: c.t0, duration: m.ms });
+    if (c.lane) {
+      var l = lanes[c.lane];
+      l.running = null;
+      if (l.next) {
+        l.running = l.next;
+        l.next = null;
+        send(l.running);
+      }
+      warmLater(c);
+    }
+    busy();
+    c.resolve(m.out);
+    if (!live) setTimeout(goLive, 0); // after the answer is shown
+  }
+
+  // The engine's first calls run on the browser's baseline WebAssembly
+  // code, several times slower than the optimized code it compiles in the
+  // background for what runs often. So that the user's first edit does not
+  // pay for that, the engine is warmed while the page is idle: the last
+  // recompute is repeated a few times with a short sweep (the same code,
+  // a fraction of the time, so an edit never waits long behind it), its
+  // answers dropped, until the user's first edit.
+  var WARM_RUNS = 8;
+  var WARM_POINTS = 20;
+  var warm = { runs: 0, name: '', arg: '' };
+
+  function warmLater(c) {
+    if (warm.runs >= WARM_RUNS) return;
+    warm.name = c.name;
+    warm.arg = c.args[0];
+    var idle = globalThis.requestIdleCallback || function (fn) { return setTimeout(fn, 50); };
+    idle(warmStep, { timeout: 2000 });
+  }
+
+  function warmStep() {
+    if (!engine || warm.runs >= WARM_RUNS || !warm.name) return;
+    for (var k in calls) {
+      if (calls[k]) {
+        // Not idle yet: look again in a while.
+        var again = { name: warm.name, args: [warm.arg] };
+        return setTimeout(function () { warmLater(again); }, 200);
+      }
+    }
+    var req;
+    try {
+      req = JSON.parse(warm.arg);
+    } catch (e) {
+      return;
+    }
+    if (req.sweep && Number(req.sweep.points) > WARM_POINTS) req.sweep.points = String(WARM_POINTS);
+    warm.runs++;
+    var c = { id: nextCall++, name: warm.name, args: [JSON.stringify(req)], warm: true, lane: '' };
+    var next = { name: warm.name, args: [warm.arg] };
+    c.resolve = function () { warmLater(next); };
+    send(c);
+  }
+
+  // busy says "Computing…" in the engine status while a call has been
+  // running for BUSY_MS, and the usual words once none is.
+  function busy() {
+    var pending = false;
+    for (var k in calls) {
+      if (calls[k] && !calls[k].warm) pending = true;
+    }
+    clearTimeout(busyTimer);
+    if (!pending) {
+      if (root.hasAttribute('data-busy')) {
+        root.removeAttribute('data-busy');
+        setStatusText(live ? statusText.ready : statusText.loading);
+      }
+      return;
+    }
+    busyTimer = setTimeout(function () {
+      if (!engine) return;
+      root.setAttribute('data-busy', 'true');
+      setStatusText(statusText.busy);
+    }, BUSY_MS);
+  }
+
+  // goLive marks the page live (data-engine="ready", the status "Live")
+  // once the calls its scripts made when the engine started are answered
+  // and shown: from then on what the page shows is the engine's.
+  var live = false;
+  function goLive() {
+    if (live || !engine) return;
+    for (var k in calls) {
+      if (calls[k] && !calls[k].warm) return; // answered() looks again
+    }
+    live = true;
+    setStatus('ready', statusText.ready);
+  }
+
+  function stopped() {
+    var pending = calls;
+    calls = {};
+    lanes = {};
+    engine = null;
+    clearTimeout(busyTimer);
+    root.removeAttribute('data-busy');
+    lock(true);
+    setStatus('failed', 'The live engine has stopped; reload the page to start it again.');
+    for (var k in pending) pending[k].resolve({ error: { message: 'the live engine is not running' } });
+  }
+
+  // call runs one engine function in the worker: object arguments are sent
+  // as JSON, strings and numbers as they are. It returns a promise of the
+  // answer object; an unreadable answer, or a stopped engine, gives
+  // {error: {message}}.
   function call(name) {
-    var args = Array.prototype.slice.call(arguments, 1).map(function (a) {
+    var raw = Array.prototype.slice.call(arguments, 1);
+    var args = raw.map(function (a) {
       return a !== null && typeof a === 'object' ? JSON.stringify(a) : a;
     });
     return new Promise(function (resolve) {
-      if (!engine || typeof engine[name] !== 'function') {
+      if (!engine) {
         resolve({ error: { message: 'the live engine is not running' } });
         return;
       }
-      var t0 = performance.now();
-      var text = engine[name].apply(engine, args);
-      performance.measure('zport-engine-call', { start: t0, end: performance.now() });
-      try {
-        resolve(JSON.parse(text));
-      } catch (e) {
-        resolve({ error: { message: 'the engine gave an unreadable answer' } });
+      var c = { id: nextCall++, name: name, args: args, resolve: resolve, lane: laneOf(name, raw) };
+      if (!c.lane) return send(c);
+      if (live) warm.runs = WARM_RUNS; // the user edits: warming is over
+      var l = lanes[c.lane] || (lanes[c.lane] = { running: null, next: null });
+      if (!l.running) {
+        l.running = c;
+        return send(c);
       }
+      if (l.next) l.next.resolve({ superseded: true, error: { message: 'superseded by a newer edit' } });
+      l.next = c;
     });
   }
 
   var statusText = {
     loading: 'These results were computed when the page was built. The live engine is starting.',
-    ready: 'Live: the results follow every edit.'
+    ready: 'Live: the results follow every edit.',
+    busy: 'Computing…'
   };
 
   function setStatus(state, text) {
     root.setAttribute('data-engine', state);
     var els = document.querySelectorAll('[data-role="engine-status"]');
+    for (var i = 0; i < els.length; i++) els[i].setAttribute('data-state', state);
+    setStatusText(text);
+  }
+
+  function setStatusText(text) {
+    var els = document.querySelectorAll('[data-role="engine-status"]');
     for (var i = 0; i < els.length; i++) {
-      els[i].textContent = text;
-      els[i].setAttribute('data-state', state);
+      if (els[i].textContent !== text) els[i].textContent = text;
       els[i].hidden = false;
     }
   }
@@ -989,13 +1239,21 @@
     if (!document.querySelector('[data-calculator], [data-circuit-editor]')) return;
     lock(false);
     setStatus('loading', statusText.loading);
-    loadEngine().then(function (z) {
-      engine = z;
+    loadEngine().then(function (w) {
+      engine = w;
+      window.addEventListener('pagehide', function (e) {
+        flushAddress();
+        saveDrafts();
+        if (!e.persisted && engine) {
+          engine.terminate();
+          engine = null;
+        }
+      });
       performance.mark('zport-engine-ready');
-      setStatus('ready', statusText.ready);
       var cbs = readyCallbacks;
       readyCallbacks = [];
       for (var n = 0; n < cbs.length; n++) cbs[n]();
+      goLive();
     }, function (err) {
       lock(true);
       setStatus('failed', 'The live engine could not start: ' + (err && err.message ? err.message : String(err)) +

@@ -74,7 +74,7 @@ func checkRequests(t *testing.T, parent context.Context, base string, pageURL fu
 	}
 	n := len(reqs.urls)
 	reqs.mu.Unlock()
-	for _, f := range []string{"style.css", "zport.js", "zport-engine.js", "wasm_exec.js", "plothover.js"} {
+	for _, f := range []string{"style.css", "zport.js", "zport-engine.js", "plothover.js"} {
 		if !seen[f] {
 			t.Errorf("no request for %s was reported: the watcher is not seeing the page's requests", f)
 		}
