@@ -900,15 +900,27 @@ func appendVText(b []byte, x, y float64, s string) []byte {
 	return append(b, `</text>`...)
 }
 
-// appendMarkerLabel places a marker's label beside its line at height y,
-// on the side with more room.
 const anchorEnd = ` text-anchor="end"`
 
+// appendMarkerLabel places a marker's label beside its line at height y,
+// on the side with more room (markerLabelSpan).
 func appendMarkerLabel(b []byte, x, x0, x1, y float64, s string) []byte {
+	left, _ := markerLabelSpan(x, x0, x1, s)
+	return appendText(b, "", left, y, "", s)
+}
+
+// markerLabelSpan is where a marker's label at x goes in a plot from x0 to
+// x1: beside the line on the side with more room, and moved inward, over
+// the line if it must, where that side is too narrow for it (a long label
+// on a phone's narrow chart), so that it is never cut at the chart's edge.
+func markerLabelSpan(x, x0, x1 float64, s string) (left, right float64) {
+	w := textWidth(s, 11) // the labels' 11 px (CSS .label)
+	left = x + 4
 	if x-x0 > x1-x {
-		return appendText(b, anchorEnd, x-4, y, "", s)
+		left = x - 4 - w
 	}
-	return appendText(b, "", x+4, y, "", s)
+	left = math.Max(x0+2, math.Min(left, x1-2-w))
+	return left, left + w
 }
 
 func appendClassSuffix(b []byte, prefix, class string) []byte {

@@ -307,11 +307,7 @@ func (c *Curve) AppendSVG(dst []byte) []byte {
 			// first place inside the plot that no earlier label takes (two
 			// points close together, a target met twice, keep theirs
 			// apart).
-			w := textWidth(p.Label, 11)
-			lx0, lx1 := px+4, px+4+w // appendMarkerLabel's placement
-			if px-x0 > x1-px {
-				lx0, lx1 = px-4-w, px-4
-			}
+			lx0, lx1 := markerLabelSpan(px, x0, x1, p.Label)
 			ly := py - 8
 			for _, cand := range []float64{py - 8, py + 16, py - 21, py + 29, py - 34, py + 42} {
 				if cand-10 < top || cand+3 > bottom {

@@ -801,10 +801,30 @@ func TestMarkersAndReferenceLines(t *testing.T) {
 	if want := []string{"|Z| = 1 Ω", "−180°", "crossover 784 kHz, PM 47.4°", "low"}; !slices.Equal(labels, want) {
 		t.Errorf("labels %q, want %q", labels, want)
 	}
-	// A marker right of centre puts its label on its left.
+	// A marker right of centre puts its label on its left; a label too
+	// long for either side moves inward, never past the plot's edges.
+	lineX := func(m *node) float64 {
+		x, err := strconv.ParseFloat(strings.Fields(strings.NewReplacer("M", "", "V", " ").Replace(m.attr["d"]))[0], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return x
+	}
 	for _, tx := range root.all(byClass("g", "label"))[0].kids {
-		if tx.text == "crossover 784 kHz, PM 47.4°" && tx.attr["text-anchor"] != "end" {
-			t.Errorf("right-hand marker label is not anchored at its end")
+		if tx.text == "crossover 784 kHz, PM 47.4°" {
+			if x, _ := strconv.ParseFloat(tx.attr["x"], 64); x+textWidth(tx.text, 11) > lineX(markers[0])-3 {
+				t.Errorf("right-hand marker label at x = %g runs over its line at %g", x, lineX(markers[0]))
+			}
+		}
+	}
+	narrow := bode400x4()
+	narrow.Width = 340 // a phone's column
+	narrow.Markers = []Marker{{Freq: 1e6, Label: "crossover 425 kHz, closure 22 dB/decade"}}
+	nr := parse(t, narrow.SVG())
+	x0, x1 := attrFloats(t, nr, "data-x0")[0], attrFloats(t, nr, "data-x1")[0]
+	for _, tx := range nr.all(byClass("g", "label"))[0].kids {
+		if x, _ := strconv.ParseFloat(tx.attr["x"], 64); x < x0 || x+textWidth(tx.text, 11) > x1 {
+			t.Errorf("a long label spans %g … %g, outside the plot's %g … %g", x, x+textWidth(tx.text, 11), x0, x1)
 		}
 	}
 	// The −180° line widens the phase axis to reach it.
