@@ -211,7 +211,7 @@ func TestSolveBadLink(t *testing.T) {
 	ctx := start(t)
 	load(t, ctx, fileURL("transimpedance", "Cf=2p&solve.part=Cf&solve.quantity=pm&solve.value=400"))
 	poll(t, ctx, `(function () { var n = document.querySelector('#calc-transimpedance [data-role="notice"]'); return !n.hidden && n.textContent.includes('solve.value = "400"') && n.textContent.includes('a phase margin lies from'); })()`, waitFor)
-	if got := eval[string](t, ctx, `document.querySelector('` + inputSel("transimpedance", "Cf") + `').value`); got != "2p" {
+	if got := eval[string](t, ctx, `document.querySelector('`+inputSel("transimpedance", "Cf")+`').value`); got != "2p" {
 		t.Errorf("Cf = %q after the link, want its 2p", got)
 	}
 	if eval[string](t, ctx, `document.querySelector('#calc-transimpedance details.solve').getAttribute('data-solve-state')`) != "idle" {
