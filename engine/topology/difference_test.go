@@ -22,18 +22,33 @@ type cfCase struct {
 // defaults.
 func cfAgree(t *testing.T, id string, cases []cfCase) {
 	t.Helper()
+	cfAgreeAt(t, id, 0, cases)
+}
+
+// cfAgreeAt is cfAgree at the analysis temperature kelvin (0: the
+// default), given to the engine as the request's and to the closed forms
+// in their Values.
+func cfAgreeAt(t *testing.T, id string, kelvin float64, cases []cfCase) {
+	t.Helper()
 	st, ok := topology.Lookup(id)
 	if !ok {
 		t.Fatalf("no stage %s", id)
 	}
 	for _, c := range cases {
-		resp, err := api.Analyze(api.Request{Topology: id, Params: c.params, Frequency: c.f})
+		req := api.Request{Topology: id, Params: c.params, Frequency: c.f}
+		if kelvin > 0 {
+			req.Temperature = &kelvin
+		}
+		resp, err := api.Analyze(req)
 		if err != nil {
 			t.Fatalf("%s: %v", c.name, err)
 		}
 		v, err := st.Values(c.params)
 		if err != nil {
 			t.Fatal(err)
+		}
+		if kelvin > 0 {
+			v[topology.TemperatureKey] = kelvin
 		}
 		fs := st.Forms(v, c.f)
 		cmp := func(what string, f *topology.Formula, eng *api.Complex) {

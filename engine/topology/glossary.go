@@ -80,7 +80,6 @@ var glossary = []Term{
 	{ID: "IC", Symbol: "I_C", Label: "collector bias current", Unit: "A"},
 	{ID: "beta", Symbol: "β", Label: "small-signal current gain"},
 	{ID: "VA", Symbol: "V_A", Label: "Early voltage", Unit: "V"},
-	{ID: "T", Symbol: "T", Label: "junction temperature", Unit: "K"},
 	{ID: "Cpi", Symbol: "C_π", Label: "base-emitter capacitance", Unit: "F"},
 	{ID: "Cmu", Symbol: "C_μ", Label: "base-collector capacitance", Unit: "F"},
 	{ID: "RC", Symbol: "R_C", Label: "collector load resistor", Unit: "Ω"},

@@ -1,6 +1,7 @@
 package topology_test
 
 import (
+	"fmt"
 	"testing"
 
 	"zport/engine/api"
@@ -13,7 +14,10 @@ func TestShuntFeedbackAgainstEngine(t *testing.T) {
 		{"defaults, 500 MHz", nil, 500e6},
 		{"no Early effect, load capacitance", map[string]string{"VA": "", "CL": "5p"}, 30e6},
 		{"no capacitors, DC", map[string]string{"Cpi": "", "Cmu": ""}, 0},
-		{"hot, low current", map[string]string{"T": "398.15", "IC": "100u", "RC": "22k", "RF": "220k", "Rs": "1k"}, 10e3},
+	})
+	// The analysis temperature sets VT, in the engine and the closed forms.
+	cfAgreeAt(t, "shuntfeedback", 398.15, []cfCase{
+		{"hot, low current", map[string]string{"IC": "100u", "RC": "22k", "RF": "220k", "Rs": "1k"}, 10e3},
 	})
 }
 
@@ -23,16 +27,17 @@ func TestShuntFeedbackAgainstEngine(t *testing.T) {
 func TestShuntFeedbackThermalVoltage(t *testing.T) {
 	st, _ := topology.Lookup("shuntfeedback")
 	for _, c := range []struct {
-		T    string
+		T    float64
 		vt   float64
 		digs float64
-	}{{"300", 25.8519998e-3, 1e-9}, {"298.15", 25.6926e-3, 2e-6}} {
-		v, err := st.Values(map[string]string{"T": c.T, "IC": "1m", "beta": "150"})
+	}{{300, 25.8519998e-3, 1e-9}, {298.15, 25.6926e-3, 2e-6}} {
+		v, err := st.Values(map[string]string{"IC": "1m", "beta": "150"})
 		if err != nil {
 			t.Fatal(err)
 		}
+		v[topology.TemperatureKey] = c.T
 		fs := st.Forms(v, 0)
-		cfNear(t, "VT at "+c.T+" K", cfExtra(t, fs, "thermal voltage"), c.vt, c.digs)
+		cfNear(t, fmt.Sprint("VT at ", c.T, " K"), cfExtra(t, fs, "thermal voltage"), c.vt, c.digs)
 		cfNear(t, "gm", cfExtra(t, fs, "transconductance"), 1e-3/c.vt, c.digs)
 		cfNear(t, "rπ", cfExtra(t, fs, "rπ"), 150*c.vt/1e-3, c.digs)
 	}
