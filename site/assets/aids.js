@@ -13,7 +13,7 @@
 // its own (together some tens of milliseconds in the engine, too much to
 // redo on every key). The tolerance study runs only on "Run", in slices of
 // about 8 ms of engine time each, one task at a time, so the page keeps
-// answering (zportSite.runSliced); Cancel stops it and keeps the previous
+// answering (zportSite.onRequest); Cancel stops it and keeps the previous
 // results.
 //
 // The section attaches itself to every calculator element
@@ -108,6 +108,15 @@
     });
   }
 
+  // The messages, the run's buttons, slices, results and their staleness
+  // are those of every section that runs on request (zport.js).
+  site.onRequest(Aids.prototype, {
+    key: KEY, action: 'data-aid-action', state: 'data-aid-state', results: '[data-role="tolerance-results"]',
+    msg: '[data-role="tolerance-msg"]', holder: '.field, td, li', step: 'toleranceStep', panel: 'tolerancePanel',
+    release: 'toleranceRelease', max: 2000, noun: 'study', measure: 'zport-tolerance', again: 'Run the study again.',
+    done: function () { return ''; }
+  });
+
   // input is what every bridge call takes: the calculator's form with the
   // study's settings (calc.AidsInput).
   Aids.prototype.input = function (extra) {
@@ -121,13 +130,6 @@
     // On a phone, this section's charts are drawn for its own column.
     f.chartWidth = site.chartWidth(this.details.querySelector('[data-role="aids-content"]')) || undefined;
     return Object.assign({ form: f }, extra);
-  };
-
-  // circuitKey changes when the circuit or its spot frequency does.
-  Aids.prototype.circuitKey = function () {
-    var f = this.form;
-    if (!f) return '';
-    return JSON.stringify([f.topology, f.params, f.circuit, f.reference, f.ports, f.gain, f.frequency]);
   };
 
   Aids.prototype.call = function (name, extra) {
@@ -210,11 +212,6 @@
     return v;
   };
 
-  // current is the study's settings: as typed, or as last set.
-  Aids.prototype.current = function () {
-    return this.rendered ? this.collect() : this.values || {};
-  };
-
   Aids.prototype.setValues = function (values) {
     this.values = values || null;
     if (this.rendered) {
@@ -222,12 +219,6 @@
       var self = this;
       this.renderForm().then(function () { self.refresh(); });
     }
-  };
-
-  // notify tells the calculator that the settings changed.
-  Aids.prototype.notify = function () {
-    this.values = this.collect();
-    this.host.dispatchEvent(new CustomEvent('zport:settings', { detail: { key: KEY, values: this.values } }));
   };
 
   Aids.prototype.edited = function (el) {
@@ -287,28 +278,7 @@
     }
   };
 
-  // ---- messages ----
-
-  Aids.prototype.say = function (text) {
-    var s = this.q('[data-role="run-status"]');
-    if (s) s.textContent = text;
-  };
-
-  Aids.prototype.clearMessage = function (el) {
-    el.removeAttribute('aria-invalid');
-    var holder = el.closest('.field, td, li');
-    var msg = holder && holder.querySelector('[data-role="msg"]');
-    if (msg) msg.textContent = '';
-  };
-
-  Aids.prototype.clearMessages = function () {
-    site.clearFieldErrors(this.body);
-    var n = this.q('[data-role="tolerance-msg"]');
-    if (n) {
-      n.hidden = true;
-      n.textContent = '';
-    }
-  };
+  // ---- messages and the tolerance study ----
 
   // showError puts the engine's message beside the setting it names, or
   // in the study's notice.
@@ -322,16 +292,6 @@
     var where = err.line ? 'line ' + err.line + ', column ' + err.column + ': ' : '';
     box.textContent = where + (p ? p + ': ' : '') + err.message;
     box.hidden = false;
-  };
-
-  // ---- the tolerance study ----
-
-  Aids.prototype.setRunning = function (on) {
-    site.runButtons(this.q('[data-aid-action="run"]'), this.q('[data-aid-action="cancel"]'), this.q('[data-role="progress"]'), on);
-  };
-
-  Aids.prototype.setState = function (state) {
-    this.details.setAttribute('data-aid-state', state);
   };
 
   Aids.prototype.run = function () {
@@ -380,46 +340,6 @@
     }
   };
 
-  Aids.prototype.slice = function (job) {
-    var self = this;
-    site.runSliced(job, {
-      step: 'toleranceStep', panel: 'tolerancePanel', release: 'toleranceRelease', max: 2000,
-      live: function () { return self.job === job; },
-      progress: function (done, total) { self.progress(done, total); },
-      done: function (out) { self.show(job, out); },
-      stopped: function (why) { self.stop('The study stopped: ' + why + '.'); }
-    });
-  };
-
-  Aids.prototype.show = function (job, out) {
-    this.job = null;
-    this.setRunning(false);
-    if (out.error) {
-      this.setState('error');
-      return this.say('The results could not be shown: ' + out.error.message);
-    }
-    var results = this.q('[data-role="tolerance-results"]');
-    site.insert(results, out.html);
-    results.classList.remove('is-stale');
-    this.resultKey = job.key;
-    if (job.key !== this.circuitKey()) this.markStale();
-    void results.offsetHeight; // lay the panel out inside the measure
-    var t1 = performance.now();
-    performance.measure('zport-tolerance', { start: job.t0, end: t1 });
-    performance.measure('zport-tolerance-engine', { start: job.t0, duration: job.engineMs });
-    this.setState('done');
-    this.say('Done in ' + Math.round(t1 - job.t0) + ' ms.');
-  };
-
-  Aids.prototype.stop = function (text) {
-    var job = this.job;
-    if (job && job.run) site.call('toleranceRelease', job.run);
-    this.job = null;
-    this.setRunning(false);
-    this.setState('cancelled');
-    this.say(text);
-  };
-
   Aids.prototype.cancel = function () {
     var job = this.job;
     if (!job) return;
@@ -428,10 +348,6 @@
     var had = this.q('[data-role="tolerance-results"] [data-aid="tolerance"]');
     this.stop('Cancelled after ' + done + ' of ' + (job.total || 0) + '. ' +
       (had ? 'The results below are from the previous run.' : 'No results yet.'));
-  };
-
-  Aids.prototype.markStale = function () {
-    site.staleResults(this.q('[data-role="tolerance-results"]'), 'Out of date: these results are for earlier values of the circuit. Run the study again.');
   };
 
   // ---- standard values and sensitivity ----

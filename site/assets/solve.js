@@ -12,7 +12,7 @@
 // its settings (the circuit's parts and what can be reached). The search
 // runs only on "Solve" (or once when a link brings its settings), in
 // slices of about 8 ms of engine time, one task each, so the page keeps
-// answering (zportSite.runSliced); Cancel stops it and keeps the previous
+// answering (zportSite.onRequest); Cancel stops it and keeps the previous
 // results. A result's
 // buttons apply a value: on a stage page to the parameter's input, on the
 // custom page to the part's value in the circuit text (the engine
@@ -112,6 +112,15 @@
     });
   }
 
+  // The messages, the run's buttons, slices, results and their staleness
+  // are those of every section that runs on request (zport.js).
+  site.onRequest(Solve.prototype, {
+    key: KEY, action: 'data-solve-action', state: 'data-solve-state', results: '[data-role="solve-results"]',
+    msg: '[data-role="solve-msg"]', holder: '.field', step: 'solveStep', panel: 'solvePanel', release: 'solveRelease',
+    max: 200, noun: 'search', measure: 'zport-solve', again: 'Solve again.',
+    done: function (out) { return ' (' + out.done + ' analyses)'; }
+  });
+
   // input is what every bridge call takes (calc.SolveInput): the
   // calculator's form with the solve's settings.
   Solve.prototype.input = function () {
@@ -124,13 +133,6 @@
     f.pins = undefined; // a solve is of the current design
     f.chartWidth = site.chartWidth(this.body) || undefined;
     return { form: f };
-  };
-
-  // circuitKey changes when the circuit or its spot frequency does.
-  Solve.prototype.circuitKey = function () {
-    var f = this.form;
-    if (!f) return '';
-    return JSON.stringify([f.topology, f.params, f.circuit, f.reference, f.ports, f.gain, f.frequency]);
   };
 
   Solve.prototype.call = function (name) {
@@ -211,22 +213,12 @@
     return v;
   };
 
-  Solve.prototype.current = function () {
-    return this.rendered ? this.collect() : this.values || {};
-  };
-
   Solve.prototype.setValues = function (values) {
     this.values = values || null;
     if (this.rendered) {
       this.rendered = false; // the new settings win over what is typed
       this.renderForm();
     }
-  };
-
-  // notify tells the calculator that the settings changed.
-  Solve.prototype.notify = function () {
-    this.values = this.collect();
-    this.host.dispatchEvent(new CustomEvent('zport:settings', { detail: { key: KEY, values: this.values } }));
   };
 
   Solve.prototype.edited = function (el) {
@@ -247,28 +239,7 @@
     this.notify();
   };
 
-  // ---- messages ----
-
-  Solve.prototype.say = function (text) {
-    var s = this.q('[data-role="run-status"]');
-    if (s) s.textContent = text;
-  };
-
-  Solve.prototype.clearMessage = function (el) {
-    el.removeAttribute('aria-invalid');
-    var holder = el.closest('.field');
-    var msg = holder && holder.querySelector('[data-role="msg"]');
-    if (msg) msg.textContent = '';
-  };
-
-  Solve.prototype.clearMessages = function () {
-    site.clearFieldErrors(this.body);
-    var n = this.q('[data-role="solve-msg"]');
-    if (n) {
-      n.hidden = true;
-      n.textContent = '';
-    }
-  };
+  // ---- messages and the search ----
 
   // showError puts the engine's message beside the setting it names
   // (a port belongs to the quantity's choice), or in the section's notice.
@@ -280,16 +251,6 @@
     var where = err.line ? 'line ' + err.line + ', column ' + err.column + ': ' : '';
     box.textContent = where + (p ? p + ': ' : '') + err.message;
     box.hidden = false;
-  };
-
-  // ---- the search ----
-
-  Solve.prototype.setRunning = function (on) {
-    site.runButtons(this.q('[data-solve-action="run"]'), this.q('[data-solve-action="cancel"]'), this.q('[data-role="progress"]'), on);
-  };
-
-  Solve.prototype.setState = function (state) {
-    this.details.setAttribute('data-solve-state', state);
   };
 
   Solve.prototype.run = function () {
@@ -329,54 +290,10 @@
     this.say('Solving: ' + done + ' analyses of the circuit so far');
   };
 
-  Solve.prototype.slice = function (job) {
-    var self = this;
-    site.runSliced(job, {
-      step: 'solveStep', panel: 'solvePanel', release: 'solveRelease', max: 200,
-      live: function () { return self.job === job; },
-      progress: function (done, total) { self.progress(done, total); },
-      done: function (out) { self.show(job, out); },
-      stopped: function (why) { self.stop('The search stopped: ' + why + '.'); }
-    });
-  };
-
-  Solve.prototype.show = function (job, out) {
-    this.job = null;
-    this.setRunning(false);
-    if (out.error) {
-      this.setState('error');
-      return this.say('The results could not be shown: ' + out.error.message);
-    }
-    var results = this.q('[data-role="solve-results"]');
-    site.insert(results, out.html);
-    results.classList.remove('is-stale');
-    this.resultKey = job.key;
-    if (job.key !== this.circuitKey()) this.markStale();
-    void results.offsetHeight; // lay the panel out inside the measure
-    var t1 = performance.now();
-    performance.measure('zport-solve', { start: job.t0, end: t1 });
-    performance.measure('zport-solve-engine', { start: job.t0, duration: job.engineMs });
-    this.setState('done');
-    this.say('Done in ' + Math.round(t1 - job.t0) + ' ms (' + out.done + ' analyses).');
-  };
-
-  Solve.prototype.stop = function (text) {
-    var job = this.job;
-    if (job && job.run) site.call('solveRelease', job.run);
-    this.job = null;
-    this.setRunning(false);
-    this.setState('cancelled');
-    this.say(text);
-  };
-
   Solve.prototype.cancel = function () {
     if (!this.job) return;
     var had = this.q('[data-role="solve-results"] [data-aid="solve"]');
     this.stop('Cancelled. ' + (had ? 'The results below are from the previous search.' : 'No results yet.'));
-  };
-
-  Solve.prototype.markStale = function () {
-    site.staleResults(this.q('[data-role="solve-results"]'), 'Out of date: these results are for earlier values of the circuit. Solve again.');
   };
 
   // ---- applying a value ----

@@ -47,10 +47,9 @@
 //   recomputed, fragment(), page(), single, cssName
 //   PinBar(host)       the pinned designs of a calculator (see below)
 //   settle(host, fn), settled(host)  wait for a calculator's last recompute
-//   runSliced(job, spec)  work the engine does on request (a tolerance
-//                      study, a solve), run in slices (see below)
-//   runButtons(run, cancel, bar, on)  a run's buttons and progress bar
-//   staleResults(results, text)  marks on-request results out of date
+//   onRequest(proto, spec)  the shared methods of a section whose engine
+//                      work runs on request, in slices (a tolerance
+//                      study, a solve; see below)
 //   chartWidth(el)     the charts' width on a phone (calc.Form.ChartWidth)
 //   onNarrow(fn)       calls fn when the phone width changes
 // and, for every page: the charts' "SVG" and "PNG" buttons, and printing
@@ -1166,6 +1165,99 @@
     results.insertBefore(note, results.firstChild);
   }
 
+  // onRequest gives proto — a section whose engine work runs on request
+  // (aids.js's tolerance study, solve.js's search) — the methods both
+  // share. The section keeps its calculator's form in form, its own
+  // settings' element in body and its details element in details, and
+  // has collect() (its settings as typed), rendered, values and host.
+  // spec names the rest: key (its settings' key), action and state (the
+  // attributes of its Run/Cancel buttons and of its state on details),
+  // results and msg (the selectors of its results and its notice), holder
+  // (what holds a setting and its message), step, panel, release and max
+  // (for runSliced), noun ("search"), measure ("zport-solve"), again (what
+  // an out-of-date result asks for) and done(out), a note for the status.
+  function onRequest(proto, spec) {
+    // circuitKey changes when the circuit or its spot frequency does.
+    proto.circuitKey = function () {
+      var f = this.form;
+      if (!f) return '';
+      return JSON.stringify([f.topology, f.params, f.circuit, f.reference, f.ports, f.gain, f.frequency]);
+    };
+    // current is the settings: as typed, or as last set.
+    proto.current = function () {
+      return this.rendered ? this.collect() : this.values || {};
+    };
+    // notify tells the calculator that the settings changed.
+    proto.notify = function () {
+      this.values = this.collect();
+      this.host.dispatchEvent(new CustomEvent('zport:settings', { detail: { key: spec.key, values: this.values } }));
+    };
+    proto.say = function (text) {
+      var s = this.q('[data-role="run-status"]');
+      if (s) s.textContent = text;
+    };
+    proto.clearMessage = function (el) {
+      el.removeAttribute('aria-invalid');
+      var holder = el.closest(spec.holder);
+      var msg = holder && holder.querySelector('[data-role="msg"]');
+      if (msg) msg.textContent = '';
+    };
+    proto.clearMessages = function () {
+      clearFieldErrors(this.body);
+      var n = this.q(spec.msg);
+      if (n) {
+        n.hidden = true;
+        n.textContent = '';
+      }
+    };
+    proto.setRunning = function (on) {
+      runButtons(this.q('[' + spec.action + '="run"]'), this.q('[' + spec.action + '="cancel"]'), this.q('[data-role="progress"]'), on);
+    };
+    proto.setState = function (state) {
+      this.details.setAttribute(spec.state, state);
+    };
+    proto.slice = function (job) {
+      var self = this;
+      runSliced(job, {
+        step: spec.step, panel: spec.panel, release: spec.release, max: spec.max,
+        live: function () { return self.job === job; },
+        progress: function (done, total) { self.progress(done, total); },
+        done: function (out) { self.show(job, out); },
+        stopped: function (why) { self.stop('The ' + spec.noun + ' stopped: ' + why + '.'); }
+      });
+    };
+    proto.show = function (job, out) {
+      this.job = null;
+      this.setRunning(false);
+      if (out.error) {
+        this.setState('error');
+        return this.say('The results could not be shown: ' + out.error.message);
+      }
+      var results = this.q(spec.results);
+      insert(results, out.html);
+      results.classList.remove('is-stale');
+      this.resultKey = job.key;
+      if (job.key !== this.circuitKey()) this.markStale();
+      void results.offsetHeight; // lay the panel out inside the measure
+      var t1 = performance.now();
+      performance.measure(spec.measure, { start: job.t0, end: t1 });
+      performance.measure(spec.measure + '-engine', { start: job.t0, duration: job.engineMs });
+      this.setState('done');
+      this.say('Done in ' + Math.round(t1 - job.t0) + ' ms' + spec.done(out) + '.');
+    };
+    proto.stop = function (text) {
+      var job = this.job;
+      if (job && job.run) call(spec.release, job.run);
+      this.job = null;
+      this.setRunning(false);
+      this.setState('cancelled');
+      this.say(text);
+    };
+    proto.markStale = function () {
+      staleResults(this.q(spec.results), 'Out of date: these results are for earlier values of the circuit. ' + spec.again);
+    };
+  }
+
   // copyResults copies a result's Markdown followed by its share link.
   function copyResults(host, markdown, link) {
     copyText(host, markdown + '\nLink to these results: ' + link + '\n', 'Results copied as Markdown tables, with the link.');
@@ -1210,9 +1302,7 @@
     PinBar: PinBar,
     settle: settle,
     settled: settled,
-    runSliced: runSliced,
-    runButtons: runButtons,
-    staleResults: staleResults,
+    onRequest: onRequest,
     chartWidth: chartWidth,
     onNarrow: onNarrow,
     compress: compress,
