@@ -439,7 +439,7 @@ func (p *parser) name(n int, t token) bool {
 
 func (p *parser) port(n int, toks []token) {
 	if len(toks) != 4 {
-		col := toks[0].col
+		var col int
 		if len(toks) > 4 {
 			col = toks[4].col
 		} else {

@@ -11,8 +11,6 @@ type entry struct {
 	v    float64
 }
 
-type sparse []entry // entries with j unused: (index, coefficient)
-
 // Control is one controlled source written as k(s)·r·c(s)ᵀ.
 type Control struct {
 	Part int // index in Circuit.Parts

@@ -70,7 +70,7 @@ func TestParseErrors(t *testing.T) {
 		{"", "", 0},
 		{"k", "", 0},
 		{"k7", "Ω", 0},
-		{"10K", "", 2 - 2}, // RKM 10K is valid; see below
+		{"10K", "", 0}, // RKM 10K is valid; see below
 		{"1e3k", "", 3},
 		{"1e", "", 1},
 		{"10x", "Ω", 2},

@@ -193,7 +193,7 @@ func TolerancePanel(res *api.ToleranceResult, id string) string {
 			}
 		}
 		span := hi - lo
-		if q.Percentiles != nil && len(q.Percentiles) == 5 && q.Percentiles[0].Value != nil && q.Percentiles[4].Value != nil {
+		if len(q.Percentiles) == 5 && q.Percentiles[0].Value != nil && q.Percentiles[4].Value != nil {
 			span = *q.Percentiles[4].Value - *q.Percentiles[0].Value
 		}
 		formats[q.ID] = spreadFormat(q.Unit, mag, span)
