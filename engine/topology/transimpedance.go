@@ -1,13 +1,11 @@
 package topology
 
 import (
-	"zport/engine/value"
-
 	"math"
 	"math/cmplx"
 
-	"zport/engine/circuit"
 	"zport/engine/feedback"
+	"zport/engine/value"
 )
 
 func init() { register(transimpedance) }
@@ -174,47 +172,41 @@ func tiaCfExtras(v Values, label string, cf float64, formula, source string) []E
 }
 
 // tiaBandwidth finds the first frequency where |G| falls to |G(0)|/√2 for
-// the circuit text, by the engine, refined by bisection on log f.
+// the circuit text, by the engine: the walk brackets it, Illinois false
+// position on ln f closes it.
 func tiaBandwidth(text string) float64 {
-	c, err := circuit.Parse(text)
+	a, err := opmLoopAnalyzer(text, "Iin", "out")
 	if err != nil {
 		return math.NaN()
 	}
-	src, out := -1, 0
-	for i := range c.Parts {
-		if c.Parts[i].Name == "Iin" {
-			src = i
-		}
-	}
-	out, _ = c.Node("out")
-	a, err := feedback.New(c, "U1", nil, &feedback.Gain{Source: src, OutA: out, OutB: circuit.Gnd, SourceName: "Iin", OutputName: "out"})
-	if err != nil {
-		return math.NaN()
-	}
-	mag := func(f float64) float64 {
+	gain := func(f float64) (complex128, bool) {
 		p, err := a.At(f)
 		if err != nil || p.Gain == nil {
-			return math.NaN()
+			return 0, false
 		}
-		return cmplx.Abs(p.Gain.GDirect)
+		return p.Gain.GDirect, true
 	}
-	target := mag(0) / math.Sqrt2
-	grid := opmMarginGrid()
-	prev := grid[0]
-	for _, f := range grid {
-		if mag(f) < target {
-			lo, hi := math.Log(prev), math.Log(f)
-			for i := 0; i < 60; i++ {
-				mid := (lo + hi) / 2
-				if mag(math.Exp(mid)) < target {
-					hi = mid
-				} else {
-					lo = mid
-				}
-			}
-			return math.Exp((lo + hi) / 2)
+	g0, ok := gain(0)
+	if !ok {
+		return math.NaN()
+	}
+	level := math.Log(cmplx.Abs(g0) / math.Sqrt2)
+	// above is ln|G| less the level: positive until |G| has fallen 3 dB.
+	above := func(f float64) (float64, bool) {
+		g, ok := gain(f)
+		d := math.Log(cmplx.Abs(g)) - level
+		return d, ok && !math.IsNaN(d) && !math.IsInf(d, 0)
+	}
+	f3 := math.NaN()
+	pf, pd := 0.0, math.NaN()
+	walk(gain, func(f float64, g complex128) bool {
+		d := math.Log(cmplx.Abs(g)) - level
+		if d < 0 && pd >= 0 {
+			f3 = feedback.Refine(pf, f, pd, d, above)
+			return false
 		}
-		prev = f
-	}
-	return math.NaN()
+		pf, pd = f, d
+		return true
+	})
+	return f3
 }
