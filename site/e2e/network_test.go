@@ -4,13 +4,13 @@ package e2e
 
 import (
 	"context"
+	"fmt"
 	"net/url"
 	"path"
 	"path/filepath"
 	"sort"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/chromedp/cdproto/input"
 	"github.com/chromedp/chromedp"
@@ -39,19 +39,19 @@ func pages(t *testing.T) []string {
 // and is used (an edit, a chart hovered, the results copied, the menus and
 // details opened), stays under the site's folder.
 func TestNoRequestLeavesTheFolder(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	t.Run("file", func(t *testing.T) {
 		base := (&url.URL{Scheme: "file", Path: filepath.ToSlash(distDir) + "/"}).String()
-		checkRequests(t, ctx, base, func(name string) string { return fileURL(name, "") })
+		checkRequests(t, start(t), base, func(name string) string { return fileURL(name, "") })
 	})
 	t.Run("http", func(t *testing.T) {
+		ctx := start(t)
 		base := serveSubpath(t, "/wiki/a/b/zport/")
 		checkRequests(t, ctx, base, func(name string) string { return base + name + ".html" })
 	})
 }
 
-func checkRequests(t *testing.T, parent context.Context, base string, pageURL func(string) string) {
-	ctx := newTab(t, parent)
+func checkRequests(t *testing.T, ctx context.Context, base string, pageURL func(string) string) {
 	reqs := watchRequests(t, ctx)
 	names := pages(t)
 	for _, name := range names {
@@ -60,7 +60,7 @@ func checkRequests(t *testing.T, parent context.Context, base string, pageURL fu
 		checkHealthy(t, ctx)
 	}
 	// Let anything the last page started arrive.
-	time.Sleep(200 * time.Millisecond)
+	reqs.settle(t, ctx)
 	if out := reqs.outside(base); len(out) > 0 {
 		t.Errorf("requests outside %s:\n%s", base, strings.Join(out, "\n"))
 	}
@@ -99,8 +99,9 @@ func use(t *testing.T, ctx context.Context) {
 	}
 	topo := eval[string](t, ctx, `document.querySelector('[data-calculator]').getAttribute('data-topology')`)
 	first := eval[string](t, ctx, `document.querySelector('[data-calculator] input[name]').name`)
+	calls := eval[int](t, ctx, `performance.getEntriesByName('zport-engine-call').length`)
 	typeInto(t, ctx, topo, first, eval[string](t, ctx, `document.querySelector('[data-calculator] input[name]').value`)+"0")
-	time.Sleep(50 * time.Millisecond)
+	poll(t, ctx, fmt.Sprintf(`performance.getEntriesByName('zport-engine-call').length > %d`, calls))
 	box := eval[[]float64](t, ctx, `(function () { var s = document.querySelector('svg.zplot'); s.scrollIntoView(); var r = s.getBoundingClientRect(); return [r.left + r.width / 2, r.top + r.height / 3]; })()`)
 	if err := chromedp.Do(ctx, chromedp.MouseEvent(input.DispatchMouseEventTypeMouseMoved, box[0], box[1])); err != nil {
 		t.Fatal(err)
@@ -108,5 +109,5 @@ func use(t *testing.T, ctx context.Context) {
 	if err := chromedp.Do(ctx, chromedp.Click(chromedp.CSS(`#`+id+` [data-action="copy"]`))); err != nil {
 		t.Fatal(err)
 	}
-	poll(t, ctx, `document.querySelector('#`+id+` [data-role="action-msg"]').textContent !== ''`, waitFor)
+	poll(t, ctx, `document.querySelector('#`+id+` [data-role="action-msg"]').textContent !== ''`)
 }

@@ -6,6 +6,7 @@ import (
 	"bytes"
 	"context"
 	"image"
+	"image/draw"
 	"image/png"
 	"math"
 	"os"
@@ -22,7 +23,7 @@ import (
 // whole on the phone (wide tables and schematics scroll inside their own
 // boxes).
 func TestScreenshotsOfEveryPage(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	dir := os.Getenv("ZPORT_SHOTS")
 	if dir == "" {
 		dir = t.TempDir()
@@ -39,8 +40,10 @@ func TestScreenshotsOfEveryPage(t *testing.T) {
 		{"1280x800-dark", 1280, 800, false, true},
 		{"390x844", 390, 844, true, false},
 	}
+	// A view per tab, side by side.
 	for _, v := range views {
 		t.Run(v.name, func(t *testing.T) {
+			ctx := start(t)
 			opts := []chromedp.EmulateViewportOption{chromedp.EmulateScale(1)}
 			if v.mobile {
 				opts = append(opts, chromedp.EmulateMobile)
@@ -61,7 +64,7 @@ func TestScreenshotsOfEveryPage(t *testing.T) {
 			for _, name := range pages(t) {
 				loadFresh(t, ctx, fileURL(name, ""))
 				if eval[bool](t, ctx, `!!document.querySelector('[data-calculator]')`) {
-					poll(t, ctx, `performance.getEntriesByName('zport-first-live').length === 1`, waitFor)
+					poll(t, ctx, `performance.getEntriesByName('zport-first-live').length === 1`)
 				}
 				if got := eval[bool](t, ctx, `matchMedia('(prefers-color-scheme: dark)').matches`); got != v.dark {
 					t.Fatalf("the page sees prefers-color-scheme dark = %v", got)
@@ -99,22 +102,40 @@ func checkNotBlank(t *testing.T, name string, buf []byte, width, height int) {
 }
 
 // imageStats counts distinct colours and gives the mean and standard
-// deviation of the luminance (0–255) over every pixel.
+// deviation of the luminance (0–255) over every pixel. Screenshots are
+// several megapixels: the pixels are read from the image's own bytes, and
+// the colours seen are bits in a set of all 2²⁴.
 func imageStats(img image.Image) (colours int, mean, sd float64) {
 	b := img.Bounds()
-	seen := map[uint32]bool{}
+	var pix []uint8
+	stride := 0
+	switch m := img.(type) {
+	case *image.NRGBA:
+		pix, stride = m.Pix, m.Stride
+	case *image.RGBA:
+		pix, stride = m.Pix, m.Stride
+	default: // not what Chromium writes; convert
+		c := image.NewNRGBA(b)
+		draw.Draw(c, b, img, b.Min, draw.Src)
+		pix, stride = c.Pix, c.Stride
+	}
+	seen := make([]uint64, 1<<24/64)
 	var sum, sum2 float64
-	n := 0
-	for y := b.Min.Y; y < b.Max.Y; y++ {
-		for x := b.Min.X; x < b.Max.X; x++ {
-			r, g, bl, _ := img.At(x, y).RGBA()
-			seen[(r>>8)<<16|(g>>8)<<8|bl>>8] = true
-			l := (0.2126*float64(r) + 0.7152*float64(g) + 0.0722*float64(bl)) / 257
+	for y := 0; y < b.Dy(); y++ {
+		row := pix[y*stride : y*stride+4*b.Dx()]
+		for x := 0; x < len(row); x += 4 {
+			r, g, bl := row[x], row[x+1], row[x+2]
+			c := uint32(r)<<16 | uint32(g)<<8 | uint32(bl)
+			if seen[c/64]&(1<<(c%64)) == 0 {
+				seen[c/64] |= 1 << (c % 64)
+				colours++
+			}
+			l := 0.2126*float64(r) + 0.7152*float64(g) + 0.0722*float64(bl)
 			sum += l
 			sum2 += l * l
-			n++
 		}
 	}
-	mean = sum / float64(n)
-	return len(seen), mean, math.Sqrt(math.Max(0, sum2/float64(n)-mean*mean))
+	n := float64(b.Dx() * b.Dy())
+	mean = sum / n
+	return colours, mean, math.Sqrt(math.Max(0, sum2/n-mean*mean))
 }

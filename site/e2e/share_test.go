@@ -49,7 +49,7 @@ func TestShareLinkRoundTrips(t *testing.T) {
 	if err := chromedp.Do(ctx, chromedp.Click(chromedp.CSS(calcSel(id)+` [data-action="share"]`))); err != nil {
 		t.Fatal(err)
 	}
-	poll(t, ctx, `document.querySelector(`+jsString(calcSel(id)+` [data-role="action-msg"]`)+`).textContent !== ''`, waitFor)
+	poll(t, ctx, `document.querySelector(`+jsString(calcSel(id)+` [data-role="action-msg"]`)+`).textContent !== ''`)
 	if got := eval[string](t, ctx, `location.href`); got != link {
 		t.Errorf("clicking the share link moved the page to %q", got)
 	}
@@ -84,7 +84,7 @@ func TestShareLinkRoundTrips(t *testing.T) {
 	f.Frequency = "3k3"
 	next := "#" + f.State(e)
 	eval[bool](t, tab, `location.hash = `+jsString(next)+`, true`)
-	poll(t, tab, `document.querySelector(`+jsString(inputSel(id, "R1"))+`).value === '22k' && location.hash === `+jsString(next), waitFor)
+	poll(t, tab, `document.querySelector(`+jsString(inputSel(id, "R1"))+`).value === '22k' && location.hash === `+jsString(next))
 	if got := inputs(t, tab, id)["frequency"]; got != "3k3" {
 		t.Errorf("frequency %q after following the link, want 3k3", got)
 	}
@@ -147,7 +147,7 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 			t.Fatalf("the native engine accepts the fragment %.80q", frag)
 		}
 		want := "The settings in this link were not used (" + msg.Error.Message + "). Showing the defaults instead."
-		poll(t, ctx, `(function () { var n = document.querySelector('[data-role="notice"]'); return !n.hidden && n.offsetHeight > 0 && n.textContent === `+jsString(want)+`; })()`, waitFor)
+		poll(t, ctx, `(function () { var n = document.querySelector('[data-role="notice"]'); return !n.hidden && n.offsetHeight > 0 && n.textContent === `+jsString(want)+`; })()`)
 		if got := inputs(t, ctx, id); !sameMap(got, defaultInputs(e)) {
 			t.Errorf("inputs after a refused link: %v", got)
 		}
