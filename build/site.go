@@ -74,3 +74,5 @@ func runSingle(args []string) error {
 	fmt.Println(p)
 	return nil
 }
+
+func mb(n int64) string { return fmt.Sprintf("%.3f MB", float64(n)/1e6) }

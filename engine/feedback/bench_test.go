@@ -1,8 +1,6 @@
 package feedback_test
 
 import (
-	"fmt"
-	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/floats"
@@ -95,24 +93,12 @@ func BenchmarkSweep10Node2Port1600(b *testing.B) {
 	benchSweep(b, bench10, ports10, &[3]string{"Vin", "o2"}, 1600)
 }
 
-// ladder writes an n-node RC ladder driven by an opamp follower with the
-// feedback taken from the ladder's far end (invented test circuit).
-func ladder(n int) string {
-	var s strings.Builder
-	s.WriteString("vsource Vin src gnd 1\nopamp U1 src l0 out a0=100k gbw=1M ro=50\nresistor Rd out l1 10\n")
-	for i := 1; i < n-2; i++ {
-		fmt.Fprintf(&s, "resistor R%d l%d l%d 100\ncapacitor C%d l%d gnd 1p\n", i, i, i+1, i, i+1)
-	}
-	fmt.Fprintf(&s, "resistor Rf l%d l0 1\n", n-2)
-	return s.String()
-}
-
 func BenchmarkSweep50NodeLadder400(b *testing.B) {
-	benchSweep(b, ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 400)
+	benchSweep(b, circuit.Ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 400)
 }
 
 func BenchmarkSpot50NodeLadder(b *testing.B) {
-	a := benchAnalyzer(b, ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"})
+	a := benchAnalyzer(b, circuit.Ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"})
 	f := 1e3
 	for b.Loop() {
 		f *= 1.0001

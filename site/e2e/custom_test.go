@@ -24,6 +24,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"zport/engine/api"
+	"zport/engine/circuit"
 	"zport/engine/value"
 	"zport/site/examples"
 )
@@ -479,26 +480,14 @@ func TestCustomErrorAtItsLine(t *testing.T) {
 	checkHealthy(t, ctx)
 }
 
-// edLadder is an opamp driving an RC ladder with n nodes in all, the
-// feedback from the far end (an invented test circuit).
-func edLadder(n int) string {
-	var b strings.Builder
-	b.WriteString("# ladder test circuit (invented)\nvsource Vin src gnd 1\nopamp U1 src l0 out a0=100k gbw=1M ro=50\nresistor Rd out l1 10\n")
-	for i := 1; i < n-3; i++ {
-		fmt.Fprintf(&b, "resistor R%d l%d l%d 100\ncapacitor C%d l%d gnd 1p\n", i, i, i+1, i, i+1)
-	}
-	fmt.Fprintf(&b, "resistor Rf l%d l0 1\nport out out gnd\n", n-3)
-	return b.String()
-}
-
 // Up to 200 nodes analyze; one more gets the engine's message.
 func TestCustomNodeLimit(t *testing.T) {
 	ctx := start(t)
 	edLoad(t, ctx, fileURL("custom", ""))
-	if c := api.Inspect(edLadder(200)); len(c.Nodes) != 200 || len(c.Errors) != 0 {
+	if c := api.Inspect(circuit.Ladder(200)); len(c.Nodes) != 200 || len(c.Errors) != 0 {
 		t.Fatalf("the 200-node ladder has %d nodes and errors %v", len(c.Nodes), c.Errors)
 	}
-	edSetText(t, ctx, edLadder(200))
+	edSetText(t, ctx, circuit.Ladder(200))
 	if edStale(t, ctx) {
 		t.Fatalf("200 nodes did not analyze: %s", eval[string](t, ctx, `document.querySelector('[data-circuit-editor] [data-role="problems"]').textContent`))
 	}
@@ -523,7 +512,7 @@ func TestCustomNodeLimit(t *testing.T) {
 	} else {
 		t.Log("the 200-node sweep fitted the budget: no shortening to check")
 	}
-	edSetText(t, ctx, edLadder(201))
+	edSetText(t, ctx, circuit.Ladder(201))
 	msg := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] [data-role="problems"]').textContent`)
 	if !edStale(t, ctx) || !strings.Contains(msg, "201 nodes") || !strings.Contains(msg, "up to 200") {
 		t.Errorf("201 nodes: stale %v, message %q", edStale(t, ctx), msg)

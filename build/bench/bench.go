@@ -1,3 +1,17 @@
+// Command bench is zport's browser benchmark: it builds the site into a
+// temporary folder and measures it in Debian's Chromium from file://,
+// printing medians.
+//
+//	go run ./build/bench [-runs 9] [-page inverting] [-only custom]
+//
+// It measures navigation to the first live result, cold (a fresh browser
+// and profile each run) and warm (the same browser navigating again); one
+// recompute and redraw per topology at its default sweep; each topology's
+// design aids (aids.go); the custom-circuit page (custom.go; -only custom
+// runs that part alone); and the engine's size as the page loads it.
+//
+// It is a command of its own, apart from ./build, so that the site's
+// builder does not carry the browser driver (chromedp) it needs.
 package main
 
 import (
@@ -14,6 +28,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"zport/engine/api"
+	"zport/site"
 	zbrowser "zport/site/browser"
 )
 
@@ -96,14 +111,14 @@ func median(d []time.Duration) time.Duration {
 
 func ms(d time.Duration) string { return fmt.Sprintf("%.1f ms", float64(d)/float64(time.Millisecond)) }
 
-// runBench builds the site and measures it in Chromium from file://,
-// printing medians: navigation to the first live result, cold (a fresh
-// browser and profile each run) and warm (the same browser navigating
-// again); one recompute and redraw per topology at its default sweep; each
-// topology's design aids (bench_aids.go); the custom-circuit page
-// (bench_custom.go; -only custom runs that part alone); and the engine's
-// size as the page loads it.
-func runBench(args []string) error {
+func main() {
+	if err := run(os.Args[1:]); err != nil {
+		fmt.Fprintln(os.Stderr, "bench:", err)
+		os.Exit(1)
+	}
+}
+
+func run(args []string) error {
 	fs := flag.NewFlagSet("bench", flag.ContinueOnError)
 	runs := fs.Int("runs", 9, "runs per measurement (the median is printed)")
 	page := fs.String("page", "inverting", "page for the first-live measurements")
@@ -112,13 +127,17 @@ func runBench(args []string) error {
 		return err
 	}
 	if *runs < 1 {
-		return errors.New("bench: -runs must be at least 1")
+		return errors.New("-runs must be at least 1")
 	}
 	if err := zbrowser.Available(); err != nil {
 		return fmt.Errorf("bench needs Chromium: %v", err)
 	}
-	dist, _, err := buildSite()
+	dist, err := os.MkdirTemp("", "zport-bench-")
 	if err != nil {
+		return err
+	}
+	defer os.RemoveAll(dist)
+	if err := buildSite(dist); err != nil {
 		return err
 	}
 	pageURL := func(name string) string {
@@ -132,7 +151,7 @@ func runBench(args []string) error {
 		defer stop()
 		return runBenchCustom(ctx, pageURL, *runs)
 	} else if *only != "" {
-		return fmt.Errorf("bench: -only %q: the only part is \"custom\"", *only)
+		return fmt.Errorf("-only %q: the only part is \"custom\"", *only)
 	}
 
 	var cold, coldReady []time.Duration
@@ -210,3 +229,21 @@ func runBench(args []string) error {
 
 func mb(n int64) string  { return fmt.Sprintf("%.3f MB", float64(n)/1e6) }
 func kbs(n int64) string { return fmt.Sprintf("%.1f kB", float64(n)/1e3) }
+
+// buildSite builds the site into dist, as go run ./build does into the
+// module's dist/.
+func buildSite(dist string) error {
+	root, err := site.ModuleRoot()
+	if err != nil {
+		return err
+	}
+	wasm, wasmExec, err := site.CompileEngine(root)
+	if err != nil {
+		return err
+	}
+	files, err := site.Build(site.Options{Engine: wasm, WasmExec: wasmExec})
+	if err != nil {
+		return err
+	}
+	return files.Write(dist)
+}
