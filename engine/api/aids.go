@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"reflect"
 	"slices"
@@ -393,7 +394,7 @@ func badField(t reflect.Type, v any, path string) string {
 			}
 			fields[name] = f.Type
 		}
-		for _, k := range sortedKeys(obj) {
+		for _, k := range slices.Sorted(maps.Keys(obj)) {
 			ft, ok := fields[k]
 			if !ok {
 				return path
@@ -407,7 +408,7 @@ func badField(t reflect.Type, v any, path string) string {
 		if !ok {
 			return path
 		}
-		for _, k := range sortedKeys(obj) {
+		for _, k := range slices.Sorted(maps.Keys(obj)) {
 			if at := badField(t.Elem(), obj[k], path+"."+k); at != "" {
 				return at
 			}
@@ -652,7 +653,7 @@ func (p *Prepared) spreads(m *aids.Model, tr *ToleranceRequest) ([]aids.Spread, 
 	}
 	tol := make([]float64, len(m.Params))
 	given := make([]bool, len(m.Params))
-	for _, name := range sortedKeys(tr.Parts) {
+	for _, name := range slices.Sorted(maps.Keys(tr.Parts)) {
 		field := "tolerance.parts." + name
 		j := m.Param(name)
 		if j < 0 || m.Params[j].Class != aids.Passive {
@@ -678,7 +679,7 @@ func (p *Prepared) spreads(m *aids.Model, tr *ToleranceRequest) ([]aids.Spread, 
 			kinds[j] = par.Kind.String()
 		}
 	}
-	for _, name := range sortedKeys(tr.Amps) {
+	for _, name := range slices.Sorted(maps.Keys(tr.Amps)) {
 		field := "tolerance.amps." + name
 		idx, ok := p.Circuit.PartIndex(name)
 		if !ok || p.Circuit.Parts[idx].Kind != circuit.OpAmp {
@@ -764,15 +765,6 @@ func opamps(c *circuit.Circuit) []string {
 		return []string{"none"}
 	}
 	return r
-}
-
-func sortedKeys[V any](m map[string]V) []string {
-	keys := make([]string, 0, len(m))
-	for k := range m {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	return keys
 }
 
 // target resolves one target request against the study's quantities.

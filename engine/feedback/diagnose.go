@@ -3,6 +3,7 @@ package feedback
 import (
 	"errors"
 	"fmt"
+	"slices"
 	"sort"
 	"strings"
 
@@ -114,7 +115,7 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 		if dc {
 			var caps []string
 			for _, p := range c.Parts {
-				if p.Kind == circuit.Capacitor && (contains(floating, c.Nodes[p.Nodes[0]]) || contains(floating, c.Nodes[p.Nodes[1]])) {
+				if p.Kind == circuit.Capacitor && (slices.Contains(floating, c.Nodes[p.Nodes[0]]) || slices.Contains(floating, c.Nodes[p.Nodes[1]])) {
 					caps = append(caps, p.Name)
 				}
 			}
@@ -166,15 +167,6 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 		vf.union(e.a, e.b)
 	}
 	return nil
-}
-
-func contains(l []string, s string) bool {
-	for _, x := range l {
-		if x == s {
-			return true
-		}
-	}
-	return false
 }
 
 func plural(n int, one, many string) string {
