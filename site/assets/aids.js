@@ -39,7 +39,7 @@
 //   aids.study();     // the current settings; aids.state() as fragment pairs
 //   aids.setStudy(s); aids.open(); aids.cancel();
 //
-// Performance marks for the benchmark (go run ./build bench): a measure
+// Performance marks for the benchmark (go run ./build/bench): a measure
 // "zport-tolerance" from Run to the results on the page, with
 // "zport-tolerance-engine" (the time spent in the engine's steps), and
 // "zport-aids-panels" for each standard-value and sensitivity update.

@@ -33,7 +33,7 @@
 // came from the link, and zport:study from aids.js with its settings, which
 // join the form (Form.Study) and so the share link.
 //
-// Performance marks for the benchmark (go run ./build bench):
+// Performance marks for the benchmark (go run ./build/bench):
 // "zport-engine-ready" when the engine has started, "zport-first-live" when
 // the first panel computed by it is on the page, and a measure
 // "zport-recompute" for every recompute (engine call, insertion, layout).

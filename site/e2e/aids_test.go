@@ -277,7 +277,7 @@ func TestAidsToleranceMatchesEngine(t *testing.T) {
 	aidWaitState(t, ctx, "done")
 	// The study ran in slices, each a task of its own between which the
 	// page draws and answers; how long it took is the benchmark's business
-	// (go run ./build/bench -only aids).
+	// (go run ./build/bench).
 	sl := aidSliced(t, ctx)
 	t.Logf("2000 trials + 32 corners in %d slices of at most %d trials; %d frames drawn meanwhile", sl.Calls, sl.Most, sl.Frames)
 	if sl.Calls < 2 || sl.Most > aidMaxSlice {
