@@ -15,8 +15,9 @@
 //	             inputs, and the catalog table), editor.html (the
 //	             custom-circuit page's editor)
 //	assets/      style.css, zport.js (the one loader and the calculators'
-//	             glue), circuit.js (the custom-circuit page's editor, on
-//	             zport.js's engine), plothover.js (chart readout), icon.svg
+//	             glue), aids.js (the design aids under each calculator),
+//	             circuit.js (the custom-circuit page's editor, on zport.js's
+//	             engine), plothover.js (chart readout), icon.svg
 //	schematics/  one SVG schematic per topology, part names as in the
 //	             generated circuit text
 //
@@ -56,14 +57,17 @@
 //
 // # Output
 //
-// Build returns the multi-file site; Single returns one HTML file holding
-// every page as a section chosen by the fragment (#p=NAME), with its style
-// sheet and scripts inline and allowed by their SHA-256 hashes in its
-// Content-Security-Policy. The engine is written as zport-engine.js, the
+// Build and Single take Options: the engine, compiled from zport/wasm by
+// CompileEngine with the toolchain on PATH, and that toolchain's
+// wasm_exec.js. Build returns the multi-file site; Single returns one HTML
+// file holding every page as a section chosen by the fragment (#p=NAME),
+// with its style sheet and scripts inline and allowed by their SHA-256
+// hashes in its Content-Security-Policy. The engine is written as zport-engine.js, the
 // module gzip-compressed and base64-encoded into one global string (see
 // EngineScript), because browsers refuse to fetch a .wasm file from
-// file://. Every page carries the Content-Security-Policy CSP; nothing is
-// inline but the data of the pages themselves, and every link is relative.
+// file://. Every page of the multi-file site carries the
+// Content-Security-Policy CSP, with nothing inline but the data of the
+// pages themselves; every link is relative.
 //
 // Output is deterministic: files are produced in lexical order, the
 // catalog in its own order, and nothing depends on the time or the

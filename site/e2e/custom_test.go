@@ -817,47 +817,50 @@ func TestCustomHostileLink(t *testing.T) {
 
 // "Open as an editable circuit" on every stage page lands on the custom
 // page with the stage's text, reference, ports and gain chosen, and the
-// same numbers.
+// same numbers. A stage per tab, side by side.
 func TestCustomOpenAsCircuit(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	for _, e := range api.Catalog() {
-		load(t, ctx, fileURL(e.ID, ""))
-		calc := `[data-calculator]`
-		poll(t, ctx, `/#c=/.test(document.querySelector('a.open-circuit').getAttribute('href'))`)
-		stage := edValues(t, ctx, calc)
-		generated := eval[string](t, ctx, `document.querySelector('[data-calculator] pre.circuit-text').textContent`)
-		link := eval[string](t, ctx, `document.querySelector('a.open-circuit').href`)
-		edLoad(t, ctx, link)
-		s := edRead(t, ctx)
-		var ports []string
-		for _, p := range e.Ports {
-			ports = append(ports, p.Name)
-		}
-		if s.Reference != e.Reference || strings.Join(s.Ports, ",") != strings.Join(ports, ",") {
-			t.Errorf("%s: reference %s, ports %v; want %s, %v", e.ID, s.Reference, s.Ports, e.Reference, ports)
-		}
-		if e.Gain != nil && s.Source != e.Gain.Source {
-			t.Errorf("%s: gain from %q, want %q", e.ID, s.Source, e.Gain.Source)
-		}
-		if s.Text != generated {
-			t.Errorf("%s: the editor holds %.80q, not the stage's generated text", e.ID, s.Text)
-		}
-		custom := edValues(t, ctx, "[data-circuit-editor]")
-		cut := s.Used != s.Points // a slow machine: the sweep was shortened
-		for k, v := range stage {
-			if strings.HasPrefix(k, "extra:") || k == "verdict" || cut && (k == "fc" || k == "pm" || k == "gm") {
-				continue
+		t.Run(e.ID, func(t *testing.T) {
+			ctx := start(t)
+			load(t, ctx, fileURL(e.ID, ""))
+			calc := `[data-calculator]`
+			poll(t, ctx, `/#c=/.test(document.querySelector('a.open-circuit').getAttribute('href'))`)
+			stage := edValues(t, ctx, calc)
+			generated := eval[string](t, ctx, `document.querySelector('[data-calculator] pre.circuit-text').textContent`)
+			link := eval[string](t, ctx, `document.querySelector('a.open-circuit').href`)
+			edLoad(t, ctx, link)
+			s := edRead(t, ctx)
+			var ports []string
+			for _, p := range e.Ports {
+				ports = append(ports, p.Name)
 			}
-			w, ok := custom[k]
-			if !ok {
-				t.Errorf("%s: %s is on the stage page but not on the custom page", e.ID, k)
-				continue
+			if s.Reference != e.Reference || strings.Join(s.Ports, ",") != strings.Join(ports, ",") {
+				t.Errorf("%s: reference %s, ports %v; want %s, %v", e.ID, s.Reference, s.Ports, e.Reference, ports)
 			}
-			if v.Null != w.Null || !edClose(v, w) {
-				t.Errorf("%s: %s = %+v on the stage page, %+v on the custom page", e.ID, k, v, w)
+			if e.Gain != nil && s.Source != e.Gain.Source {
+				t.Errorf("%s: gain from %q, want %q", e.ID, s.Source, e.Gain.Source)
 			}
-		}
-		checkHealthy(t, ctx)
+			if s.Text != generated {
+				t.Errorf("%s: the editor holds %.80q, not the stage's generated text", e.ID, s.Text)
+			}
+			custom := edValues(t, ctx, "[data-circuit-editor]")
+			cut := s.Used != s.Points // a slow machine: the sweep was shortened
+			for k, v := range stage {
+				if strings.HasPrefix(k, "extra:") || k == "verdict" || cut && (k == "fc" || k == "pm" || k == "gm") {
+					continue
+				}
+				w, ok := custom[k]
+				if !ok {
+					t.Errorf("%s: %s is on the stage page but not on the custom page", e.ID, k)
+					continue
+				}
+				if v.Null != w.Null || !edClose(v, w) {
+					t.Errorf("%s: %s = %+v on the stage page, %+v on the custom page", e.ID, k, v, w)
+				}
+			}
+			checkHealthy(t, ctx)
+		})
 	}
 }
 

@@ -94,13 +94,15 @@ var edits = []struct{ id, param, value string }{
 }
 
 // Typing a value (key by key) updates every port row and every chart, and
-// the new values are the native engine's for the new parameter.
+// the new values are the native engine's for the new parameter. A stage
+// per tab, side by side.
 func TestTypingUpdatesEveryRowAndChart(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	covered := map[string]bool{}
 	for _, ed := range edits {
 		covered[ed.id] = true
 		t.Run(ed.id, func(t *testing.T) {
+			ctx := start(t)
 			load(t, ctx, fileURL(ed.id, ""))
 			checkLive(t, ctx, ed.id)
 			before := shownValues(t, ctx, ed.id)

@@ -21,9 +21,12 @@ import (
 // ZPORT_SHOTS when set (kept), else a temporary one. Each must be a PNG of
 // the page's width that is not blank, and no page may scroll sideways as a
 // whole on the phone (wide tables and schematics scroll inside their own
-// boxes).
+// boxes). Each page is loaded once, in a tab of its own, and shown in the
+// three views in turn (the emulated screen and colour scheme change under
+// the page, which lays itself out again as a resized window would).
 func TestScreenshotsOfEveryPage(t *testing.T) {
 	t.Parallel()
+	names := pages(t)
 	dir := os.Getenv("ZPORT_SHOTS")
 	if dir == "" {
 		dir = t.TempDir()
@@ -40,42 +43,41 @@ func TestScreenshotsOfEveryPage(t *testing.T) {
 		{"1280x800-dark", 1280, 800, false, true},
 		{"390x844", 390, 844, true, false},
 	}
-	// A view per tab, side by side.
-	for _, v := range views {
-		t.Run(v.name, func(t *testing.T) {
+	for _, name := range names {
+		t.Run(name, func(t *testing.T) {
 			ctx := start(t)
-			opts := []chromedp.EmulateViewportOption{chromedp.EmulateScale(1)}
-			if v.mobile {
-				opts = append(opts, chromedp.EmulateMobile)
+			load(t, ctx, fileURL(name, ""))
+			if eval[bool](t, ctx, `!!document.querySelector('[data-calculator]')`) {
+				poll(t, ctx, `performance.getEntriesByName('zport-first-live').length === 1`)
 			}
-			scheme := "light"
-			if v.dark {
-				scheme = "dark"
-			}
-			err := chromedp.Do(ctx, chromedp.EmulateViewport(v.width, v.height, opts...), chromedp.Func(func(ctx context.Context, t *chromedp.Target) error {
-				_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{
-					Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: scheme}},
-				})
-				return err
-			}))
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, name := range pages(t) {
-				loadFresh(t, ctx, fileURL(name, ""))
-				if eval[bool](t, ctx, `!!document.querySelector('[data-calculator]')`) {
-					poll(t, ctx, `performance.getEntriesByName('zport-first-live').length === 1`)
+			for _, v := range views {
+				opts := []chromedp.EmulateViewportOption{chromedp.EmulateScale(1)}
+				if v.mobile {
+					opts = append(opts, chromedp.EmulateMobile)
+				}
+				scheme := "light"
+				if v.dark {
+					scheme = "dark"
+				}
+				err := chromedp.Do(ctx, chromedp.EmulateViewport(v.width, v.height, opts...), chromedp.Func(func(ctx context.Context, t *chromedp.Target) error {
+					_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{
+						Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: scheme}},
+					})
+					return err
+				}))
+				if err != nil {
+					t.Fatal(err)
 				}
 				if got := eval[bool](t, ctx, `matchMedia('(prefers-color-scheme: dark)').matches`); got != v.dark {
-					t.Fatalf("the page sees prefers-color-scheme dark = %v", got)
+					t.Fatalf("%s: the page sees prefers-color-scheme dark = %v", v.name, got)
 				}
 				if w := eval[int](t, ctx, `document.documentElement.scrollWidth`); w > int(v.width) {
 					t.Errorf("%s at %s: the page is %d px wide, wider than the %d px window", name, v.name, w, v.width)
 				}
 				buf := screenshot(t, ctx, dir, name+"-"+v.name, opts...)
 				checkNotBlank(t, name+"-"+v.name, buf, int(v.width), int(v.height))
-				checkHealthy(t, ctx)
 			}
+			checkHealthy(t, ctx)
 		})
 	}
 }
