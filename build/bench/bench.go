@@ -233,15 +233,11 @@ func kbs(n int64) string { return fmt.Sprintf("%.1f kB", float64(n)/1e3) }
 // buildSite builds the site into dist, as go run ./build does into the
 // module's dist/.
 func buildSite(dist string) error {
-	root, err := site.ModuleRoot()
+	opt, err := site.ModuleOptions()
 	if err != nil {
 		return err
 	}
-	wasm, wasmExec, err := site.CompileEngine(root)
-	if err != nil {
-		return err
-	}
-	files, err := site.Build(site.Options{Engine: wasm, WasmExec: wasmExec})
+	files, err := site.Build(opt)
 	if err != nil {
 		return err
 	}

@@ -57,15 +57,10 @@ func TestMain(m *testing.M) {
 }
 
 func buildSite(dist, single string) error {
-	root, err := site.ModuleRoot()
+	opt, err := site.ModuleOptions()
 	if err != nil {
 		return err
 	}
-	wasm, exec, err := site.CompileEngine(root)
-	if err != nil {
-		return err
-	}
-	opt := site.Options{Engine: wasm, WasmExec: exec}
 	files, err := site.Build(opt)
 	if err != nil {
 		return err
