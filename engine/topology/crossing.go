@@ -33,7 +33,7 @@ const (
 
 // The walk's step: at most a decade, halved while the response turns by
 // more than walkTurn degrees in a step. A real pole turns the phase by at
-// most 55° over a decade and 28° over half of one; a pair of complex zeros
+// most 55° over a decade and 31° over half of one; a pair of complex zeros
 // (the in-loop compensation's notch) turns it fast, and gets short steps.
 // Successive samples differ in phase by far less than 180°, so the phase
 // unwraps unambiguously along them, and a notch is sampled through, not
