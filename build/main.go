@@ -5,7 +5,7 @@
 //	go run ./build open            build, then open dist/index.html in the browser
 //	go run ./build serve [addr]    build, then serve dist/ on 127.0.0.1 (default :8080)
 //	go run ./build single          build one self-contained HTML file
-//	go run ./build analyze         read a request (JSON) on stdin, write the response
+//	go run ./build analyze [-timeout d]  read a request (JSON) on stdin, write the response
 //	go run ./build topologies      print the topology catalog as JSON
 //
 // The browser benchmark is a command of its own, go run ./build/bench, so
@@ -13,6 +13,7 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"os"
 )
@@ -34,7 +35,7 @@ func main() {
 	case "single":
 		err = runSingle(args)
 	case "analyze":
-		os.Exit(runAnalyze(os.Stdin, os.Stdout, os.Stderr))
+		os.Exit(runAnalyze(context.Background(), args, os.Stdin, os.Stdout, os.Stderr))
 	case "topologies":
 		err = runTopologies(os.Stdout)
 	case "help", "-h", "--help":
@@ -56,7 +57,9 @@ const usage = `usage: go run ./build [command]
   open         build, then open dist/index.html in the system's browser
   serve [addr] build, then serve dist/ over http on 127.0.0.1 (default 127.0.0.1:8080)
   single       build one self-contained HTML file, dist/zport-single.html
-  analyze      read an analysis request (JSON) on stdin, write the response JSON
+  analyze [-timeout d]
+               read an analysis request (JSON) on stdin, write the response JSON;
+               -timeout stops a long analysis with an error after d (e.g. 30s)
   topologies   print the topology catalog as JSON
 
 The browser benchmark is a command of its own: go run ./build/bench

@@ -11,7 +11,7 @@ import (
 	"github.com/yuin/goldmark/testutil"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // testCatalog is a catalog of our own with one small stage.
@@ -36,11 +36,11 @@ const testTemplates = `{{define "calculator"}}<calc id="{{.ID}}" topology="{{.En
 {{end}}`
 
 // fakeCompute renders a stand-in panel that shows the form it was given.
-func fakeCompute(f render.Form) render.Output {
+func fakeCompute(f calc.Form) calc.Output {
 	if f.Params["R1"] == "fail" {
-		return render.Output{Error: &api.ErrorBody{Param: "R1", Message: "R₁: not a value"}}
+		return calc.Output{Error: &api.ErrorBody{Param: "R1", Message: "R₁: not a value"}}
 	}
-	return render.Output{HTML: `<div class="panel">` + template.HTMLEscapeString(f.ID+" R1="+f.Params["R1"]+" f="+f.Frequency+
+	return calc.Output{HTML: `<div class="panel">` + template.HTMLEscapeString(f.ID+" R1="+f.Params["R1"]+" f="+f.Frequency+
 		" sweep="+f.Sweep.From+","+f.Sweep.To+","+f.Sweep.Points) + `</div>`}
 }
 

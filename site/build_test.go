@@ -156,6 +156,8 @@ func TestPagesSafe(t *testing.T) {
 		m := cspRE.FindStringSubmatch(page)
 		if m == nil || html.UnescapeString(m[1]) != CSP {
 			t.Errorf("%s: CSP meta tag missing or different: %v", name, m)
+		} else {
+			checkLocks(t, name, html.UnescapeString(m[1]))
 		}
 		for _, tag := range tagRE.FindAllString(page, -1) {
 			if regexp.MustCompile(`\sstyle=`).MatchString(tag) {
@@ -233,6 +235,21 @@ func TestTopologyPages(t *testing.T) {
 	}
 }
 
+// checkLocks checks that a page's policy refuses what default-src leaves
+// open: plugins, a <base> element, and form submissions.
+func checkLocks(t *testing.T, name, csp string) {
+	t.Helper()
+	directives := map[string]bool{}
+	for _, d := range strings.Split(csp, ";") {
+		directives[strings.Join(strings.Fields(d), " ")] = true
+	}
+	for _, want := range []string{"object-src 'none'", "base-uri 'none'", "form-action 'none'"} {
+		if !directives[want] {
+			t.Errorf("%s: the policy lacks %s: %s", name, want, csp)
+		}
+	}
+}
+
 // TestSingleFile checks that the single-file export is self-contained and
 // that its CSP admits exactly its own inline style and scripts.
 func TestSingleFile(t *testing.T) {
@@ -256,6 +273,7 @@ func TestSingleFile(t *testing.T) {
 	if strings.Contains(csp, "unsafe-inline") {
 		t.Errorf("CSP allows any inline code: %s", csp)
 	}
+	checkLocks(t, "the single file", csp)
 	for _, tag := range tagRE.FindAllString(s, -1) {
 		for _, a := range attrRE.FindAllStringSubmatch(tag, -1) {
 			u := html.UnescapeString(a[2])

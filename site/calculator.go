@@ -15,7 +15,8 @@ import (
 	"github.com/yuin/goldmark/util"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
+	"zport/site/view"
 )
 
 // Node kinds of the blocks this package adds to Markdown.
@@ -40,7 +41,7 @@ type Calculator struct {
 	// Entry is the catalog entry of the topology.
 	Entry api.CatalogEntry
 	// Form holds the topology's defaults with the block's overrides.
-	Form render.Form
+	Form calc.Form
 	// ID is the element id of the calculator, unique within the page.
 	ID string
 	// Line is the line of the block's opening fence in the Markdown source.
@@ -102,7 +103,7 @@ type Blocks struct {
 	// Catalog lists the topologies a calculator block may name.
 	Catalog []api.CatalogEntry
 	// Compute renders a calculator's pre-computed default panel.
-	Compute func(render.Form) render.Output
+	Compute func(calc.Form) calc.Output
 	// Schematic returns the inline SVG for a topology, if there is one.
 	Schematic func(id string) (template.HTML, bool)
 	// Templates holds "calculator" and "catalog", executed with the data
@@ -295,7 +296,7 @@ func (t *blockTransformer) calculator(body string, line int) *Calculator {
 		}
 		return fail(0, "no topology %q in the catalog (one of: %s)", topo, strings.Join(ids, ", "))
 	}
-	c.Form = render.DefaultForm(c.Entry)
+	c.Form = calc.DefaultForm(c.Entry)
 	for _, it := range items {
 		switch it.k {
 		case "frequency":
@@ -305,7 +306,7 @@ func (t *blockTransformer) calculator(body string, line int) *Calculator {
 			if len(f) != 3 {
 				return fail(it.n, "sweep needs “FROM TO POINTS”, e.g. “10 100M 400”")
 			}
-			c.Form.Sweep = render.SweepForm{From: f[0], To: f[1], Points: f[2]}
+			c.Form.Sweep = calc.SweepForm{From: f[0], To: f[1], Points: f[2]}
 		default:
 			known := false
 			for _, p := range c.Entry.Params {
@@ -388,19 +389,58 @@ type calcField struct {
 	// EmptyHint says that the field may be left empty, where the meaning
 	// does not say so already.
 	EmptyHint bool
+	// Analysis and Setting name an analysis's setting (its input's name
+	// is then "Analysis.Setting"); Options make the input a choice.
+	Analysis, Setting string
+	Options           [][2]string
 }
 
 type calcGroup struct {
 	Title  string
+	Key    string // the analysis whose settings the group holds, if any
 	Fields []calcField
+}
+
+// paramRange says what a parameter's input takes: its range, and that a
+// gain may be typed in decibels.
+func paramRange(p api.ParamInfo) string {
+	r := view.Magnitude(p.Min, p.Unit) + " to " + view.Magnitude(p.Max, p.Unit)
+	if p.Decibels {
+		r += ", or in dB (100dB)"
+	}
+	return r
+}
+
+// settingGroups are the inputs of every analysis that has settings (see
+// calc.Analysis), one group each, filled from form.
+func settingGroups(form calc.Form) []calcGroup {
+	var groups []calcGroup
+	for _, a := range calc.Analyses {
+		if len(a.Settings) == 0 {
+			continue
+		}
+		g := calcGroup{Title: a.Title, Key: a.Key}
+		for _, st := range a.Settings {
+			v := st.Default
+			if x, ok := form.Settings[a.Key][st.Name]; ok {
+				v = x
+			}
+			g.Fields = append(g.Fields, calcField{Name: a.Field(st.Name), Symbol: st.Symbol, Meaning: st.Meaning, Unit: st.Unit,
+				Value: v, Range: st.Range, Analysis: a.Key, Setting: st.Name, Options: st.Options})
+		}
+		groups = append(groups, g)
+	}
+	return groups
 }
 
 // calcData is what the "calculator" template receives.
 type calcData struct {
-	ID        string
-	Entry     api.CatalogEntry
-	Groups    []calcGroup
-	Analysis  []calcField
+	ID       string
+	Entry    api.CatalogEntry
+	Groups   []calcGroup
+	Analysis []calcField
+	// Settings are the analyses' own inputs (calc.Analysis.Settings).
+	Settings  []calcGroup
 	Schematic template.HTML
 	Panel     template.HTML
 }
@@ -410,6 +450,7 @@ var groupTitles = map[string]string{
 	"source":    "Source",
 	"load":      "Load",
 	"amplifier": "Amplifier model",
+	"noise":     "Noise sources (invented defaults)",
 	"":          "Parameters",
 }
 
@@ -448,16 +489,17 @@ func (r *blockRenderer) renderCalculator(w util.BufWriter, _ []byte, node ast.No
 		d.Groups[i].Fields = append(d.Groups[i].Fields, calcField{
 			Name: p.Name, Symbol: p.Symbol, Meaning: p.Meaning, Unit: p.Unit,
 			Value: n.Form.Params[p.Name], EmptyHint: p.Optional && !strings.Contains(p.Meaning, "empty"),
-			Range: render.Magnitude(p.Min, p.Unit) + " to " + render.Magnitude(p.Max, p.Unit),
+			Range: paramRange(p),
 		})
 	}
 	f := n.Form
 	d.Analysis = []calcField{
-		{Name: render.FieldFrequency, Symbol: "f", Meaning: "spot frequency", Unit: "Hz", Value: f.Frequency, Range: "0 Hz or more"},
-		{Name: render.FieldFrom, Symbol: "from", Meaning: "sweep start", Unit: "Hz", Value: f.Sweep.From, Range: "above 0 Hz"},
-		{Name: render.FieldTo, Symbol: "to", Meaning: "sweep end", Unit: "Hz", Value: f.Sweep.To, Range: "above the start"},
-		{Name: render.FieldPoints, Symbol: "points", Meaning: "sweep points", Value: f.Sweep.Points, Range: "2 to " + strconv.Itoa(api.MaxPoints)},
+		{Name: calc.FieldFrequency, Symbol: "f", Meaning: "spot frequency", Unit: "Hz", Value: f.Frequency, Range: "0 Hz or more"},
+		{Name: calc.FieldFrom, Symbol: "from", Meaning: "sweep start", Unit: "Hz", Value: f.Sweep.From, Range: "above 0 Hz"},
+		{Name: calc.FieldTo, Symbol: "to", Meaning: "sweep end", Unit: "Hz", Value: f.Sweep.To, Range: "above the start"},
+		{Name: calc.FieldPoints, Symbol: "points", Meaning: "sweep points", Value: f.Sweep.Points, Range: "2 to " + strconv.Itoa(api.MaxPoints)},
 	}
+	d.Settings = settingGroups(f)
 	if err := r.e.Templates.ExecuteTemplate(w, "calculator", d); err != nil {
 		return ast.WalkStop, err
 	}

@@ -14,10 +14,12 @@
 //	             single-file export), calculator.html (a calculator's
 //	             inputs, and the catalog table), editor.html (the
 //	             custom-circuit page's editor)
-//	assets/      style.css, zport.js (the one loader and the calculators'
-//	             glue), aids.js (the design aids under each calculator),
-//	             circuit.js (the custom-circuit page's editor, on zport.js's
-//	             engine), plothover.js (chart readout), icon.svg
+//	assets/      style.css; zport.js (the one loader of the engine and
+//	             the library the page scripts share), calculator.js (the
+//	             stage calculators), circuit.js (the custom-circuit page's
+//	             editor), solve.js (design to a target, on both), aids.js
+//	             (the design aids of both), plothover.js (chart readout);
+//	             icon.svg
 //	schematics/  one SVG schematic per topology, part names as in the
 //	             generated circuit text
 //
@@ -48,10 +50,12 @@
 // the first), pre-rendered like a calculator. A page holds one editor.
 //
 // Each block becomes a node of its own kind (KindCalculator, KindCatalog,
-// KindMath, KindCircuitEditor) and is rendered by a renderer registered for that kind, the
-// shape of goldmark's own extensions. A calculator is rendered with its
+// KindMath, KindCircuitEditor) and is rendered by a renderer registered
+// for that kind, the shape of goldmark's own extensions. A calculator's and
+// the editor's form hold, besides the circuit's own inputs, the settings of
+// every analysis that declares some (calc.Analysis.Settings). A calculator is rendered with its
 // default results already computed by the native engine through
-// zport/site/render, the same code the WebAssembly engine runs on every
+// zport/site/calc, the same code the WebAssembly engine runs on every
 // edit, so the page shows real numbers and charts before the engine starts.
 // Raw HTML in the Markdown is not passed through (goldmark's safe default).
 //

@@ -14,8 +14,8 @@ import (
 	"github.com/yuin/goldmark/util"
 
 	"zport/engine/api"
+	"zport/site/calc"
 	"zport/site/examples"
-	"zport/site/render"
 )
 
 // KindCircuitEditor is the custom-circuit page's editor: a fenced block
@@ -60,7 +60,7 @@ type Editor struct {
 	// Examples are the examples it offers, the first being the default.
 	Examples []examples.Example
 	// Compute renders the pre-computed panel.
-	Compute func(render.Form) render.Output
+	Compute func(calc.Form) calc.Output
 	// Templates holds "circuit-editor" (templates/editor.html).
 	Templates *template.Template
 }
@@ -163,6 +163,7 @@ type editorData struct {
 	// before its script runs; the script rebuilds them from the text.
 	References, Ports, Sources, Nodes, Outputs, Minus []pick
 	Analysis                                          []calcField
+	Settings                                          []calcGroup
 	Panel                                             template.HTML
 	MaxURL                                            int
 	MaxText                                           int
@@ -177,9 +178,9 @@ func (r *editorRenderer) render(w util.BufWriter, _ []byte, node ast.Node, enter
 		return ast.WalkStop, n.Err
 	}
 	ex := n.Example
-	form := render.Form{
+	form := calc.Form{
 		Circuit: ex.Text, Reference: ex.Reference, Ports: ex.Ports, Gain: ex.Gain,
-		Frequency: ex.Frequency, Sweep: render.SweepForm{From: ex.From, To: ex.To, Points: ex.Points}, ID: n.ID,
+		Frequency: ex.Frequency, Sweep: calc.SweepForm{From: ex.From, To: ex.To, Points: ex.Points}, ID: n.ID,
 	}
 	out := r.e.Compute(form)
 	if out.Error != nil {
@@ -220,11 +221,12 @@ func (r *editorRenderer) render(w util.BufWriter, _ []byte, node ast.Node, enter
 		d.Minus = append(d.Minus, pick{nd, nd, nd == minus})
 	}
 	d.Analysis = []calcField{
-		{Name: render.FieldFrequency, Symbol: "f", Meaning: "spot frequency", Unit: "Hz", Value: ex.Frequency, Range: "0 Hz or more"},
-		{Name: render.FieldFrom, Symbol: "from", Meaning: "sweep start", Unit: "Hz", Value: ex.From, Range: "above 0 Hz"},
-		{Name: render.FieldTo, Symbol: "to", Meaning: "sweep end", Unit: "Hz", Value: ex.To, Range: "above the start"},
-		{Name: render.FieldPoints, Symbol: "points", Meaning: "sweep points", Value: ex.Points, Range: "2 to " + strconv.Itoa(api.MaxPoints)},
+		{Name: calc.FieldFrequency, Symbol: "f", Meaning: "spot frequency", Unit: "Hz", Value: ex.Frequency, Range: "0 Hz or more"},
+		{Name: calc.FieldFrom, Symbol: "from", Meaning: "sweep start", Unit: "Hz", Value: ex.From, Range: "above 0 Hz"},
+		{Name: calc.FieldTo, Symbol: "to", Meaning: "sweep end", Unit: "Hz", Value: ex.To, Range: "above the start"},
+		{Name: calc.FieldPoints, Symbol: "points", Meaning: "sweep points", Value: ex.Points, Range: "2 to " + strconv.Itoa(api.MaxPoints)},
 	}
+	d.Settings = settingGroups(form)
 	if err := r.e.Templates.ExecuteTemplate(w, "circuit-editor", d); err != nil {
 		return ast.WalkStop, err
 	}

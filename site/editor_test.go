@@ -8,8 +8,8 @@ import (
 	"github.com/yuin/goldmark"
 
 	"zport/engine/api"
+	"zport/site/calc"
 	"zport/site/examples"
-	"zport/site/render"
 )
 
 // hostileExample carries markup in every text the page prints.
@@ -26,7 +26,7 @@ func editorMarkdown(t *testing.T, list []examples.Example) goldmark.Markdown {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return goldmark.New(goldmark.WithExtensions(&Editor{Examples: list, Compute: render.Compute, Templates: tmpl}))
+	return goldmark.New(goldmark.WithExtensions(&Editor{Examples: list, Compute: calc.Compute, Templates: tmpl}))
 }
 
 func TestEditorBlock(t *testing.T) {

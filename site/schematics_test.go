@@ -8,7 +8,7 @@ import (
 	"testing"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 var svgTextRE = regexp.MustCompile(`<text [^>]*class="(label|node|port)"[^>]*>([^<]*)</text>`)
@@ -27,7 +27,7 @@ func TestSchematicsMatchCircuits(t *testing.T) {
 			params := map[string]string{}
 			for _, p := range e.Params {
 				if p.Optional && strings.TrimSpace(p.Default) == "" {
-					params[p.Name] = render.Syntax(math.Sqrt(math.Max(p.Min, 1e-15) * p.Max))
+					params[p.Name] = calc.Syntax(math.Sqrt(math.Max(p.Min, 1e-15) * p.Max))
 				}
 			}
 			resp, err := api.Analyze(api.Request{Topology: e.ID, Params: params, Frequency: e.Frequency})
@@ -42,6 +42,13 @@ func TestSchematicsMatchCircuits(t *testing.T) {
 				}
 				if f[0] == "port" {
 					ports[f[1]] = true
+					continue
+				}
+				if f[0] == "vnoise" || f[0] == "inoise" {
+					// A noise generator is the noise model of a part that
+					// is drawn (the sensor's shot noise, a transistor's
+					// channel noise), named in the noise section, not a
+					// part of the schematic.
 					continue
 				}
 				parts[f[1]] = true

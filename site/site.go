@@ -25,9 +25,9 @@ import (
 	"github.com/yuin/goldmark/text"
 
 	"zport/engine/api"
+	"zport/site/calc"
 	"zport/site/examples"
 	"zport/site/plot"
-	"zport/site/render"
 )
 
 // Sources holds the site as it is edited: content/ (Markdown, one file per
@@ -39,8 +39,15 @@ var Sources embed.FS
 
 // CSP is the Content-Security-Policy of every page of the multi-file site:
 // scripts, styles and images only from the page's own folder, and the
-// WebAssembly compile the engine needs. Images may also be data: URLs.
-const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; style-src 'self'; img-src 'self' data:; connect-src 'self'"
+// WebAssembly compile the engine needs. Images may also be data: URLs. No
+// plugins, no <base> to move relative links, and no form submission
+// anywhere (the calculators compute in the page). The single-file export
+// has the same policy, with hashes for its inline parts.
+const CSP = "default-src 'self'; script-src 'self' 'wasm-unsafe-eval'; style-src 'self'; img-src 'self' data:; connect-src 'self'; " + cspLocks
+
+// cspLocks are the directives that default-src does not cover: plugins,
+// the document's base URL and form targets, all refused.
+const cspLocks = "object-src 'none'; base-uri 'none'; form-action 'none'"
 
 // Options configure a build.
 type Options struct {
@@ -132,7 +139,8 @@ type pageData struct {
 	Name, Title string
 	Body        template.HTML
 	CSP         string
-	Engine      bool // the page holds a calculator and loads the engine
+	Engine      bool // the page holds a calculator or the editor and loads the engine, solve.js and aids.js
+	Calculator  bool // the page holds a stage calculator and loads calculator.js
 	Editor      bool // the page holds the circuit editor and loads circuit.js
 	Hover       bool // plothover.js is part of the site
 	Single      bool
@@ -150,7 +158,7 @@ func newBuilder(opt Options) (*builder, error) {
 	b := &builder{src: src, catalog: api.Catalog()}
 	for _, e := range b.catalog {
 		for _, p := range e.Params {
-			for _, k := range render.ReservedKeys {
+			for _, k := range calc.ReservedKeys {
 				if p.Name == k {
 					return nil, fmt.Errorf("topology %s: parameter %q collides with the URL fragment's own key", e.ID, k)
 				}
@@ -178,11 +186,11 @@ func newBuilder(opt Options) (*builder, error) {
 			extension.Table,
 			&Blocks{
 				Catalog:   b.catalog,
-				Compute:   render.Compute,
+				Compute:   calc.Compute,
 				Schematic: b.schematic,
 				Templates: tmpl,
 			},
-			&Editor{Examples: examples.All(), Compute: render.Compute, Templates: tmpl},
+			&Editor{Examples: examples.All(), Compute: calc.Compute, Templates: tmpl},
 		),
 		goldmark.WithParserOptions(parser.WithAutoHeadingID()),
 	)
@@ -261,10 +269,11 @@ func (b *builder) schematic(id string) (template.HTML, bool) {
 
 // converted is one page's HTML body and facts about it.
 type converted struct {
-	Title  string
-	Body   template.HTML
-	Engine bool
-	Editor bool
+	Title      string
+	Body       template.HTML
+	Engine     bool
+	Calculator bool
+	Editor     bool
 }
 
 func (b *builder) convert(p pageSrc, single bool) (converted, error) {
@@ -281,7 +290,7 @@ func (b *builder) convert(p pageSrc, single bool) (converted, error) {
 				c.Title = plainText(n, p.Source)
 			}
 		case *Calculator:
-			c.Engine = true
+			c.Engine, c.Calculator = true, true
 		case *CircuitEditor:
 			c.Engine, c.Editor = true, true
 		}
@@ -367,7 +376,7 @@ func Build(opt Options) (Files, error) {
 	}
 	for _, p := range b.pages {
 		c := conv[p.Name]
-		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, CSP: CSP, Engine: c.Engine, Editor: c.Editor, Hover: b.hover, Home: PageLink("index", false)}
+		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, CSP: CSP, Engine: c.Engine, Calculator: c.Calculator, Editor: c.Editor, Hover: b.hover, Home: PageLink("index", false)}
 		d.Nav, d.Stages, d.Prev, d.Next = b.nav(p.Name, titles, false)
 		var out bytes.Buffer
 		if err := b.tmpl.ExecuteTemplate(&out, "page", d); err != nil {
@@ -428,14 +437,14 @@ func Single(opt Options) ([]byte, error) {
 		scripts = append(scripts, h)
 	}
 	scripts = append(scripts, zjs)
-	// aids.js, the design-aid sections, follows zport.js as in page.html.
-	if ajs, err := fs.ReadFile(b.src, "assets/aids.js"); err == nil {
-		scripts = append(scripts, ajs)
-	}
-	// circuit.js, the custom page's script, runs after zport.js, whose
-	// helpers it uses (as in the multi-file site).
-	if cjs, err := fs.ReadFile(b.src, "assets/circuit.js"); err == nil {
-		scripts = append(scripts, cjs)
+	// The page scripts follow zport.js, whose helpers they use, in the
+	// order of page.html.
+	for _, name := range []string{"calculator.js", "circuit.js", "solve.js", "aids.js"} {
+		js, err := fs.ReadFile(b.src, "assets/"+name)
+		if err != nil {
+			return nil, err
+		}
+		scripts = append(scripts, js)
 	}
 
 	var style, inline strings.Builder
@@ -459,7 +468,7 @@ func Single(opt Options) ([]byte, error) {
 		scriptHashes = append(scriptHashes, hash(s))
 	}
 	csp := "default-src 'self'; script-src " + strings.Join(scriptHashes, " ") +
-		" 'wasm-unsafe-eval'; style-src " + styleHash + "; img-src 'self' data:; connect-src 'self'"
+		" 'wasm-unsafe-eval'; style-src " + styleHash + "; img-src 'self' data:; connect-src 'self'; " + cspLocks
 
 	titles := map[string]string{}
 	conv := map[string]converted{}
@@ -473,7 +482,7 @@ func Single(opt Options) ([]byte, error) {
 	var sections []pageData
 	for _, p := range b.pages {
 		c := conv[p.Name]
-		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, Engine: c.Engine, Editor: c.Editor, Single: true, Hover: b.hover, Home: PageLink("index", true)}
+		d := pageData{Name: p.Name, Title: c.Title, Body: c.Body, Engine: c.Engine, Calculator: c.Calculator, Editor: c.Editor, Single: true, Hover: b.hover, Home: PageLink("index", true)}
 		d.Nav, d.Stages, d.Prev, d.Next = b.nav(p.Name, titles, true)
 		sections = append(sections, d)
 	}

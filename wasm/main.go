@@ -8,7 +8,7 @@ import (
 	"syscall/js"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 func main() {
@@ -27,42 +27,25 @@ func register(global js.Value, exit func()) (release func()) {
 		funcs = append(funcs, fn)
 		obj.Set(name, fn)
 	}
-	add("analyze", guard(func(args []js.Value) string {
-		in, err := oneString(args)
-		if err != nil {
-			return errorJSON(err.Error())
-		}
-		out, _ := api.AnalyzeJSON([]byte(in))
-		return string(out)
-	}))
-	add("catalog", guard(func(args []js.Value) string {
-		if len(args) != 0 {
-			return errorJSON("zport.catalog takes no arguments")
-		}
-		b, err := json.Marshal(api.Catalog())
-		if err != nil {
-			return errorJSON("internal error: " + err.Error())
-		}
-		return string(b)
-	}))
 	add("circuit", guard(func(args []js.Value) string {
 		in, err := oneString(args)
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		return string(render.ComputeCircuitJSON([]byte(in)))
+		return string(calc.ComputeCircuitJSON([]byte(in)))
 	}))
 	add("panel", guard(func(args []js.Value) string {
 		in, err := oneString(args)
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		return string(render.ComputeJSON([]byte(in)))
+		return string(calc.ComputeJSON([]byte(in)))
 	}))
 	for name, fn := range map[string]func([]byte) []byte{
-		"aidsForm":   render.AidsFormJSON,
-		"aidsPanels": render.AidsPanelsJSON,
-		"aidsStudy":  render.StudyJSON,
+		"aidsForm":   calc.AidsFormJSON,
+		"aidsPanels": calc.AidsPanelsJSON,
+		"solveForm":  calc.SolveFormJSON,
+		"solveApply": calc.ApplyValueJSON,
 	} {
 		add(name, guard(func(args []js.Value) string {
 			in, err := oneString(args)
@@ -72,17 +55,17 @@ func register(global js.Value, exit func()) (release func()) {
 			return string(fn([]byte(in)))
 		}))
 	}
-	runs := &toleranceRuns{byID: map[int]*toleranceRun{}}
+	runs := &runList[*toleranceRun]{what: "tolerance run", byID: map[int]*toleranceRun{}}
 	add("toleranceStart", guard(func(args []js.Value) string {
 		in, err := oneString(args)
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		run, id, errJSON := render.StartToleranceJSON([]byte(in))
+		run, layout, errJSON := calc.StartToleranceJSON([]byte(in))
 		if run == nil {
 			return string(errJSON)
 		}
-		n := runs.add(&toleranceRun{run: run, panelID: id})
+		n := runs.add(&toleranceRun{run: run, layout: layout})
 		_, total := run.Step(0)
 		return fmt.Sprintf(`{"run":%d,"done":0,"total":%d}`, n, total)
 	}))
@@ -98,25 +81,61 @@ func register(global js.Value, exit func()) (release func()) {
 		done, total := r.run.Step(n)
 		return fmt.Sprintf(`{"done":%d,"total":%d}`, done, total)
 	}))
-	add("toleranceResult", guard(func(args []js.Value) string {
-		r, err := runs.get(args)
-		if err != nil {
-			return errorJSON(err.Error())
-		}
-		return string(r.run.ResultJSON())
-	}))
 	add("tolerancePanel", guard(func(args []js.Value) string {
 		r, err := runs.get(args)
 		if err != nil {
 			return errorJSON(err.Error())
 		}
-		return string(render.EncodeAids(render.ToleranceOutput(r.run, r.panelID)))
+		return string(calc.EncodeAids(calc.ToleranceOutput(r.run, r.layout)))
 	}))
 	add("toleranceRelease", guard(func(args []js.Value) string {
 		if _, err := runs.get(args); err != nil {
 			return errorJSON(err.Error())
 		}
 		runs.release(args[0].Int())
+		return `{"released":true}`
+	}))
+	// A solve's run is a coroutine: one dropped unfinished must be
+	// stopped, or its goroutine would wait for ever.
+	solves := &runList[*solveRun]{what: "solve", byID: map[int]*solveRun{}, drop: func(r *solveRun) { r.run.Stop() }}
+	add("solveStart", guard(func(args []js.Value) string {
+		in, err := oneString(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		run, layout, errJSON := calc.StartSolveJSON([]byte(in))
+		if run == nil {
+			return string(errJSON)
+		}
+		n := solves.add(&solveRun{run: run, layout: layout})
+		_, total, _ := run.Step(0)
+		return fmt.Sprintf(`{"run":%d,"done":0,"total":%d}`, n, total)
+	}))
+	add("solveStep", guard(func(args []js.Value) string {
+		if len(args) != 2 || args[1].Type() != js.TypeNumber {
+			return errorJSON("zport.solveStep takes a run id and a number of evaluations")
+		}
+		r, err := solves.get(args[:1])
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		done, total, finished := r.run.Step(min(max(args[1].Int(), 1), 1000))
+		return fmt.Sprintf(`{"done":%d,"total":%d,"finished":%t}`, done, total, finished)
+	}))
+	add("solvePanel", guard(func(args []js.Value) string {
+		r, err := solves.get(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		return string(calc.EncodeSolve(calc.SolveOutputOf(r.run, r.layout)))
+	}))
+	add("solveRelease", guard(func(args []js.Value) string {
+		r, err := solves.get(args)
+		if err != nil {
+			return errorJSON(err.Error())
+		}
+		r.run.Stop()
+		solves.release(args[0].Int())
 		return `{"released":true}`
 	}))
 	exited := false
@@ -148,24 +167,34 @@ func guard(fn func(args []js.Value) string) js.Func {
 	})
 }
 
-// toleranceRun is a tolerance study run in slices from the page, and the
-// id prefix of its panel.
+// toleranceRun is a tolerance study run in slices from the page, and how
+// its panel is laid out.
 type toleranceRun struct {
-	run     *api.ToleranceRun
-	panelID string
+	run    *api.ToleranceRun
+	layout calc.Layout
 }
 
-// toleranceRuns holds the page's runs by id. A page releases a run when it
-// is done or cancelled; past maxRuns the oldest is dropped, so a page that
-// forgets cannot make the module grow without end.
-type toleranceRuns struct {
+// solveRun is a solve run in slices from the page, and how its panel is
+// laid out.
+type solveRun struct {
+	run    *api.SolveRun
+	layout calc.Layout
+}
+
+// runList holds the page's runs of one kind by id. A page releases a run
+// when it is done or cancelled; past maxRuns the oldest is dropped (and
+// given to drop, when set), so a page that forgets cannot make the module
+// grow without end.
+type runList[R any] struct {
+	what string
 	next int
-	byID map[int]*toleranceRun
+	byID map[int]R
+	drop func(R)
 }
 
 const maxRuns = 8
 
-func (rs *toleranceRuns) add(r *toleranceRun) int {
+func (rs *runList[R]) add(r R) int {
 	rs.next++
 	rs.byID[rs.next] = r
 	for id := range rs.byID {
@@ -173,24 +202,28 @@ func (rs *toleranceRuns) add(r *toleranceRun) int {
 			break
 		}
 		if id <= rs.next-maxRuns {
+			if rs.drop != nil {
+				rs.drop(rs.byID[id])
+			}
 			delete(rs.byID, id)
 		}
 	}
 	return rs.next
 }
 
-func (rs *toleranceRuns) get(args []js.Value) (*toleranceRun, error) {
+func (rs *runList[R]) get(args []js.Value) (R, error) {
+	var zero R
 	if len(args) != 1 || args[0].Type() != js.TypeNumber {
-		return nil, fmt.Errorf("expected one argument, a tolerance run id")
+		return zero, fmt.Errorf("expected one argument, a %s id", rs.what)
 	}
 	r, ok := rs.byID[args[0].Int()]
 	if !ok {
-		return nil, fmt.Errorf("no tolerance run %d (a run is gone once released or cancelled)", args[0].Int())
+		return zero, fmt.Errorf("no %s %d (a run is gone once released or cancelled)", rs.what, args[0].Int())
 	}
 	return r, nil
 }
 
-func (rs *toleranceRuns) release(id int) { delete(rs.byID, id) }
+func (rs *runList[R]) release(id int) { delete(rs.byID, id) }
 
 func oneString(args []js.Value) (string, error) {
 	if len(args) != 1 || args[0].Type() != js.TypeString {

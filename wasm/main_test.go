@@ -5,6 +5,7 @@ package main
 import (
 	"encoding/json"
 	"fmt"
+	"slices"
 	"strings"
 	"syscall/js"
 	"testing"
@@ -44,43 +45,16 @@ func errorMessage(m map[string]any) string {
 	return s
 }
 
-func TestAnalyzeCircuit(t *testing.T) {
-	z, _ := setup(t)
-	// A follower around an ideal-gain amplifier: values our own.
-	req := `{"circuit": "vsource Vin in gnd 1\nresistor R1 out gnd 10k\nvcvs E1 out gnd sense=in,out gain=1000\nport o out gnd\n", "reference": "E1", "ports": ["o"], "frequency": 0}`
-	m := call(t, z, "analyze", req)
-	if msg := errorMessage(m); msg != "" {
-		t.Fatalf("analyze: %s", msg)
-	}
-	ports, ok := m["ports"].([]any)
-	if !ok || len(ports) != 1 {
-		t.Fatalf("ports = %v, want one", m["ports"])
-	}
-}
-
-func TestAnalyzeBadInput(t *testing.T) {
-	z, _ := setup(t)
-	m := call(t, z, "analyze", `{"circuit": "resistor R1 a\n", "ports": ["a"], "frequency": 1}`)
-	e, ok := m["error"].(map[string]any)
-	if !ok {
-		t.Fatalf("want an error object, got %v", m)
-	}
-	if line, _ := e["line"].(float64); line != 1 {
-		t.Errorf("error line = %v, want 1", e["line"])
-	}
-}
-
 func TestWrongArguments(t *testing.T) {
 	z, _ := setup(t)
 	for _, tc := range []struct {
 		name string
 		args []any
 	}{
-		{"analyze", nil},
-		{"analyze", []any{42}},
-		{"analyze", []any{"{}", "{}"}},
+		{"panel", nil},
+		{"panel", []any{42}},
+		{"panel", []any{"{}", "{}"}},
 		{"panel", []any{js.Null()}},
-		{"catalog", []any{"x"}},
 		{"circuit", nil},
 		{"circuit", []any{7}},
 	} {
@@ -93,26 +67,31 @@ func TestWrongArguments(t *testing.T) {
 
 func TestNotJSON(t *testing.T) {
 	z, _ := setup(t)
-	for _, name := range []string{"analyze", "panel"} {
+	for _, name := range []string{"panel", "aidsForm"} {
 		if m := call(t, z, name, "{not json"); errorMessage(m) == "" {
 			t.Errorf("zport.%s: want an error object for malformed JSON, got %v", name, m)
 		}
 	}
 }
 
-func TestCatalogAndPanel(t *testing.T) {
+// The bridge offers what the pages call, and nothing more: the engine's
+// contract is "go run ./build analyze", compared with the pages natively.
+func TestOnlyWhatPagesCall(t *testing.T) {
 	z, _ := setup(t)
-	res := z.Call("catalog")
-	var cat []struct {
-		ID string `json:"id"`
+	keys := js.Global().Get("Object").Call("keys", z)
+	var names []string
+	for i := range keys.Length() {
+		names = append(names, keys.Index(i).String())
 	}
-	if err := json.Unmarshal([]byte(res.String()), &cat); err != nil {
-		t.Fatalf("catalog: %v", err)
+	want := "aidsForm aidsPanels circuit exit panel solveApply solveForm solvePanel solveRelease solveStart solveStep tolerancePanel toleranceRelease toleranceStart toleranceStep"
+	if slices.Sort(names); strings.Join(names, " ") != want {
+		t.Errorf("zport has %v, want %s", names, want)
 	}
-	if len(cat) == 0 {
-		t.Fatal("catalog is empty")
-	}
-	m := call(t, z, "panel", `{"topology": "`+cat[0].ID+`", "id": "t"}`)
+}
+
+func TestPanel(t *testing.T) {
+	z, _ := setup(t)
+	m := call(t, z, "panel", `{"topology": "inverting", "id": "t"}`)
 	if msg := errorMessage(m); msg != "" {
 		t.Fatalf("panel: %s", msg)
 	}
@@ -124,30 +103,11 @@ func TestCatalogAndPanel(t *testing.T) {
 		t.Errorf("panel gave no state")
 	}
 	// A bad parameter names itself.
-	m = call(t, z, "panel", `{"topology": "`+cat[0].ID+`", "params": {"`+firstParam(t, z, cat[0].ID)+`": "4k7k"}}`)
+	m = call(t, z, "panel", `{"topology": "inverting", "params": {"R2": "4k7k"}}`)
 	e, ok := m["error"].(map[string]any)
-	if !ok || e["param"] == "" {
-		t.Fatalf("want an error naming the parameter, got %v", m)
+	if !ok || e["param"] != "R2" {
+		t.Fatalf("want an error naming R2, got %v", m)
 	}
-}
-
-func firstParam(t *testing.T, z js.Value, id string) string {
-	var cat []struct {
-		ID     string `json:"id"`
-		Params []struct {
-			Name string `json:"name"`
-		} `json:"params"`
-	}
-	if err := json.Unmarshal([]byte(z.Call("catalog").String()), &cat); err != nil {
-		t.Fatal(err)
-	}
-	for _, e := range cat {
-		if e.ID == id && len(e.Params) > 0 {
-			return e.Params[0].Name
-		}
-	}
-	t.Fatalf("no parameters for %s", id)
-	return ""
 }
 
 func TestPanicIsReported(t *testing.T) {

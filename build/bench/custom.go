@@ -23,7 +23,7 @@ import (
 // and 200 nodes with a 400-point sweep. Target: under 50 ms for 50 nodes.
 
 // benchCircuit is one circuit of the benchmark with the page's settings
-// for it, as the URL fragment keys of render.Form.CircuitState.
+// for it, as the URL fragment keys of calc.Form.CircuitState.
 type benchCircuit struct {
 	name, text, settings string
 }

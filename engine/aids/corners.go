@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
+
+	"zport/engine/numeric"
 )
 
 // MaxFullCorners is the largest number of spreads whose every combination
@@ -63,6 +65,9 @@ func (c *corners) choose() error {
 	}
 	lo, hi := make([]float64, nq), make([]float64, nq)
 	for j, sp := range mc.spreads {
+		if err := mc.m.stopped(j, c.n, "parts moved to their limits"); err != nil {
+			return fmt.Errorf("choosing corners: %w", err)
+		}
 		for side, v := range []float64{sp.Lo, sp.Hi} {
 			copy(c.x, mc.nomX)
 			c.x[sp.Param] = v
@@ -80,7 +85,7 @@ func (c *corners) choose() error {
 		for q, qu := range mc.qs {
 			d := hi[q] - lo[q]
 			if qu.angular() {
-				d = wrap180(d)
+				d = numeric.Wrap180(d)
 			}
 			delta[q][j] = d
 		}

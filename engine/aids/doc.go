@@ -8,8 +8,8 @@
 // A Model is a circuit with the numbers the aids may vary (its Params), the
 // reference element, the ports, the gain and a spot frequency. For circuit
 // text, CircuitParams lists every resistor, capacitor, inductor and
-// controlled-source value and each opamp's a0, gbw, p2, rid, rcm and ro;
-// for a catalog stage, StageParams lists the stage's parameters and checks
+// controlled-source value, each opamp's a0, gbw, p2, rid, rcm, ro, cid and
+// ccm, and each transistor's gm (as "Q1.gm"); for a catalog stage, StageParams lists the stage's parameters and checks
 // where each one lands in the generated circuit. Every evaluation writes the
 // values into a scratch copy of the circuit and builds a fresh
 // feedback.Analyzer (the nodal equations are cheap to rebuild: about ten
@@ -96,8 +96,10 @@
 // about that many per cent), the phase sensitivity ∂∠Q/∂ln p in degrees,
 // and ∂PM/∂ln p in degrees, sorted by size. Each is a central difference of
 // ln Q in ln p at steps 2h, h and h/2 (h = 10⁻³), Richardson-extrapolated,
-// with an error estimate from the two extrapolations; the tests hold it to
-// closed forms to better than 10⁻⁸ relative.
+// with an error estimate from the two extrapolations plus what the values'
+// own error bounds can contribute (the values are refined to about 15
+// digits for this); the tests hold it to closed forms to better than 10⁻⁸
+// relative.
 //
 // # Standard values
 //

@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/floats"
 
 	"zport/engine/feedback"
+	"zport/engine/numeric"
 )
 
 // loop finds the governing phase margin of each variant of a circuit.
@@ -46,27 +47,31 @@ const (
 )
 
 // newLoop reads the nominal margins of a over grid. It returns nil when the
-// loop has no unity crossing there.
-func newLoop(a *feedback.Analyzer, grid []float64) (*loop, feedback.MarginResult) {
+// loop has no unity crossing there, and an error only when m's Context
+// stopped the sweep.
+func newLoop(m *Model, a *feedback.Analyzer, grid []float64) (*loop, feedback.MarginResult, error) {
 	T := make([]complex128, len(grid))
 	for i, f := range grid {
+		if err := m.stopped(i, len(grid), "frequencies of the crossover search"); err != nil {
+			return nil, feedback.MarginResult{}, err
+		}
 		t, err := a.ReturnRatio(f)
 		if err != nil {
 			t = cmplx.NaN()
 		}
 		T[i] = t
 	}
-	m := feedback.Margins(grid, T, a.ReturnRatio)
-	if len(m.Crossovers) == 0 || math.IsNaN(m.Crossover) {
-		return nil, m
+	mr := feedback.Margins(grid, T, a.ReturnRatio)
+	if len(mr.Crossovers) == 0 || math.IsNaN(mr.Crossover) {
+		return nil, mr, nil
 	}
 	l := &loop{track: true}
 	const d = 0.01
-	for _, c := range m.Crossovers {
+	for _, c := range mr.Crossovers {
 		k := crossing{fc: c.F, phase: c.PhaseMargin - 180}
 		tp, errp := a.ReturnRatio(c.F * math.Exp(d))
 		tm, errm := a.ReturnRatio(c.F * math.Exp(-d))
-		if errp == nil && errm == nil && finite(tp) && finite(tm) && tp != 0 && tm != 0 {
+		if errp == nil && errm == nil && numeric.Finite(tp) && numeric.Finite(tm) && tp != 0 && tm != 0 {
 			k.slope = (math.Log(cmplx.Abs(tp)) - math.Log(cmplx.Abs(tm))) / (2 * d)
 		}
 		if k.slope == 0 || math.IsNaN(k.slope) {
@@ -80,7 +85,7 @@ func newLoop(a *feedback.Analyzer, grid []float64) (*loop, feedback.MarginResult
 	}
 	l.t = make([]complex128, len(l.coarse))
 	l.roots = make([]float64, len(l.cross))
-	return l, m
+	return l, mr, nil
 }
 
 // margin returns the governing phase margin (degrees) and crossover (Hz)
@@ -135,7 +140,7 @@ func (l *loop) sweep(a *feedback.Analyzer) (pm, fc float64) {
 func secant(a *feedback.Analyzer, c crossing) (pm, fc float64, ok bool) {
 	g := func(x float64) (complex128, float64, bool) {
 		t, err := a.ReturnRatio(math.Exp(x))
-		if err != nil || !finite(t) || t == 0 {
+		if err != nil || !numeric.Finite(t) || t == 0 {
 			return 0, 0, false
 		}
 		return t, math.Log(cmplx.Abs(t)), true
@@ -173,5 +178,5 @@ func secant(a *feedback.Analyzer, c crossing) (pm, fc float64, ok bool) {
 // nearest ref, the nominal crossover's unwrapped phase — the convention of
 // feedback.Margins, which unwraps from the lowest frequency.
 func pmOf(t complex128, ref float64) float64 {
-	return 180 + ref + wrap180(cmplx.Phase(t)*180/math.Pi-ref)
+	return 180 + ref + numeric.Wrap180(cmplx.Phase(t)*180/math.Pi-ref)
 }

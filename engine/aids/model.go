@@ -1,12 +1,14 @@
 package aids
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/cmplx"
 
 	"zport/engine/circuit"
 	"zport/engine/feedback"
+	"zport/engine/numeric"
 	"zport/engine/topology"
 )
 
@@ -14,8 +16,8 @@ import (
 type Field int
 
 // The numbers of a part a Param can be: its Value (resistance,
-// capacitance, inductance or controlled-source gain) or one of an opamp's
-// model numbers.
+// capacitance, inductance, controlled-source gain or a transistor's gm) or
+// one of an opamp's model numbers.
 const (
 	FieldValue Field = iota
 	FieldA0
@@ -24,9 +26,11 @@ const (
 	FieldRid
 	FieldRcm
 	FieldRo
+	FieldCid
+	FieldCcm
 )
 
-var fieldNames = [...]string{"value", "a0", "gbw", "p2", "rid", "rcm", "ro"}
+var fieldNames = [...]string{"value", "a0", "gbw", "p2", "rid", "rcm", "ro", "cid", "ccm"}
 
 func (f Field) String() string {
 	if f < 0 || int(f) >= len(fieldNames) {
@@ -52,7 +56,8 @@ const (
 // Param is one number of a circuit that the design aids may vary.
 type Param struct {
 	// Name is the part name ("R1") for a part's value, "U1.a0" for an
-	// opamp's model number, or the topology parameter's name.
+	// opamp's model number, "Q1.gm" for a transistor's transconductance, or
+	// the topology parameter's name.
 	Name    string
 	Unit    string // "Ω", "F", "H", "Hz", "S", "" …
 	Nominal float64
@@ -92,6 +97,25 @@ type Model struct {
 	// it. The circuit it returns must have Circuit's nodes and parts in the
 	// same order.
 	Rebuild func(x []float64) (*circuit.Circuit, error)
+	// Context, when set, stops a long computation once it is done (a time
+	// budget, a cancel): the nominal loop's sweep, the choice of corners and
+	// the sensitivities check it between units of work and return a
+	// *feedback.Stopped error. A MonteCarlo runs in Steps, which its caller
+	// stops. It is a field because a Model is the description of one study,
+	// made for one request.
+	Context context.Context
+}
+
+// stopped reports the error of m's Context once it is done, nil before
+// (or without one): done of total units of work have run.
+func (m *Model) stopped(done, total int, units string) error {
+	if m.Context == nil {
+		return nil
+	}
+	if err := m.Context.Err(); err != nil {
+		return &feedback.Stopped{Done: done, Total: total, Units: units, Err: err}
+	}
+	return nil
 }
 
 // DefaultGrid is the crossover search grid used when a Model has none:
@@ -114,6 +138,25 @@ func (m *Model) Nominal() []float64 {
 	return x
 }
 
+// Vary returns a function that builds the circuit with parameter j at x
+// and every other parameter at its nominal value, for a search along one
+// parameter (package zport/engine/solve). It writes into a scratch copy
+// of the circuit, which the next call changes again (or regenerates the
+// stage's text, when the model has Rebuild).
+func (m *Model) Vary(j int) func(x float64) (*circuit.Circuit, error) {
+	c := copyCircuit(m.Circuit)
+	xs := m.Nominal()
+	p := m.Params[j]
+	return func(x float64) (*circuit.Circuit, error) {
+		if m.Rebuild != nil {
+			xs[j] = x
+			return m.Rebuild(xs)
+		}
+		setField(&c.Parts[p.Part], p.Field, x)
+		return c, nil
+	}
+}
+
 // Param returns the index of the parameter called name, or −1.
 func (m *Model) Param(name string) int {
 	for i, p := range m.Params {
@@ -126,7 +169,8 @@ func (m *Model) Param(name string) int {
 
 // CircuitParams lists every number of c that the design aids can vary:
 // the value of each resistor, capacitor, inductor and controlled source,
-// and each opamp's a0 and, where present, gbw, p2, rid, rcm and ro.
+// each opamp's a0 and, where present, gbw, p2, rid, rcm, ro, cid and ccm,
+// and each transistor's gm (its other values held).
 // Independent sources are left out: a linear analysis's impedances and
 // gains do not depend on them.
 func CircuitParams(c *circuit.Circuit) []Param {
@@ -141,6 +185,9 @@ func CircuitParams(c *circuit.Circuit) []Param {
 				ps = append(ps, Param{Name: p.Name, Unit: kindUnit[p.Kind], Nominal: p.Value, Class: Other,
 					Kind: p.Kind, Part: i, Field: FieldValue})
 			}
+		case circuit.BJT, circuit.MOS:
+			ps = append(ps, Param{Name: p.Name + ".gm", Unit: "S", Nominal: p.Value, Class: Other,
+				Kind: p.Kind, Part: i, Field: FieldValue})
 		case circuit.OpAmp:
 			a := p.Amp
 			for _, f := range []struct {
@@ -149,7 +196,8 @@ func CircuitParams(c *circuit.Circuit) []Param {
 				unit  string
 				class Class
 			}{{FieldA0, a.A0, "", AmpSpread}, {FieldGBW, a.GBW, "Hz", AmpSpread}, {FieldP2, a.P2, "Hz", Other},
-				{FieldRid, a.Rid, "Ω", Other}, {FieldRcm, a.Rcm, "Ω", Other}, {FieldRo, a.Ro, "Ω", Other}} {
+				{FieldRid, a.Rid, "Ω", Other}, {FieldRcm, a.Rcm, "Ω", Other}, {FieldRo, a.Ro, "Ω", Other},
+				{FieldCid, a.Cid, "F", Other}, {FieldCcm, a.Ccm, "F", Other}} {
 				if f.v > 0 {
 					ps = append(ps, Param{Name: p.Name + "." + f.field.String(), Unit: f.unit, Nominal: f.v,
 						Class: f.class, Kind: circuit.OpAmp, Part: i, Field: f.field})
@@ -166,7 +214,7 @@ var kindUnit = map[circuit.Kind]string{circuit.Resistor: "Ω", circuit.Capacitor
 var unitKind = map[string]circuit.Kind{"Ω": circuit.Resistor, "F": circuit.Capacitor, "H": circuit.Inductor}
 
 // ampFields maps a stage's op-amp parameter names to the opamp's fields.
-var ampFields = map[string]Field{"a0": FieldA0, "gbw": FieldGBW, "p2": FieldP2, "rid": FieldRid, "rcm": FieldRcm, "ro": FieldRo}
+var ampFields = map[string]Field{"a0": FieldA0, "gbw": FieldGBW, "p2": FieldP2, "rid": FieldRid, "rcm": FieldRcm, "ro": FieldRo, "cid": FieldCid, "ccm": FieldCcm}
 
 // StageParams lists the parameters of stage t at values v as Params of c,
 // the circuit that t.Circuit(v) parses to. Each parameter is located as one
@@ -182,7 +230,8 @@ func StageParams(t *topology.Topology, v topology.Values, c *circuit.Circuit) (p
 	direct := true
 	for _, tp := range t.Params {
 		x, ok := v[tp.Name]
-		if !ok || x == 0 {
+		if !ok || x == 0 || tp.Group == "noise" {
+			// Noise densities change no impedance, gain or margin.
 			continue
 		}
 		p := Param{Name: tp.Name, Unit: tp.Unit, Nominal: x, Class: Other, Part: -1}
@@ -216,7 +265,7 @@ func StageParams(t *topology.Topology, v topology.Values, c *circuit.Circuit) (p
 		for i, p := range params {
 			w[p.Name] = x[i]
 		}
-		c2, err := circuit.Parse(t.Circuit(w))
+		c2, err := circuit.ParseWith(t.Circuit(w), circuit.Options{Temperature: c.Temperature})
 		if err != nil {
 			return nil, err
 		}
@@ -236,7 +285,7 @@ func locatedRight(t *topology.Topology, v topology.Values, c *circuit.Circuit, p
 	}
 	moved := p.Nominal * 1.0625
 	w[p.Name] = moved
-	c2, err := circuit.Parse(t.Circuit(w))
+	c2, err := circuit.ParseWith(t.Circuit(w), circuit.Options{Temperature: c.Temperature})
 	if err != nil || len(c2.Parts) != len(c.Parts) || len(c2.Nodes) != len(c.Nodes) {
 		return false
 	}
@@ -248,6 +297,9 @@ func locatedRight(t *topology.Topology, v topology.Values, c *circuit.Circuit, p
 			return false
 		}
 		if a.Amp != nil && *a.Amp != *b.Amp {
+			return false
+		}
+		if (a.Dev == nil) != (b.Dev == nil) || a.Dev != nil && *a.Dev != *b.Dev {
 			return false
 		}
 		if len(a.Nodes) != len(b.Nodes) {
@@ -292,6 +344,10 @@ func getField(p *circuit.Part, f Field) float64 {
 		return p.Amp.Rcm
 	case FieldRo:
 		return p.Amp.Ro
+	case FieldCid:
+		return p.Amp.Cid
+	case FieldCcm:
+		return p.Amp.Ccm
 	}
 	panic("aids: unknown field")
 }
@@ -312,6 +368,10 @@ func setField(p *circuit.Part, f Field, x float64) {
 		p.Amp.Rcm = x
 	case FieldRo:
 		p.Amp.Ro = x
+	case FieldCid:
+		p.Amp.Cid = x
+	case FieldCcm:
+		p.Amp.Ccm = x
 	default:
 		panic("aids: unknown field")
 	}
@@ -327,6 +387,9 @@ type Sample struct {
 	// PM and FC are the governing phase margin (degrees) and its
 	// crossover (Hz), NaN when the loop was not tracked or has none.
 	PM, FC float64
+	// ZErr and GErr bound the errors of Z and G (see feedback.PortErrors).
+	ZErr []float64
+	GErr float64
 }
 
 // evaluator turns parameter values into Samples. It owns a scratch copy of
@@ -334,6 +397,7 @@ type Sample struct {
 // not safe for concurrent use.
 type evaluator struct {
 	m     *Model
+	tol   float64 // feedback.Analyzer.Tol for every evaluation
 	c     *circuit.Circuit
 	ports []feedback.Port
 	loop  *loop // nil: phase margin not tracked
@@ -365,16 +429,20 @@ func (e *evaluator) analyzer(x []float64) (*feedback.Analyzer, error) {
 	for i := range e.ports {
 		e.ports[i].Drivers, e.ports[i].HeldBy = nil, nil
 	}
-	return feedback.New(c, e.m.Reference, e.ports, e.m.Gain)
+	a, err := feedback.New(c, e.m.Reference, e.ports, e.m.Gain)
+	if err == nil {
+		a.Tol = e.tol
+	}
+	return a, err
 }
 
 // eval analyzes the circuit at values x into dst (whose Z must have one
 // entry per port).
 func (e *evaluator) eval(x []float64, dst *Sample) error {
 	for i := range dst.Z {
-		dst.Z[i] = cmplx.NaN()
+		dst.Z[i], dst.ZErr[i] = cmplx.NaN(), math.NaN()
 	}
-	dst.G, dst.PM, dst.FC = cmplx.NaN(), math.NaN(), math.NaN()
+	dst.G, dst.GErr, dst.PM, dst.FC = cmplx.NaN(), math.NaN(), math.NaN(), math.NaN()
 	a, err := e.analyzer(x)
 	if err != nil {
 		return err
@@ -384,10 +452,10 @@ func (e *evaluator) eval(x []float64, dst *Sample) error {
 		return err
 	}
 	for i, pr := range pt.Ports {
-		dst.Z[i] = finiteOr(pr.Z, pr.ZDirect)
+		dst.Z[i], dst.ZErr[i] = finiteOr(pr.Z, pr.Err.Z, pr.ZDirect, pr.Err.ZDirect)
 	}
-	if pt.Gain != nil {
-		dst.G = finiteOr(pt.Gain.G, pt.Gain.GDirect)
+	if g := pt.Gain; g != nil {
+		dst.G, dst.GErr = finiteOr(g.G, g.Err.G, g.GDirect, g.Err.GDirect)
 	}
 	if e.loop != nil {
 		dst.PM, dst.FC = e.loop.margin(a)
@@ -395,16 +463,18 @@ func (e *evaluator) eval(x []float64, dst *Sample) error {
 	return nil
 }
 
-func newSample(ports int) Sample { return Sample{Z: make([]complex128, ports)} }
-
-func finiteOr(a, b complex128) complex128 {
-	if finite(a) {
-		return a
-	}
-	if finite(b) {
-		return b
-	}
-	return cmplx.NaN()
+func newSample(ports int) Sample {
+	return Sample{Z: make([]complex128, ports), ZErr: make([]float64, ports)}
 }
 
-func finite(z complex128) bool { return !cmplx.IsNaN(z) && !cmplx.IsInf(z) }
+// finiteOr returns a with its bound ea when a is finite, else b with eb,
+// else NaN.
+func finiteOr(a complex128, ea float64, b complex128, eb float64) (complex128, float64) {
+	if numeric.Finite(a) {
+		return a, ea
+	}
+	if numeric.Finite(b) {
+		return b, eb
+	}
+	return cmplx.NaN(), math.NaN()
+}

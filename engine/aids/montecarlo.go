@@ -71,7 +71,8 @@ type MonteCarlo struct {
 // NewMonteCarlo prepares a tolerance study of m with the given spreads.
 // It analyzes the nominal circuit (and, with Options.Corners and more than
 // MaxFullCorners spreads, each spread's limits one at a time to choose the
-// corners); an error there is returned.
+// corners); an error there is returned, as is a *feedback.Stopped error
+// once m's Context is done.
 func NewMonteCarlo(m *Model, spreads []Spread, opt Options) (*MonteCarlo, error) {
 	if opt.Trials == 0 {
 		opt.Trials = DefaultTrials
@@ -120,7 +121,9 @@ func nominal(m *Model) (*evaluator, Sample, feedback.MarginResult, error) {
 		grid = DefaultGrid()
 	}
 	var margins feedback.MarginResult
-	ev.loop, margins = newLoop(a, grid)
+	if ev.loop, margins, err = newLoop(m, a, grid); err != nil {
+		return nil, Sample{}, feedback.MarginResult{}, fmt.Errorf("the nominal circuit's loop: %w", err)
+	}
 	s := newSample(len(m.Ports))
 	if err := ev.eval(x, &s); err != nil {
 		return nil, Sample{}, feedback.MarginResult{}, fmt.Errorf("the nominal circuit: %w", err)

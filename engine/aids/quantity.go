@@ -3,6 +3,8 @@ package aids
 import (
 	"math"
 	"math/cmplx"
+
+	"zport/engine/numeric"
 )
 
 // QuantityKind is what a Quantity measures.
@@ -91,19 +93,8 @@ func quantities(m *Model, loop bool) []Quantity {
 }
 
 func degrees(z complex128) float64 {
-	if !finite(z) || z == 0 {
+	if !numeric.Finite(z) || z == 0 {
 		return math.NaN()
 	}
 	return cmplx.Phase(z) * 180 / math.Pi
-}
-
-// wrap180 wraps d degrees into (−180°, 180°].
-func wrap180(d float64) float64 {
-	d = math.Mod(d, 360)
-	if d > 180 {
-		d -= 360
-	} else if d <= -180 {
-		d += 360
-	}
-	return d
 }

@@ -6,6 +6,8 @@ import (
 	"math"
 	"math/cmplx"
 	"slices"
+
+	"zport/engine/numeric"
 )
 
 // DefaultStep is the step h in ln p of the sensitivity differences.
@@ -54,7 +56,10 @@ type SensitivityResult struct {
 // extrapolation R(k) = [4·D(k/2) − D(k)]/3, whose error falls as k⁴. The
 // result is R(h); the error estimate is |R(h) − R(2h)|, which bounds the
 // truncation error of R(h) about fifteen times over and also shows the
-// rounding noise of the evaluations. step is h; 0 means DefaultStep.
+// rounding noise of the evaluations; to it is added what the values' own
+// error bounds can contribute. step is h; 0 means DefaultStep. Once m's
+// Context is done it stops between parameters with a *feedback.Stopped
+// error.
 func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, error) {
 	if step == 0 {
 		step = DefaultStep
@@ -72,6 +77,10 @@ func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, er
 	if err != nil {
 		return nil, err
 	}
+	// Differences of nearby values need every value to its last digits
+	// (and all of them obtained alike), not the 12 the engine promises by
+	// default.
+	ev.tol = 0x1p-50
 	res := &SensitivityResult{Step: step}
 	type target struct {
 		kind QuantityKind
@@ -103,10 +112,24 @@ func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, er
 		}
 		return complex(s.PM, 0)
 	}
+	// noise bounds what the values' own errors can put into diff's result
+	// (in the units of its real part; times 180/π for the phase).
+	noise := func(t target, plus, minus *Sample, k float64) float64 {
+		rel := func(s *Sample) float64 {
+			switch t.kind {
+			case ZMag:
+				return s.ZErr[t.port] / cmplx.Abs(s.Z[t.port])
+			case GainMag:
+				return s.GErr / cmplx.Abs(s.G)
+			}
+			return 0
+		}
+		return (rel(plus) + rel(minus)) / (2 * k)
+	}
 	diff := func(t target, plus, minus *Sample, k float64) complex128 {
 		a, b := read(t, plus), read(t, minus)
 		if t.kind == PhaseMargin {
-			return complex(wrap180(real(a)-real(b))/(2*k), 0)
+			return complex(numeric.Wrap180(real(a)-real(b))/(2*k), 0)
 		}
 		if a == 0 || b == 0 {
 			return cmplx.NaN()
@@ -123,7 +146,10 @@ func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, er
 		plus[i], minus[i] = newSample(len(m.Ports)), newSample(len(m.Ports))
 	}
 	failed := 0
-	for _, j := range params {
+	for n, j := range params {
+		if err := m.stopped(n, len(params), "parameters"); err != nil {
+			return nil, err
+		}
 		p := m.Params[j]
 		ok := true
 		for i, k := range ks {
@@ -145,9 +171,11 @@ func Sensitivities(m *Model, params []int, step float64) (*SensitivityResult, er
 			}
 			rh := (4*d[2] - d[1]) / 3
 			r2h := (4*d[1] - d[0]) / 3
+			// What the values' error bounds can put into R(h).
+			nz := (4*noise(t, &plus[2], &minus[2], ks[2]) + noise(t, &plus[1], &minus[1], ks[1])) / 3
 			e := SensitivityEntry{Param: j, Name: p.Name, Mag: real(rh), Phase: imag(rh),
-				MagErr: math.Abs(real(rh) - real(r2h)), PhaseErr: math.Abs(imag(rh) - imag(r2h))}
-			if !ok || !finite(rh) || !finite(r2h) {
+				MagErr: math.Abs(real(rh)-real(r2h)) + nz, PhaseErr: math.Abs(imag(rh)-imag(r2h)) + nz*180/math.Pi}
+			if !ok || !numeric.Finite(rh) || !numeric.Finite(r2h) {
 				nan := math.NaN()
 				e.Mag, e.Phase, e.MagErr, e.PhaseErr = nan, nan, nan, nan
 			}

@@ -7,6 +7,7 @@ import (
 
 	"zport/engine/circuit"
 	"zport/engine/eseries"
+	"zport/engine/numeric"
 )
 
 // RatioPair is two parameters whose quotient Num/Den sets what a stage
@@ -66,14 +67,26 @@ type Compare struct {
 	// MagErr is |Snapped|/|Nominal| − 1; PhaseDiff is ∠Snapped − ∠Nominal
 	// in degrees.
 	MagErr, PhaseDiff float64
+	// MagErrBound and PhaseDiffBound bound their errors, from the two
+	// values' error bounds: a difference within its bound is zero within
+	// rounding (the snapped parts change nothing the engine can resolve).
+	MagErrBound, PhaseDiffBound float64
 }
 
-func compare(nom, snap complex128) Compare {
-	c := Compare{Nominal: nom, Snapped: snap, MagErr: math.NaN(), PhaseDiff: math.NaN()}
-	if finite(nom) && finite(snap) && nom != 0 {
-		c.MagErr = cmplx.Abs(snap)/cmplx.Abs(nom) - 1
+// compare sets snap (with error bound es) beside nom (bound en).
+func compare(nom complex128, en float64, snap complex128, es float64) Compare {
+	nan := math.NaN()
+	c := Compare{Nominal: nom, Snapped: snap, MagErr: nan, PhaseDiff: nan, MagErrBound: nan, PhaseDiffBound: nan}
+	if numeric.Finite(nom) && numeric.Finite(snap) && nom != 0 {
+		mn, ms := cmplx.Abs(nom), cmplx.Abs(snap)
+		c.MagErr = ms/mn - 1
+		// First order in the relative errors, plus the rounding of the
+		// magnitudes and their quotient.
+		rel := es/ms + en/mn
+		c.MagErrBound = ms/mn*(rel+4*0x1p-53) + 0x1p-53
 		if snap != 0 {
 			c.PhaseDiff = cmplx.Phase(snap/nom) * 180 / math.Pi
+			c.PhaseDiffBound = (rel + 4*0x1p-53) * 180 / math.Pi
 		}
 	}
 	return c
@@ -143,10 +156,10 @@ func Snap(m *Model, opt SnapOptions) (*SnapResult, error) {
 		}
 		v := SnapVariant{Name: name, Values: vals, PM: s.PM, NominalPM: nom.PM}
 		for i := range m.Ports {
-			v.Ports = append(v.Ports, compare(nom.Z[i], s.Z[i]))
+			v.Ports = append(v.Ports, compare(nom.Z[i], nom.ZErr[i], s.Z[i], s.ZErr[i]))
 		}
 		if m.Gain != nil {
-			g := compare(nom.G, s.G)
+			g := compare(nom.G, nom.GErr, s.G, s.GErr)
 			v.Gain = &g
 		}
 		return v, nil

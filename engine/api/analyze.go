@@ -1,19 +1,19 @@
 package api
 
 import (
+	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
-	"math/cmplx"
-
 	"strings"
-
-	"gonum.org/v1/gonum/floats"
 
 	"zport/engine/circuit"
 	"zport/engine/feedback"
+	"zport/engine/numeric"
 	"zport/engine/topology"
+	"zport/engine/value"
 )
 
 // MaxPoints bounds a sweep.
@@ -23,12 +23,35 @@ const MaxPoints = 5000
 const MaxCircuitBytes = 256 << 10
 
 // Problem is an error with a place: a circuit line and column, or a named
-// parameter or request field.
+// parameter or request field. Err, when set, is its cause (a
+// *feedback.SingularError naming nodes and parts), kept for errors.As; More
+// lists the further problems of circuit text that has several.
 type Problem struct {
 	Line, Column int
 	Param        string
 	Msg          string
+	Err          error
+	More         []*Problem
 }
+
+// stopProblem turns the error of a loop stopped by the analysis's context
+// into a Problem saying in which part of the analysis, and how far it got:
+// "the time budget ran out in the sweep, after 120 of 400 frequencies". It
+// is nil for any other error.
+func stopProblem(err error, what string) *Problem {
+	var st *feedback.Stopped
+	if !errors.As(err, &st) {
+		return nil
+	}
+	why := "the analysis was cancelled"
+	if errors.Is(err, context.DeadlineExceeded) {
+		why = "the time budget ran out"
+	}
+	return &Problem{Msg: fmt.Sprintf("%s in %s, after %d of %d %s", why, what, st.Done, st.Total, st.Units), Err: st.Err}
+}
+
+// Unwrap returns the cause.
+func (p *Problem) Unwrap() error { return p.Err }
 
 func (p *Problem) Error() string {
 	if p.Line > 0 {
@@ -44,13 +67,28 @@ func fieldErr(field, format string, args ...any) *Problem {
 	return &Problem{Param: field, Msg: fmt.Sprintf(format, args...)}
 }
 
-// Body converts any error from Analyze into the wire error body.
+// Body converts any error from Analyze into the wire error body: its place,
+// the nodes and parts a singular circuit is traced to, and every problem
+// of circuit text that has several.
 func Body(err error) ErrorBody {
+	var b ErrorBody
 	var p *Problem
 	if errors.As(err, &p) {
-		return ErrorBody{Line: p.Line, Column: p.Column, Param: p.Param, Message: p.Msg}
+		b = ErrorBody{Line: p.Line, Column: p.Column, Param: p.Param, Message: p.Msg}
+		if len(p.More) > 0 {
+			b.Errors = append(b.Errors, ErrorBody{Line: p.Line, Column: p.Column, Message: p.Msg})
+			for _, m := range p.More {
+				b.Errors = append(b.Errors, ErrorBody{Line: m.Line, Column: m.Column, Message: m.Msg})
+			}
+		}
+	} else {
+		b = ErrorBody{Message: err.Error()}
 	}
-	return ErrorBody{Message: err.Error()}
+	var se *feedback.SingularError
+	if errors.As(err, &se) {
+		b.Nodes, b.Parts = se.Nodes, se.Parts
+	}
+	return b
 }
 
 // sizeProblem refuses circuit text longer than MaxCircuitBytes.
@@ -70,6 +108,25 @@ type Prepared struct {
 	Values   topology.Values
 	Text     string
 	PortDefs []string
+
+	ctx context.Context // of RunContext; nil means never stopped
+
+	// Spot and Points are the analyzer's answers at the spot frequency
+	// and at each frequency of the sweep (nil without one), set by Run
+	// before the analyses run: an analysis that asked the analyzer for
+	// more in its Before (an adjoint solution) reads it here.
+	Spot   feedback.Point
+	Points []feedback.Point
+}
+
+// Context is the context the request runs under (see RunContext): an
+// analysis with a long loop checks it between units of work and, once it
+// is done, stops with an error wrapping its Err. It is never nil.
+func (p *Prepared) Context() context.Context {
+	if p.ctx == nil {
+		return context.Background()
+	}
+	return p.ctx
 }
 
 // Prepare parses and resolves a request without analyzing it.
@@ -78,7 +135,8 @@ func Prepare(req Request) (*Prepared, error) { return prepare(req, nil) }
 // PrepareParsed is Prepare for a circuit-text request whose text the
 // caller has parsed already: c must be what circuit.Parse(req.Circuit)
 // returned (InspectParsed gives it). It saves parsing the text twice when
-// a page both inspects and analyzes it on every edit.
+// a page both inspects and analyzes it on every edit; a c parsed at another
+// temperature than the request's is parsed again.
 func PrepareParsed(req Request, c *circuit.Circuit) (*Prepared, error) {
 	if c == nil || req.Topology != "" {
 		return nil, fieldErr("circuit", "PrepareParsed needs circuit text and its parsed circuit")
@@ -90,6 +148,10 @@ func prepare(req Request, parsed *circuit.Circuit) (*Prepared, error) {
 	p := &Prepared{Req: req}
 	if (req.Circuit == "") == (req.Topology == "") {
 		return nil, fieldErr("circuit", "give exactly one of \"circuit\" (circuit text) and \"topology\" (a catalog stage ID)")
+	}
+	kelvin, err := req.temperature()
+	if err != nil {
+		return nil, err
 	}
 	text := req.Circuit
 	ref := req.Reference
@@ -112,6 +174,7 @@ func prepare(req Request, parsed *circuit.Circuit) (*Prepared, error) {
 			}
 			return nil, err
 		}
+		v[topology.TemperatureKey] = kelvin
 		p.Stage, p.Values = t, v
 		text = t.Circuit(v)
 		if ref == "" {
@@ -131,18 +194,18 @@ func prepare(req Request, parsed *circuit.Circuit) (*Prepared, error) {
 	if p := sizeProblem(text); p != nil {
 		return nil, p
 	}
-	c, err := parsed, error(nil)
-	if c == nil {
-		c, err = circuit.Parse(text)
+	c := parsed
+	if c == nil || c.Temperature != kelvin {
+		c, err = circuit.ParseWith(text, circuit.Options{Temperature: kelvin})
 	}
 	if err != nil {
 		var list circuit.ErrorList
 		if errors.As(err, &list) && len(list) > 0 {
-			msg := list[0].Msg
-			if len(list) > 1 {
-				msg += fmt.Sprintf(" (and %d more problems)", len(list)-1)
+			p := &Problem{Line: list[0].Line, Column: list[0].Column, Msg: list[0].Msg}
+			for _, e := range list[1:] {
+				p.More = append(p.More, &Problem{Line: e.Line, Column: e.Column, Msg: e.Msg})
 			}
-			return nil, &Problem{Line: list[0].Line, Column: list[0].Column, Msg: msg}
+			return nil, p
 		}
 		return nil, err
 	}
@@ -192,17 +255,17 @@ func resolvePort(c *circuit.Circuit, name string) (feedback.Port, error) {
 	a, b, pair := strings.Cut(name, ",")
 	ia, ok := c.Node(strings.TrimSpace(a))
 	if !ok {
-		return feedback.Port{}, fmt.Errorf("%q is neither a port nor a node of the circuit", name)
+		return feedback.Port{}, fmt.Errorf("%s is neither a port nor a node of the circuit", value.Quote(name))
 	}
 	ib := circuit.Gnd
 	if pair {
 		ib, ok = c.Node(strings.TrimSpace(b))
 		if !ok {
-			return feedback.Port{}, fmt.Errorf("node %q is not in the circuit", strings.TrimSpace(b))
+			return feedback.Port{}, fmt.Errorf("node %s is not in the circuit", value.Quote(strings.TrimSpace(b)))
 		}
 	}
 	if ia == ib {
-		return feedback.Port{}, fmt.Errorf("port %q has both ends on one node", name)
+		return feedback.Port{}, fmt.Errorf("port %s has both ends on one node", value.Quote(name))
 	}
 	return feedback.Port{Name: name, A: ia, B: ib}, nil
 }
@@ -210,7 +273,7 @@ func resolvePort(c *circuit.Circuit, name string) (feedback.Port, error) {
 func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
 	p, ok := c.Part(g.Source)
 	if !ok {
-		return nil, fieldErr("gain.source", "no source called %q (one of: %s)", g.Source, strings.Join(c.Sources(), ", "))
+		return nil, fieldErr("gain.source", "no source called %s (one of: %s)", value.Quote(g.Source), strings.Join(c.Sources(), ", "))
 	}
 	if p.Kind != circuit.VSource && p.Kind != circuit.ISource {
 		return nil, fieldErr("gain.source", "%q is a %s; a gain is taken from a vsource or an isource", g.Source, p.Kind)
@@ -221,42 +284,50 @@ func resolveGain(c *circuit.Circuit, g GainSpec) (*feedback.Gain, error) {
 			src = i
 		}
 	}
-	a, b, pair := strings.Cut(g.Output, ",")
-	ia, ok := c.Node(strings.TrimSpace(a))
-	if !ok {
-		return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(a))
-	}
-	ib := circuit.Gnd
-	if pair {
-		if ib, ok = c.Node(strings.TrimSpace(b)); !ok {
-			return nil, fieldErr("gain.output", "no node called %q", strings.TrimSpace(b))
-		}
-	}
-	if ia == ib {
-		return nil, fieldErr("gain.output", "the output %q has both ends on one node", g.Output)
+	ia, ib, bad := nodePair(c, g.Output)
+	if bad != "" {
+		return nil, fieldErr("gain.output", "%s", bad)
 	}
 	return &feedback.Gain{Source: src, OutA: ia, OutB: ib, SourceName: g.Source, OutputName: g.Output}, nil
 }
 
 // Analyze answers a request.
-func Analyze(req Request) (*Response, error) {
+func Analyze(req Request) (*Response, error) { return AnalyzeContext(context.Background(), req) }
+
+// AnalyzeContext answers a request under ctx, which bounds its time: see
+// RunContext.
+func AnalyzeContext(ctx context.Context, req Request) (*Response, error) {
 	p, err := Prepare(req)
 	if err != nil {
 		return nil, err
 	}
-	return p.Run()
+	return p.RunContext(ctx)
 }
 
 // Run analyzes a prepared request.
-func (p *Prepared) Run() (*Response, error) {
+func (p *Prepared) Run() (*Response, error) { return p.RunContext(context.Background()) }
+
+// RunContext analyzes a prepared request under ctx. The long loops — the
+// sweep's frequencies, each analysis asked for (a tolerance study's corners
+// and trials, the sensitivities' parameters, the crossover search grid of
+// the design aids) — check ctx between units of work; once it is done the
+// analysis stops cleanly with a *Problem that says where it stopped and
+// wraps ctx.Err() (errors.Is(err, context.DeadlineExceeded) for a time
+// budget). Nothing is killed: the work in hand finishes first.
+func (p *Prepared) RunContext(ctx context.Context) (*Response, error) {
+	p.ctx = ctx
 	a := p.Analyzer
+	if err := p.beforeAnalyses(); err != nil {
+		return nil, err
+	}
 	a.Condition = true
 	pt, err := a.At(p.Req.Frequency)
 	a.Condition = false
 	if err != nil {
-		return nil, &Problem{Msg: err.Error()}
+		return nil, &Problem{Msg: err.Error(), Err: err}
 	}
-	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), Notes: []string{}, Condition: F(pt.Cond)}
+	resp := &Response{Frequency: pt.F, Reference: p.Req.Reference, ReturnRatio: C(pt.T), ReturnRatioError: bound(pt.T, pt.TErr), Notes: []string{}, Condition: F(pt.Cond),
+		Temperature: p.Circuit.Temperature, Devices: devices(p.Circuit)}
 	for i, pr := range pt.Ports {
 		resp.Ports = append(resp.Ports, portResult(a, i, pr))
 	}
@@ -264,21 +335,33 @@ func (p *Prepared) Run() (*Response, error) {
 		resp.Gain = p.gainResult(pt.Gain)
 	}
 	var notes []string
+	if a.Ref < 0 {
+		notes = append(notes, feedback.NoReferenceNote)
+	}
 	notes = append(notes, pt.Notes...)
+	p.Spot, p.Points = pt, nil
 	if s := p.Req.Sweep; s != nil {
-		grid := floats.LogSpan(make([]float64, s.Points), s.From, s.To)
-		pts, err := a.Sweep(grid)
+		grid := numeric.LogSpan(make([]float64, s.Points), s.From, s.To)
+		pts, err := a.SweepContext(ctx, grid)
 		if err != nil {
-			return nil, &Problem{Msg: err.Error()}
+			if p := stopProblem(err, "the sweep"); p != nil {
+				return nil, p
+			}
+			return nil, &Problem{Msg: err.Error(), Err: err}
 		}
+		p.Points = pts
 		resp.Sweep = sweepResult(grid, pts)
+		sweepErrors(resp.Sweep, pts)
 		resp.fillSweepNames()
-		T := make([]complex128, len(pts))
-		for i := range pts {
-			T[i] = pts[i].T
+		if a.Ref >= 0 {
+			T := make([]complex128, len(pts))
+			for i := range pts {
+				T[i] = pts[i].T
+			}
+			m := feedback.Margins(grid, T, a.ReturnRatio)
+			resp.Margins = margins(m)
+			p.loopViews(resp.Sweep, resp.Margins)
 		}
-		m := feedback.Margins(grid, T, a.ReturnRatio)
-		resp.Margins = margins(m)
 		notes = append(notes, feedback.Notes(pts)...)
 	}
 	seen := map[string]bool{}
@@ -288,7 +371,7 @@ func (p *Prepared) Run() (*Response, error) {
 			resp.Notes = append(resp.Notes, n)
 		}
 	}
-	if err := p.runAids(resp); err != nil {
+	if err := p.runAnalyses(resp); err != nil {
 		return nil, err
 	}
 	if p.Stage != nil {
@@ -302,7 +385,7 @@ func portResult(a *feedback.Analyzer, i int, pr feedback.PortResult) PortResult 
 	out := PortResult{
 		Name: port.Name, A: a.C.Nodes[port.A], B: a.C.Nodes[port.B],
 		Z0: C(pr.Z0), TShort: C(pr.TShort), TOpen: C(pr.TOpen), Z: C(pr.Z), ZDirect: C(pr.ZDirect),
-		Agreement: F(pr.Agreement),
+		Agreement: F(pr.Agreement), Errors: portErrors(pr),
 	}
 	if out.Z == nil {
 		out.Y = C(pr.Y)
@@ -313,7 +396,7 @@ func portResult(a *feedback.Analyzer, i int, pr feedback.PortResult) PortResult 
 func (p *Prepared) gainResult(g *feedback.GainResult) *GainResult {
 	spec := p.Analyzer.Gain
 	return &GainResult{Source: spec.SourceName, Output: spec.OutputName, Unit: spec.Unit(p.Circuit),
-		G0: C(g.G0), GInf: C(g.GInf), G: C(g.G), GDirect: C(g.GDirect), Agreement: F(g.Agreement)}
+		G0: C(g.G0), GInf: C(g.GInf), G: C(g.G), GDirect: C(g.GDirect), Agreement: F(g.Agreement), Errors: gainErrors(g)}
 }
 
 func sweepResult(grid []float64, pts []feedback.Point) *SweepResult {
@@ -330,7 +413,7 @@ func sweepResult(grid []float64, pts []feedback.Point) *SweepResult {
 	}
 	arena := make([]Complex, 0, n*per)
 	c := func(z complex128) *Complex {
-		if !finite(z) {
+		if !numeric.Finite(z) {
 			return nil
 		}
 		arena = append(arena, Complex{real(z), imag(z)})
@@ -357,8 +440,6 @@ func sweepResult(grid []float64, pts []feedback.Point) *SweepResult {
 	}
 	return s
 }
-
-func finite(z complex128) bool { return !cmplx.IsNaN(z) && !cmplx.IsInf(z) }
 
 // fillSweepNames copies the port names of the spot result into the sweep.
 func (r *Response) fillSweepNames() {
@@ -391,7 +472,13 @@ func margins(m feedback.MarginResult) *Margins {
 
 func (p *Prepared) echo() *TopologyEcho {
 	t := p.Stage
-	e := &TopologyEcho{ID: t.ID, Title: t.Title, Params: map[string]float64(p.Values), Circuit: p.Text,
+	params := map[string]float64{}
+	for k, x := range p.Values {
+		if k != topology.TemperatureKey { // the request's setting, echoed as the response's temperature
+			params[k] = x
+		}
+	}
+	e := &TopologyEcho{ID: t.ID, Title: t.Title, Params: params, Circuit: p.Text,
 		Reference: p.Req.Reference, Ports: p.PortDefs}
 	if g := p.Analyzer.Gain; g != nil {
 		e.Gain = &GainSpec{Source: g.SourceName, Output: g.OutputName}
@@ -419,23 +506,28 @@ func formula(f *topology.Formula) *Formula {
 }
 
 // AnalyzeJSON answers a JSON request with JSON; ok is false when the answer
-// is an ErrorResponse. It never panics: a panic inside the engine becomes an
+// is an ErrorResponse. The input is one JSON object, with nothing but white
+// space after it. It never panics: a panic inside the engine becomes an
 // error response naming it as an internal error.
 func AnalyzeJSON(in []byte) (out []byte, ok bool) {
+	return AnalyzeJSONContext(context.Background(), in)
+}
+
+// AnalyzeJSONContext is AnalyzeJSON under ctx, which bounds its time (see
+// RunContext).
+func AnalyzeJSONContext(ctx context.Context, in []byte) (out []byte, ok bool) {
 	defer func() {
 		if r := recover(); r != nil {
 			out, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: fmt.Sprintf("internal error: %v (please report this circuit)", r)}})
 			ok = false
 		}
 	}()
-	var req Request
-	dec := json.NewDecoder(strings.NewReader(string(in)))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&req); err != nil {
-		out, _ = json.Marshal(ErrorResponse{Error: ErrorBody{Message: "request is not valid JSON for this contract: " + err.Error()}})
+	req, err := decodeRequest(in)
+	if err != nil {
+		out, _ = json.Marshal(ErrorResponse{Error: Body(err)})
 		return out, false
 	}
-	resp, err := Analyze(req)
+	resp, err := AnalyzeContext(ctx, req)
 	if err != nil {
 		out, _ = json.Marshal(ErrorResponse{Error: Body(err)})
 		return out, false
@@ -446,4 +538,29 @@ func AnalyzeJSON(in []byte) (out []byte, ok bool) {
 		return out, false
 	}
 	return out, true
+}
+
+// decodeRequest reads one request: a JSON object, strictly, followed by
+// nothing but white space (a second object, or anything else, is an error
+// rather than being ignored).
+func decodeRequest(in []byte) (Request, error) {
+	var req Request
+	dec := json.NewDecoder(bytes.NewReader(in))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&req); err != nil {
+		var p *Problem
+		if errors.As(err, &p) {
+			return req, err
+		}
+		var te *json.UnmarshalTypeError
+		if errors.As(err, &te) && te.Field != "" {
+			return req, fieldErr(te.Field, "want %s, not a JSON %s", jsonType(te.Type.String()), te.Value)
+		}
+		return req, &Problem{Msg: "request is not valid JSON for this contract: " + err.Error()}
+	}
+	if off := dec.InputOffset(); len(bytes.TrimSpace(in[off:])) > 0 {
+		rest := bytes.TrimSpace(in[off:])
+		return req, &Problem{Msg: fmt.Sprintf("request is not valid JSON for this contract: unexpected %s after the request object (at byte %d); send one request at a time", value.Quote(string(rest)), len(in)-len(rest)+1)}
+	}
+	return req, nil
 }

@@ -33,6 +33,8 @@ type ParamInfo struct {
 	// (e.g. rid absent = infinite).
 	Optional bool   `json:"optional,omitempty"`
 	Group    string `json:"group,omitempty"` // "amplifier", "network", "source", "load"
+	// Decibels: a dimensionless gain that may also be typed in dB.
+	Decibels bool `json:"decibels,omitempty"`
 }
 
 // PortInfo names a port of a topology.
@@ -68,7 +70,7 @@ func Entry(t *topology.Topology) CatalogEntry {
 		Cautions: t.Cautions, Params: []ParamInfo{}, Ports: []PortInfo{}}
 	for _, p := range t.Params {
 		e.Params = append(e.Params, ParamInfo{Name: p.Name, Symbol: p.Symbol, Meaning: p.Meaning, Unit: p.Unit,
-			Default: p.Default, Min: p.Min, Max: p.Max, Optional: p.Optional, Group: p.Group})
+			Default: p.Default, Min: p.Min, Max: p.Max, Optional: p.Optional, Group: p.Group, Decibels: p.Decibels})
 	}
 	for _, p := range t.Ports {
 		e.Ports = append(e.Ports, PortInfo{Name: p.Name, Title: p.Title, A: p.A, B: p.B})

@@ -10,6 +10,13 @@
 //	 "frequency": 1000, "gain": {"source": "Vin", "output": "out"},
 //	 "sweep": {"from": 10, "to": 1e8, "points": 400}}
 //
+// The reference is optional for circuit text: without one the answer is the
+// direct solution (a passive network's), with a note. Any other key is an
+// analysis registered with Register — the design aids, and "noise" (the
+// output and input-referred noise over the sweep, its rms over a band and
+// each source's share; noise.go) — decoded strictly, answered under the
+// same key.
+//
 // The response carries every complex number as {"re": x, "im": y}, and null
 // where a value is not finite, with a note saying why; it never carries NaN
 // or Inf. Bad input gives an ErrorResponse with the line and column in the

@@ -1,7 +1,6 @@
 package api
 
 import (
-	"encoding/json"
 	"math"
 	"math/cmplx"
 )
@@ -28,11 +27,14 @@ type Request struct {
 	Gain *GainSpec `json:"gain,omitempty"`
 	// Sweep asks for the same quantities on a log-spaced grid.
 	Sweep *SweepSpec `json:"sweep,omitempty"`
+	// Temperature is the analysis temperature in kelvin (absent: 300 K,
+	// above 0 and at most 1000 K): transistors given by their bias derive
+	// VT = kT/q from it, and a noise analysis uses the same setting.
+	Temperature *float64 `json:"temperature,omitempty"`
 
-	// Design aids (see the DEVELOPERS.md contract section).
-	Tolerance      json.RawMessage `json:"tolerance,omitempty"`
-	StandardValues json.RawMessage `json:"standardValues,omitempty"`
-	Sensitivity    json.RawMessage `json:"sensitivity,omitempty"`
+	// analyses holds the options of every registered analysis asked for
+	// (the design aids, …), by key; see Analysis.
+	analyses map[string]any
 }
 
 // GainSpec names the input source and the output of a gain.
@@ -89,17 +91,26 @@ type Response struct {
 	Ports       []PortResult `json:"ports"`
 	Gain        *GainResult  `json:"gain,omitempty"`
 	Notes       []string     `json:"notes"`
-	// Condition estimates the condition number of the worst-conditioned
-	// system solved at the spot frequency: results carry a relative error
-	// of about Condition·1.1e-16 (a note says so when that passes 1e-9).
+	// ReturnRatioError bounds the error of ReturnRatio (see Errors).
+	ReturnRatioError *float64 `json:"returnRatioError"`
+	// Condition estimates the 1-norm condition number of the worst-
+	// conditioned matrix factored at the spot frequency (after row and
+	// column equilibration). It says how hard the equations are for the
+	// float64 factorization, which refinement then corrects; the error of
+	// each value is what its bound says, not Condition·1.1e-16.
 	Condition *float64      `json:"condition"`
 	Sweep     *SweepResult  `json:"sweep,omitempty"`
 	Margins   *Margins      `json:"margins,omitempty"`
 	Topology  *TopologyEcho `json:"topology,omitempty"`
+	// Temperature is the analysis temperature used, in kelvin.
+	Temperature float64 `json:"temperature"`
+	// Devices lists the circuit's transistors with the small-signal values
+	// derived for them (absent when there are none).
+	Devices []Device `json:"devices,omitempty"`
 
-	Tolerance      any `json:"tolerance,omitempty"`
-	StandardValues any `json:"standardValues,omitempty"`
-	Sensitivity    any `json:"sensitivity,omitempty"`
+	// analyses holds the answer of every registered analysis asked for,
+	// by key; see Analysis.
+	analyses map[string]any
 }
 
 // PortResult holds Blackman's terms for one port at one frequency.
@@ -123,6 +134,28 @@ type PortResult struct {
 	// Agreement is |Z − ZDirect| / max(|Z|, |ZDirect|), absolute when one
 	// is exactly zero (null when either is not finite).
 	Agreement *float64 `json:"agreement"`
+	// Errors bounds the error of each value.
+	Errors PortErrors `json:"errors"`
+}
+
+// PortErrors bounds the absolute error of each of a port's values, in the
+// value's own unit: the exact value for the circuit as given lies within
+// the bound of the one reported. Null goes with a null value, or — with a
+// value present — means no bound can be given (a note names the value).
+// A value of exactly 0 with a bound of 0 is a zero the circuit's structure
+// makes exact; a bound at least as large as its value's magnitude means
+// the value is zero within rounding ("0 (below ±bound)").
+type PortErrors struct {
+	Z0      *float64 `json:"z0"`
+	TShort  *float64 `json:"tShort"`
+	TOpen   *float64 `json:"tOpen"`
+	Z       *float64 `json:"z"`
+	ZDirect *float64 `json:"zDirect"`
+	Y       *float64 `json:"y,omitempty"`
+	// Agreement bounds what the two values' errors allow the agreement to
+	// be when the exact values agree (as Blackman's formula says they do):
+	// an agreement within it is zero within rounding.
+	Agreement *float64 `json:"agreement"`
 }
 
 // GainResult holds the asymptotic gain model's terms at one frequency.
@@ -135,14 +168,28 @@ type GainResult struct {
 	G         *Complex `json:"g"`
 	GDirect   *Complex `json:"gDirect"`
 	Agreement *float64 `json:"agreement"`
+	// Errors bounds each value's error, as PortErrors does.
+	Errors GainErrors `json:"errors"`
+}
+
+// GainErrors bounds the errors of the gain's values (see PortErrors).
+type GainErrors struct {
+	G0      *float64 `json:"g0"`
+	GInf    *float64 `json:"gInf"`
+	G       *float64 `json:"g"`
+	GDirect *float64 `json:"gDirect"`
+	// Agreement is as PortErrors.Agreement, for g and g direct.
+	Agreement *float64 `json:"agreement"`
 }
 
 // SweepResult holds the same quantities over the grid, index for index.
 type SweepResult struct {
-	Frequency   []float64   `json:"frequency"`
-	ReturnRatio []*Complex  `json:"returnRatio"`
-	Ports       []PortSweep `json:"ports"`
-	Gain        *GainSweep  `json:"gain,omitempty"`
+	Frequency   []float64  `json:"frequency"`
+	ReturnRatio []*Complex `json:"returnRatio"`
+	// ReturnRatioError bounds each point's return ratio (see PortErrors).
+	ReturnRatioError []*float64  `json:"returnRatioError"`
+	Ports            []PortSweep `json:"ports"`
+	Gain             *GainSweep  `json:"gain,omitempty"`
 }
 
 // PortSweep is one port's terms over the sweep.
@@ -153,6 +200,17 @@ type PortSweep struct {
 	TOpen   []*Complex `json:"tOpen"`
 	Z       []*Complex `json:"z"`
 	ZDirect []*Complex `json:"zDirect"`
+	// Errors bounds each value at each point (see PortErrors).
+	Errors PortSweepErrors `json:"errors"`
+}
+
+// PortSweepErrors are PortErrors point by point.
+type PortSweepErrors struct {
+	Z0      []*float64 `json:"z0"`
+	TShort  []*float64 `json:"tShort"`
+	TOpen   []*float64 `json:"tOpen"`
+	Z       []*float64 `json:"z"`
+	ZDirect []*float64 `json:"zDirect"`
 }
 
 // GainSweep is the gain's terms over the sweep.
@@ -161,6 +219,16 @@ type GainSweep struct {
 	GInf    []*Complex `json:"gInf"`
 	G       []*Complex `json:"g"`
 	GDirect []*Complex `json:"gDirect"`
+	// Errors bounds each value at each point (see PortErrors).
+	Errors GainSweepErrors `json:"errors"`
+}
+
+// GainSweepErrors are GainErrors point by point.
+type GainSweepErrors struct {
+	G0      []*float64 `json:"g0"`
+	GInf    []*float64 `json:"gInf"`
+	G       []*float64 `json:"g"`
+	GDirect []*float64 `json:"gDirect"`
 }
 
 // Margins summarizes the loop's stability from the return ratio over the
@@ -181,6 +249,14 @@ type Margins struct {
 	// "unstable"; VerdictDetail says why in a sentence.
 	Verdict       string `json:"verdict"`
 	VerdictDetail string `json:"verdictDetail"`
+
+	// The loop views, beside the sweep (see loopviews.go): OpenLoop is
+	// the reference element's own gain A(f) (an opamp's a(f), a
+	// controlled source's constant), NoiseGain is A/T, the 1/β the loop
+	// sees, and Closure their rate of closure at the governing crossover.
+	OpenLoop  []*Complex `json:"openLoop"`
+	NoiseGain []*Complex `json:"noiseGain"`
+	Closure   *Closure   `json:"closure"`
 }
 
 // Crossover is one unity-gain crossing of |T|.
@@ -252,10 +328,16 @@ type ErrorResponse struct {
 
 // ErrorBody locates a problem: Line and Column (1-based) in the circuit
 // text when it came from there, else zero; Param names the topology
-// parameter or request field at fault.
+// parameter or request field at fault. A circuit that cannot be solved
+// names the Nodes and Parts it is traced to; circuit text with several
+// problems lists every one in Errors, the first of them also in the
+// body's own fields.
 type ErrorBody struct {
-	Line    int    `json:"line"`
-	Column  int    `json:"column"`
-	Param   string `json:"param,omitempty"`
-	Message string `json:"message"`
+	Line    int         `json:"line"`
+	Column  int         `json:"column"`
+	Param   string      `json:"param,omitempty"`
+	Message string      `json:"message"`
+	Nodes   []string    `json:"nodes,omitempty"`
+	Parts   []string    `json:"parts,omitempty"`
+	Errors  []ErrorBody `json:"errors,omitempty"`
 }

@@ -3,6 +3,8 @@ package circuit
 import (
 	"errors"
 	"fmt"
+	"math"
+	"slices"
 	"sort"
 	"strings"
 	"unicode/utf8"
@@ -90,12 +92,25 @@ func isWord(s string) bool {
 // shape gives, per kind, the positional node count, the unit of a
 // positional VALUE ("" = none), and the options.
 type option struct {
-	key, unit string
+	key, unit string // unit gainUnit: a dimensionless gain, dB accepted
 	required  bool
 	positive  bool   // must be > 0
 	nonneg    bool   // must be ≥ 0
 	isSense   string // "pair" for CP,CN; "part" for a part name
+	isNode    bool   // the value is a node name
+	what      string // what the value is, for messages
+	// words, when set, are the values the option takes instead of a
+	// number, and word stores the one given.
+	words []string
+	word  func(p *Part, w string)
+	// set stores a number; nil stores it as the part's Value (or, for a
+	// transistor, among the options its model is derived from).
+	set func(p *Part, v float64)
 }
+
+// gainUnit marks an option that is a dimensionless gain: a plain number,
+// or decibels (value.ParseGain).
+const gainUnit = value.DecibelSuffix
 
 type shape struct {
 	nodes    int
@@ -108,38 +123,105 @@ var shapes = map[string]struct {
 	kind Kind
 	shape
 }{
-	"resistor":  {Resistor, shape{2, "Ω", true, nil}},
+	"resistor":  {Resistor, shape{2, "Ω", true, []option{noiseOff}}},
 	"capacitor": {Capacitor, shape{2, "F", true, nil}},
 	"inductor":  {Inductor, shape{2, "H", true, nil}},
 	"vsource":   {VSource, shape{2, "V", false, nil}},
 	"isource":   {ISource, shape{2, "A", false, nil}},
-	"vcvs":      {VCVS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "pair"}, {key: "gain", required: true}}}},
+	"vcvs":      {VCVS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "pair"}, {key: "gain", unit: gainUnit, required: true}}}},
 	"vccs":      {VCCS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "pair"}, {key: "gm", unit: "S", required: true}}}},
 	"ccvs":      {CCVS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "part"}, {key: "r", unit: "Ω", required: true}}}},
-	"cccs":      {CCCS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "part"}, {key: "gain", required: true}}}},
+	"cccs":      {CCCS, shape{2, "-", false, []option{{key: "sense", required: true, isSense: "part"}, {key: "gain", unit: gainUnit, required: true}}}},
 	"opamp": {OpAmp, shape{3, "-", false, []option{
-		{key: "a0", positive: true}, {key: "gbw", unit: "Hz", positive: true}, {key: "p2", unit: "Hz", positive: true},
-		{key: "rid", unit: "Ω", positive: true}, {key: "rcm", unit: "Ω", positive: true}, {key: "ro", unit: "Ω", nonneg: true},
+		{key: "a0", unit: gainUnit, positive: true, set: func(p *Part, v float64) { p.Amp.A0 = v }},
+		{key: "gbw", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Amp.GBW = v }},
+		{key: "p2", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Amp.P2 = v }},
+		{key: "rid", unit: "Ω", positive: true, set: func(p *Part, v float64) { p.Amp.Rid = v }},
+		{key: "rcm", unit: "Ω", positive: true, set: func(p *Part, v float64) { p.Amp.Rcm = v }},
+		{key: "ro", unit: "Ω", nonneg: true, set: func(p *Part, v float64) { p.Amp.Ro = v }},
+		{key: "cid", unit: "F", positive: true, set: func(p *Part, v float64) { p.Amp.Cid = v }},
+		{key: "ccm", unit: "F", positive: true, set: func(p *Part, v float64) { p.Amp.Ccm = v }},
+		{key: "en", unit: "V/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.V = v }},
+		{key: "fce", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.VCorner = v }},
+		{key: "in", unit: "A/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.I = v }},
+		{key: "fci", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.ICorner = v }},
+	}}},
+	"bjt": {BJT, shape{3, "-", false, []option{
+		{key: "ic", unit: "A", positive: true, what: "the collector bias current"},
+		{key: "gm", unit: "S", positive: true, what: "the transconductance"},
+		{key: "beta", positive: true, what: "the small-signal current gain"},
+		{key: "va", unit: "V", positive: true, what: "the Early voltage"},
+		{key: "ro", unit: "Ω", positive: true, what: "the output resistance"},
+		{key: "ft", unit: "Hz", positive: true, what: "the transition frequency"},
+		{key: "cmu", unit: "F", nonneg: true, what: "the base-collector capacitance"},
+		{key: "rb", unit: "Ω", nonneg: true, what: "the base resistance"},
+	}}},
+	"mos": {MOS, shape{3, "-", false, []option{
+		{key: "gm", unit: "S", positive: true, what: "the transconductance"},
+		{key: "id", unit: "A", positive: true, what: "the drain bias current"},
+		{key: "vov", unit: "V", positive: true, what: "the overdrive voltage"},
+		{key: "ro", unit: "Ω", positive: true, what: "the output resistance"},
+		{key: "lambda", positive: true, what: "the channel-length modulation, per volt"},
+		{key: "cgs", unit: "F", nonneg: true, what: "the gate-source capacitance"},
+		{key: "cgd", unit: "F", nonneg: true, what: "the gate-drain capacitance"},
+		{key: "gmb", unit: "S", nonneg: true, what: "the body transconductance"},
+		{key: "b", isNode: true},
+		{key: "gamma", positive: true, what: "the channel-noise factor"},
+	}}},
+	"vnoise": {VNoise, shape{2, "-", false, []option{
+		{key: "density", unit: "V/√Hz", required: true, nonneg: true, set: func(p *Part, v float64) { p.Noise.V = v }},
+		{key: "fc", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.VCorner = v }},
+	}}},
+	"inoise": {INoise, shape{2, "-", false, []option{
+		{key: "density", unit: "A/√Hz", nonneg: true, set: func(p *Part, v float64) { p.Noise.I = v }},
+		{key: "fc", unit: "Hz", positive: true, set: func(p *Part, v float64) { p.Noise.ICorner = v }},
+		{key: "shot", unit: "A", nonneg: true, set: func(p *Part, v float64) { p.Noise.Shot = v }},
+		{key: "thermal", unit: "S", nonneg: true, set: func(p *Part, v float64) { p.Noise.Thermal = v }},
 	}}},
 }
 
-func kindList() string {
+// noiseOff is a resistor's noise= option: on (the default) or off.
+var noiseOff = option{key: "noise", words: []string{"on", "off"}, word: func(p *Part, w string) { p.Noise.Off = w == "off" }}
+
+func lineKinds() []string {
 	names := make([]string, 0, len(shapes)+1)
 	for k := range shapes {
 		names = append(names, k)
 	}
 	names = append(names, "port")
 	sort.Strings(names)
-	return strings.Join(names, ", ")
+	return names
 }
 
-// Parse reads circuit text. On any problem it returns a nil circuit and an
-// ErrorList.
-func Parse(text string) (*Circuit, error) {
+func kindList() string { return strings.Join(lineKinds(), ", ") }
+
+// Options are the settings circuit text is read under.
+type Options struct {
+	// Temperature is the analysis temperature in kelvin, from which a
+	// transistor's bias-dependent values are derived (VT = kT/q); zero
+	// means DefaultTemperature.
+	Temperature float64
+}
+
+// Parse reads circuit text at the default temperature. On any problem it
+// returns a nil circuit and an ErrorList.
+func Parse(text string) (*Circuit, error) { return ParseWith(text, Options{}) }
+
+// ParseWith reads circuit text under o. It panics if o.Temperature is
+// negative or not finite: a caller checks a user's temperature first.
+func ParseWith(text string, o Options) (*Circuit, error) {
+	temp := o.Temperature
+	if temp == 0 {
+		temp = DefaultTemperature
+	}
+	if !(temp > 0) || math.IsInf(temp, 0) {
+		panic(fmt.Sprintf("circuit: temperature %g K", temp))
+	}
 	p := &parser{c: &Circuit{
-		Nodes: []string{"gnd"},
-		parts: map[string]int{},
-		nodes: map[string]int{"gnd": Gnd},
+		Nodes:       []string{"gnd"},
+		Temperature: temp,
+		parts:       map[string]int{},
+		nodes:       map[string]int{"gnd": Gnd},
 	}, names: map[string]int{}}
 	lines := strings.Split(text, "\n")
 	for i, line := range lines {
@@ -199,7 +281,13 @@ func (p *parser) node(line int, t token) (int, bool) {
 // val parses a value token, reporting the column of the bad character.
 func (p *parser) val(line int, t token, off int, unit, what string) (float64, bool) {
 	s := t.text[off:]
-	v, err := value.Parse(s, unit)
+	var v float64
+	var err error
+	if unit == gainUnit {
+		v, err = value.ParseGain(s)
+	} else {
+		v, err = value.Parse(s, unit)
+	}
 	if err != nil {
 		col := t.col + utf8.RuneCountInString(t.text[:off])
 		var se *value.SyntaxError
@@ -232,7 +320,11 @@ func (p *parser) line(n int, line string) {
 	}
 	sh, ok := shapes[kw.text]
 	if !ok {
-		p.errorf(n, kw.col, "unknown part kind %q (one of %s)", kw.text, kindList())
+		hint := ""
+		if near := nearest(kw.text, lineKinds()); near != "" {
+			hint = "; did you mean " + near + "?"
+		}
+		p.errorf(n, kw.col, "unknown part kind %q%s (one of %s)", kw.text, hint, kindList())
 		return
 	}
 	if len(toks) < 2 {
@@ -255,7 +347,9 @@ func (p *parser) line(n int, line string) {
 			opts = append(opts, t)
 		} else {
 			if len(opts) > 0 {
-				p.errorf(n, t.col, "unexpected %q after the options", t.text)
+				if !p.senseSpaceHint(n, sh.shape, opts[len(opts)-1], t) {
+					p.errorf(n, t.col, "unexpected %q after the options", t.text)
+				}
 				return
 			}
 			pos = append(pos, t)
@@ -313,6 +407,8 @@ func (p *parser) line(n int, line string) {
 		}
 	}
 	seen := map[string]bool{}
+	devOpts := map[string]given{}
+	bulk := Gnd
 	for _, t := range opts {
 		eq := strings.IndexByte(t.text, '=')
 		key := t.text[:eq]
@@ -323,12 +419,15 @@ func (p *parser) line(n int, line string) {
 			}
 		}
 		if o == nil {
-			var keys []string
+			var keys, bare []string
 			for _, so := range sh.options {
 				keys = append(keys, so.key+"=")
+				bare = append(bare, so.key)
 			}
 			if len(keys) == 0 {
 				p.errorf(n, t.col, "%s takes no options; unexpected %q", kw.text, t.text)
+			} else if near := nearest(key, bare); near != "" {
+				p.errorf(n, t.col, "unknown option %q for %s; did you mean %s=? (%s takes %s)", key+"=", kw.text, near, kw.text, strings.Join(keys, " "))
 			} else {
 				p.errorf(n, t.col, "unknown option %q for %s (takes %s)", key+"=", kw.text, strings.Join(keys, " "))
 			}
@@ -350,6 +449,13 @@ func (p *parser) line(n int, line string) {
 		}
 		switch o.isSense {
 		case "pair":
+			if strings.HasSuffix(rest, ",") {
+				// A node after a space would have been caught by
+				// senseSpaceHint: the second node is missing.
+				p.errorf(n, valCol+utf8.RuneCountInString(rest), "sense= takes two nodes, CP,CN: the second is missing after the comma")
+				ok = false
+				continue
+			}
 			a, b, found := strings.Cut(rest, ",")
 			if !found {
 				p.errorf(n, valCol, "sense= takes two nodes, CP,CN (found %q)", rest)
@@ -376,6 +482,24 @@ func (p *parser) line(n int, line string) {
 			}
 			p.senses = append(p.senses, pendingSense{len(p.c.Parts), token{rest, valCol}, n})
 		default:
+			if o.isNode {
+				i, good := p.node(n, token{rest, valCol})
+				if !good {
+					ok = false
+					continue
+				}
+				bulk = i
+				continue
+			}
+			if o.words != nil {
+				if !slices.Contains(o.words, rest) {
+					p.errorf(n, valCol, "option %s= takes %s, found %q", key, strings.Join(o.words, " or "), rest)
+					ok = false
+					continue
+				}
+				o.word(&part, rest)
+				continue
+			}
 			v, good := p.val(n, t, eq+1, o.unit, fmt.Sprintf("%s %s option %s=", kw.text, nameTok.text, key))
 			if !good {
 				ok = false
@@ -386,25 +510,20 @@ func (p *parser) line(n int, line string) {
 				if o.nonneg {
 					bound = "≥ 0"
 				}
-				p.errorf(n, valCol, "option %s= must be %s, found %s", key, bound, rest)
+				what := ""
+				if o.what != "" {
+					what = " (" + o.what + ")"
+				}
+				p.errorf(n, valCol, "%s %s: option %s=%s must be %s, found %s", kw.text, nameTok.text, key, what, bound, rest)
 				ok = false
 				continue
 			}
-			if sh.kind == OpAmp {
-				switch key {
-				case "a0":
-					part.Amp.A0 = v
-				case "gbw":
-					part.Amp.GBW = v
-				case "p2":
-					part.Amp.P2 = v
-				case "rid":
-					part.Amp.Rid = v
-				case "rcm":
-					part.Amp.Rcm = v
-				case "ro":
-					part.Amp.Ro = v
-				}
+			if sh.kind.Transistor() {
+				devOpts[key] = given{v, t.col}
+				continue
+			}
+			if o.set != nil {
+				o.set(&part, v)
 			} else {
 				part.Value = v
 			}
@@ -417,11 +536,68 @@ func (p *parser) line(n int, line string) {
 			ok = false
 		}
 	}
+	if sh.kind == INoise && ok {
+		ok = p.oneNoise(n, kw.text, nameTok.text, toks, opts, seen)
+	}
 	if !ok {
+		return
+	}
+	if sh.kind.Transistor() && !p.device(n, &part, devOpts, bulk) {
 		return
 	}
 	p.c.parts[part.Name] = len(p.c.Parts)
 	p.c.Parts = append(p.c.Parts, part)
+}
+
+// senseSpaceHint reports, for a part whose sense= takes a node pair, a
+// node written after sense= with a space where the comma belongs
+// (sense=b e) or after it (sense=b, e). It returns false when last and t
+// are not such a pair.
+func (p *parser) senseSpaceHint(n int, sh shape, last, t token) bool {
+	key, rest, _ := strings.Cut(last.text, "=")
+	if key != "sense" || !isWord(t.text) {
+		return false
+	}
+	pair := false
+	for _, o := range sh.options {
+		pair = pair || o.key == "sense" && o.isSense == "pair"
+	}
+	if !pair || strings.Count(rest, ",") > 1 || strings.Contains(rest, ",") && !strings.HasSuffix(rest, ",") {
+		return false
+	}
+	a := strings.TrimSuffix(rest, ",")
+	col := last.col + utf8.RuneCountInString(last.text)
+	p.errorf(n, col, "sense= takes two nodes joined by a comma, with no space: did you mean sense=%s,%s?", a, t.text)
+	return true
+}
+
+// oneNoise checks that an inoise line says what its noise is in exactly
+// one way (density=, shot= or thermal=), and gives a 1/f corner only to a
+// density.
+func (p *parser) oneNoise(n int, kw, name string, toks, opts []token, seen map[string]bool) bool {
+	var given []token
+	for _, t := range opts {
+		if k, _, _ := strings.Cut(t.text, "="); k == "density" || k == "shot" || k == "thermal" {
+			given = append(given, t)
+		}
+	}
+	switch {
+	case len(given) == 0:
+		end := toks[len(toks)-1]
+		p.errorf(n, end.col+utf8.RuneCountInString(end.text), "%s %s needs one of density=, shot= or thermal=", kw, name)
+		return false
+	case len(given) > 1:
+		p.errorf(n, given[1].col, "%s %s takes one of density=, shot= and thermal=, not two", kw, name)
+		return false
+	case seen["fc"] && !seen["density"]:
+		for _, t := range opts {
+			if strings.HasPrefix(t.text, "fc=") {
+				p.errorf(n, t.col, "fc= is the 1/f corner of a density=; shot= and thermal= are white")
+			}
+		}
+		return false
+	}
+	return true
 }
 
 func (p *parser) name(n int, t token) bool {
@@ -477,7 +653,7 @@ func (p *parser) resolveSenses() {
 		}
 		k := p.c.Parts[i].Kind
 		if !(k == Resistor || k == Capacitor || k.VoltageOutput()) {
-			p.errorf(s.line, s.tok.col, "sense=%s: the current of a %s cannot be sensed (sense a resistor, capacitor, inductor, vsource, vcvs or ccvs)", s.tok.text, k)
+			p.errorf(s.line, s.tok.col, "sense=%s: the current of a %s cannot be sensed (sense a resistor, capacitor, inductor, vsource, vcvs, ccvs or vnoise)", s.tok.text, k)
 			continue
 		}
 		p.c.Parts[s.part].Sense = i

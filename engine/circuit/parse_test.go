@@ -46,6 +46,9 @@ port     in   in   gnd
 	if got := strings.Join(c.References(), " "); got != "E1 F1 G1 H1 U1" {
 		t.Errorf("References = %q", got)
 	}
+	if u1.Noise != (Noise{}) || r1.Noise.Off {
+		t.Errorf("noise defaults: U1 %+v, R1 %+v", u1.Noise, r1.Noise)
+	}
 	u0, _ := Parse("opamp U1 a b c\nresistor R1 c b 1k\nresistor R2 b gnd 1k\nresistor R3 a gnd 1k\n")
 	if p, _ := u0.Part("U1"); p.Amp.A0 != 100e3 || p.Amp.GBW != 0 || p.Amp.Ro != 0 {
 		t.Errorf("opamp defaults %+v", p.Amp)
@@ -90,6 +93,7 @@ func TestParseErrors(t *testing.T) {
 		{"sense vccs", "vccs G1 a gnd sense=b,gnd gm=1m\ncccs F1 b gnd sense=^G1 gain=2", "cannot be sensed"},
 		{"opamp same inputs", "opamp U1 a ^a out", "both inputs"},
 		{"opamp bad a0", "opamp U1 a b out a0=^0", "must be > 0"},
+		{"opamp bad cid", "opamp U1 a b out cid=^0", "opamp U1: option cid= must be > 0"},
 		{"opamp negative ro", "opamp U1 a b out ro=^-1", "must be ≥ 0"},
 		{"opamp unknown option", "opamp U1 a b out ^gain=2", "unknown option"},
 		{"port arity", "port p1 a^", "port NAME A B"},
@@ -98,7 +102,64 @@ func TestParseErrors(t *testing.T) {
 		{"tab separated", "resistor\tR1\ta\tgnd\t1^x", "unexpected \"x\""},
 		{"comment after", "resistor R1 a gnd ^k  # 1k", "no digits"},
 		{"empty", "^# nothing here", "no parts"},
-		{"options on resistor", "resistor R1 a gnd 1k ^tol=1%", "takes no options"},
+		{"unknown option on resistor", "resistor R1 a gnd 1k ^tol=1%", "unknown option \"tol=\" for resistor (takes noise=)"},
+		{"resistor noise word", "resistor R1 a gnd 1k noise=^no", "takes on or off"},
+		{"capacitor noise", "capacitor C1 a gnd 1n ^noise=off", "takes no options"},
+		{"opamp negative en", "opamp U1 a b out en=^-1n", "must be ≥ 0"},
+		{"opamp en unit", "opamp U1 a b out en=4n^A/√Hz", "unexpected \"A\""},
+		{"opamp zero corner", "opamp U1 a b out in=1p fci=^0", "must be > 0"},
+		{"vnoise needs density", "vnoise Vn a gnd^", "needs density="},
+		{"vnoise value", "vnoise Vn a gnd ^1n", "takes 2 nodes; unexpected"},
+		{"vnoise negative", "vnoise Vn a gnd density=^-1n", "must be ≥ 0"},
+		{"inoise needs one", "inoise In gnd a fc=1k^", "needs one of density=, shot= or thermal="},
+		{"inoise two ways", "inoise In gnd a density=1p ^shot=1u", "not two"},
+		{"inoise negative shot", "inoise In gnd a shot=^-1u", "must be ≥ 0"},
+		{"inoise shot with corner", "inoise In gnd a shot=1u ^fc=10", "1/f corner of a density="},
+		{"inoise shot unit", "inoise In gnd a shot=1u^V", "unexpected \"V\""},
+		{"sense inoise", "inoise In gnd a density=1p\nresistor R1 a gnd 1k\ncccs F1 b gnd sense=^In gain=2", "cannot be sensed"},
+
+		// Hints for the usual slips.
+		{"meg lower case", "resistor R1 a gnd 1^meg", "M is mega and m is milli (SI); did you mean 1M?"},
+		{"MEG upper case", "resistor R1 a gnd 50^MEG", "did you mean 50M?"},
+		{"Meg with unit", "resistor R1 a gnd 4.7^Megohm", "did you mean 4.7M?"},
+		{"meg in an option", "opamp U1 a b out rid=10^meg", "did you mean 10M?"},
+		{"sense with a space", "vccs G1 c e sense=b^ e gm=1m", "did you mean sense=b,e?"},
+		{"sense with a space after the comma", "vcvs E1 a gnd sense=b,^ e gain=2", "did you mean sense=b,e?"},
+		{"sense missing its second node", "vcvs E1 a gnd gain=2 sense=b,^", "the second is missing"},
+		{"option typo", "bjt Q1 c b e ic=1m ^bta=200", "did you mean beta=?"},
+		{"option in the wrong case", "mos M1 d g s ^ID=1m vov=0.2", "did you mean id=?"},
+		{"opamp option typo", "opamp U1 a b out ^gbv=1M", "did you mean gbw=?"},
+		{"kind typo", "^mosfet M1 d g s gm=1m", "did you mean mos?"},
+		{"dB on a gain", "vcvs E1 a gnd sense=b,gnd gain=20^db", "unexpected \"d\""},
+		{"dB with a prefix", "opamp U1 a b out a0=1^kdB", "plain number"},
+
+		// Transistors: each error names the part and the option.
+		{"bjt zero ic", "bjt Q1 c b e ic=^0", "bjt Q1: option ic= (the collector bias current) must be > 0"},
+		{"bjt negative ic", "bjt Q1 c b e ic=^-1m", "bjt Q1: option ic="},
+		{"bjt zero beta", "bjt Q1 c b e ic=1m beta=^0", "bjt Q1: option beta= (the small-signal current gain) must be > 0"},
+		{"bjt negative beta", "bjt Q1 c b e ic=1m beta=^-50", "option beta="},
+		{"bjt zero ft", "bjt Q1 c b e ic=1m ft=^0", "bjt Q1: option ft= (the transition frequency) must be > 0"},
+		{"bjt negative ft", "bjt Q1 c b e ic=1m ft=^-1G", "option ft="},
+		{"bjt negative Cpi", "bjt Q1 c b e ic=1m cmu=10p ^ft=1G", "bjt Q1: the derived Cπ = gm/(2π·ft) − cmu = −3.84 pF is negative"},
+		{"bjt gm and ic", "bjt Q1 c b e gm=40m ^ic=1m", "bjt Q1: give gm= or ic=, not both"},
+		{"bjt ic and gm", "bjt Q1 c b e ic=1m ^gm=40m", "bjt Q1: give gm= or ic=, not both"},
+		{"bjt no bias", "bjt ^Q1 c b e beta=100", "bjt Q1 needs its collector bias current ic="},
+		{"bjt va without ic", "bjt Q1 c b e gm=40m ^va=50", "bjt Q1: va= needs ic="},
+		{"bjt va and ro", "bjt Q1 c b e ic=1m va=50 ^ro=10k", "bjt Q1: give va= or ro=, not both"},
+		{"bjt collector on emitter", "bjt ^Q1 c b c ic=1m", "collector and emitter on one node"},
+		{"bjt too few nodes", "bjt Q1 c b^ ic=1m", "takes 3 nodes"},
+		{"bjt sensed", "bjt Q1 c b gnd ic=1m\nresistor R1 c gnd 1k\ncccs F1 a gnd sense=^Q1 gain=2", "cannot be sensed"},
+		{"mos zero id", "mos M1 d g s id=^0 vov=0.2", "mos M1: option id= (the drain bias current) must be > 0"},
+		{"mos negative id", "mos M1 d g s id=^-1u vov=0.2", "mos M1: option id="},
+		{"mos gm and id", "mos M1 d g s gm=1m ^id=100u vov=0.2", "mos M1: give gm= or id= with vov=, not both"},
+		{"mos id without vov", "mos M1 d g s ^id=100u", "mos M1: id= needs vov="},
+		{"mos vov without id", "mos M1 d g s gm=1m ^vov=0.2", "mos M1: give gm= or id= with vov=, not both"},
+		{"mos lambda without id", "mos M1 d g s gm=1m ^lambda=0.1", "mos M1: lambda= needs id="},
+		{"mos lambda and ro", "mos M1 d g s id=1m vov=0.2 lambda=0.1 ^ro=10k", "give lambda= or ro=, not both"},
+		{"mos no gm", "mos ^M1 d g s ro=10k", "mos M1 needs gm="},
+		{"mos drain on source", "mos ^M1 d g d gm=1m", "drain and source on one node"},
+		{"mos bad bulk", "mos M1 d g s gm=1m gmb=0.1m b=^x.y", "node name"},
+		{"mos negative cgs", "mos M1 d g s gm=1m cgs=^-1f", "mos M1: option cgs= (the gate-source capacitance) must be ≥ 0"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -127,6 +188,48 @@ func TestParseErrors(t *testing.T) {
 	}
 }
 
+func TestParseNoise(t *testing.T) {
+	text := `# noise options and sources (invented values)
+opamp    U1 a b c en=4nV/√Hz fce=10Hz in=1fA/rtHz fci=100
+resistor RL c gnd 10k noise=off
+resistor R1 c b 1k noise=on
+vnoise   Vn a gnd density=2n fc=1k
+inoise   Ia gnd a density=3p
+inoise   Id gnd b shot=1u
+inoise   Ig gnd b thermal=1m
+`
+	c, err := Parse(text)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, want := range map[string]Noise{
+		"U1": {V: 4e-9, VCorner: 10, I: 1e-15, ICorner: 100},
+		"RL": {Off: true},
+		"R1": {},
+		"Vn": {V: 2e-9, VCorner: 1e3},
+		"Ia": {I: 3e-12},
+		"Id": {Shot: 1e-6},
+		"Ig": {Thermal: 1e-3},
+	} {
+		p, _ := c.Part(name)
+		if p.Noise != want {
+			t.Errorf("%s: noise %+v, want %+v", name, p.Noise, want)
+		}
+	}
+	if vn, _ := c.Part("Vn"); vn.Kind != VNoise || !vn.Kind.VoltageOutput() || vn.Kind.Controlled() {
+		t.Errorf("vnoise kind %v", vn.Kind)
+	}
+	if in, _ := c.Part("Ia"); in.Kind != INoise || in.Kind.String() != "inoise" {
+		t.Errorf("inoise kind %v", in.Kind)
+	}
+	if got := strings.Join(c.References(), " "); got != "U1" {
+		t.Errorf("References = %q: noise sources are not references", got)
+	}
+	if got := strings.Join(c.Sources(), " "); got != "" {
+		t.Errorf("Sources = %q: noise sources are not a gain's input", got)
+	}
+}
+
 func TestParseErrorLimit(t *testing.T) {
 	junk := strings.Repeat("bogus line\n", 10000)
 	_, err := Parse(junk)
@@ -146,6 +249,13 @@ func FuzzParse(f *testing.F) {
 		"ccvs H1 a gnd sense=R1 r=1k\nresistor R1 a gnd 1",
 		"vcvs E1 a gnd sense=b,gnd gain=2 # c",
 		"port p a\n\t\tresistor",
+		"bjt Q1 c b e ic=1m beta=120 va=60 ft=400M cmu=0.5p rb=150\nresistor RE e gnd 1k",
+		"bjt Q1 c b e gm=40m ic=1m\nbjt Q2 c b c ic=1m cmu=10p ft=1G",
+		"mos M1 d g s id=200u vov=0.25 lambda=0.08 cgs=40f cgd=5f gmb=0.3m b=sub gamma=1",
+		"mos M1 d g s gm=1m ro=50k\nmos M2 d d gnd id=1u\nmos M3 d g s ID=1m bta=2",
+		"opamp U1 a b out a0=100dB cid=2p ccm=5p\nvcvs E1 x gnd sense=a b gain=-6dB\nresistor R1 a gnd 1MEG",
+		"resistor RL out gnd 10k noise=off\nvnoise Vn a b density=4nV/√Hz fc=10\ninoise Id gnd a shot=1u",
+		"opamp U1 a b c en=4n fce=10 in=1f fci=100",
 	} {
 		f.Add(s)
 	}

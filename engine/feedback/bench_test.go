@@ -1,6 +1,7 @@
 package feedback_test
 
 import (
+	"math"
 	"testing"
 
 	"gonum.org/v1/gonum/floats"
@@ -29,7 +30,7 @@ resistor Rx o2 o3 100
 capacitor Cx o3 gnd 47p
 `
 
-func benchAnalyzer(b *testing.B, text string, ports [][3]string, gain *[3]string) *feedback.Analyzer {
+func benchAnalyzer(b testing.TB, text string, ports [][3]string, gain *[3]string) *feedback.Analyzer {
 	c, err := circuit.Parse(text)
 	if err != nil {
 		b.Fatal(err)
@@ -71,7 +72,14 @@ func BenchmarkSpot10Node2Port(b *testing.B) {
 }
 
 func benchSweep(b *testing.B, text string, ports [][3]string, gain *[3]string, n int) {
+	benchSweepTol(b, text, ports, gain, n, 0)
+}
+
+// benchSweepTol is benchSweep with Analyzer.Tol = tol: +Inf computes every
+// bound but refines nothing, the cost of the checks alone.
+func benchSweepTol(b *testing.B, text string, ports [][3]string, gain *[3]string, n int, tol float64) {
 	a := benchAnalyzer(b, text, ports, gain)
+	a.Tol = tol
 	grid := floats.LogSpan(make([]float64, n), 10, 100e6)
 	b.ReportAllocs()
 	for b.Loop() {
@@ -106,4 +114,47 @@ func BenchmarkSpot50NodeLadder(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// wellConditioned is an inverting stage with everyday values (invented):
+// source resistance, gain-setting pair with a feedback capacitor, an opamp
+// with two poles, rid and ro, and an RC load. No value it reports needs
+// refinement, so its sweep measures what the error bounds cost.
+const wellConditioned = `
+vsource Vin src gnd 1
+resistor Rs src in 600
+resistor R1 in sum 10k
+resistor R2 out sum 47k
+capacitor Cf out sum 10p
+opamp U1 gnd sum oi a0=200k gbw=10M p2=50M rid=1M ro=50
+resistor Riso oi out 10
+capacitor CL out gnd 100p
+resistor RL out gnd 10k
+`
+
+var portsWell = [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}
+
+func BenchmarkSweepWellConditioned400(b *testing.B) {
+	benchSweep(b, wellConditioned, portsWell, &[3]string{"Vin", "out"}, 400)
+}
+
+// electrometer is the electrometer-input buffer of
+// TestElectrometerInputSweep: every point's input impedance needs
+// refinement, many of them the double-double factorization.
+const electrometer = "vsource Vin src gnd 1\nresistor Rs src in 50\nopamp U1 in out out a0=1e6 gbw=10M rid=1T\nresistor RL out gnd 10k\n"
+
+func BenchmarkSweepElectrometer400(b *testing.B) {
+	benchSweep(b, electrometer, [][3]string{{"in", "src", "gnd"}}, &[3]string{"Vin", "out"}, 400)
+}
+
+func BenchmarkSweepWellConditioned400Unrefined(b *testing.B) {
+	benchSweepTol(b, wellConditioned, portsWell, &[3]string{"Vin", "out"}, 400, math.Inf(1))
+}
+
+func BenchmarkSweep10Node2Port400Unrefined(b *testing.B) {
+	benchSweepTol(b, bench10, ports10, &[3]string{"Vin", "o2"}, 400, math.Inf(1))
+}
+
+func BenchmarkSweepElectrometer400Unrefined(b *testing.B) {
+	benchSweepTol(b, electrometer, [][3]string{{"in", "src", "gnd"}}, &[3]string{"Vin", "out"}, 400, math.Inf(1))
 }

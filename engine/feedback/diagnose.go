@@ -45,7 +45,7 @@ func (a *Analyzer) explain(err error, cfg mna.Config, context string) error {
 	if s.Index >= 0 && s.Index < len(c.Nodes)-1 {
 		where = fmt.Sprintf(" (near node %s)", c.Nodes[s.Index+1])
 	}
-	return &SingularError{F: cfg.F, Msg: fmt.Sprintf("the circuit equations are singular at %s%s%s: controlled-source gains or part values cancel exactly, or impedances so unlike meet at one node (say 1 mΩ in series with 1 TΩ) that double precision cannot tell them apart; change one of them", fmtHz(cfg.F), ctx, where)}
+	return &SingularError{F: cfg.F, Msg: fmt.Sprintf("the circuit equations are singular at %s%s%s: controlled-source gains or part values cancel exactly, or impedances so unlike meet at one node (say 1 mΩ beside 10³⁰ Ω) that even double-double arithmetic, with some 32 digits, cannot tell them apart; change one of them", fmtHz(cfg.F), ctx, where)}
 }
 
 // structure checks the circuit's graph under cfg for the two ways a
@@ -68,7 +68,7 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 	uf := newUF(len(c.Nodes))
 	for i, p := range c.Parts {
 		switch p.Kind {
-		case circuit.ISource, circuit.CCCS:
+		case circuit.ISource, circuit.INoise, circuit.CCCS:
 			continue
 		case circuit.VCCS:
 			// A transconductance whose control includes its own output
@@ -94,10 +94,16 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 			if p.Amp.Rid > 0 {
 				uf.union(p.Nodes[0], p.Nodes[1])
 			}
-			if p.Amp.Rcm > 0 {
+			if p.Amp.Rcm > 0 || p.Amp.Ccm > 0 && !dc {
 				uf.union(p.Nodes[0], circuit.Gnd)
 				uf.union(p.Nodes[1], circuit.Gnd)
 			}
+			if p.Amp.Cid > 0 && !dc {
+				uf.union(p.Nodes[0], p.Nodes[1])
+			}
+			continue
+		case circuit.BJT, circuit.MOS:
+			transistorTies(uf, p, dc, i == refIdx && !cfg.RefGain)
 			continue
 		}
 		uf.union(p.Nodes[0], p.Nodes[1])
@@ -105,6 +111,7 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 	if cfg.Short != nil {
 		uf.union(cfg.Short[0], cfg.Short[1])
 	}
+	sourceTies(uf, c, refIdx, cfg.RefGain)
 	var floating []string
 	for n := 1; n < len(c.Nodes); n++ {
 		if uf.find(n) != uf.find(circuit.Gnd) {
@@ -140,7 +147,7 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 		switch {
 		case p.Kind == circuit.VSource && removed[i]:
 			continue
-		case p.Kind == circuit.VSource || p.Kind == circuit.VCVS || p.Kind == circuit.CCVS || p.Kind == circuit.Inductor && dc:
+		case p.Kind == circuit.VSource || p.Kind == circuit.VNoise || p.Kind == circuit.VCVS || p.Kind == circuit.CCVS || p.Kind == circuit.Inductor && dc:
 			edges = append(edges, edge{p.Nodes[0], p.Nodes[1], p.Name})
 		case p.Kind == circuit.OpAmp && p.Amp.Ro == 0:
 			edges = append(edges, edge{p.Nodes[2], circuit.Gnd, p.Name + " (output)"})
@@ -167,6 +174,61 @@ func (a *Analyzer) structure(cfg mna.Config, context string) *SingularError {
 		vf.union(e.a, e.b)
 	}
 	return nil
+}
+
+// transistorTies joins what a transistor's passive parts join: for a bjt,
+// B to E through rb and rπ (always present), C to E through ro, and B to C
+// through Cμ when f > 0; for a mos, D to S through ro, G to S and G to D
+// through Cgs and Cgd when f > 0, and D to S through a diode connection
+// (gate on drain) of its working transconductance. The gate itself draws
+// no current, so a gate that nothing else reaches floats.
+func transistorTies(uf uf, p circuit.Part, dc, gainOff bool) {
+	d := p.Dev
+	n0, n1, n2 := p.Nodes[0], p.Nodes[1], p.Nodes[2]
+	if d.Ro > 0 {
+		uf.union(n0, n2)
+	}
+	switch p.Kind {
+	case circuit.BJT:
+		uf.union(n1, n2)
+		if d.Cmu > 0 && !dc {
+			uf.union(n1, n0)
+		}
+	case circuit.MOS:
+		if d.Cgs > 0 && !dc {
+			uf.union(n1, n2)
+		}
+		if d.Cgd > 0 && !dc {
+			uf.union(n1, n0)
+		}
+		if n0 == n1 && !gainOff {
+			uf.union(n0, n2)
+		}
+	}
+}
+
+// sourceTies adds the ties of the mos transconductances: gm·v(G, S) fixes
+// the source's voltage once the gate's is fixed (a source follower), and
+// gmb·v(B, S) likewise through the bulk — but never the other way, since
+// the gate and the bulk draw no current. Repeated until nothing changes,
+// for chains of followers.
+func sourceTies(u uf, c *circuit.Circuit, refIdx int, refGain bool) {
+	for changed := true; changed; {
+		changed = false
+		for i, p := range c.Parts {
+			if p.Kind != circuit.MOS {
+				continue
+			}
+			s := p.Nodes[2]
+			for _, ctl := range []int{p.Nodes[1], p.Dev.Bulk} {
+				on := ctl == p.Nodes[1] && !(i == refIdx && !refGain) || ctl == p.Dev.Bulk && p.Dev.Gmb > 0
+				if on && u.find(ctl) == u.find(circuit.Gnd) && u.find(s) != u.find(circuit.Gnd) {
+					u.union(s, ctl)
+					changed = true
+				}
+			}
+		}
+	}
 }
 
 func plural(n int, one, many string) string {

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+
+	"zport/engine/numeric"
 )
 
 // Crossover is one frequency where |T| crosses 1.
@@ -57,7 +59,7 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 	ph := make([]float64, n) // unwrapped phase in degrees; NaN where T is not finite
 	prev := math.NaN()
 	for i, t := range T {
-		if !finite(t) || t == 0 {
+		if !numeric.Finite(t) || t == 0 {
 			ph[i] = math.NaN()
 			continue
 		}
@@ -65,18 +67,18 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 		if math.IsNaN(prev) {
 			ph[i] = a
 		} else {
-			ph[i] = prev + wrap180(a-prev)
+			ph[i] = prev + numeric.Wrap180(a-prev)
 		}
 		prev = ph[i]
 	}
 	// unwrapNear puts the phase of t on the branch nearest ref.
 	unwrapNear := func(t complex128, ref float64) float64 {
 		a := deg(cmplx.Phase(t))
-		return ref + wrap180(a-ref)
+		return ref + numeric.Wrap180(a-ref)
 	}
 	evalOK := func(f float64) (complex128, bool) {
 		t, err := eval(f)
-		return t, err == nil && finite(t) && t != 0
+		return t, err == nil && numeric.Finite(t) && t != 0
 	}
 	above, below := false, false
 	for i := 0; i < n; i++ {
@@ -198,9 +200,8 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 
 // Refine finds the root of g between the frequencies fa and fb, where g
 // takes the values ga and gb of opposite sign (or one of them zero), by
-// false position on ln f with the Illinois modification, to about 1e-14 in
-// ln f. When g cannot be evaluated (ok false) it returns the frequency it
-// was trying.
+// Brent's method on ln f (numeric.Root), to about 1e-14 in ln f. When g
+// cannot be evaluated (ok false) it returns the best estimate so far.
 func Refine(fa, fb, ga, gb float64, g func(f float64) (float64, bool)) float64 {
 	if ga == 0 {
 		return fa
@@ -208,35 +209,7 @@ func Refine(fa, fb, ga, gb float64, g func(f float64) (float64, bool)) float64 {
 	if gb == 0 {
 		return fb
 	}
-	xa, xb := math.Log(fa), math.Log(fb)
-	side := 0
-	for iter := 0; iter < 100; iter++ {
-		x := (xa*gb - xb*ga) / (gb - ga)
-		if !(x > math.Min(xa, xb) && x < math.Max(xa, xb)) {
-			x = (xa + xb) / 2
-		}
-		gx, ok := g(math.Exp(x))
-		if !ok {
-			return math.Exp(x)
-		}
-		if gx == 0 || math.Abs(xb-xa) < 1e-14*math.Max(1, math.Abs(x)) {
-			return math.Exp(x)
-		}
-		if (gx > 0) == (gb > 0) {
-			xb, gb = x, gx
-			if side == -1 {
-				ga /= 2
-			}
-			side = -1
-		} else {
-			xa, ga = x, gx
-			if side == 1 {
-				gb /= 2
-			}
-			side = 1
-		}
-	}
-	return math.Exp((xa + xb) / 2)
+	return math.Exp(numeric.Root(math.Log(fa), math.Log(fb), ga, gb, func(x float64) (float64, bool) { return g(math.Exp(x)) }))
 }
 
 func fmtC(z complex128) string {
@@ -249,14 +222,3 @@ func interpPhase(fa, fb, pa, pb, f float64) float64 {
 }
 
 func deg(r float64) float64 { return r * 180 / math.Pi }
-
-// wrap180 wraps d degrees into (−180, 180].
-func wrap180(d float64) float64 {
-	d = math.Mod(d, 360)
-	if d > 180 {
-		d -= 360
-	} else if d <= -180 {
-		d += 360
-	}
-	return d
-}

@@ -14,7 +14,8 @@ import (
 
 // randomCircuit writes a random connected circuit of n nodes: a spanning
 // chain of resistors (so every node has a DC path), random extra R, C and L,
-// one part of each controlled kind, and an opamp. Values are our own random
+// one part of each controlled kind, an opamp with input capacitances, and a
+// bjt and a mos, each from its bias. Values are our own random
 // choices, log-uniform over several decades.
 func randomCircuit(rng *rand.Rand, n int) string {
 	var b strings.Builder
@@ -63,7 +64,17 @@ func randomCircuit(rng *rand.Rand, n int) string {
 	if o == "gnd" {
 		o = "n1"
 	}
-	fmt.Fprintf(&b, "opamp U1 %s %s uo a0=%.6g gbw=%.6g ro=%.6g rid=%.6g\nresistor Ru uo %s %.6g\n", a, c, logu(1e3, 1e6), logu(1e5, 1e8), logu(1, 100), logu(1e5, 1e9), o, logu(100, 1e5))
+	fmt.Fprintf(&b, "opamp U1 %s %s uo a0=%.6g gbw=%.6g ro=%.6g rid=%.6g cid=%.6g ccm=%.6g\nresistor Ru uo %s %.6g\n", a, c, logu(1e3, 1e6), logu(1e5, 1e8), logu(1, 100), logu(1e5, 1e9), logu(1e-13, 1e-11), logu(1e-13, 1e-11), o, logu(100, 1e5))
+	// A bjt from its bias, with every option, and a mos from its bias
+	// with body effect on a random bulk.
+	a, c = two()
+	ic, cmu := logu(1e-5, 1e-2), logu(1e-14, 1e-12)
+	ft := ic / 0.0259 / (2 * math.Pi * cmu * logu(2, 100)) // Cπ between 1 and 99 times Cμ
+	fmt.Fprintf(&b, "bjt Q1 %s %s mid_q ic=%.6g beta=%.6g va=%.6g ft=%.6g cmu=%.6g rb=%.6g\nresistor Rq mid_q %s %.6g\n",
+		a, c, ic, logu(30, 500), logu(10, 200), ft, cmu, logu(1, 500), pick(), logu(10, 1e4))
+	a, c = two()
+	fmt.Fprintf(&b, "mos M1 %s %s mid_m id=%.6g vov=%.6g lambda=%.6g cgs=%.6g cgd=%.6g gmb=%.6g b=%s\nresistor Rm mid_m %s %.6g\n",
+		a, c, logu(1e-6, 1e-3), logu(0.05, 0.5), logu(0.01, 0.5), logu(1e-15, 1e-12), logu(1e-16, 1e-13), logu(1e-6, 1e-3), pick(), pick(), logu(10, 1e4))
 	fmt.Fprintf(&b, "vsource Vs src gnd 1\nresistor Rs src %s %.6g\n", node(1+rng.IntN(n)), logu(10, 1e4))
 	return b.String()
 }

@@ -20,5 +20,23 @@
 // with row and column equilibration and partial pivoting, in complex128;
 // gonum has no complex LU, and a small dense one is about ten times faster
 // than gonum's real-equivalent 2n×2n path at the sizes zport meets (see
-// DEVELOPERS.md for the benchmark).
+// DEVELOPERS.md for the benchmark). SolveTransTo solves with the transpose,
+// for the adjoints that error bounds need.
+//
+// Assembly in float64 loses a small conductance summed into a large
+// diagonal entry (1 TΩ beside 50 Ω keeps six digits), and with it whatever
+// depends on that conductance. Precise keeps the parts' coefficients apart,
+// in double-double (package zport/engine/dd), and computes from them what
+// the assembled matrix cannot give:
+//
+//	p := mna.NewPrecise(sys)
+//	p.At(f)
+//	act := p.Active(cfg)               // cfg's coefficients, once
+//	p.ResidualBound(w, mag, r, act, b, x) // |b − A·x| ≤ w, in one float64 pass
+//	p.Refine(&lu, act, b, xdd, w, mag, rnd, false, 0, 4, good) // refine x in double-double
+//
+// Refine runs mixed-precision iterative refinement: residuals from the
+// parts in double-double, corrections from a factorization of the
+// equations — the float64 LU, or LUDD, the same elimination in
+// double-double, where the float64 one is too far off to contract.
 package mna

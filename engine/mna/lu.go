@@ -19,12 +19,13 @@ type LU struct {
 	work   []complex128
 	nz     []int
 	pos    []int32      // nonzero positions of the assembled matrix
+	rowEnd []int        // where each row's nonzeros end in pos
 	sym    *symbolic    // the structure of the last full factorization
 	full   int          // full factorizations so far
 	orig   []complex128 // the equilibrated matrix, while a refactor is tried
 	inv    []complex128 // reciprocals of U's diagonal
-	minPiv float64
-	norm1  float64 // 1-norm of the equilibrated matrix
+	norm1  float64      // 1-norm of the equilibrated matrix
+	spare  []complex128
 }
 
 // Singular reports a failed factorization: the equilibrated matrix has a
@@ -57,6 +58,10 @@ func (lu *LU) Factor(a []complex128, n int) error {
 	// so the scaling itself is exact). One pass over the whole matrix finds
 	// the nonzeros and the row maxima; the rest runs over the nonzeros only.
 	pos := lu.pos[:0]
+	if cap(lu.rowEnd) < n {
+		lu.rowEnd = make([]int, n)
+	}
+	rowEnd := lu.rowEnd[:n] // pos[rowEnd[i-1]:rowEnd[i]] are row i's
 	for i := 0; i < n; i++ {
 		m := 0.0
 		row := a[i*n : i*n+n]
@@ -68,6 +73,7 @@ func (lu *LU) Factor(a []complex128, n int) error {
 				}
 			}
 		}
+		rowEnd[i] = len(pos)
 		if m == 0 {
 			lu.pos = pos
 			return &Singular{Index: i, Kind: "row"}
@@ -80,13 +86,18 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		cmax[j] = 0
 		csum[j] = 0
 	}
-	for _, q := range pos {
-		i, j := int(q)/n, int(q)%n
-		x := abs1(a[q]) * lu.rs[i]
-		csum[j] += complex(x, 0)
-		if x > cmax[j] {
-			cmax[j] = x
+	start := 0
+	for i, end := range rowEnd {
+		ri, base := lu.rs[i], i*n
+		for _, q := range pos[start:end] {
+			j := int(q) - base
+			x := abs1(a[q]) * ri
+			csum[j] += complex(x, 0)
+			if x > cmax[j] {
+				cmax[j] = x
+			}
 		}
+		start = end
 	}
 	lu.norm1 = 0
 	for j := 0; j < n; j++ {
@@ -97,10 +108,15 @@ func (lu *LU) Factor(a []complex128, n int) error {
 		lu.norm1 = math.Max(lu.norm1, real(csum[j])*s) // the 1-norm, for Cond
 		lu.cs[j] = s
 	}
-	for _, q := range pos {
-		sc := lu.rs[int(q)/n] * lu.cs[int(q)%n]
-		v := a[q]
-		a[q] = complex(real(v)*sc, imag(v)*sc)
+	start = 0
+	for i, end := range rowEnd {
+		ri, base := lu.rs[i], i*n
+		for _, q := range pos[start:end] {
+			sc := ri * lu.cs[int(q)-base]
+			v := a[q]
+			a[q] = complex(real(v)*sc, imag(v)*sc)
+		}
+		start = end
 	}
 	if sym := lu.sym; sym != nil && sym.n == n && sym.covers(pos) {
 		// The same structure as last time: eliminate along the recorded
@@ -127,7 +143,6 @@ func (lu *LU) Factor(a []complex128, n int) error {
 
 // eliminate factors the equilibrated a with partial pivoting.
 func (lu *LU) eliminate(a []complex128, n int) error {
-	lu.minPiv = math.Inf(1)
 	for k := 0; k < n; k++ {
 		p, pm := k, abs1(a[k*n+k])
 		for i := k + 1; i < n; i++ {
@@ -141,7 +156,6 @@ func (lu *LU) eliminate(a []complex128, n int) error {
 		if pm <= PivotTolerance {
 			return &Singular{Index: k, Kind: "pivot"}
 		}
-		lu.minPiv = math.Min(lu.minPiv, pm)
 		if p != k {
 			rk, rp := a[k*n:k*n+n], a[p*n:p*n+n]
 			for j := range rk {
@@ -183,7 +197,6 @@ func (lu *LU) eliminate(a []complex128, n int) error {
 // before: only the search for nonzeros is saved, never a pivoting decision.
 func (lu *LU) refactor(a []complex128, n int) bool {
 	sym := lu.sym
-	lu.minPiv = math.Inf(1)
 	for k := 0; k < n; k++ {
 		p, pm := k, abs1(a[k*n+k])
 		for i := k + 1; i < n; i++ {
@@ -197,7 +210,6 @@ func (lu *LU) refactor(a []complex128, n int) bool {
 			return false
 		}
 		lu.piv[k] = p
-		lu.minPiv = math.Min(lu.minPiv, pm)
 		if p != k {
 			rk, rp := a[k*n:k*n+n], a[p*n:p*n+n]
 			for j := range rk {
@@ -289,11 +301,6 @@ func symbolicOf(n int, pos []int32, piv []int) *symbolic {
 	return s
 }
 
-// MinPivot is the smallest pivot magnitude of the last successful Factor,
-// relative to the equilibrated matrix: a rough measure of how close the
-// system came to singular.
-func (lu *LU) MinPivot() float64 { return lu.minPiv }
-
 // SolveTo solves A·x = b into dst (len n), leaving b unchanged. dst and b
 // may be the same slice.
 func (lu *LU) SolveTo(dst, b []complex128) []complex128 {
@@ -368,6 +375,81 @@ func (lu *LU) denseSolve(y []complex128) {
 		}
 		y[i] = s * lu.inv[i]
 	}
+}
+
+// SolveTransTo solves Aᵀ·x = b (the transpose, not the conjugate
+// transpose) into dst (len n), leaving b unchanged; dst and b may be the
+// same slice. It is the adjoint solve that error bounds of read-outs ℓᵀx
+// need: with Aᵀ·y = ℓ, the error of ℓᵀx is yᵀ(A·x_exact − A·x).
+func (lu *LU) SolveTransTo(dst, b []complex128) []complex128 {
+	// A = Dr⁻¹·Pᵀ·L·U·Dc⁻¹, so Uᵀ·Lᵀ·(P·Dr⁻¹·x) = Dc·b.
+	n, a, v := lu.n, lu.a, lu.work
+	for i := 0; i < n; i++ {
+		v[i] = b[i] * complex(lu.cs[i], 0)
+	}
+	sym := lu.sym
+	// Uᵀ is lower triangular: finish each unknown, then push it into the
+	// later rows along row i of U.
+	for i := 0; i < n; i++ {
+		w := v[i] * lu.inv[i]
+		v[i] = w
+		if w == 0 {
+			continue
+		}
+		row := a[i*n : i*n+n]
+		if sym != nil {
+			for _, j := range sym.ucols[i] {
+				if u := row[j]; u != 0 {
+					v[j] -= u * w
+				}
+			}
+			continue
+		}
+		for j := i + 1; j < n; j++ {
+			if u := row[j]; u != 0 {
+				v[j] -= u * w
+			}
+		}
+	}
+	// Lᵀ is unit upper triangular: from the last unknown up, pushing along
+	// row i of L.
+	for i := n - 1; i > 0; i-- {
+		z := v[i]
+		if z == 0 {
+			continue
+		}
+		row := a[i*n : i*n+n]
+		if sym != nil {
+			for _, j := range sym.lcols[i] {
+				if l := row[j]; l != 0 {
+					v[j] -= l * z
+				}
+			}
+			continue
+		}
+		for j := 0; j < i; j++ {
+			if l := row[j]; l != 0 {
+				v[j] -= l * z
+			}
+		}
+	}
+	for k := n - 1; k >= 0; k-- {
+		if p := lu.piv[k]; p != k {
+			v[k], v[p] = v[p], v[k]
+		}
+	}
+	for i := 0; i < n; i++ {
+		dst[i] = v[i] * complex(lu.rs[i], 0)
+	}
+	return dst
+}
+
+// work2 is scratch of length n for callers of SolveTo within the package.
+func (lu *LU) work2(n int) []complex128 {
+	if cap(lu.spare) < n {
+		lu.spare = make([]complex128, n)
+	}
+	return lu.spare[:n]
 }
 
 // recip is 1/z without the care Go's complex division takes for values
@@ -482,8 +564,14 @@ func abs1(v complex128) float64 {
 	return r + i
 }
 
-// pow2inv returns the power of two nearest 1/m.
+// pow2inv returns the power of two 2^(1−e) for 2^(e−1) ≤ m < 2^e, so
+// that m·pow2inv(m) lies in [1, 2).
 func pow2inv(m float64) float64 {
+	// For a normal m with biased exponent E, e = E − 1022 and the result's
+	// biased exponent is 2046 − E; outside that range, the general way.
+	if E := int(math.Float64bits(m)>>52) & 0x7ff; E > 0 && E < 2046 {
+		return math.Float64frombits(uint64(2046-E) << 52)
+	}
 	_, e := math.Frexp(m)
 	return math.Ldexp(1, -e+1)
 }

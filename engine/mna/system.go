@@ -4,11 +4,13 @@ import (
 	"math"
 
 	"zport/engine/circuit"
+	"zport/engine/dd"
 )
 
 type entry struct {
 	i, j int
 	v    float64
+	lo   float64 // v + lo is the coefficient in double-double (a conductance 1/R)
 }
 
 // Control is one controlled source written as k(s)·r·c(s)ᵀ.
@@ -19,10 +21,12 @@ type Control struct {
 	R, C0, C1 []Term
 }
 
-// Term is one coefficient of a sparse vector.
+// Term is one coefficient of a sparse vector: V, or V + Lo in
+// double-double where V is rounded (a sensed resistor's 1/R).
 type Term struct {
-	I int
-	V float64
+	I  int
+	V  float64
+	Lo float64
 }
 
 // System holds a circuit's equations in a form quick to assemble at any
@@ -36,14 +40,19 @@ type System struct {
 	Nodes int
 	// Branch maps a part index to its branch-current unknown, or −1.
 	Branch []int
-	// Internal names the internal nodes (an opamp's node behind ro), indexed
-	// from len(C.Nodes)-1.
+	// Internal names the internal nodes (an opamp's node behind ro, a bjt's
+	// base behind rb), indexed from len(C.Nodes)-1.
 	Internal []string
 
+	inner    []int // part index → its internal node's unknown, or −1
 	g, c     []entry
 	Controls []Control
 	ctrlOf   []int // part index → index in Controls, or −1
 }
+
+// InternalVar returns the unknown of part i's internal node (an opamp's
+// node behind ro, a bjt's base behind rb), or −1 when it has none.
+func (s *System) InternalVar(i int) int { return s.inner[i] }
 
 // NodeVar returns the unknown of circuit node n, or −1 for gnd.
 func NodeVar(n int) int { return n - 1 }
@@ -58,11 +67,17 @@ func New(c *circuit.Circuit) *System {
 	}
 	// Internal nodes first, so node unknowns come before branch currents.
 	inner := make([]int, len(c.Parts))
+	s.inner = inner
 	for i, p := range c.Parts {
 		inner[i] = -1
 		if p.Kind == circuit.OpAmp && p.Amp.Ro > 0 {
 			inner[i] = nodes
 			s.Internal = append(s.Internal, p.Name+".o")
+			nodes++
+		}
+		if p.Kind == circuit.BJT && p.Dev.Rb > 0 {
+			inner[i] = nodes
+			s.Internal = append(s.Internal, p.Name+".b")
 			nodes++
 		}
 	}
@@ -83,22 +98,23 @@ func New(c *circuit.Circuit) *System {
 		br := s.Branch[i]
 		switch p.Kind {
 		case circuit.Resistor:
-			s.conductance(&s.g, a, b, 1/p.Value)
+			s.conductance(&s.g, a, b, dd.Recip(p.Value))
 		case circuit.Capacitor:
-			s.conductance(&s.c, a, b, p.Value)
+			s.conductance(&s.c, a, b, dd.F(p.Value))
 		case circuit.Inductor:
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
 			s.add(&s.c, br, br, -p.Value)
-		case circuit.VSource:
+		case circuit.VSource, circuit.VNoise:
+			// A noise source is 0 V here; package noise drives its branch.
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
-		case circuit.ISource:
+		case circuit.ISource, circuit.INoise:
 			// Only in the right-hand side.
 		case circuit.VCVS, circuit.CCVS:
 			s.branchKCL(a, b, br)
 			s.branchV(a, b, br)
-			ctl := Control{Part: i, R: []Term{{br, 1}}}
+			ctl := Control{Part: i, R: []Term{{I: br, V: 1}}}
 			s.control(&ctl, p)
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
@@ -107,10 +123,10 @@ func New(c *circuit.Circuit) *System {
 			// count currents leaving a node, so the injection is −1 at TO.
 			var r []Term
 			if b >= 0 {
-				r = append(r, Term{b, 1})
+				r = append(r, Term{I: b, V: 1})
 			}
 			if a >= 0 {
-				r = append(r, Term{a, -1})
+				r = append(r, Term{I: a, V: -1})
 			}
 			ctl := Control{Part: i, R: r}
 			s.control(&ctl, p)
@@ -119,21 +135,78 @@ func New(c *circuit.Circuit) *System {
 		case circuit.OpAmp:
 			plus, minus, out := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1]), NodeVar(p.Nodes[2])
 			if p.Amp.Rid > 0 {
-				s.conductance(&s.g, plus, minus, 1/p.Amp.Rid)
+				s.conductance(&s.g, plus, minus, dd.Recip(p.Amp.Rid))
 			}
 			if p.Amp.Rcm > 0 {
-				s.conductance(&s.g, plus, -1, 1/p.Amp.Rcm)
-				s.conductance(&s.g, minus, -1, 1/p.Amp.Rcm)
+				s.conductance(&s.g, plus, -1, dd.Recip(p.Amp.Rcm))
+				s.conductance(&s.g, minus, -1, dd.Recip(p.Amp.Rcm))
 			}
 			src := out
 			if inner[i] >= 0 {
 				src = inner[i]
-				s.conductance(&s.g, src, out, 1/p.Amp.Ro)
+				s.conductance(&s.g, src, out, dd.Recip(p.Amp.Ro))
 			}
 			s.branchKCL(src, -1, br)
 			s.branchV(src, -1, br)
-			ctl := Control{Part: i, R: []Term{{br, 1}}}
-			ctl.C0 = pair(plus, minus, 1)
+			ctl := Control{Part: i, R: []Term{{I: br, V: 1}}}
+			ctl.C0 = pair(plus, minus, dd.F(1))
+			s.ctrlOf[i] = len(s.Controls)
+			s.Controls = append(s.Controls, ctl)
+			if p.Amp.Cid > 0 {
+				s.conductance(&s.c, plus, minus, dd.F(p.Amp.Cid))
+			}
+			if p.Amp.Ccm > 0 {
+				s.conductance(&s.c, plus, -1, dd.F(p.Amp.Ccm))
+				s.conductance(&s.c, minus, -1, dd.F(p.Amp.Ccm))
+			}
+		case circuit.BJT:
+			// Hybrid-π: gm·v(B′, E) drawn from C into E, the reference's
+			// rank-one term; rπ, Cπ across B′–E, Cμ across B′–C, ro across
+			// C–E, rb from B to the internal base B′ when present.
+			c, b, e := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1]), NodeVar(p.Nodes[2])
+			d := p.Dev
+			bi := b
+			if inner[i] >= 0 {
+				bi = inner[i]
+				s.conductance(&s.g, b, bi, dd.Recip(d.Rb))
+			}
+			s.conductance(&s.g, bi, e, dd.Recip(d.Rpi))
+			if d.Ro > 0 {
+				s.conductance(&s.g, c, e, dd.Recip(d.Ro))
+			}
+			if d.Cpi > 0 {
+				s.conductance(&s.c, bi, e, dd.F(d.Cpi))
+			}
+			if d.Cmu > 0 {
+				s.conductance(&s.c, bi, c, dd.F(d.Cmu))
+			}
+			ctl := Control{Part: i, R: pair(e, c, dd.F(1)), C0: pair(bi, e, dd.F(1))}
+			s.ctrlOf[i] = len(s.Controls)
+			s.Controls = append(s.Controls, ctl)
+		case circuit.MOS:
+			// gm·v(G, S) drawn from D into S, the reference's rank-one
+			// term; ro across D–S, Cgs, Cgd; the body transconductance
+			// gmb·v(B, S) is never a reference, so it is stamped as fixed
+			// entries of G (rows count currents leaving a node).
+			dn, g, sn := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1]), NodeVar(p.Nodes[2])
+			d := p.Dev
+			if d.Ro > 0 {
+				s.conductance(&s.g, dn, sn, dd.Recip(d.Ro))
+			}
+			if d.Cgs > 0 {
+				s.conductance(&s.c, g, sn, dd.F(d.Cgs))
+			}
+			if d.Cgd > 0 {
+				s.conductance(&s.c, g, dn, dd.F(d.Cgd))
+			}
+			if d.Gmb > 0 {
+				bulk := NodeVar(d.Bulk)
+				s.add(&s.g, dn, bulk, d.Gmb)
+				s.add(&s.g, dn, sn, -d.Gmb)
+				s.add(&s.g, sn, bulk, -d.Gmb)
+				s.add(&s.g, sn, sn, d.Gmb)
+			}
+			ctl := Control{Part: i, R: pair(sn, dn, dd.F(1)), C0: pair(g, sn, dd.F(1))}
 			s.ctrlOf[i] = len(s.Controls)
 			s.Controls = append(s.Controls, ctl)
 		}
@@ -144,13 +217,13 @@ func New(c *circuit.Circuit) *System {
 // ControlOf returns the index in Controls of part i's gain term, or −1.
 func (s *System) ControlOf(part int) int { return s.ctrlOf[part] }
 
-func pair(a, b int, v float64) []Term {
+func pair(a, b int, v dd.Float) []Term {
 	var t []Term
 	if a >= 0 {
-		t = append(t, Term{a, v})
+		t = append(t, Term{a, v.Hi, v.Lo})
 	}
 	if b >= 0 {
-		t = append(t, Term{b, -v})
+		t = append(t, Term{b, -v.Hi, -v.Lo})
 	}
 	return t
 }
@@ -158,7 +231,7 @@ func pair(a, b int, v float64) []Term {
 func (s *System) control(ctl *Control, p circuit.Part) {
 	switch p.Kind {
 	case circuit.VCVS, circuit.VCCS:
-		ctl.C0 = pair(NodeVar(p.Ctrl[0]), NodeVar(p.Ctrl[1]), 1)
+		ctl.C0 = pair(NodeVar(p.Ctrl[0]), NodeVar(p.Ctrl[1]), dd.F(1))
 	case circuit.CCVS, circuit.CCCS:
 		ctl.C0, ctl.C1 = s.Current(p.Sense)
 	}
@@ -171,24 +244,26 @@ func (s *System) Current(i int) (c0, c1 []Term) {
 	a, b := NodeVar(p.Nodes[0]), NodeVar(p.Nodes[1])
 	switch p.Kind {
 	case circuit.Resistor:
-		return pair(a, b, 1/p.Value), nil
+		return pair(a, b, dd.Recip(p.Value)), nil
 	case circuit.Capacitor:
-		return nil, pair(a, b, p.Value)
+		return nil, pair(a, b, dd.F(p.Value))
 	}
-	return []Term{{s.Branch[i], 1}}, nil
+	return []Term{{I: s.Branch[i], V: 1}}, nil
 }
 
-func (s *System) add(list *[]entry, i, j int, v float64) {
+func (s *System) add(list *[]entry, i, j int, v float64) { s.addDD(list, i, j, dd.F(v)) }
+
+func (s *System) addDD(list *[]entry, i, j int, v dd.Float) {
 	if i >= 0 && j >= 0 {
-		*list = append(*list, entry{i, j, v})
+		*list = append(*list, entry{i, j, v.Hi, v.Lo})
 	}
 }
 
-func (s *System) conductance(list *[]entry, a, b int, g float64) {
-	s.add(list, a, a, g)
-	s.add(list, b, b, g)
-	s.add(list, a, b, -g)
-	s.add(list, b, a, -g)
+func (s *System) conductance(list *[]entry, a, b int, g dd.Float) {
+	s.addDD(list, a, a, g)
+	s.addDD(list, b, b, g)
+	s.addDD(list, a, b, g.Neg())
+	s.addDD(list, b, a, g.Neg())
 }
 
 // branchKCL adds the branch current leaving node a and entering node b.
@@ -285,6 +360,14 @@ func (s *System) Assemble(dst []complex128, cfg Config) []complex128 {
 	return dst
 }
 
+// Scatter writes t into the dense vector dst (after clearing it).
+func Scatter(dst []complex128, t []Term) {
+	clear(dst)
+	for _, e := range t {
+		dst[e.I] += complex(e.V, 0)
+	}
+}
+
 // Dot returns tᵀx for a sparse t.
 func Dot(t []Term, x []complex128) complex128 {
 	var s complex128
@@ -292,22 +375,4 @@ func Dot(t []Term, x []complex128) complex128 {
 		s += complex(e.V, 0) * x[e.I]
 	}
 	return s
-}
-
-// ControlSignal returns the control signal c(s)ᵀx of Controls[ci].
-func (s *System) ControlSignal(ci int, f float64, x []complex128) complex128 {
-	ctl := s.Controls[ci]
-	v := Dot(ctl.C0, x)
-	if len(ctl.C1) > 0 {
-		v += complex(0, 2*math.Pi*f) * Dot(ctl.C1, x)
-	}
-	return v
-}
-
-// Scatter writes t into the dense vector dst (after clearing it).
-func Scatter(dst []complex128, t []Term) {
-	clear(dst)
-	for _, e := range t {
-		dst[e.I] += complex(e.V, 0)
-	}
 }

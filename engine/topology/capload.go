@@ -1,7 +1,9 @@
 package topology
 
 import (
+	"fmt"
 	"math"
+
 	"zport/engine/value"
 )
 
@@ -29,13 +31,13 @@ var capload = &Topology{
 		"(ro + Riso)·CL).",
 	Params: append([]Param{
 		opmRs(""),
-		{Name: "Rf", Symbol: "R_f", Meaning: "feedback resistor (from the pin without Cf, from the load with Cf)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e10, Group: "network"},
-		{Name: "R1", Symbol: "R₁", Meaning: "gain resistor, − input to gnd (empty: follower)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
-		{Name: "Cf", Symbol: "C_f", Meaning: "in-loop feedback capacitor, pin to − input (empty: feedback at the pin through Rf)", Unit: "F", Default: "1n", Min: 1e-15, Max: 1e-2, Optional: true, Group: "network"},
-		{Name: "Riso", Symbol: "R_iso", Meaning: "isolation resistor, pin to load (empty: none)", Unit: "Ω", Default: "50", Min: 1e-3, Max: 1e6, Optional: true, Group: "network"},
-	}, append(opmAmpParams("200k", "5M", "30M", "1M", "1G", "50"), []Param{
-		{Name: "RL", Symbol: "R_L", Meaning: "load resistance (empty: none)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
-		{Name: "CL", Symbol: "C_L", Meaning: "load capacitance", Unit: "F", Default: "10n", Min: 1e-15, Max: 1, Group: "load"},
+		{Name: "Rf", Meaning: "feedback resistor (from the pin without Cf, from the load with Cf)", Default: "10k", Min: 1e-3, Max: 1e10, Group: "network"},
+		{Name: "R1", Meaning: "gain resistor, − input to gnd (empty: follower)", Default: "10k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
+		{Name: "Cf", Meaning: "in-loop feedback capacitor, pin to − input (empty: feedback at the pin through Rf)", Default: "1n", Min: 1e-15, Max: 1e-2, Optional: true, Group: "network"},
+		{Name: "Riso", Note: ", pin to load (empty: none)", Default: "50", Min: 1e-3, Max: 1e6, Optional: true, Group: "network"},
+	}, append(append(opmAmpParams("200k", "5M", "30M", "1M", "1G", "50"), opmNoiseParams("7n", "10", "1p", "200")...), []Param{
+		{Name: "RL", Note: " (empty: none)", Default: "10k", Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
+		{Name: "CL", Default: "10n", Min: 1e-15, Max: 1, Group: "load"},
 	}...)...),
 	Reference: "U1",
 	Ports: []PortDef{
@@ -103,7 +105,7 @@ func opmBridge(y1, y2, y3, y4, y5 complex128) (yin, tp, tq complex128) {
 // input sees R1 and rcm to gnd and rid to the + input, tied to gnd through
 // ypg; vd = −k·Vfb.
 func caploadForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	a := m.gain(f)
 	s := opmS(f)
 	yl := opmYL(v, s)
@@ -182,7 +184,7 @@ func caploadForms(v Values, f float64) Forms {
 		outZ0 = "Z₀ = ZL ∥ (bridged T: Riso to the pin, ro from the pin to gnd, ya pin to − input, yb load to − input, Yn − input to gnd)"
 	}
 	return Forms{
-		T:    opmF(T, tText, opmSrcLoop),
+		T:    opmF(T, tText+opmCapNote, opmSrcLoop),
 		Gain: opmGain(gInf, g0, T, "G∞ = rcm/(Rs + rcm)·Vout/Vfb|vd=0 = rcm/(Rs + rcm)·[(Yn₁ + ya + yb) + Riso·ya·yb]/[ya(1 + Riso(YL + yb)) + yb], Yn₁ = 1/R1 + 1/rcm", "G₀ = Zp/(Rs + Zp)·Zfb/(rid + Zfb)·(Vout/Vfb with the gain at zero)"),
 		Ports: []PortForms{
 			{Name: "out",
@@ -227,5 +229,44 @@ func caploadExtras(v Values) []Extra {
 		x = append(x, opmMarginExtras(caploadCircuit(opmWith(v, nil, "Riso")), "without Riso", "Riso removed (the pin drives CL directly)", opmSrcEngine)...)
 	}
 	x = append(x, opmMarginExtras(caploadCircuit(opmWith(v, nil, "CL")), "without CL", "the stage unloaded by CL, for comparison", opmSrcEngine)...)
+	with := ""
+	if v.Has("Cf") {
+		with = " (with Cf as given)"
+	}
+	for _, pm := range []float64{45, 60} {
+		guess := firstRoot(1e-3, 1e6, 37, func(r float64) float64 { pm0, _ := caploadSimple(v, r); return pm0 - pm })
+		_, fc := caploadSimple(v, guess)
+		x = append(x, Extra{Name: fmt.Sprintf("Riso for %g°", pm), Value: opmSolvePM("capload", v, "Riso", pm, guess, fc), Unit: "Ω",
+			Note:   fmt.Sprintf("the smallest Riso at which this stage's full model%s has exactly %g° of phase margin; none shown when no Riso within 3 times the simple loop's (%s) gives it", with, pm, value.Format(guess, "Ω", 4)),
+			Source: opmSrcSolve + "; the estimate from T = a·β·(1 + s·Riso·CL)/(1 + s(ro + Riso)CL), β = R1/(R1 + Rf) (1 without R1), with RL, rid, rcm, Cf and the feedback network's loading neglected [derived here]"})
+	}
 	return x
+}
+
+// caploadSimple is the phase margin and crossover (Hz) of the isolated
+// load's simple loop T = a(s)·β·(1 + s·Riso·CL)/(1 + s(ro + Riso)CL)
+// [derived here: the pin sees ro against Riso + 1/(sCL)], the estimate the
+// solver starts from.
+func caploadSimple(v Values, riso float64) (pm, fc float64) {
+	beta := 1.0
+	if v.Has("R1") {
+		beta = v["R1"] / (v["R1"] + v["Rf"])
+	}
+	m := opmAmpAt(v, 0)
+	tz, tp := riso*v["CL"], (v["ro"]+riso)*v["CL"]
+	T := func(w float64) complex128 {
+		s := complex(0, w)
+		return m.gain(w/(2*math.Pi)) * complex(beta, 0) * (1 + s*complex(tz, 0)) / (1 + s*complex(tp, 0))
+	}
+	phase := func(w float64) float64 {
+		p := math.Atan(w*tz) - math.Atan(w*tp)
+		if a := m.amp; a.GBW > 0 {
+			p -= math.Atan(w / (2 * math.Pi * a.GBW / a.A0))
+		}
+		if a := m.amp; a.P2 > 0 {
+			p -= math.Atan(w / (2 * math.Pi * a.P2))
+		}
+		return p * 180 / math.Pi
+	}
+	return idealPM(T, phase)
 }

@@ -14,7 +14,7 @@ import (
 // found on the engine's model of the variant, on every recompute of a page.
 // They are bracketed root searches, not sweeps: a walk up in ln f, a decade
 // a step wherever the response turns slowly, brackets each crossing, and
-// Illinois false position on ln f (feedback.Refine) closes it: 20 to 30
+// Brent's method on ln f (feedback.Refine) closes it: 20 to 30
 // samples and 30 to 80 evaluations of the circuit in all for the catalog's
 // defaults, where a sweep took 701 samples, and the same numbers
 // (TestMarginExtrasMatchDenseSweep).
@@ -85,34 +85,32 @@ func walk(h func(f float64) (complex128, bool), visit func(f float64, v complex1
 	}
 }
 
-// opmLoopAnalyzer parses circuit text (reference U1) and returns its
-// analyzer, with the gain from the source named src to the node out when
-// src is not empty.
-func opmLoopAnalyzer(text, src, out string) (*feedback.Analyzer, error) {
-	c, err := circuit.Parse(text)
+// loopAnalyzer parses circuit text at kelvin and returns its analyzer for
+// the reference ref, with the gain from the source named src to the node
+// out when src is not empty.
+func loopAnalyzer(text, ref string, kelvin float64, src, out string) (*feedback.Analyzer, error) {
+	c, err := circuit.ParseWith(text, circuit.Options{Temperature: kelvin})
 	if err != nil {
 		return nil, err
 	}
 	var gain *feedback.Gain
 	if src != "" {
 		g := &feedback.Gain{Source: -1, SourceName: src, OutputName: out, OutB: circuit.Gnd}
-		for i := range c.Parts {
-			if c.Parts[i].Name == src {
-				g.Source = i
-			}
+		if i, ok := c.PartIndex(src); ok {
+			g.Source = i
 		}
 		g.OutA, _ = c.Node(out)
 		gain = g
 	}
-	return feedback.New(c, "U1", nil, gain)
+	return feedback.New(c, ref, nil, gain)
 }
 
-// opmLoop analyzes the loop of circuit text (reference U1) and returns its
-// margins, evaluated by the engine itself on the walk's samples. Extras use
-// it on variants of a stage (a different Cf, Riso removed …); it never goes
-// through Forms, so it cannot recurse.
-func opmLoop(text string) (feedback.MarginResult, error) {
-	a, err := opmLoopAnalyzer(text, "", "")
+// loopMargins analyzes the loop of circuit text for the reference ref,
+// parsed at kelvin, and returns its margins, evaluated by the engine itself
+// on the walk's samples. Extras use it on variants of a stage (a different
+// Cf, Riso removed …); it never goes through Forms, so it cannot recurse.
+func loopMargins(text, ref string, kelvin float64) (feedback.MarginResult, error) {
+	a, err := loopAnalyzer(text, ref, kelvin, "", "")
 	if err != nil {
 		return feedback.MarginResult{}, err
 	}
@@ -133,7 +131,7 @@ func opmLoop(text string) (feedback.MarginResult, error) {
 // variant cannot be analyzed).
 func opmMarginExtras(text, label, note, source string) []Extra {
 	pm, fc := math.NaN(), math.NaN()
-	if m, err := opmLoop(text); err == nil {
+	if m, err := loopMargins(text, "U1", circuit.DefaultTemperature); err == nil {
 		pm, fc = m.PhaseMargin, m.Crossover
 	}
 	return []Extra{

@@ -118,9 +118,13 @@ func degCircuit(v Values) string {
 		b.WriteString("# gate drive: Vin on the gate (zeroed, it AC-grounds the gate)\n")
 		b.WriteString("vsource  Vin g gnd 1\n")
 	}
-	b.WriteString("# M1 small-signal model: gm·vgs from drain to source, rO across them\n")
+	b.WriteString("# M1 small-signal model: gm·vgs from drain to source, rO across them (the model's, noiseless)\n")
 	fmt.Fprintf(&b, "vccs     Gm1 d s sense=%s,s gm=%s\n", g, value.Exact(v["gm"]))
-	fmt.Fprintf(&b, "resistor ro1 d s %s\n", value.Exact(v["ro"]))
+	fmt.Fprintf(&b, "resistor ro1 d s %s\n", noiseless(v["ro"]))
+	if v.Has("gamma") {
+		b.WriteString("# M1's channel noise, drain to source: 4kT·γ·gm, the thermal noise of the conductance γ·gm\n")
+		fmt.Fprintf(&b, "inoise   Ind1 d s thermal=%s\n", value.Exact(v["gamma"]*v["gm"]))
+	}
 	if v.Has("Cgs") {
 		fmt.Fprintf(&b, "capacitor Cgs1 %s s %s\n", g, value.Exact(v["Cgs"]))
 	}
@@ -196,17 +200,19 @@ func init() {
 			"RS = 1 kΩ) must present at least 150 kΩ at low frequency and stay above 50 kΩ to 1 MHz, with Cgs = 200 fF and Cgd = 20 fF; the pair's " +
 			"common node loads it with about 1 MΩ.",
 		Params: []Param{
-			{Name: "gm", Symbol: "g_m", Meaning: "transconductance (the vccs Gm1)", Unit: "S", Default: "1m", Min: 1e-9, Max: 100, Group: "amplifier"},
-			{Name: "ro", Symbol: "r_O", Meaning: "drain-source output resistance (resistor ro1)", Unit: "Ω", Default: "100k", Min: 1, Max: 1e12, Group: "amplifier"},
-			{Name: "RS", Symbol: "R_S", Meaning: "source degeneration resistor", Unit: "Ω", Default: "1k", Min: 1e-3, Max: 1e9, Group: "network"},
-			{Name: "Cgs", Symbol: "C_gs", Meaning: "gate-source capacitance (empty: none)", Unit: "F", Default: "200f", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
-			{Name: "Cgd", Symbol: "C_gd", Meaning: "gate-drain capacitance (empty: none)", Unit: "F", Default: "20f", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
-			{Name: "Rg", Symbol: "R_g", Meaning: "gate drive resistance, Vin to the gate (empty: Vin drives the gate directly)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e12, Optional: true, Group: "source"},
-			{Name: "RL", Symbol: "R_L", Meaning: "drain load resistance to AC ground (what else the drain node sees)", Unit: "Ω", Default: "1M", Min: 1e-3, Max: 1e12, Group: "load"},
-			{Name: "CL", Symbol: "C_L", Meaning: "drain load capacitance (empty: none)", Unit: "F", Default: "", Min: 1e-18, Max: 1, Optional: true, Group: "load"},
+			{Name: "gm", Note: " (the vccs Gm1)", Default: "1m", Min: 1e-9, Max: 100, Group: "amplifier"},
+			{Name: "ro", Term: "rO", Note: " (resistor ro1)", Default: "100k", Min: 1, Max: 1e12, Group: "amplifier"},
+			{Name: "RS", Default: "1k", Min: 1e-3, Max: 1e9, Group: "network"},
+			{Name: "Cgs", Note: " (empty: none)", Default: "200f", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
+			{Name: "Cgd", Note: " (empty: none)", Default: "20f", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
+			{Name: "Rg", Note: ", Vin to the gate (empty: Vin drives the gate directly)", Default: "", Min: 1e-3, Max: 1e12, Optional: true, Group: "source"},
+			{Name: "RL", Note: ", drain to AC ground (what else the drain node sees)", Default: "1M", Min: 1e-3, Max: 1e12, Group: "load"},
+			{Name: "CL", Note: " at the drain (empty: none)", Default: "", Min: 1e-18, Max: 1, Optional: true, Group: "load"},
+			{Name: "gamma", Note: ": drain noise current 4kT·γ·gm (2/3 for a long channel, Razavi ch. 7 [memory]; invented here; empty: none)",
+				Default: "0.667", Min: 0, Max: 10, Optional: true, Group: "noise"},
 		},
 		Reference: "Gm1",
-		Ports:     []PortDef{{Name: "out", Title: "drain to ground: the output resistance", A: "d", B: "gnd"}},
+		Ports:     []PortDef{{Name: "out", Title: "drain to gnd: the output resistance", A: "d", B: "gnd"}},
 		Gain:      &GainDef{Source: "Vin", Output: "d", Unit: "V/V", Title: "gain from the gate drive to the drain"},
 		Frequency: 1e3,
 		Sweep:     Sweep{From: 1e3, To: 10e9, Points: 400},

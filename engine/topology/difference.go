@@ -50,11 +50,15 @@ func cfF(x complex128, text, src string) *Formula {
 var cfNaN = cmplx.NaN()
 
 // cfAmp is the op-amp model every op-amp stage uses, read from Values; a
-// zero gbw, p2, rid or rcm means absent.
-type cfAmp struct{ a0, gbw, p2, rid, rcm, ro float64 }
+// zero gbw, p2, rid, rcm, cid or ccm means absent.
+type cfAmp struct {
+	a0, gbw, p2, rid, rcm, ro, cid, ccm float64
+	noise                               []string // the line's noise options
+}
 
 func cfAmpOf(v Values) cfAmp {
-	return cfAmp{a0: v["a0"], gbw: v.Or("gbw", 0), p2: v.Or("p2", 0), rid: v.Or("rid", 0), rcm: v.Or("rcm", 0), ro: v["ro"]}
+	return cfAmp{a0: v["a0"], gbw: v.Or("gbw", 0), p2: v.Or("p2", 0), rid: v.Or("rid", 0), rcm: v.Or("rcm", 0), ro: v["ro"],
+		cid: v.Or("cid", 0), ccm: v.Or("ccm", 0), noise: opmNoiseOptions(v)}
 }
 
 // gain is the open-loop gain A(s) = a0/((1 + s/ω1)(1 + s/ω2)) with
@@ -70,19 +74,22 @@ func (m cfAmp) gain(f float64) complex128 {
 	return g
 }
 
-// gd and gc are the conductances of rid and rcm (0 when absent).
-func (m cfAmp) gd() complex128 {
+// gd and gc are the input admittances at s: 1/rid + s·cid between the
+// inputs and 1/rcm + s·ccm from each to gnd (absent parts add nothing).
+func (m cfAmp) gd(s complex128) complex128 {
+	y := s * complex(m.cid, 0)
 	if m.rid > 0 {
-		return cfG(m.rid)
+		y += cfG(m.rid)
 	}
-	return 0
+	return y
 }
 
-func (m cfAmp) gc() complex128 {
+func (m cfAmp) gc(s complex128) complex128 {
+	y := s * complex(m.ccm, 0)
 	if m.rcm > 0 {
-		return cfG(m.rcm)
+		y += cfG(m.rcm)
 	}
-	return 0
+	return y
 }
 
 // line writes the opamp line of the circuit text.
@@ -103,27 +110,35 @@ func (m cfAmp) line(name, plus, minus, out string) string {
 	if m.ro > 0 {
 		opts = append(opts, "ro="+value.Exact(m.ro))
 	}
+	if m.cid > 0 {
+		opts = append(opts, "cid="+value.Exact(m.cid))
+	}
+	if m.ccm > 0 {
+		opts = append(opts, "ccm="+value.Exact(m.ccm))
+	}
+	opts = append(opts, m.noise...)
 	return fmt.Sprintf("opamp    %s %s %s %s %s\n", name, plus, minus, out, strings.Join(opts, " "))
 }
 
 // cfAmpParams is the full op-amp model's parameter set with the stage's
-// defaults (a0, gbw, rid, ro; p2 and rcm default to absent).
+// defaults (a0, gbw, rid, ro; p2, rcm, cid and ccm default to absent).
 func cfAmpParams(a0, gbw, rid, ro string) []Param {
 	return []Param{
-		{Name: "a0", Symbol: "a₀", Meaning: "open-loop DC gain", Unit: "", Default: a0, Min: 1, Max: 1e12, Group: "amplifier"},
-		{Name: "gbw", Symbol: "GBW", Meaning: "gain-bandwidth product (first open-loop pole at GBW/a₀; empty: no pole)", Unit: "Hz", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
-		{Name: "p2", Symbol: "f_p2", Meaning: "second open-loop pole (empty: none)", Unit: "Hz", Default: "", Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
-		{Name: "rid", Symbol: "r_id", Meaning: "differential input resistance (empty: infinite)", Unit: "Ω", Default: rid, Min: 1, Max: 1e15, Optional: true, Group: "amplifier"},
-		{Name: "rcm", Symbol: "r_cm", Meaning: "common-mode input resistance, each input to ground (empty: infinite)", Unit: "Ω", Default: "", Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
-		{Name: "ro", Symbol: "r_o", Meaning: "open-loop output resistance", Unit: "Ω", Default: ro, Min: 0, Max: 1e6, Group: "amplifier"},
+		{Name: "a0", Default: a0, Min: 1, Max: 1e12, Group: "amplifier", Decibels: true},
+		{Name: "gbw", Note: ", first pole at gbw/a₀ (empty: no pole)", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
+		{Name: "p2", Note: " (empty: none)", Default: "", Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
+		{Name: "rid", Note: " (empty: infinite)", Default: rid, Min: 1, Max: 1e15, Optional: true, Group: "amplifier"},
+		{Name: "rcm", Note: " (empty: infinite)", Default: "", Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
+		{Name: "ro", Default: ro, Min: 0, Max: 1e6, Group: "amplifier"},
+		opmCid, opmCcm,
 	}
 }
 
 // cfLoadParams is the load RL ∥ CL (RL required or optional by stage).
 func cfLoadParams(rl string, rlOptional bool, cl string) []Param {
 	return []Param{
-		{Name: "RL", Symbol: "R_L", Meaning: "load resistance", Unit: "Ω", Default: rl, Min: 1e-3, Max: 1e12, Optional: rlOptional, Group: "load"},
-		{Name: "CL", Symbol: "C_L", Meaning: "load capacitance (empty: none)", Unit: "F", Default: cl, Min: 1e-18, Max: 1, Optional: true, Group: "load"},
+		{Name: "RL", Default: rl, Min: 1e-3, Max: 1e12, Optional: rlOptional, Group: "load"},
+		{Name: "CL", Note: " (empty: none)", Default: cl, Min: 1e-18, Max: 1, Optional: true, Group: "load"},
 	}
 }
 
@@ -131,10 +146,10 @@ func cfLoadParams(rl string, rlOptional bool, cl string) []Param {
 func cfLoadLines(v Values, node string) string {
 	var b strings.Builder
 	if v.Has("RL") || v.Has("CL") {
-		b.WriteString("# load\n")
+		b.WriteString("# load (RL noiseless: it is not part of the design)\n")
 	}
 	if v.Has("RL") {
-		fmt.Fprintf(&b, "resistor RL %s gnd %s\n", node, value.Exact(v["RL"]))
+		fmt.Fprintf(&b, "resistor RL %s gnd %s\n", node, noiseless(v["RL"]))
 	}
 	if v.Has("CL") {
 		fmt.Fprintf(&b, "capacitor CL %s gnd %s\n", node, value.Exact(v["CL"]))
@@ -192,7 +207,7 @@ func diffNetOf(v Values, f float64) diffNet {
 	return diffNet{
 		G1: cfG(v.Or("Rs1", 0) + v["R1"]), G2: cfG(v["R2"]),
 		G3: cfG(v.Or("Rs2", 0) + v["R3"]), G4: cfG(v["R4"]),
-		Gd: m.gd(), Gc: m.gc(), YL: cfLoad(v, s), A: m.gain(f), ro: m.ro,
+		Gd: m.gd(s), Gc: m.gc(s), YL: cfLoad(v, s), A: m.gain(f), ro: m.ro,
 	}
 }
 
@@ -233,7 +248,7 @@ func diffForms(v Values, f float64) Forms {
 	a, b, _ := d.abc()
 	ro := complex(d.ro, 0)
 	defs := "a = G3+G4+G_cm+G_id, b = G1+G2+G_cm+G_id, c = 1 + r_o(Y_L+G2), G1 = 1/(R_s1+R1), G3 = 1/(R_s2+R3), " +
-		"G_id = 1/r_id, G_cm = 1/r_cm, Y_L = 1/R_L + sC_L, Δ₀ = a(b·c − r_o·G2²) − G_id²·c"
+		"G_id = 1/r_id + s·c_id, G_cm = 1/r_cm + s·c_cm (the op amp's input admittances), Y_L = 1/R_L + sC_L, Δ₀ = a(b·c − r_o·G2²) − G_id²·c"
 	var out Forms
 	out.T = cfF(T, "T = A(s)·G2·(G3 + G4 + G_cm)/Δ₀; "+defs+" (ideal limit: T = A·R1/(R1+R2))", cfSrcDerived)
 
@@ -309,14 +324,15 @@ func diffForms(v Values, f float64) Forms {
 
 func init() {
 	params := []Param{
-		{Name: "R1", Symbol: "R₁", Meaning: "input resistor, V1 to the − input", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "feedback resistor, − input to the output", Unit: "Ω", Default: "100k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R3", Symbol: "R₃", Meaning: "input resistor, V2 to the + input", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R4", Symbol: "R₄", Meaning: "+ input to ground (set e.g. 101k against R2 = 100k for a 1 % mismatch)", Unit: "Ω", Default: "100.5k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "Rs1", Symbol: "R_s1", Meaning: "source resistance of V1 (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
-		{Name: "Rs2", Symbol: "R_s2", Meaning: "source resistance of V2 (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
+		{Name: "R1", Meaning: "input resistor, V1 to the − input", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R2", Meaning: "feedback resistor, − input to the output", Default: "100k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R3", Meaning: "input resistor, V2 to the + input", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R4", Meaning: "+ input to gnd (set e.g. 101k against R2 = 100k for a 1 % mismatch)", Default: "100.5k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "Rs1", Note: " (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
+		{Name: "Rs2", Note: " (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("200k", "1M", "2M", "50")...)
+	params = append(params, opmNoiseParams("12n", "20", "0.4p", "100")...)
 	params = append(params, cfLoadParams("10k", false, "100p")...)
 	register(&Topology{
 		ID:    "difference",

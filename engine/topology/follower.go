@@ -20,8 +20,8 @@ var follower = &Topology{
 		"rcm = 1 GΩ, ro = 50 Ω.",
 	Params: append([]Param{
 		opmRs("10k"),
-		{Name: "Riso", Symbol: "R_iso", Meaning: "isolation resistor, output pin to load (empty: none)", Unit: "Ω", Default: "47", Min: 1e-3, Max: 1e7, Optional: true, Group: "network"},
-	}, append(opmAmpParams("150k", "3M", "20M", "1M", "1G", "50"), opmLoad("10k", "1n")...)...),
+		{Name: "Riso", Note: ", output pin to load (empty: none)", Default: "47", Min: 1e-3, Max: 1e7, Optional: true, Group: "network"},
+	}, append(append(opmAmpParams("150k", "3M", "20M", "1M", "1G", "50"), opmNoiseParams("15n", "50", "20f", "")...), opmLoad("10k", "1n")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
 		{Name: "in", Title: "input, as the source Vin sees it (Rs included)", A: "src", B: "gnd"},
@@ -62,7 +62,7 @@ func followerCircuit(v Values) string {
 // gnd through ypg (Rs ∥ rcm with the source zeroed, rcm with the input port
 // open). vd = −k·Vpin with k = (Rs ∥ rcm)/(rid + Rs ∥ rcm).
 func followerForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	a := m.gain(f)
 	yl := opmYL(v, opmS(f))
 	rs := complex(v.Or("Rs", 0), 0)
@@ -111,7 +111,7 @@ func followerForms(v Values, f float64) Forms {
 		tOpen = nil
 	}
 	return Forms{
-		T:    opmF(T, tText, opmSrcLoop),
+		T:    opmF(T, tText+opmCapNote, opmSrcLoop),
 		Gain: opmGain(gInf, g0, T, "G∞ = rcm/(Rs + rcm)·ZL/(Riso + ZL)", "G₀ = Zp/(Rs + Zp)·Zpin/(rid + Zpin)·ZL/(Riso + ZL), Zpin = ro ∥ rcm ∥ (Riso + ZL), Zp = rcm ∥ (rid + Zpin)"),
 		Ports: []PortForms{
 			{Name: "in",

@@ -66,7 +66,7 @@ func howNetOf(v Values, f float64) howNet {
 	m := cfAmpOf(v)
 	return howNet{
 		G1: cfG(v.Or("Rs", 0) + v["R1"]), G2: cfG(v["R2"]), G3: cfG(v["R3"]), G4: cfG(v["R4"]),
-		Gd: m.gd(), Gc: m.gc(), YL: cfLoad(v, cfS(f)), A: m.gain(f), ro: m.ro,
+		Gd: m.gd(cfS(f)), Gc: m.gc(cfS(f)), YL: cfLoad(v, cfS(f)), A: m.gain(f), ro: m.ro,
 	}
 }
 
@@ -84,7 +84,7 @@ func howCircuit(v Values) string {
 	b.WriteString("# positive-feedback side: R1 from the source, R2 from the output\n")
 	fmt.Fprintf(&b, "resistor R1 %s p %s\n", a, value.Exact(v["R1"]))
 	fmt.Fprintf(&b, "resistor R2 p vo %s\n", value.Exact(v["R2"]))
-	b.WriteString("# negative-feedback side: R3 to ground, R4 from the output\n")
+	b.WriteString("# negative-feedback side: R3 to gnd, R4 from the output\n")
 	fmt.Fprintf(&b, "resistor R3 n gnd %s\n", value.Exact(v["R3"]))
 	fmt.Fprintf(&b, "resistor R4 n vo %s\n", value.Exact(v["R4"]))
 	b.WriteString("# op amp: + at p, − at n\n")
@@ -100,6 +100,7 @@ func howForms(v Values, f float64) Forms {
 	h := howNetOf(v, f)
 	T := h.T()
 	defs := "a = G1+Y_L+G_cm+G2+G_id, b = G3+G_cm+G4+G_id, c = 1 + r_o(G2+G4), G1 = 1/(R_s+R1), Y_L = 1/R_L + sC_L, " +
+		"G_id = 1/r_id + s·c_id, G_cm = 1/r_cm + s·c_cm (the op amp's input admittances), " +
 		"Δ₀ = a(b·c − r_o·G4²) − G_id²·c − 2r_o·G_id·G2·G4 − r_o·b·G2²"
 	var out Forms
 	out.T = cfF(T, "T = A(s)·[G4(G1+Y_L+G_cm) − G2(G3+G_cm)]/Δ₀; "+defs+
@@ -155,13 +156,14 @@ func howForms(v Values, f float64) Forms {
 
 func init() {
 	params := []Param{
-		{Name: "R1", Symbol: "R₁", Meaning: "source resistor, Vin to P (sets I = Vin/R1)", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "positive-feedback resistor, P to the op-amp output", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R3", Symbol: "R₃", Meaning: "− input to ground", Unit: "Ω", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "R4", Symbol: "R₄", Meaning: "negative-feedback resistor, − input to the output (R4/R3 = (R2/R1)(1 − ε))", Unit: "Ω", Default: "9.99k", Min: 1e-3, Max: 1e9, Group: "network"},
-		{Name: "Rs", Symbol: "R_s", Meaning: "source resistance, in series with R1 (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
+		{Name: "R1", Meaning: "source resistor, Vin to P (sets I = Vin/R1)", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R2", Meaning: "positive-feedback resistor, P to the op-amp output", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R3", Meaning: "− input to gnd", Default: "10k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "R4", Meaning: "negative-feedback resistor, − input to the output (R4/R3 = (R2/R1)(1 − ε))", Default: "9.99k", Min: 1e-3, Max: 1e9, Group: "network"},
+		{Name: "Rs", Note: ", in series with R1 (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("100k", "1M", "", "50")...)
+	params = append(params, opmNoiseParams("20n", "10", "0.5p", "100")...)
 	params = append(params, cfLoadParams("1k", true, "")...)
 	register(&Topology{
 		ID:    "howland",
@@ -177,7 +179,7 @@ func init() {
 		Params:    params,
 		Reference: "U1",
 		Ports: []PortDef{
-			{Name: "out", Title: "load node P to ground (the load sees the rest; RL ∥ CL included when given)", A: "p", B: "gnd"},
+			{Name: "out", Title: "load node P to gnd (the load sees the rest; RL ∥ CL included when given)", A: "p", B: "gnd"},
 			{Name: "in", Title: "input, as the source sees it (through Rs and R1)", A: "in", B: "gnd"},
 		},
 		Gain:      &GainDef{Source: "Vin", Output: "p", Unit: "V/V", Title: "load voltage per volt of Vin (load current per volt in the extras)"},

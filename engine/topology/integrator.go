@@ -9,8 +9,8 @@ import (
 )
 
 // intNet is the inverting integrator's node equations at one frequency.
-// The + input is grounded, so rid and rcm both load the summing node:
-// Yi = 1/rid + 1/rcm. Nodes sum and out; the out row is multiplied by ro:
+// The + input is grounded, so rid and rcm both load the summing node, and
+// with them cid and ccm: Yi = 1/rid + 1/rcm + s(cid + ccm). Nodes sum and out; the out row is multiplied by ro:
 //
 //	[ Ys+Yf      −Yf            ] [vs]   [Ga·vin]
 //	[ A − ro·Yf  1 + ro(YL+Yf) ] [vo] = [  0   ]
@@ -36,7 +36,7 @@ func intNetOf(v Values, f float64) intNet {
 	m := cfAmpOf(v)
 	s := cfS(f)
 	return intNet{
-		Ga: cfG(v.Or("Rs", 0) + v["R1"]), Yi: m.gd() + m.gc(),
+		Ga: cfG(v.Or("Rs", 0) + v["R1"]), Yi: m.gd(s) + m.gc(s),
 		Yf: cfGopt(v, "R2") + s*complex(v["C1"], 0), YL: cfLoad(v, s), A: m.gain(f), ro: m.ro,
 	}
 }
@@ -77,7 +77,7 @@ func intForms(v Values, f float64) Forms {
 	n := intNetOf(v, f)
 	T := n.T()
 	ro := complex(n.ro, 0)
-	defs := "Y_f = 1/R2 + sC1, Y_s = 1/(R_s+R1) + 1/r_id + 1/r_cm, c = 1 + r_o(Y_L+Y_f), Y_L = 1/R_L + sC_L, Δ₀ = (Y_s+Y_f)·c − r_o·Y_f²"
+	defs := "Y_f = 1/R2 + sC1, Y_s = 1/(R_s+R1) + 1/r_id + 1/r_cm + s(c_id + c_cm), c = 1 + r_o(Y_L+Y_f), Y_L = 1/R_L + sC_L, Δ₀ = (Y_s+Y_f)·c − r_o·Y_f²"
 	var out Forms
 	out.T = cfF(T, "T = A(s)·Y_f/Δ₀; "+defs+" (ideal parts: T = A·Z_s/(Z_s + Z_f))", cfSrcDerived)
 	out.Gain = cfF(-(n.A-ro*n.Yf)*n.Ga/n.detK(),
@@ -87,7 +87,7 @@ func intForms(v Values, f float64) Forms {
 	no := n
 	no.Ga = 0
 	out.Ports = append(out.Ports, PortForms{Name: "in",
-		Z0:     cfF(Ra+no.c()/no.det0(), "Z₀ = R_s + R1 + c/Δ₀′ (′: R_s+R1 removed, Y_s = 1/r_id + 1/r_cm)", cfSrcDerived),
+		Z0:     cfF(Ra+no.c()/no.det0(), "Z₀ = R_s + R1 + c/Δ₀′ (′: R_s+R1 removed, Y_s = 1/r_id + 1/r_cm + s(c_id + c_cm))", cfSrcDerived),
 		TShort: cfF(T, "T_sc = T (Vin zeroed)", cfSrcDerived),
 		TOpen:  cfF(no.T(), "T_oc = A·Y_f/Δ₀′", cfSrcDerived),
 		Z:      cfF(Ra+no.c()/no.detK(), "Z = R_s + R1 + c/(Δ₀′ + A·Y_f) ≈ R_s + R1 + (Z_f + r_o)/(1 + A)", cfSrcDerived),
@@ -125,12 +125,13 @@ func intForms(v Values, f float64) Forms {
 
 func init() {
 	params := []Param{
-		{Name: "R1", Symbol: "R₁", Meaning: "input resistor", Unit: "Ω", Default: "100k", Min: 1e-3, Max: 1e10, Group: "network"},
-		{Name: "C1", Symbol: "C₁", Meaning: "integrating (feedback) capacitor", Unit: "F", Default: "10n", Min: 1e-18, Max: 1, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "damping resistor across C1 (empty: none — a pure integrator)", Unit: "Ω", Default: "10M", Min: 1e-3, Max: 1e13, Optional: true, Group: "network"},
-		{Name: "Rs", Symbol: "R_s", Meaning: "source resistance (empty: none)", Unit: "Ω", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
+		{Name: "R1", Meaning: "input resistor", Default: "100k", Min: 1e-3, Max: 1e10, Group: "network"},
+		{Name: "C1", Meaning: "integrating (feedback) capacitor", Default: "10n", Min: 1e-18, Max: 1, Group: "network"},
+		{Name: "R2", Meaning: "damping resistor across C1 (empty: none — a pure integrator)", Default: "10M", Min: 1e-3, Max: 1e13, Optional: true, Group: "network"},
+		{Name: "Rs", Note: " (empty: none)", Default: "", Min: 1e-3, Max: 1e9, Optional: true, Group: "source"},
 	}
 	params = append(params, cfAmpParams("100k", "1M", "1T", "100")...)
+	params = append(params, opmNoiseParams("15n", "50", "5f", "")...)
 	params = append(params, cfLoadParams("10k", false, "")...)
 	register(&Topology{
 		ID:    "integrator",

@@ -19,6 +19,9 @@ import (
 // Closed forms of these stages are written in admittances: an absent rid or
 // rcm is a zero conductance and a part shorted out is an infinite admittance,
 // so one expression covers every combination of present and absent parts.
+// The input capacitances enter the same way: the differential input is the
+// admittance 1/rid + s·cid and each common-mode one 1/rcm + s·ccm, so every
+// formula written with rid and rcm holds with cid and ccm beside them.
 
 func init() { register(inverting) }
 
@@ -40,10 +43,10 @@ var inverting = &Topology{
 		"with a0 = 200 000, gbw = 1 MHz, a second pole at 8 MHz, rid = 2 MΩ, rcm = 1 GΩ, ro = 75 Ω.",
 	Params: append([]Param{
 		opmRs("1k"),
-		{Name: "R1", Symbol: "R₁", Meaning: "input resistor, source to summing node", Unit: "Ω", Default: "10k", Min: 1, Max: 1e9, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "feedback resistor, output to summing node", Unit: "Ω", Default: "47k", Min: 1, Max: 1e10, Group: "network"},
-		{Name: "Rp", Symbol: "R_p", Meaning: "bias-compensation resistor, + input to gnd (empty: + input grounded)", Unit: "Ω", Default: "8.87k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
-	}, append(opmAmpParams("200k", "1M", "8M", "2M", "1G", "75"), opmLoad("10k", "100p")...)...),
+		{Name: "R1", Meaning: "input resistor, source to summing node", Default: "10k", Min: 1, Max: 1e9, Group: "network"},
+		{Name: "R2", Meaning: "feedback resistor, output to summing node", Default: "47k", Min: 1, Max: 1e10, Group: "network"},
+		{Name: "Rp", Note: ", + input to gnd (empty: + input grounded)", Default: "8.87k", Min: 1e-3, Max: 1e10, Optional: true, Group: "network"},
+	}, append(append(opmAmpParams("200k", "1M", "8M", "2M", "1G", "75"), opmNoiseParams("10n", "10", "0.5p", "100")...), opmLoad("10k", "100p")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
 		{Name: "in", Title: "input, as the source Vin sees it (Rs included)", A: "src", B: "gnd"},
@@ -86,7 +89,7 @@ func invertingCircuit(v Values) string {
 // rid + (Rp ∥ rcm) and rcm to gnd, and R2 to the output; vd = −k·Vn with
 // k = rid/(rid + Rp ∥ rcm).
 func invertingForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	s := opmS(f)
 	a := m.gain(f)
 	ra := v.Or("Rs", 0) + v["R1"]
@@ -115,7 +118,7 @@ func invertingForms(v Values, f float64) Forms {
 
 	kText := "k = rid/(rid + Rp ∥ rcm) (1 with Rp absent or rid infinite)"
 	zn := "Zn = (Rs + R1) ∥ rcm ∥ (rid + Rp ∥ rcm)"
-	tText := "T = a·k·Zn/(Zn + R2)·Zo′/(Zo′ + ro), " + kText + ", " + zn + ", Zo′ = ZL ∥ (R2 + Zn), ZL = RL ∥ 1/(sCL)"
+	tText := "T = a·k·Zn/(Zn + R2)·Zo′/(Zo′ + ro), " + kText + ", " + zn + ", Zo′ = ZL ∥ (R2 + Zn), ZL = RL ∥ 1/(sCL)" + opmCapNote
 	return Forms{
 		T:    opmF(T, tText, opmSrcLoop),
 		Gain: opmGain(gInf, g0, T, "G∞ = −R2/(Rs + R1)", "G₀ = Zx/(Rs + R1 + Zx)·Zq/(R2 + Zq), Zx = rcm ∥ (rid + Rp ∥ rcm) ∥ (R2 + Zq), Zq = ro ∥ ZL"),
@@ -157,24 +160,35 @@ const (
 // opmInf is the admittance of a short.
 var opmInf = complex(math.Inf(1), 0)
 
-// opmAmp is the op-amp model of a stage's Values.
+// opmAmp is the op-amp model of a stage's Values at one frequency.
 type opmAmp struct {
-	amp      circuit.Amp // the engine's own model, for A(s)
-	gid, gcm complex128  // 1/rid and 1/rcm; 0 when absent (infinite)
+	amp circuit.Amp // the engine's own model, for A(s)
+	// gid and gcm are the input admittances 1/rid + s·cid and
+	// 1/rcm + s·ccm; 0 when the parts are absent.
+	gid, gcm complex128
 	ro       complex128
 }
 
-func opmAmpOf(v Values) opmAmp {
-	m := opmAmp{amp: circuit.Amp{A0: v["a0"], GBW: v.Or("gbw", 0), P2: v.Or("p2", 0), Rid: v.Or("rid", 0), Rcm: v.Or("rcm", 0), Ro: v["ro"]}}
+// opmAmpAt is the op-amp model of v at frequency f.
+func opmAmpAt(v Values, f float64) opmAmp {
+	m := opmAmp{amp: circuit.Amp{A0: v["a0"], GBW: v.Or("gbw", 0), P2: v.Or("p2", 0), Rid: v.Or("rid", 0), Rcm: v.Or("rcm", 0), Ro: v["ro"],
+		Cid: v.Or("cid", 0), Ccm: v.Or("ccm", 0)}}
+	s := opmS(f)
 	if v.Has("rid") {
 		m.gid = complex(1/v["rid"], 0)
 	}
 	if v.Has("rcm") {
 		m.gcm = complex(1/v["rcm"], 0)
 	}
+	m.gid += s * complex(m.amp.Cid, 0)
+	m.gcm += s * complex(m.amp.Ccm, 0)
 	m.ro = complex(v["ro"], 0)
 	return m
 }
+
+// opmCapNote says how the formulas' rid and rcm read with the input
+// capacitances present.
+const opmCapNote = "; with the input capacitances, read rid as rid ∥ 1/(s·cid) and rcm as rcm ∥ 1/(s·ccm) throughout [derived: the same node equations with admittances]"
 
 // gain is the open-loop gain A(j2πf), by the engine's own Amp.Gain so the
 // pole placement is defined in one place.
@@ -260,23 +274,30 @@ func opmGain(gInf, g0, T complex128, infText, zeroText string) *Formula {
 // an optional parameter absent by default).
 func opmAmpParams(a0, gbw, p2, rid, rcm, ro string) []Param {
 	return []Param{
-		{Name: "a0", Symbol: "a₀", Meaning: "op-amp DC open-loop gain", Unit: "", Default: a0, Min: 10, Max: 1e10, Group: "amplifier"},
-		{Name: "gbw", Symbol: "GBW", Meaning: "gain-bandwidth product, first pole at gbw/a0 (empty: no pole)", Unit: "Hz", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
-		{Name: "p2", Symbol: "p₂", Meaning: "second open-loop pole (empty: none)", Unit: "Hz", Default: p2, Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
-		{Name: "rid", Symbol: "r_id", Meaning: "differential input resistance (empty: infinite)", Unit: "Ω", Default: rid, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
-		{Name: "rcm", Symbol: "r_cm", Meaning: "common-mode input resistance, each input to gnd (empty: infinite)", Unit: "Ω", Default: rcm, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
-		{Name: "ro", Symbol: "r_o", Meaning: "open-loop output resistance", Unit: "Ω", Default: ro, Min: 1e-3, Max: 1e6, Group: "amplifier"},
+		{Name: "a0", Default: a0, Min: 10, Max: 1e10, Group: "amplifier", Decibels: true},
+		{Name: "gbw", Note: ", first pole at gbw/a₀ (empty: no pole)", Default: gbw, Min: 1, Max: 1e11, Optional: true, Group: "amplifier"},
+		{Name: "p2", Note: " (empty: none)", Default: p2, Min: 1, Max: 1e12, Optional: true, Group: "amplifier"},
+		{Name: "rid", Note: " (empty: infinite)", Default: rid, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
+		{Name: "rcm", Note: " (empty: infinite)", Default: rcm, Min: 1, Max: 1e16, Optional: true, Group: "amplifier"},
+		{Name: "ro", Default: ro, Min: 1e-3, Max: 1e6, Group: "amplifier"},
+		opmCid, opmCcm,
 	}
 }
 
+// The op amp's input capacitances, absent by default in every stage.
+var (
+	opmCid = Param{Name: "cid", Note: " (empty: none)", Default: "", Min: 1e-16, Max: 1e-6, Optional: true, Group: "amplifier"}
+	opmCcm = Param{Name: "ccm", Note: " (empty: none)", Default: "", Min: 1e-16, Max: 1e-6, Optional: true, Group: "amplifier"}
+)
+
 func opmRs(def string) Param {
-	return Param{Name: "Rs", Symbol: "R_s", Meaning: "source resistance (empty: ideal source)", Unit: "Ω", Default: def, Min: 1e-3, Max: 1e10, Optional: true, Group: "source"}
+	return Param{Name: "Rs", Note: " (empty: ideal source)", Default: def, Min: 1e-3, Max: 1e10, Optional: true, Group: "source"}
 }
 
 func opmLoad(rl, cl string) []Param {
 	return []Param{
-		{Name: "RL", Symbol: "R_L", Meaning: "load resistance (empty: none)", Unit: "Ω", Default: rl, Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
-		{Name: "CL", Symbol: "C_L", Meaning: "load capacitance (empty: none)", Unit: "F", Default: cl, Min: 1e-15, Max: 1, Optional: true, Group: "load"},
+		{Name: "RL", Note: " (empty: none)", Default: rl, Min: 1e-3, Max: 1e12, Optional: true, Group: "load"},
+		{Name: "CL", Note: " (empty: none)", Default: cl, Min: 1e-15, Max: 1, Optional: true, Group: "load"},
 	}
 }
 
@@ -312,11 +333,12 @@ func (b *opmText) part(kind, name, n1, n2, val string) {
 func (b *opmText) opamp(v Values, plus, minus, out string) {
 	b.comment("Op amp U1: + input, − input, output; open-loop gain a0/((1 + s/ω1)(1 + s/ω2)), ω1 = 2π·gbw/a0, ω2 = 2π·p2")
 	opts := []string{"a0=" + value.Exact(v["a0"])}
-	for _, k := range []string{"gbw", "p2", "rid", "rcm", "ro"} {
+	for _, k := range []string{"gbw", "p2", "rid", "rcm", "ro", "cid", "ccm"} {
 		if v.Has(k) {
 			opts = append(opts, k+"="+value.Exact(v[k]))
 		}
 	}
+	opts = append(opts, opmNoiseOptions(v)...)
 	fmt.Fprintf(b, "%-9s %-5s %-5s %-5s %-5s %s\n", "opamp", "U1", plus, minus, out, strings.Join(opts, " "))
 }
 
@@ -325,9 +347,9 @@ func (b *opmText) load(v Values, node string) {
 	if !v.Has("RL") && !v.Has("CL") {
 		return
 	}
-	b.comment("Load: RL ∥ CL")
+	b.comment("Load: RL ∥ CL (RL noiseless: the load is not part of the design)")
 	if v.Has("RL") {
-		b.part("resistor", "RL", node, "gnd", value.Exact(v["RL"]))
+		b.part("resistor", "RL", node, "gnd", noiseless(v["RL"]))
 	}
 	if v.Has("CL") {
 		b.part("capacitor", "CL", node, "gnd", value.Exact(v["CL"]))

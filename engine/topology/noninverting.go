@@ -19,9 +19,9 @@ var noninverting = &Topology{
 		"rid = 1 MΩ, rcm = 500 MΩ, ro = 100 Ω.",
 	Params: append([]Param{
 		opmRs("10k"),
-		{Name: "R1", Symbol: "R₁", Meaning: "gain resistor, − input to gnd", Unit: "Ω", Default: "2k", Min: 1e-3, Max: 1e10, Group: "network"},
-		{Name: "R2", Symbol: "R₂", Meaning: "feedback resistor, output to − input", Unit: "Ω", Default: "18k", Min: 1e-3, Max: 1e10, Group: "network"},
-	}, append(opmAmpParams("100k", "1M", "10M", "1M", "500M", "100"), opmLoad("2k", "470p")...)...),
+		{Name: "R1", Meaning: "gain resistor, − input to gnd", Default: "2k", Min: 1e-3, Max: 1e10, Group: "network"},
+		{Name: "R2", Meaning: "feedback resistor, output to − input", Default: "18k", Min: 1e-3, Max: 1e10, Group: "network"},
+	}, append(append(opmAmpParams("100k", "1M", "10M", "1M", "500M", "100"), opmNoiseParams("8n", "5", "0.8p", "50")...), opmLoad("2k", "470p")...)...),
 	Reference: "U1",
 	Ports: []PortDef{
 		{Name: "in", Title: "input, as the source Vin sees it (Rs included)", A: "src", B: "gnd"},
@@ -58,7 +58,7 @@ func noninvertingCircuit(v Values) string {
 // with the source zeroed; rcm alone with the input port open); vd = −k·Vn with
 // k = (Rs ∥ rcm)/(rid + Rs ∥ rcm).
 func noninvertingForms(v Values, f float64) Forms {
-	m := opmAmpOf(v)
+	m := opmAmpAt(v, f)
 	a := m.gain(f)
 	r2 := complex(v["R2"], 0)
 	g1 := complex(1/v["R1"], 0)
@@ -97,7 +97,7 @@ func noninvertingForms(v Values, f float64) Forms {
 		tOpen = nil
 	}
 	return Forms{
-		T:    opmF(T, "T = a·k·Zn/(Zn + R2)·Zo′/(Zo′ + ro), "+kText+", "+zn+", Zo′ = ZL ∥ (R2 + Zn), ZL = RL ∥ 1/(sCL)", opmSrcLoop),
+		T:    opmF(T, "T = a·k·Zn/(Zn + R2)·Zo′/(Zo′ + ro), "+kText+", "+zn+", Zo′ = ZL ∥ (R2 + Zn), ZL = RL ∥ 1/(sCL)"+opmCapNote, opmSrcLoop),
 		Gain: opmGain(gInf, g0, T, "G∞ = (1 + R2/R1 + R2/rcm)·rcm/(Rs + rcm)", "G₀ = Zp/(Rs + Zp)·Zn₀/(rid + Zn₀)·Zq/(R2 + Zq), Zq = ro ∥ ZL, Zn₀ = R1 ∥ rcm ∥ (R2 + Zq), Zp = rcm ∥ (rid + Zn₀)"),
 		Ports: []PortForms{
 			{Name: "in",

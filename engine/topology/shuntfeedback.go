@@ -1,6 +1,7 @@
 package topology
 
 import (
+	"zport/engine/circuit"
 	"zport/engine/value"
 
 	"fmt"
@@ -8,21 +9,11 @@ import (
 	"strings"
 )
 
-// Exact SI defining constants (BIPM, The International System of Units, 9th
-// ed., 2019; REFERENCES.md §6).
-const (
-	cfBoltzmann = 1.380649e-23    // J/K
-	cfCharge    = 1.602176634e-19 // C
-)
-
-// cfThermalVoltage is kT/q at temperature tK kelvin.
-func cfThermalVoltage(tK float64) float64 { return cfBoltzmann * tK / cfCharge }
-
 // sfBias holds the hybrid-π parameters computed from the bias.
 type sfBias struct{ vt, gm, rpi, ro float64 } // ro = 0: no Early effect
 
 func sfBiasOf(v Values) sfBias {
-	b := sfBias{vt: cfThermalVoltage(v["T"])}
+	b := sfBias{vt: circuit.ThermalVoltage(v["T"])}
 	b.gm = v["IC"] / b.vt
 	b.rpi = v["beta"] / b.gm
 	if v.Has("VA") {
@@ -75,12 +66,15 @@ func sfCircuit(v Values) string {
 	w.WriteString("\n# source\n")
 	w.WriteString("vsource  Vin in gnd 1\n")
 	fmt.Fprintf(&w, "resistor Rs in b %s\n", value.Exact(v["Rs"]))
-	w.WriteString("# Q1 small-signal model (emitter at ground)\n")
+	w.WriteString("# Q1 small-signal model (emitter at ground); rπ and ro are the model's, noiseless\n")
 	fmt.Fprintf(&w, "vccs     Gm1 c gnd sense=b,gnd gm=%s\n", value.Exact(b.gm))
-	fmt.Fprintf(&w, "resistor rpi1 b gnd %s\n", value.Exact(b.rpi))
+	fmt.Fprintf(&w, "resistor rpi1 b gnd %s\n", noiseless(b.rpi))
 	if b.ro > 0 {
-		fmt.Fprintf(&w, "resistor ro1 c gnd %s\n", value.Exact(b.ro))
+		fmt.Fprintf(&w, "resistor ro1 c gnd %s\n", noiseless(b.ro))
 	}
+	w.WriteString("# Q1's noise: shot noise of the collector current, 2q·IC, and of the base current, 2q·IC/β\n")
+	fmt.Fprintf(&w, "inoise   Inc1 c gnd shot=%s\n", value.Exact(v["IC"]))
+	fmt.Fprintf(&w, "inoise   Inb1 b gnd shot=%s\n", value.Exact(v["IC"]/v["beta"]))
 	if v.Has("Cpi") {
 		fmt.Fprintf(&w, "capacitor Cpi1 b gnd %s\n", value.Exact(v["Cpi"]))
 	}
@@ -168,21 +162,21 @@ func init() {
 		Scenario: "Invented scenario: the first gain block of a hobby HF receiver test set must present roughly 50 Ω to a 50 Ω source and give " +
 			"at least 30 dB of voltage gain from the source EMF to the collector; the transistor runs at IC = 5 mA, β = 100, VA = 100 V, at 300 K, with Cπ = 20 pF and Cμ = 1 pF.",
 		Params: []Param{
-			{Name: "IC", Symbol: "I_C", Meaning: "collector bias current", Unit: "A", Default: "5m", Min: 1e-9, Max: 10, Group: "amplifier"},
-			{Name: "beta", Symbol: "β", Meaning: "small-signal current gain", Unit: "", Default: "100", Min: 1, Max: 1e5, Group: "amplifier"},
-			{Name: "VA", Symbol: "V_A", Meaning: "Early voltage (empty: no Early effect, ro infinite)", Unit: "V", Default: "100", Min: 0.1, Max: 1e5, Optional: true, Group: "amplifier"},
-			{Name: "T", Symbol: "T", Meaning: "junction temperature in kelvin", Unit: "K", Default: "300", Min: 200, Max: 500, Group: "amplifier"},
-			{Name: "Cpi", Symbol: "C_π", Meaning: "base-emitter capacitance (empty: none)", Unit: "F", Default: "20p", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
-			{Name: "Cmu", Symbol: "C_μ", Meaning: "base-collector capacitance (empty: none)", Unit: "F", Default: "1p", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
-			{Name: "RC", Symbol: "R_C", Meaning: "collector load resistor (to AC ground)", Unit: "Ω", Default: "560", Min: 1e-3, Max: 1e9, Group: "network"},
-			{Name: "RF", Symbol: "R_F", Meaning: "feedback resistor, collector to base", Unit: "Ω", Default: "5.6k", Min: 1e-3, Max: 1e10, Group: "network"},
-			{Name: "Rs", Symbol: "R_s", Meaning: "source resistance", Unit: "Ω", Default: "50", Min: 1e-3, Max: 1e9, Group: "source"},
-			{Name: "CL", Symbol: "C_L", Meaning: "load capacitance at the collector (empty: none)", Unit: "F", Default: "", Min: 1e-18, Max: 1, Optional: true, Group: "load"},
+			{Name: "IC", Default: "5m", Min: 1e-9, Max: 10, Group: "amplifier"},
+			{Name: "beta", Default: "100", Min: 1, Max: 1e5, Group: "amplifier"},
+			{Name: "VA", Note: " (empty: no Early effect, ro infinite)", Default: "100", Min: 0.1, Max: 1e5, Optional: true, Group: "amplifier"},
+			{Name: "T", Default: "300", Min: 200, Max: 500, Group: "amplifier"},
+			{Name: "Cpi", Note: " (empty: none)", Default: "20p", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
+			{Name: "Cmu", Note: " (empty: none)", Default: "1p", Min: 1e-18, Max: 1e-6, Optional: true, Group: "amplifier"},
+			{Name: "RC", Note: " (to AC ground)", Default: "560", Min: 1e-3, Max: 1e9, Group: "network"},
+			{Name: "RF", Note: ", collector to base", Default: "5.6k", Min: 1e-3, Max: 1e10, Group: "network"},
+			{Name: "Rs", Default: "50", Min: 1e-3, Max: 1e9, Group: "source"},
+			{Name: "CL", Note: " at the collector (empty: none)", Default: "", Min: 1e-18, Max: 1, Optional: true, Group: "load"},
 		},
 		Reference: "Gm1",
 		Ports: []PortDef{
 			{Name: "in", Title: "input, as Vin sees it (Rs plus the base)", A: "in", B: "gnd"},
-			{Name: "out", Title: "collector to ground", A: "c", B: "gnd"},
+			{Name: "out", Title: "collector to gnd", A: "c", B: "gnd"},
 		},
 		Gain:      &GainDef{Source: "Vin", Output: "c", Unit: "V/V", Title: "gain from the source to the collector"},
 		Frequency: 1e6,

@@ -9,15 +9,26 @@ import (
 	"sort"
 	"strings"
 
+	"zport/engine/circuit"
 	"zport/engine/value"
 )
 
-// Param describes one parameter of a stage.
+// Param describes one parameter of a stage. Its symbol, unit and label
+// come from the glossary (see Term), filled in when the stage registers:
+// a stage writes only what is its own — the role of a part whose role
+// differs between stages (Meaning), or what it adds to the glossary's
+// label (Note).
 type Param struct {
-	Name    string  // key, e.g. "R1", "a0"
-	Symbol  string  // display symbol, e.g. "R₁", "a₀"
-	Meaning string  // e.g. "input resistor"
-	Unit    string  // "Ω", "F", "Hz", "S", "A", "" …
+	Name    string // key, e.g. "R1", "a0"
+	Symbol  string // display symbol, e.g. "R₁", "a₀" (from the glossary)
+	Meaning string // e.g. "input resistor, source to summing node"
+	Unit    string // "Ω", "F", "Hz", "S", "A", "" … (from the glossary)
+	// Term names the parameter's glossary entry when it is not Name.
+	Term string
+	// Note follows the glossary's label in Meaning: where the part sits,
+	// what leaving it empty means (", source to summing node",
+	// " (empty: none)").
+	Note    string
 	Default string  // in value syntax, e.g. "10k"; "" for an absent optional
 	Min     float64 // allowed range, inclusive
 	Max     float64
@@ -25,6 +36,9 @@ type Param struct {
 	// absent is infinite). Values omits them.
 	Optional bool
 	Group    string // "amplifier", "network", "source", "load"
+	// Decibels: a dimensionless gain that may also be typed in decibels,
+	// 20·log10 of the gain (100dB is 1e5; value.ParseGain).
+	Decibels bool
 }
 
 // PortDef is a port of the generated circuit.
@@ -51,6 +65,17 @@ type Sweep struct {
 // Values holds a stage's parsed parameters; an absent optional parameter
 // has no key.
 type Values map[string]float64
+
+// TemperatureKey is the key under which Values may carry the analysis
+// temperature in kelvin. It is the request's setting, not a parameter of
+// the stage: a stage whose circuit has transistors given by their bias
+// reads it with Kelvin, so that its closed forms use the VT = kT/q at which
+// its generated text is parsed.
+const TemperatureKey = "temperature"
+
+// Kelvin returns the analysis temperature v carries, or
+// circuit.DefaultTemperature.
+func (v Values) Kelvin() float64 { return v.Or(TemperatureKey, circuit.DefaultTemperature) }
 
 // Has reports whether the optional parameter name is present.
 func (v Values) Has(name string) bool { _, ok := v[name]; return ok }
@@ -138,10 +163,15 @@ func (e *ParamError) Error() string { return e.Param + ": " + e.Msg }
 
 var catalog []*Topology
 
-func register(t *Topology) { catalog = append(catalog, t) }
+func register(t *Topology) {
+	for i := range t.Params {
+		t.Params[i] = glossed(t.Params[i])
+	}
+	catalog = append(catalog, t)
+}
 
 // order fixes the catalog's order on every page.
-var order = []string{"inverting", "noninverting", "follower", "transimpedance", "difference", "howland", "integrator", "capload", "degenerated", "shuntfeedback"}
+var order = []string{"inverting", "noninverting", "follower", "transimpedance", "difference", "howland", "integrator", "capload", "degenerated", "shuntfeedback", "boostedcascode", "emitterfollower", "miller"}
 
 // Catalog returns the stages in catalog order.
 func Catalog() []*Topology {
@@ -209,7 +239,13 @@ func (t *Topology) Values(params map[string]string) (Values, error) {
 			}
 			return nil, &ParamError{p.Name, fmt.Sprintf("%s (%s) needs a value", p.Symbol, p.Meaning)}
 		}
-		x, err := value.Parse(s, p.Unit)
+		var x float64
+		var err error
+		if p.Decibels {
+			x, err = value.ParseGain(s)
+		} else {
+			x, err = value.Parse(s, p.Unit)
+		}
 		if err != nil {
 			var se *value.SyntaxError
 			msg := err.Error()

@@ -19,10 +19,11 @@ const srcRefTIA = "REFERENCES.md §5 transimpedance Cf check [derived]"
 func TestTransimpedanceCfCheck(t *testing.T) {
 	fs := opmForms(t, "transimpedance", tiaCheck, 1e3)
 	opmWant(t, "Ci", opmExtra(t, fs, "Ci (summing-node capacitance)"), "20e-12", srcRefTIA)
-	opmWant(t, "Cf 45°", opmExtra(t, fs, "Cf (45° rule)"), "0.5642e-12", srcRefTIA)
-	opmWant(t, "Q 45°", opmExtra(t, fs, "Q with Cf (45° rule)"), "0.986", srcRefTIA)
-	opmWant(t, "PM 45°", opmExtra(t, fs, "phase margin with Cf (45° rule)"), "52.52", srcRefTIA)
-	opmWant(t, "crossover 45°", opmExtra(t, fs, "crossover with Cf (45° rule)"), "351.6e3", srcRefTIA)
+	// The classic formula's name says the margin it really gives.
+	opmWant(t, "Cf “45°”", opmExtra(t, fs, "Cf (classic “45°” formula, gives 52.5°)"), "0.5642e-12", srcRefTIA)
+	opmWant(t, "Q “45°”", opmExtra(t, fs, "Q with Cf (classic “45°” formula)"), "0.986", srcRefTIA)
+	opmWant(t, "PM “45°”", opmExtra(t, fs, "phase margin with Cf (classic “45°” formula)"), "52.52", srcRefTIA)
+	opmWant(t, "crossover “45°”", opmExtra(t, fs, "crossover with Cf (classic “45°” formula)"), "351.6e3", srcRefTIA)
 	opmWant(t, "Cf Butterworth", opmExtra(t, fs, "Cf (Butterworth)"), "0.7977e-12", srcRefTIA)
 	opmWant(t, "Q Butterworth", opmExtra(t, fs, "Q with Cf (Butterworth)"), "0.7071", srcRefTIA)
 	opmWant(t, "PM Butterworth", opmExtra(t, fs, "phase margin with Cf (Butterworth)"), "65.83", srcRefTIA)

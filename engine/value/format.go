@@ -17,8 +17,16 @@ var formatPrefixes = []struct {
 // Format writes v in engineering notation with sig significant digits
 // (at least 1) and an SI prefix chosen so the mantissa lies in [1, 1000),
 // followed by unit. Zero is written "0 unit"; values beyond the prefix range
-// fall back to an exponent. Non-finite values are written "—" so a page never
-// shows NaN or Inf.
+// (below 1 f or from 1000 T) fall back to an exponent, "4.941×10^-324 Hz".
+// Non-finite values are written "—" so a page never shows NaN or Inf.
+//
+// The digits are those of the shortest decimal that reads back as v (Go's
+// strconv and JavaScript's Number both give it), rounded half up to sig
+// digits: 0.15 written with one digit is 0.2, as it was typed. Every
+// float64, from the smallest subnormal to the largest, is written without
+// overflow (a subnormal's digits come from its exact value). The pages' script formats its chart readouts the same way
+// (formatValue in site/assets/plothover.js, held to this function by a
+// browser test).
 func Format(v float64, unit string, sig int) string {
 	if sig < 1 {
 		sig = 1
@@ -38,22 +46,29 @@ func Format(v float64, unit string, sig int) string {
 		sign = "−" // U+2212, the typographic minus
 		v = -v
 	}
-	// Round to sig digits first, so 999.96 becomes 1.00 k rather than 1000.
-	e := int(math.Floor(math.Log10(v)))
-	scale := math.Pow10(sig - 1 - e)
-	r := math.Round(v*scale) / scale
-	if r >= math.Pow10(e+1) {
-		e++
-	}
+	digits, e := roundDigits(v, sig)
 	eng := 3 * int(math.Floor(float64(e)/3))
 	if eng < formatPrefixes[0].exp || eng > formatPrefixes[len(formatPrefixes)-1].exp {
-		s := strconv.FormatFloat(r, 'e', sig-1, 64)
-		return sign + strings.Replace(s, "e", "×10^", 1) + sep + unit
+		mant := digits[:1]
+		if sig > 1 {
+			mant += "." + digits[1:]
+		}
+		exp := strconv.Itoa(max(e, -e))
+		if len(exp) < 2 {
+			exp = "0" + exp
+		}
+		if e < 0 {
+			exp = "-" + exp
+		} else {
+			exp = "+" + exp
+		}
+		return sign + mant + "×10^" + exp + sep + unit
 	}
-	m := r / math.Pow10(eng)
-	decimals := sig - 1 - (e - eng)
-	if decimals < 0 {
-		decimals = 0
+	// The mantissa has e−eng+1 digits before its point.
+	whole := e - eng + 1
+	mant := digits + strings.Repeat("0", max(0, whole-sig))
+	if sig > whole {
+		mant = digits[:whole] + "." + digits[whole:]
 	}
 	sym := ""
 	for _, p := range formatPrefixes {
@@ -66,7 +81,46 @@ func Format(v float64, unit string, sig int) string {
 	} else if sym != "" || unit != "" {
 		sep = " "
 	}
-	return sign + strconv.FormatFloat(m, 'f', decimals, 64) + sep + sym + unit
+	return sign + mant + sep + sym + unit
+}
+
+// smallestNormal is the smallest positive float64 with a full 53-bit
+// significand; below it (the subnormals) precision falls away bit by bit.
+const smallestNormal = 0x1p-1022
+
+// roundDigits returns the first sig significant digits of v > 0, rounded
+// half up from the shortest decimal that reads back as v, and the power of
+// ten of the first: ("471", 3) for 4705.2 and sig 3. A subnormal's shortest
+// decimal can have fewer digits than its value deserves (the smallest is
+// "5e-324", and is 4.94…e-324), so its digits are rounded from its exact
+// value instead; a tie is impossible there.
+func roundDigits(v float64, sig int) (digits string, exp int) {
+	prec := -1
+	if v < smallestNormal {
+		prec = sig - 1
+	}
+	s := strconv.FormatFloat(v, 'e', prec, 64) // "4.7052e+03", "5e-324"
+	i := strings.IndexByte(s, 'e')
+	exp, _ = strconv.Atoi(s[i+1:])
+	d := []byte(s[:1] + strings.Replace(s[1:i], ".", "", 1))
+	if len(d) <= sig {
+		return string(d) + strings.Repeat("0", sig-len(d)), exp
+	}
+	up := d[sig] >= '5'
+	d = d[:sig]
+	for k := sig - 1; up && k >= 0; k-- {
+		if d[k] == '9' {
+			d[k] = '0'
+			continue
+		}
+		d[k]++
+		up = false
+	}
+	if up { // 9.99… became 10.0…
+		d[0] = '1'
+		exp++
+	}
+	return string(d), exp
 }
 
 // Exact writes x so that Parse reads back exactly the same float64, as

@@ -1,43 +1,33 @@
-// aids.js: the "Design aids" section of a calculator — tolerance spread,
-// standard values and sensitivity. Plain JavaScript, a classic script run
-// after zport.js. It inserts no user text as HTML: every piece of markup it
-// inserts was rendered (and escaped) in Go by package zport/site/render
-// through the engine's bridge; messages go through textContent.
+// aids.js: the "Design aids" section of every calculator — tolerance
+// spread, standard values and sensitivity — on the stage pages and the
+// custom-circuit page alike. Plain JavaScript, a classic script run after
+// zport.js, whose engine and helpers it uses through globalThis.zportSite.
+// It inserts no user text as HTML: every piece of markup it inserts was
+// rendered (and escaped) in Go by package zport/site/calc through the
+// engine's bridge; messages go through textContent.
 //
 // Nothing runs at page start. The section is collapsed; opening it renders
 // its settings (a list of the circuit's parts) and computes the standard
 // values and sensitivities, which then follow the calculator while the
 // section is open: a quarter second after the last edit, each in a task of
 // its own (together some tens of milliseconds in the engine, too much to
-// redo on every key). The tolerance study runs only on "Run", in
-// slices of about 8 ms of engine time each, one task at a time, so the
-// page keeps answering; Cancel stops it and keeps the previous results.
+// redo on every key). The tolerance study runs only on "Run", in slices of
+// about 8 ms of engine time each, one task at a time, so the page keeps
+// answering (zportSite.runSliced); Cancel stops it and keeps the previous
+// results.
 //
-// On the topology pages this script attaches itself to every calculator of
-// zport.js (the element [data-role="aids"] inside [data-calculator]) and
-// speaks to it through three events on the calculator element:
-//   zport:computed  (from zport.js) a new result; detail is the panel
+// The section attaches itself to every calculator element
+// ([data-calculator] or [data-circuit-editor], with a [data-role="aids"]
+// slot) and follows it through three events on that element:
+//   zport:computed  (from the calculator) a new result; detail is the panel
 //                   output, whose form is the circuit the aids study
-//   zport:link      (from zport.js) settings read from the URL fragment;
-//                   detail is the form, whose study (if any) is restored
-//   zport:study     (to zport.js) the study settings changed; detail is
-//                   the study, which zport.js writes into the share link
-//
-// Other pages (a circuit of the user's own) mount the same section:
-//
-//   var aids = zportAids.mount(containerElement, {
-//     id: 'custom',                       // prefix of element ids
-//     request: function () { return req },// the engine request (circuit,
-//                                         // reference, ports, gain,
-//                                         // frequency), without aid keys
-//     study: null,                        // settings to start from, or
-//     fragment: 'aid.tol=J&aid.seed=7',   // ... the same from a share link
-//     onStudy: function (study, state) {} // settings changed; state is the
-//                                         // study as "aid.…" fragment pairs
-//   });
-//   aids.update();    // after every change of the circuit
-//   aids.study();     // the current settings; aids.state() as fragment pairs
-//   aids.setStudy(s); aids.open(); aids.cancel();
+//   zport:link      (from the calculator) settings read from the URL
+//                   fragment; detail is the form, whose settings.aid (if
+//                   any) are restored
+//   zport:settings  (to the calculator) the settings changed; detail is
+//                   {key: "aid", values}, the study as the engine's
+//                   calc.Study settings ("tol", "tol.R1", "seed", "t1" …),
+//                   which the calculator keeps in its form and share link
 //
 // Performance marks for the benchmark (go run ./build/bench): a measure
 // "zport-tolerance" from Run to the results on the page, with
@@ -46,65 +36,24 @@
 (function () {
   'use strict';
 
-  var root = document.documentElement;
-  var SLICE_MS = 8; // engine time per slice
+  var site = globalThis.zportSite;
+  if (!site) return;
   var REFRESH_MS = 250; // quiet time before the fast panels follow an edit
-  var controllers = {};
+  var KEY = 'aid'; // the analysis's key (calc.designAids)
 
-  function engine() {
-    var z = globalThis.zport;
-    return root.getAttribute('data-engine') === 'ready' && z && typeof z.aidsForm === 'function' ? z : null;
-  }
-
-  function parse(text) {
-    try {
-      return JSON.parse(text);
-    } catch (e) {
-      return { error: { message: 'the engine gave an unreadable answer' } };
-    }
-  }
-
-  // insert replaces el's content by markup rendered and escaped in Go.
-  function insert(el, html) {
-    var tpl = document.createElement('template');
-    tpl.innerHTML = html;
-    el.replaceChildren(tpl.content);
-  }
-
-  // later runs fn in a task of its own, soon: a MessageChannel task is not
-  // throttled as nested timers are, and input and painting get their turn
-  // between tasks.
-  var queue = [];
-  var channel = new MessageChannel();
-  channel.port1.onmessage = function () {
-    var fn = queue.shift();
-    if (fn) fn();
-  };
-  function later(fn) {
-    queue.push(fn);
-    channel.port2.postMessage(0);
-  }
-
-  function cssName(s) {
-    return String(s).replace(/["\\]/g, '');
-  }
-
-  function empty(study) {
-    if (!study) return true;
-    for (var k in study) {
-      var v = study[k];
-      if (v && (typeof v !== 'object' || Object.keys(v).length)) return false;
-    }
+  function empty(values) {
+    if (!values) return true;
+    for (var k in values) if (values[k]) return false;
     return true;
   }
 
   // ---- one section ----
 
-  function Aids(container, opt) {
-    this.opt = opt || {};
-    this.id = this.opt.id || 'aids';
-    this.studyObj = this.opt.study || null;
-    this.fragment = typeof this.opt.fragment === 'string' ? this.opt.fragment : null;
+  function Aids(host, slot) {
+    this.host = host;
+    this.id = host.id;
+    this.values = null; // the settings before the form is rendered
+    this.form = null; // the calculator's last computed form
     this.rendered = false;
     this.partsKey = null;
     this.job = null;
@@ -127,7 +76,7 @@
     body.appendChild(p);
     d.appendChild(s);
     d.appendChild(body);
-    container.appendChild(d);
+    slot.appendChild(d);
     this.details = d;
     this.body = body;
 
@@ -145,43 +94,46 @@
       e.preventDefault();
       self.run();
     });
-    if (engine()) this.enable();
+    host.addEventListener('zport:computed', function (e) {
+      if (!e.detail || !e.detail.form) return;
+      self.form = e.detail.form;
+      d.hidden = false;
+      self.update();
+    });
+    host.addEventListener('zport:link', function (e) {
+      var values = e.detail && e.detail.settings && e.detail.settings[KEY];
+      if (empty(values)) return;
+      self.setValues(values);
+      self.open();
+    });
   }
 
-  Aids.prototype.enable = function () {
-    this.details.hidden = false;
-  };
-
-  // base is the circuit part of every call: {form} or {request}.
-  Aids.prototype.base = function () {
-    var r = this.opt.request ? this.opt.request() : null;
-    if (!r) return null;
-    return r.form ? { form: r.form } : { request: r };
+  // input is what every bridge call takes: the calculator's form with the
+  // study's settings (calc.AidsInput).
+  Aids.prototype.input = function (extra) {
+    if (!this.form) return null;
+    var f = Object.assign({}, this.form);
+    f.settings = Object.assign({}, f.settings);
+    f.settings[KEY] = this.current();
+    f.fragment = undefined;
+    f.csv = undefined;
+    f.pins = undefined; // the studies are of the current design
+    // On a phone, this section's charts are drawn for its own column.
+    f.chartWidth = site.chartWidth(this.details.querySelector('[data-role="aids-content"]')) || undefined;
+    return Object.assign({ form: f }, extra);
   };
 
   // circuitKey changes when the circuit or its spot frequency does.
   Aids.prototype.circuitKey = function () {
-    var b = this.base();
-    if (!b) return '';
-    if (b.form) return JSON.stringify([b.form.topology, b.form.params, b.form.circuit, b.form.frequency]);
-    return JSON.stringify(b.request);
-  };
-
-  Aids.prototype.input = function (extra) {
-    var b = this.base();
-    if (!b) return null;
-    b.id = this.id;
-    if (this.fragment !== null && !this.studyObj) b.fragment = this.fragment;
-    else b.study = this.studyObj || {};
-    for (var k in extra) b[k] = extra[k];
-    return b;
+    var f = this.form;
+    if (!f) return '';
+    return JSON.stringify([f.topology, f.params, f.circuit, f.reference, f.ports, f.gain, f.frequency]);
   };
 
   Aids.prototype.call = function (name, extra) {
-    var z = engine();
     var input = this.input(extra);
-    if (!z || !input) return { error: { message: 'the live engine is not running' } };
-    return parse(z[name](JSON.stringify(input)));
+    if (!input) return Promise.resolve({ error: { message: 'the calculator has no result yet' } });
+    return site.call(name, input);
   };
 
   Aids.prototype.open = function () {
@@ -189,109 +141,93 @@
   };
 
   Aids.prototype.opened = function () {
-    if (!engine()) return;
-    if (!this.rendered) this.renderForm();
-    this.refresh();
+    if (!site.ready()) return;
+    var self = this;
+    (this.rendered ? Promise.resolve() : this.renderForm()).then(function () { self.refresh(); });
   };
 
-  // renderForm (re)draws the settings, keeping what is typed.
+  // renderForm (re)draws the settings, keeping what is typed; a promise.
   Aids.prototype.renderForm = function () {
-    if (this.rendered) this.studyObj = this.collect();
-    var out = this.call('aidsForm');
-    if (out.error) {
-      var msg = document.createElement('p');
-      msg.className = 'calc-notice';
-      msg.setAttribute('role', 'alert');
-      msg.textContent = 'The design aids cannot start: ' + out.error.message;
-      this.body.replaceChildren(msg);
-      this.rendered = false;
-      return;
-    }
-    var results = this.rendered ? this.body.querySelector('[data-role="tolerance-results"]') : null;
-    var kept = results ? Array.prototype.slice.call(results.childNodes) : [];
-    var status = this.rendered ? this.q('[data-role="run-status"]').textContent : '';
-    insert(this.body, out.html);
-    if (kept.length) this.q('[data-role="tolerance-results"]').replaceChildren.apply(this.q('[data-role="tolerance-results"]'), kept);
-    if (status) this.q('[data-role="run-status"]').textContent = status;
-    this.rendered = true;
-    this.partsKey = out.parts;
-    if (out.study) this.studyObj = out.study;
-    this.fragment = null;
-    this.panelsKey = null;
-    this.setRunning(!!this.job);
+    if (this.rendered) this.values = this.collect();
+    var self = this;
+    return this.call('aidsForm').then(function (out) {
+      if (out.error) {
+        var msg = document.createElement('p');
+        msg.className = 'calc-notice';
+        msg.setAttribute('role', 'alert');
+        msg.textContent = 'The design aids cannot start: ' + out.error.message;
+        self.body.replaceChildren(msg);
+        self.rendered = false;
+        return;
+      }
+      var results = self.rendered ? self.q('[data-role="tolerance-results"]') : null;
+      var kept = results ? Array.prototype.slice.call(results.childNodes) : [];
+      var status = self.rendered ? self.q('[data-role="run-status"]').textContent : '';
+      site.insert(self.body, out.html);
+      if (kept.length) self.q('[data-role="tolerance-results"]').replaceChildren.apply(self.q('[data-role="tolerance-results"]'), kept);
+      if (status) self.q('[data-role="run-status"]').textContent = status;
+      self.rendered = true;
+      self.partsKey = out.parts;
+      self.panelsKey = null;
+      self.setRunning(!!self.job);
+    });
   };
 
   Aids.prototype.q = function (sel) {
     return this.body.querySelector(sel);
   };
 
-  // collect reads the settings as typed into a render.Study.
+  // collect reads the settings as typed into the study's settings
+  // (calc.Study.Values): "tol", "tol.NAME", "a0.NAME", "gbw.NAME",
+  // "dist", "seed", "n", "t1" … "t8", "e", "ec"; empty ones left out.
   Aids.prototype.collect = function () {
-    var b = this.body, s = {};
+    var b = this.body, v = {};
+    var put = function (k, x) { if (x && x.trim() !== '') v[k] = x; };
     var val = function (sel) {
       var el = b.querySelector(sel);
       return el ? el.value : '';
     };
-    s.tolerance = val('[data-study="tolerance"]');
+    put('tol', val('[data-study="tolerance"]'));
     var parts = b.querySelectorAll('[data-study="part"]');
-    for (var i = 0; i < parts.length; i++) {
-      if (parts[i].value.trim() === '') continue;
-      s.parts = s.parts || {};
-      s.parts[parts[i].getAttribute('data-name')] = parts[i].value;
-    }
+    for (var i = 0; i < parts.length; i++) put('tol.' + parts[i].getAttribute('data-name'), parts[i].value);
     var amps = b.querySelectorAll('[data-study^="a0Min-"], [data-study^="gbwMin-"]');
     for (var j = 0; j < amps.length; j++) {
-      if (amps[j].value.trim() === '') continue;
-      var name = amps[j].getAttribute('data-name');
-      s.amps = s.amps || {};
-      s.amps[name] = s.amps[name] || {};
-      s.amps[name][amps[j].getAttribute('data-study').indexOf('a0Min') === 0 ? 'a0Min' : 'gbwMin'] = amps[j].value;
+      var a0 = amps[j].getAttribute('data-study').indexOf('a0Min') === 0;
+      put((a0 ? 'a0.' : 'gbw.') + amps[j].getAttribute('data-name'), amps[j].value);
     }
-    s.distribution = val('[data-study="distribution"]');
-    s.seed = val('[data-study="seed"]');
-    s.trials = val('[data-study="trials"]');
+    put('dist', val('[data-study="distribution"]'));
+    put('seed', val('[data-study="seed"]'));
+    put('n', val('[data-study="trials"]'));
     var rows = b.querySelectorAll('[data-role="targets"] > [data-role="target"]');
     for (var k = 0; k < rows.length; k++) {
       var q = rows[k].querySelector('[data-study="target-quantity"]').value;
-      var c = q.indexOf(':');
-      var t = {
-        quantity: c < 0 ? q : q.slice(0, c),
-        op: rows[k].querySelector('[data-study="target-op"]').value,
-        value: rows[k].querySelector('[data-study="target-value"]').value
-      };
-      if (c >= 0) t.port = q.slice(c + 1);
-      s.targets = s.targets || [];
-      s.targets.push(t);
+      var op = rows[k].querySelector('[data-study="target-op"]').value;
+      var x = rows[k].querySelector('[data-study="target-value"]').value;
+      v['t' + (k + 1)] = q + op + x;
     }
-    s.series = val('[data-study="series"]');
-    s.capacitorSeries = val('[data-study="capSeries"]');
-    return s;
+    put('e', val('[data-study="series"]'));
+    put('ec', val('[data-study="capSeries"]'));
+    return v;
   };
 
-  Aids.prototype.study = function () {
-    return this.rendered ? this.collect() : this.studyObj;
+  // current is the study's settings: as typed, or as last set.
+  Aids.prototype.current = function () {
+    return this.rendered ? this.collect() : this.values || {};
   };
 
-  // state is the study as URL fragment pairs ("aid.…"), from the engine.
-  Aids.prototype.state = function () {
-    var out = this.call('aidsStudy');
-    return out.error ? '' : out.state || '';
-  };
-
-  Aids.prototype.setStudy = function (study) {
-    this.studyObj = study || null;
-    this.fragment = null;
+  Aids.prototype.setValues = function (values) {
+    this.values = values || null;
     if (this.rendered) {
       this.rendered = false; // drop what is typed: the new settings win
-      this.renderForm();
-      this.refresh();
+      var self = this;
+      this.renderForm().then(function () { self.refresh(); });
     }
   };
 
-  // notify tells the page that the settings changed.
+  // notify tells the calculator that the settings changed.
   Aids.prototype.notify = function () {
-    this.studyObj = this.collect();
-    if (this.opt.onStudy) this.opt.onStudy(this.studyObj, this.state());
+    this.values = this.collect();
+    this.host.dispatchEvent(new CustomEvent('zport:settings', { detail: { key: KEY, values: this.values } }));
   };
 
   Aids.prototype.edited = function (el) {
@@ -366,8 +302,7 @@
   };
 
   Aids.prototype.clearMessages = function () {
-    var bad = this.body.querySelectorAll('[aria-invalid="true"]');
-    for (var i = 0; i < bad.length; i++) this.clearMessage(bad[i]);
+    site.clearFieldErrors(this.body);
     var n = this.q('[data-role="tolerance-msg"]');
     if (n) {
       n.hidden = true;
@@ -381,37 +316,18 @@
     var p = err.param || '';
     var m = /^tolerance\.targets\[(\d+)\]\.port$/.exec(p);
     if (m) p = 'tolerance.targets[' + m[1] + '].quantity';
-    var el = p ? this.body.querySelector('[data-param="' + cssName(p) + '"]') : null;
-    if (el) {
-      el.setAttribute('aria-invalid', 'true');
-      var holder = el.closest('.field, td, li');
-      var msg = holder && holder.querySelector('[data-role="msg"]');
-      if (msg) {
-        msg.textContent = err.message;
-        return;
-      }
-    }
+    if (site.showFieldError(this.body, { param: p, message: err.message })) return;
     var box = notice || this.q('[data-role="tolerance-msg"]');
     if (!box) return;
     var where = err.line ? 'line ' + err.line + ', column ' + err.column + ': ' : '';
-    box.textContent = where + (p && !el ? p + ': ' : '') + err.message;
+    box.textContent = where + (p ? p + ': ' : '') + err.message;
     box.hidden = false;
   };
 
   // ---- the tolerance study ----
 
-  // setRunning switches the Run and Cancel buttons, handing the focus
-  // from the one being disabled to the other.
   Aids.prototype.setRunning = function (on) {
-    var run = this.q('[data-aid-action="run"]');
-    var cancel = this.q('[data-aid-action="cancel"]');
-    var bar = this.q('[data-role="progress"]');
-    var focus = document.activeElement;
-    if (run) run.disabled = on;
-    if (cancel) cancel.disabled = !on;
-    if (bar) bar.hidden = !on;
-    if (on && focus === run && cancel) cancel.focus();
-    if (!on && focus === cancel && run) run.focus();
+    site.runButtons(this.q('[data-aid-action="run"]'), this.q('[data-aid-action="cancel"]'), this.q('[data-role="progress"]'), on);
   };
 
   Aids.prototype.setState = function (state) {
@@ -419,24 +335,30 @@
   };
 
   Aids.prototype.run = function () {
-    var z = engine();
-    if (!z || this.job || !this.rendered) return;
+    if (!site.ready() || this.job || !this.rendered) return;
     this.clearMessages();
     this.notify(); // the share link gets the seed of this study
     var t0 = performance.now();
-    var started = this.call('toleranceStart');
-    if (started.error) {
-      this.showError(started.error);
-      this.say('Not run: see the marked setting.');
-      this.setState('error');
-      return;
-    }
-    this.job = { run: started.run, total: started.total, t0: t0, engineMs: 0, n: 25, key: this.circuitKey() };
+    var job = { t0: t0, engineMs: 0, n: 25, key: this.circuitKey() };
+    this.job = job;
     this.setRunning(true);
-    this.setState('running');
-    this.progress(0, started.total);
-    var self = this, job = this.job;
-    later(function () { self.slice(job); });
+    var self = this;
+    this.call('toleranceStart').then(function (started) {
+      if (self.job !== job) return;
+      if (started.error) {
+        self.job = null;
+        self.setRunning(false);
+        self.showError(started.error);
+        self.say('Not run: see the marked setting.');
+        self.setState('error');
+        return;
+      }
+      job.run = started.run;
+      job.total = started.total;
+      self.setState('running');
+      self.progress(0, started.total);
+      self.slice(job);
+    });
   };
 
   // progress moves the bar on every slice, and the words (which a screen
@@ -455,35 +377,13 @@
   };
 
   Aids.prototype.slice = function (job) {
-    if (!job || job !== this.job) return; // cancelled
-    var z = engine();
-    if (!z) return this.stop('The live engine stopped; the study did not finish.');
-    var t = performance.now();
-    var st = parse(z.toleranceStep(job.run, job.n));
-    var dt = performance.now() - t;
-    job.engineMs += dt;
-    if (st.error) return this.stop('The study stopped: ' + st.error.message);
-    // Aim each slice at SLICE_MS of engine time, changing by at most 2×.
-    var f = Math.min(2, Math.max(0.5, SLICE_MS / Math.max(dt, 0.25)));
-    job.n = Math.max(1, Math.min(2000, Math.round(job.n * f)));
-    this.progress(st.done, st.total);
-    if (st.done < st.total) {
-      var self = this;
-      later(function () { self.slice(job); });
-      return;
-    }
-    this.finish();
-  };
-
-  // finish renders the panel in one task and puts it on the page in the
-  // next, so neither holds the page for long.
-  Aids.prototype.finish = function () {
-    var job = this.job, z = engine();
-    var out = parse(z.tolerancePanel(job.run));
-    z.toleranceRelease(job.run);
     var self = this;
-    later(function () {
-      if (self.job === job) self.show(job, out);
+    site.runSliced(job, {
+      step: 'toleranceStep', panel: 'tolerancePanel', release: 'toleranceRelease', max: 2000,
+      live: function () { return self.job === job; },
+      progress: function (done, total) { self.progress(done, total); },
+      done: function (out) { self.show(job, out); },
+      stopped: function (why) { self.stop('The study stopped: ' + why + '.'); }
     });
   };
 
@@ -495,7 +395,7 @@
       return this.say('The results could not be shown: ' + out.error.message);
     }
     var results = this.q('[data-role="tolerance-results"]');
-    insert(results, out.html);
+    site.insert(results, out.html);
     results.classList.remove('is-stale');
     this.resultKey = job.key;
     if (job.key !== this.circuitKey()) this.markStale();
@@ -508,8 +408,8 @@
   };
 
   Aids.prototype.stop = function (text) {
-    var job = this.job, z = engine();
-    if (job && z) z.toleranceRelease(job.run);
+    var job = this.job;
+    if (job && job.run) site.call('toleranceRelease', job.run);
     this.job = null;
     this.setRunning(false);
     this.setState('cancelled');
@@ -522,18 +422,12 @@
     var bar = this.q('[data-role="progress"]');
     var done = bar ? bar.value : 0;
     var had = this.q('[data-role="tolerance-results"] [data-aid="tolerance"]');
-    this.stop('Cancelled after ' + done + ' of ' + job.total + '. ' +
+    this.stop('Cancelled after ' + done + ' of ' + (job.total || 0) + '. ' +
       (had ? 'The results below are from the previous run.' : 'No results yet.'));
   };
 
   Aids.prototype.markStale = function () {
-    var results = this.q('[data-role="tolerance-results"]');
-    if (!results || !results.firstChild || results.classList.contains('is-stale')) return;
-    results.classList.add('is-stale');
-    var note = document.createElement('p');
-    note.className = 'stale-note';
-    note.textContent = 'Out of date: these results are for earlier values of the circuit. Run the study again.';
-    results.insertBefore(note, results.firstChild);
+    site.staleResults(this.q('[data-role="tolerance-results"]'), 'Out of date: these results are for earlier values of the circuit. Run the study again.');
   };
 
   // ---- standard values and sensitivity ----
@@ -552,40 +446,45 @@
   // between them: the part list, the standard values, the sensitivities.
   Aids.prototype.refresh = function () {
     clearTimeout(this.refreshTimer);
-    if (!this.details.open || !this.rendered || !engine()) return;
+    if (!this.details.open || !this.rendered || !site.ready()) return;
     var self = this;
-    later(function () {
-      if (!self.details.open || !engine()) return;
-      var probe = self.call('aidsForm'); // the part list only; no analysis
-      if (!probe.error && probe.parts !== self.partsKey) self.renderForm();
-      var key = self.circuitKey() + '|' + self.val('series') + '|' + self.val('capSeries');
-      if (key === self.panelsKey) return;
-      var t0 = performance.now();
-      self.panel('standard');
-      later(function () {
-        self.panel('sensitivity');
-        self.panelsKey = key;
-        performance.measure('zport-aids-panels', { start: t0, end: performance.now() });
+    site.later(function () {
+      if (!self.details.open || !site.ready()) return;
+      self.call('aidsForm').then(function (probe) { // the part list only; no analysis
+        var redraw = !probe.error && probe.parts !== self.partsKey ? self.renderForm() : Promise.resolve();
+        return redraw;
+      }).then(function () {
+        var key = self.circuitKey() + '|' + self.val('series') + '|' + self.val('capSeries');
+        if (key === self.panelsKey) return;
+        var t0 = performance.now();
+        self.panel('standard').then(function () {
+          site.later(function () {
+            self.panel('sensitivity').then(function () {
+              self.panelsKey = key;
+              performance.measure('zport-aids-panels', { start: t0, end: performance.now() });
+            });
+          });
+        });
       });
     });
   };
 
   // panel computes and shows one of the fast panels, "standard" or
-  // "sensitivity".
+  // "sensitivity"; a promise.
   Aids.prototype.panel = function (which) {
     var t0 = performance.now();
-    var out = this.call('aidsPanels', { only: which, study: this.collect(), fragment: undefined });
-    var el = this.q('[data-role="' + which + '-results"]');
-    var err = out.error || out[which + 'Error'];
-    if (err) {
-      var sel = err.param ? this.body.querySelector('[data-param="' + cssName(err.param) + '"]') : null;
-      if (sel) this.showError(err);
-      else this.failed(el, err);
-    } else if (el) {
-      insert(el, out[which]);
-    }
-    void this.body.offsetHeight;
-    performance.measure('zport-aids-' + which, { start: t0, end: performance.now() });
+    var self = this;
+    return this.call('aidsPanels', { only: which }).then(function (out) {
+      var el = self.q('[data-role="' + which + '-results"]');
+      var err = out.error || out[which + 'Error'];
+      if (err) {
+        if (!site.showFieldError(self.body, err)) self.failed(el, err);
+      } else if (el) {
+        site.insert(el, out[which]);
+      }
+      void self.body.offsetHeight;
+      performance.measure('zport-aids-' + which, { start: t0, end: performance.now() });
+    });
   };
 
   Aids.prototype.val = function (key) {
@@ -608,65 +507,9 @@
     this.refreshSoon();
   };
 
-  // ---- the topology pages ----
-
-  function attach(calc) {
-    var slot = calc.querySelector('[data-role="aids"]');
-    if (!slot || controllers[calc.id]) return;
-    var form = null;
-    var a = new Aids(slot, {
-      id: calc.id,
-      request: function () { return form ? { form: form } : null; },
-      onStudy: function (study) {
-        calc.dispatchEvent(new CustomEvent('zport:study', { detail: study }));
-      }
-    });
-    a.setForm = function (f) { form = f; };
-    controllers[calc.id] = a;
-    calc.addEventListener('zport:computed', function (e) {
-      if (!e.detail || !e.detail.form) return;
-      a.setForm(e.detail.form);
-      a.enable();
-      a.update();
-    });
-    calc.addEventListener('zport:link', function (e) {
-      var study = e.detail && e.detail.study;
-      if (empty(study)) return;
-      a.setStudy(study);
-      a.open();
-    });
+  var hosts = document.querySelectorAll('[data-calculator], [data-circuit-editor]');
+  for (var i = 0; i < hosts.length; i++) {
+    var slot = hosts[i].querySelector('[data-role="aids"]');
+    if (slot) new Aids(hosts[i], slot);
   }
-
-  var calcs = document.querySelectorAll('[data-calculator]');
-  for (var i = 0; i < calcs.length; i++) attach(calcs[i]);
-
-  // Show the sections once the engine runs (zport.js sets data-engine).
-  new MutationObserver(function () {
-    if (!engine()) return;
-    for (var id in controllers) controllers[id].enable();
-    for (var j = 0; j < mounted.length; j++) mounted[j].enable();
-  }).observe(root, { attributes: true, attributeFilter: ['data-engine'] });
-
-  var mounted = [];
-
-  // ---- the API for other pages ----
-
-  globalThis.zportAids = {
-    mount: function (container, opt) {
-      var a = new Aids(container, opt);
-      mounted.push(a);
-      return {
-        element: a.details,
-        update: function () { a.update(); },
-        study: function () { return a.study(); },
-        state: function () { return a.state(); },
-        setStudy: function (s) { a.setStudy(s); },
-        open: function () { a.open(); },
-        cancel: function () { a.cancel(); }
-      };
-    },
-    // byCalculator returns the section of a topology page's calculator,
-    // for tests and tools: zportAids.byCalculator('calc-inverting').
-    byCalculator: function (id) { return controllers[id] || null; }
-  };
 })();

@@ -7,7 +7,7 @@
 // escaped) by the engine in Go.
 //
 // On every edit, once per animation frame at most (never queued), one
-// engine call (zport.circuit, render.ComputeCircuit) parses the text once,
+// engine call (zport.circuit, calc.ComputeCircuit) parses the text once,
 // lists what it offers the pickers or every error with its line and
 // column, fits the pickers' choices to the text, and analyzes and renders
 // the panel. Errors are marked in the gutter at their line, underlined at
@@ -24,9 +24,34 @@
 // and "zport-recompute").
 //
 // URL fragment: c=<the text, deflate-raw, base64url> followed by the
-// settings the engine writes (render.Form.CircuitState), e.g.
+// settings the engine writes (calc.Form.CircuitState), e.g.
 //   #c=…&ref=U1&port=out&src=Vin&out=out&f=100k&from=10&to=100M&points=400
 // The same encoding is used by the stage pages' "open as circuit" links.
+// The engine reads the settings by the site's one rule for links (see
+// zport/site/calc): what it cannot use is left out, the circuit's default
+// in its place, and its notice says which and why. A c= that cannot be
+// read (or is given twice) leaves the page's own circuit in place.
+//
+// The text, valid or not, and the choices are kept as a draft (zport.js):
+// a reload brings them back. Anything that replaces the user's own text —
+// a link, an example, a file — keeps it, with a button that restores it.
+//
+// Input limits: text is refused before the textarea takes it when it would
+// go past MAX_TEXT characters, however it arrives (beforeinput covers
+// typing, pasting, dropping, input methods, dictation and spelling fixes;
+// paste and drop are caught earlier still, and a dropped file is opened as
+// the Open button would). An insert no event could refuse (an input
+// method's composition) is undone. The work an edit causes runs once per
+// animation frame, so an insert that the browser delivers line by line
+// costs one update, not one per line.
+//
+// Pins (zportSite.PinBar) keep the text and choices as they are; a pin
+// whose text differs from the current one adds pinN.c=<its text, encoded
+// as c is> to the link. A paste over the whole text is a new circuit: the
+// example's description goes and every choice is made afresh.
+//
+// The design aids (aids.js) follow the editor through the same events as
+// a stage calculator's: zport:computed, zport:link and zport:settings.
 (function () {
   'use strict';
 
@@ -34,13 +59,13 @@
   var el = document.querySelector('[data-circuit-editor]');
   if (!site || !el) return;
 
-  var engine = null;
   var MAX_URL = Number(el.getAttribute('data-max-url')) || 2000;
   var MAX_TEXT = Number(el.getAttribute('data-max-text')) || 262144;
   var MAX_LISTED = 60; // errors listed and marked (the parser stops after 50)
   var SLOW_MS = 120; // a recompute slower than this throttles the next ones
   var BUDGET_MS = 300; // the sweep of one recompute; the engine shortens it to fit
   var GUTTER_SPARE = 40; // line numbers drawn beyond the visible ones
+  var BULK_LINES = 20; // an insertText of more lines goes in at once (see guard)
 
   function role(r) { return el.querySelector('[data-role="' + r + '"]'); }
 
@@ -86,6 +111,7 @@
     this.share = el.querySelector('[data-action="share"]');
     this.fileInput = role('file');
     this.examples = readExamples();
+    this.described = this.exampleSel.value; // the example whose description shows
     this.last = null; // the last good Output
     this.scheduled = false;
     this.lastCost = 0;
@@ -93,11 +119,18 @@
     this.signature = {};
     this.preset = null; // an example's settings, for the next recompute
     this.fresh = false; // the text came from a link or a file
-    this.saved = null; // the user's own text, kept when an example replaced it
-    this.lastHash = null;
+    this.saved = null; // the user's own text, kept when something replaced it
+    this.accepted = this.ta.value; // the text as of the last edit within the limit
+    this.editFrame = 0;
     this.linkSeq = 0;
+    this.seq = 0; // the latest recompute; an older answer is dropped
+    this.answered = 0; // the latest recompute answered (zportSite.settle)
+    this.outside = {}; // analyses' settings kept outside the form (aids.js)
     this.bootSeq = 0;
     this.metrics = null;
+    this.pasted = false; // the last input was a paste over the whole text
+    this.pinTexts = null; // a link's pins' texts by slot, for its first recompute
+    this.pins = new site.PinBar(this);
     this.wire();
     this.updateGutter();
   }
@@ -132,22 +165,42 @@
   Editor.prototype.wire = function () {
     var self = this;
     this.ta.addEventListener('input', function () {
-      self.updateGutter();
-      self.syncScroll();
-      self.markExample();
+      if (self.pasted) {
+        // A whole new text: what the pickers showed no longer applies, and
+        // nor does the example's description.
+        self.pasted = false;
+        self.fresh = true;
+        self.markExample(true);
+      }
+      self.afterEdit();
       self.schedule();
     });
     this.ta.addEventListener('scroll', function () { self.syncScroll(); });
-    // A paste that would take the text past the limit is refused before
-    // the textarea has to lay it out.
+    this.ta.addEventListener('beforeinput', function (e) { self.guard(e); });
     this.ta.addEventListener('paste', function (e) {
       var add = e.clipboardData ? e.clipboardData.getData('text/plain') : '';
-      var keep = self.ta.value.length - (self.ta.selectionEnd - self.ta.selectionStart);
-      if (add.length + keep > MAX_TEXT) {
+      if (self.tooLong(add.length, true, 'pasted')) {
         e.preventDefault();
-        self.fileMsg.textContent = 'Not pasted: the text would be ' + Math.round((add.length + keep) / 1024) +
-          ' KB, and circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
+        return;
       }
+      // A paste over the whole text is a new circuit (see the input
+      // listener).
+      var keep = self.ta.value.length - (self.ta.selectionEnd - self.ta.selectionStart);
+      self.pasted = keep === 0 && add.trim() !== '';
+    });
+    this.ta.addEventListener('dragover', function (e) {
+      if (hasFiles(e)) e.preventDefault(); // so that a file can be dropped
+    });
+    this.ta.addEventListener('drop', function (e) {
+      if (hasFiles(e)) {
+        // A file dropped on the text opens as the Open button would (the
+        // browser would otherwise leave the page for the file).
+        e.preventDefault();
+        self.openFile(e.dataTransfer.files[0]);
+        return;
+      }
+      var add = e.dataTransfer ? e.dataTransfer.getData('text/plain') : '';
+      if (self.tooLong(add.length, false, 'dropped')) e.preventDefault();
     });
     el.querySelector('[data-action="full-sweep"]').addEventListener('click', function () {
       self.full = true;
@@ -159,7 +212,10 @@
       e.preventDefault();
       self.schedule();
     });
-    var changed = function () { self.schedule(); };
+    var changed = function () {
+      self.keepDraft();
+      self.schedule();
+    };
     this.form.addEventListener('input', changed);
     this.form.addEventListener('change', changed);
     this.exampleSel.addEventListener('change', function () {
@@ -181,8 +237,82 @@
     el.querySelector('[data-action="open-file"]').addEventListener('click', function () { self.fileInput.click(); });
     var saves = el.querySelectorAll('[data-action="save-file"]');
     for (var i = 0; i < saves.length; i++) saves[i].addEventListener('click', function () { self.saveText(); });
-    this.fileInput.addEventListener('change', function () { self.openFile(); });
+    this.fileInput.addEventListener('change', function () {
+      var file = self.fileInput.files && self.fileInput.files[0];
+      self.fileInput.value = '';
+      if (file) self.openFile(file);
+    });
+    el.addEventListener('zport:settings', function (e) {
+      if (!e.detail || !e.detail.key) return;
+      self.outside[e.detail.key] = e.detail.values || {};
+      changed();
+    });
+    site.onNarrow(function () { self.schedule(); });
     hashWatch(this);
+  };
+
+  function hasFiles(e) {
+    var types = e.dataTransfer ? e.dataTransfer.types : null;
+    return !!types && Array.prototype.indexOf.call(types, 'Files') >= 0;
+  }
+
+  // ---- input limits ----
+
+  // guard refuses an insert that would take the text past MAX_TEXT, before
+  // the textarea takes it: beforeinput comes for every way text arrives.
+  Editor.prototype.guard = function (e) {
+    var type = e.inputType || '';
+    if (type.indexOf('insert') !== 0 || !e.cancelable) return;
+    var add = typeof e.data === 'string' ? e.data.length : e.dataTransfer ? e.dataTransfer.getData('text/plain').length : 0;
+    // A drop inserts at the drop point; the rest replace the selection.
+    if (this.tooLong(add, type !== 'insertFromDrop', 'inserted')) {
+      e.preventDefault();
+      return;
+    }
+    // Chromium puts an inserted text in line by line (an input method's,
+    // an emoji keyboard's, a script's insertText), each line a whole edit
+    // of the textarea: a few thousand lines took minutes. Many lines go
+    // in at once instead, as one edit (which the browser's undo does not
+    // record).
+    if (type === 'insertText' && typeof e.data === 'string' && countLines(e.data) > BULK_LINES) {
+      e.preventDefault();
+      this.ta.setRangeText(e.data, this.ta.selectionStart, this.ta.selectionEnd, 'end');
+      this.ta.dispatchEvent(new InputEvent('input', { inputType: 'insertText', bubbles: true }));
+    }
+  };
+
+  // tooLong reports whether adding add characters (over the selection, if
+  // replacing) would take the text past the limit, and if so says so.
+  Editor.prototype.tooLong = function (add, replacing, verb) {
+    var keep = this.ta.value.length - (replacing ? this.ta.selectionEnd - this.ta.selectionStart : 0);
+    if (add + keep <= MAX_TEXT) return false;
+    this.fileMsg.textContent = 'Not ' + verb + ': the text would be ' + Math.round((add + keep) / 1024) +
+      ' KB, and circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
+    return true;
+  };
+
+  // afterEdit brings the gutter, the example list and the draft up to
+  // date once per animation frame, however many input events an insert
+  // fired (the browser may deliver a long paste line by line). Text past
+  // the limit that no event could refuse is undone.
+  Editor.prototype.afterEdit = function () {
+    if (this.editFrame) return;
+    var self = this;
+    this.editFrame = requestAnimationFrame(function () {
+      self.editFrame = 0;
+      if (self.ta.value.length > MAX_TEXT) {
+        var over = self.ta.value.length;
+        self.setText(self.accepted);
+        self.fileMsg.textContent = 'Undone: the text became ' + Math.round(over / 1024) +
+          ' KB, and circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
+        self.schedule();
+      }
+      self.accepted = self.ta.value;
+      self.updateGutter();
+      self.syncScroll();
+      self.markExample();
+      self.keepDraft();
+    });
   };
 
   // ---- the editor: gutter, scrolling, error marks ----
@@ -301,13 +431,7 @@
         li.setAttribute('data-line', e.line);
         if (!marked[e.line]) {
           marked[e.line] = true;
-          var mk = document.createElement('div');
-          mk.className = 'gutter-mark';
-          mk.setAttribute('data-line', e.line);
-          mk.title = 'line ' + e.line + ': ' + e.message;
-          mk.style.top = (m.top + (e.line - 1) * m.lh) + 'px';
-          mk.style.height = m.lh + 'px';
-          this.marks.appendChild(mk);
+          this.gutterMark(e, m);
         }
         this.underline(text, e, m);
       } else {
@@ -320,6 +444,36 @@
       extra.className = 'more';
       extra.textContent = more;
       this.errorList.appendChild(extra);
+    }
+  };
+
+  // gutterMark marks an error's line in the gutter.
+  Editor.prototype.gutterMark = function (e, m) {
+    var mk = document.createElement('div');
+    mk.className = 'gutter-mark';
+    mk.setAttribute('data-line', e.line);
+    mk.title = 'line ' + e.line + ': ' + e.message;
+    mk.style.top = (m.top + (e.line - 1) * m.lh) + 'px';
+    mk.style.height = m.lh + 'px';
+    this.marks.appendChild(mk);
+  };
+
+  // markParts marks the lines of the parts an engine error names (a loop
+  // of voltage sources, a node nothing ties down): the part's name is the
+  // second word of its line.
+  Editor.prototype.markParts = function (names, message) {
+    if (!names || !names.length) return;
+    var want = {};
+    for (var i = 0; i < names.length; i++) want[names[i]] = true;
+    var m = this.measure();
+    var text = this.ta.value;
+    var lines = text.split('\n');
+    for (var n = 0; n < lines.length; n++) {
+      var words = lines[n].replace(/#.*/, '').trim().split(/\s+/);
+      if (words.length < 2 || !want[words[1]]) continue;
+      var e = { line: n + 1, column: lines[n].indexOf(words[1]) + 1, message: message };
+      this.gutterMark(e, m);
+      this.underline(text, e, m);
     }
   };
 
@@ -395,20 +549,21 @@
   };
 
   // offered is what the pickers show, for the engine to tell what an edit
-  // added (render.Offered).
+  // added (calc.Offered).
   Editor.prototype.offered = function () {
-    var refs = [], ports = [];
+    var refs = [], ports = [], sources = [];
     for (var i = 0; i < this.refSel.options.length; i++) if (this.refSel.options[i].value) refs.push(this.refSel.options[i].value);
     var boxes = this.portBoxes();
     for (var j = 0; j < boxes.length; j++) ports.push(boxes[j].value);
-    return { references: refs, ports: ports };
+    for (var k = 0; k < this.srcSel.options.length; k++) if (this.srcSel.options[k].value) sources.push(this.srcSel.options[k].value);
+    return { references: refs, ports: ports, sources: sources };
   };
 
   // updatePickers fills the pickers from the engine's inspection of the
   // text and sets them, and the fields, to the form it fitted to the text.
   Editor.prototype.updatePickers = function (ins, form) {
     var refs = ins.references.map(function (r) { return [r.name, r.name + ' (' + r.kind + ', line ' + r.line + ')']; });
-    if (!refs.length) refs = [['', 'none: add a controlled source or an opamp']];
+    if (!refs.length) refs = [['', 'none: direct solution only (Blackman’s terms need a controlled source or an opamp)']];
     this.fillSelect(this.refSel, 'ref', refs, form.reference || '');
 
     var want = form.ports || [];
@@ -470,7 +625,7 @@
     return input ? input.value : '';
   };
 
-  // values is the form as the engine's render.Form.
+  // values is the form as the engine's calc.Form.
   Editor.prototype.values = function () {
     var ports = [];
     var boxes = this.portBoxes();
@@ -482,6 +637,9 @@
       ports: ports,
       frequency: this.field('frequency'),
       sweep: { from: this.field('sweep.from'), to: this.field('sweep.to'), points: this.field('sweep.points') },
+      settings: Object.assign(site.settings(this.form), this.outside),
+      pins: this.pins.value(),
+      chartWidth: site.chartWidth(this.results),
       id: this.id
     };
     if (this.srcSel.value) {
@@ -494,40 +652,21 @@
 
   // ---- the engine ----
 
-  // analyze is one edit (zport.circuit, render.ComputeCircuit): the text
-  // inspected once, the choices fitted to it, and the panel.
+  // analyze is one edit (zport.circuit, calc.ComputeCircuit): the text
+  // inspected once, the choices fitted to it, and the panel. A promise.
   Editor.prototype.analyze = function (req) {
-    var t0 = performance.now();
-    var raw = engine.circuit(JSON.stringify(req));
-    performance.measure('zport-engine-call', { start: t0, end: performance.now() });
-    var res;
-    try {
-      res = JSON.parse(raw);
-    } catch (e) {
-      res = { error: { message: 'the engine gave an unreadable answer' } };
-    }
-    if (!res.inspection) {
-      // The bridge itself refused (an error object): show it as a problem.
-      var err = res.error || { message: 'the engine gave no answer' };
-      res = { inspection: { references: [], sources: [], ports: [], nodes: [], errors: [{ line: 0, column: 0, message: err.message }] } };
-    }
-    return res;
-  };
-
-  // call is one panel request (zport.panel), for the CSV.
-  Editor.prototype.call = function (extra, base) {
-    var req = Object.assign({}, base);
-    for (var k in extra) req[k] = extra[k];
-    var text = engine.panel(JSON.stringify(req));
-    try {
-      return JSON.parse(text);
-    } catch (e) {
-      return { error: { message: 'the engine gave an unreadable answer' } };
-    }
+    return site.call('circuit', req).then(function (res) {
+      if (!res.inspection) {
+        // The bridge itself refused (an error object): show it as a problem.
+        var err = res.error || { message: 'the engine gave no answer' };
+        res = { inspection: { references: [], sources: [], ports: [], nodes: [], errors: [{ line: 0, column: 0, message: err.message }] } };
+      }
+      return res;
+    });
   };
 
   Editor.prototype.schedule = function () {
-    if (!engine || this.scheduled) return; // one pending update at most
+    if (!site.ready() || this.scheduled) return; // one pending update at most
     this.scheduled = true;
     var self = this;
     var run = function () {
@@ -543,17 +682,19 @@
   };
 
   // recompute analyzes the text with the pickers' choices (or an
-  // example's, or a link's) and shows the answer. It returns the engine's
-  // output, or null when the text itself has problems.
+  // example's, or a link's) and shows the answer. It returns a promise of
+  // the engine's output, or of null when the text itself has problems or
+  // a newer recompute has superseded this one.
   Editor.prototype.recompute = function (address, fragment) {
     var t0 = performance.now();
     // For tests and the benchmark: how many recomputes have run.
     el.setAttribute('data-recomputes', String(Number(el.getAttribute('data-recomputes') || 0) + 1));
     this.clearMessages();
+    this.keepDraft();
     var req = this.values();
     req.offered = this.offered();
     if (this.preset) {
-      // An example's settings, exactly.
+      // An example's settings, or a draft's, exactly.
       var p = this.preset;
       req.reference = p.reference;
       req.ports = p.ports;
@@ -561,18 +702,41 @@
       req.frequency = p.frequency;
       req.sweep = p.sweep;
       req.offered = null;
+      if (p.settings) {
+        site.fillSettings(this.form, p.settings);
+        this.outside = {};
+        for (var k in p.settings) {
+          if (!this.form.querySelector('[data-analysis="' + site.cssName(k) + '"]')) this.outside[k] = p.settings[k];
+        }
+        req.settings = Object.assign(site.settings(this.form), this.outside);
+      }
     } else if (this.fresh) {
-      // A text from a link or a file: everything in it is new.
+      // A text from a link, a file or a paste: everything in it is new.
       req.ports = [];
-      req.offered = { references: [], ports: [] };
+      req.gain = undefined;
+      req.offered = { references: [], ports: [], sources: [] };
     }
     this.preset = null;
     this.fresh = false;
     req.budget = this.full ? 0 : BUDGET_MS;
     this.full = false;
-    if (typeof fragment === 'string') req.fragment = fragment;
+    if (typeof fragment === 'string') {
+      req.fragment = fragment;
+      if (this.pinTexts) req.pinCircuits = this.pinTexts;
+    }
+    var seq = ++this.seq;
+    var self = this;
+    return this.analyze(req).then(function (res) {
+      if (seq !== self.seq) return null;
+      self.answered = seq;
+      var out = self.show(res, req, t0, address, fragment);
+      site.settled(self);
+      return out;
+    });
+  };
 
-    var res = this.analyze(req);
+  // show puts one answer of the engine on the page.
+  Editor.prototype.show = function (res, req, t0, address, fragment) {
     var ins = res.inspection;
     var done = function (self, out) {
       self.lastCost = performance.now() - t0;
@@ -588,21 +752,29 @@
     this.showProblems([]);
     if (res.form) this.updatePickers(ins, res.form);
     var out = res.output || { error: { message: 'the engine gave no analysis' } };
+    if (out.notice) this.pendingNotice = out.notice; // what a link's settings lost
     if (out.error) {
-      if (typeof fragment !== 'string') this.showError(out.error);
+      this.showError(out.error);
       this.setStale(true);
       return done(this, out);
     }
-    var tpl = document.createElement('template');
-    tpl.innerHTML = out.html; // rendered and escaped by the engine (Go)
-    this.results.replaceChildren(tpl.content);
+    site.insert(this.results, out.html); // rendered and escaped by the engine (Go)
     this.last = out;
     this.lastText = req.circuit; // the engine does not echo the text back
+    if (typeof fragment === 'string' && out.form) {
+      // A link's pins: their texts are the link's (pinN.c) or the main one.
+      var texts = req.pinCircuits || {};
+      this.pins.set(out.form.pins, function (slot) { return texts[slot] !== undefined ? texts[slot] : req.circuit; });
+    }
+    this.pins.refresh();
     this.setStale(false);
     this.showCut(out.sweepCut, out.form);
     site.hover(this.results);
     this.writeState(out.state, address);
     site.recomputed(this.results, t0);
+    // aids.js follows the editor; its form carries the text again.
+    var form = Object.assign({}, out.form, { circuit: req.circuit });
+    el.dispatchEvent(new CustomEvent('zport:computed', { detail: Object.assign({}, out, { form: form }) }));
     return done(this, out);
   };
 
@@ -627,10 +799,7 @@
   };
 
   Editor.prototype.clearMessages = function () {
-    var msgs = this.form.querySelectorAll('[data-role="msg"]');
-    for (var i = 0; i < msgs.length; i++) msgs[i].textContent = '';
-    var bad = this.form.querySelectorAll('[aria-invalid]');
-    for (var j = 0; j < bad.length; j++) bad[j].removeAttribute('aria-invalid');
+    site.clearFieldErrors(this.form);
     this.notice.hidden = true;
     this.notice.textContent = '';
   };
@@ -639,9 +808,9 @@
   // list of problems.
   Editor.prototype.showError = function (err) {
     var p = err.param || '';
+    if (site.showFieldError(this.form, err)) return;
     var input = null;
-    if (p === 'frequency' || p.indexOf('sweep.') === 0) input = this.form.querySelector('input[name="' + p + '"]');
-    else if (p === 'reference') input = this.refSel;
+    if (p === 'reference') input = this.refSel;
     else if (p.indexOf('ports') === 0) input = this.portBox;
     else if (p === 'gain.source' || p === 'gain.output') input = p === 'gain.source' ? this.srcSel : this.outSel;
     var box = input && input.closest('[data-field]');
@@ -651,7 +820,8 @@
       msg.textContent = err.message;
       return;
     }
-    this.showProblems([err]);
+    this.showProblems(err.errors && err.errors.length ? err.errors : [err]);
+    this.markParts(err.parts, err.message);
   };
 
   Editor.prototype.setStale = function (stale) {
@@ -672,9 +842,13 @@
     var self = this;
     var seq = ++this.linkSeq;
     var text = this.ta.value;
-    site.compress(text).then(function (c) {
+    // Each pin whose text is not the current one carries it as pinN.c.
+    var own = this.pins.value().filter(function (p) { return p.circuit !== text; });
+    Promise.all([site.compress(text)].concat(own.map(function (p) { return site.compress(p.circuit); }))).then(function (cs) {
       if (seq !== self.linkSeq) return;
-      var h = '#' + (site.single ? 'p=custom&' : '') + 'c=' + c + (state ? '&' + state : '');
+      var c = cs[0];
+      var pinsC = own.map(function (p, i) { return '&pin' + p.slot + '.c=' + cs[i + 1]; }).join('');
+      var h = '#' + (site.single ? 'p=custom&' : '') + 'c=' + c + (state ? '&' + state : '') + pinsC;
       self.share.setAttribute('href', h);
       var url = location.href.split('#')[0] + h;
       if (url.length > MAX_URL) {
@@ -684,14 +858,7 @@
       } else {
         self.linkNotice.hidden = true;
       }
-      if (address && shown() && location.hash !== h) {
-        self.lastHash = h;
-        try {
-          history.replaceState(null, '', h);
-        } catch (e) {
-          // Some browsers refuse history changes on file://; the link still works.
-        }
-      }
+      if (address && shown()) site.address(h, address === 'now');
     }, function () { /* no CompressionStream: the link stays as it was */ });
   };
 
@@ -700,74 +867,140 @@
   // a fragment pasted into the address bar).
   function hashWatch(ed) {
     window.addEventListener('hashchange', function () {
-      if (!engine || location.hash === ed.lastHash || !shown()) return;
+      if (!site.ready() || site.ownHash() || !shown()) return;
       if (/(^|&)c=/.test(site.fragment())) ed.boot();
     });
   }
 
-  // splitFragment separates the c= value from the other settings.
+  // splitFragment separates the c= value and the pins' pinN.c= values
+  // (by slot) from the other settings; twice says that the link gives c=
+  // more than once.
   function splitFragment(frag) {
-    var c = null, rest = [];
+    var c = null, rest = [], pins = {}, twice = false;
     var parts = frag.split('&');
     for (var i = 0; i < parts.length; i++) {
-      if (parts[i].indexOf('c=') === 0 && c === null) c = parts[i].slice(2);
-      else if (parts[i]) rest.push(parts[i]);
+      var m = /^pin([1-4])\.c=(.*)$/.exec(parts[i]);
+      if (m) {
+        pins[m[1]] = m[2];
+      } else if (parts[i].indexOf('c=') === 0) {
+        twice = twice || c !== null;
+        c = parts[i].slice(2);
+      } else if (parts[i]) {
+        rest.push(parts[i]);
+      }
     }
-    return { c: c, rest: rest.join('&') };
+    return { c: c, rest: rest.join('&'), pins: pins, twice: twice };
   }
 
-  // boot reads the address: a circuit link fills the editor and its
-  // settings; anything unreadable is ignored with a notice.
-  Editor.prototype.boot = function () {
+  // ---- drafts ----
+
+  var DRAFT = 'circuit';
+
+  // keepDraft keeps the text as typed, the choices, and the text a link,
+  // an example or a file replaced, with the address they belong to.
+  Editor.prototype.keepDraft = function () {
+    var self = this;
+    site.keepDraft(DRAFT, function () {
+      var f = self.values();
+      var text = f.circuit;
+      f.circuit = undefined; // kept once, as text
+      return { text: text, form: f, previous: self.saved, hash: shown() ? site.fragment() : '' };
+    });
+  };
+
+  // restoreDraft puts a draft back: its text, its choices for the next
+  // recompute, and the text it had kept.
+  Editor.prototype.restoreDraft = function (d) {
+    this.setText(d.text);
+    this.markExample(true);
+    var f = d.form || {};
+    this.preset = {
+      reference: f.reference || '', ports: f.ports || [], source: f.gain ? f.gain.source : '', output: f.gain ? f.gain.output : '',
+      frequency: f.frequency || '', sweep: f.sweep || {}, settings: f.settings || {}
+    };
+    if (typeof d.previous === 'string' && d.previous !== d.text) {
+      this.saved = d.previous;
+      this.offerPrevious('');
+    }
+  };
+
+  // boot reads the address. On the page's first boot a draft of this tab
+  // comes back first (unless the address holds a link the draft was not
+  // made from); a link's circuit then replaces the text, the text it
+  // replaced kept, and the engine reads the link's settings.
+  Editor.prototype.boot = function (first) {
     var self = this;
     var seq = ++this.bootSeq;
     var frag = shown() ? site.fragment() : '';
+    var restored = false;
+    if (first) {
+      var draft = site.readDraft(DRAFT);
+      if (draft && typeof draft.text === 'string') {
+        this.restoreDraft(draft);
+        restored = true;
+        if (draft.hash === frag) frag = ''; // the draft is the newest state of this address
+      }
+    }
     var parts = splitFragment(frag);
+    var instead = 'Showing ' + (this.ownText() ? 'your own circuit' : 'the example') + ' instead; the link’s other settings were not used either.';
     var ready;
-    if (parts.c !== null) {
-      ready = site.decompress(parts.c, MAX_TEXT).then(function (text) {
-        self.setText(text);
+    this.pinTexts = null;
+    if (parts.twice) {
+      this.pendingNotice = 'The circuit in this link was not used: the link gives it twice (“c=” appears twice). ' + instead;
+      ready = Promise.resolve(null);
+    } else if (parts.c !== null) {
+      var slots = Object.keys(parts.pins);
+      ready = Promise.all([site.decompress(parts.c, MAX_TEXT)].concat(slots.map(function (k) { return site.decompress(parts.pins[k], MAX_TEXT); }))).then(function (texts) {
+        if (texts[0] !== self.ta.value) self.keep('The link replaced your circuit text; it is kept.');
+        self.setText(texts[0]);
         self.fresh = true;
+        self.preset = null;
         self.markExample(true);
-        self.lastHash = location.hash;
+        if (slots.length) {
+          self.pinTexts = {};
+          slots.forEach(function (k, i) { self.pinTexts[k] = texts[i + 1]; });
+        }
         return parts.rest;
       }, function (err) {
-        self.pendingNotice = 'The circuit in this link was not used (' + err.message + '). Showing the example instead.';
+        self.pendingNotice = 'The circuit in this link was not used (' + err.message + '). ' + instead;
         return null;
       });
     } else {
       ready = Promise.resolve(frag ? parts.rest : null);
     }
     ready.then(function (rest) {
-      site.onEngine(function (z) {
+      site.onEngine(function () {
         if (seq !== self.bootSeq) return;
-        engine = z;
-        self.start(rest);
+        self.start(rest, restored);
       });
     });
   };
 
-  Editor.prototype.start = function (rest) {
-    var out;
-    if (typeof rest === 'string') {
-      out = this.recompute(true, rest);
-      if (out && out.error) {
-        this.pendingNotice = 'The settings in this link were not used (' + (out.error.param ? out.error.param + ': ' : '') +
-          out.error.message + '). Showing the circuit with its own choices instead.';
-        this.recompute(true);
+  // start analyzes the text: with a link's settings (rest), at once
+  // rewriting the address to what was used, or with the page's own.
+  Editor.prototype.start = function (rest, restored) {
+    var self = this;
+    var linked = typeof rest === 'string';
+    if (linked) this.preset = null; // a link's settings stand on the circuit's defaults
+    var done = this.recompute(linked ? 'now' : false, linked ? rest : undefined).then(function (out) {
+      if ((linked || restored) && out && out.form) {
+        var form = Object.assign({}, out.form, { circuit: self.ta.value });
+        el.dispatchEvent(new CustomEvent('zport:link', { detail: form }));
       }
-    } else {
-      this.recompute(false);
-    }
-    var buttons = el.querySelectorAll('button[data-action]');
-    for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
-    el.setAttribute('data-live', 'true'); // the editor follows the engine from now on
+      return out;
+    });
+    done.then(function () {
+      var buttons = el.querySelectorAll('button[data-action]');
+      for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
+      el.setAttribute('data-live', 'true'); // the editor follows the engine from now on
+    });
   };
 
   // ---- examples, files ----
 
   Editor.prototype.setText = function (text) {
     this.ta.value = text;
+    this.accepted = text;
     this.ta.scrollTop = 0;
     this.ta.scrollLeft = 0;
     this.updateGutter();
@@ -786,32 +1019,64 @@
   // markExample selects the example the text is, or "Your own circuit";
   // fresh says the text came from a link or a file, when an example's
   // description no longer applies to it.
+  //
+  // The description also goes once most of the described example's lines
+  // are gone from the text: it would describe another circuit.
   Editor.prototype.markExample = function (fresh) {
     var t = this.ta.value, id = '';
     for (var k in this.examples) if (this.examples[k].text === t) id = k;
     if (this.exampleSel.value !== id) this.exampleSel.value = id;
     if (id) this.describe(this.examples[id]);
-    else if (fresh) role('example-about').hidden = true;
+    else if (fresh || this.strayed(t)) role('example-about').hidden = true;
+  };
+
+  // partLines are the lines of circuit text that hold a part, without
+  // comments and spacing.
+  function partLines(text) {
+    return text.split('\n').map(function (l) { return l.replace(/#.*/, '').trim().split(/\s+/).join(' '); }).filter(Boolean);
+  }
+
+  // strayed reports whether text keeps fewer than half the part lines of
+  // the example described.
+  Editor.prototype.strayed = function (text) {
+    var ex = this.examples[this.described];
+    if (!ex) return true;
+    var have = {};
+    partLines(text).forEach(function (l) { have[l] = true; });
+    var lines = partLines(ex.text);
+    var kept = lines.filter(function (l) { return have[l]; }).length;
+    return 2 * kept < lines.length;
   };
 
   Editor.prototype.describe = function (ex) {
+    this.described = ex.id;
     role('example-title').textContent = ex.title;
     role('scenario').textContent = ex.scenario;
     role('look').textContent = ex.look;
     role('example-about').hidden = false;
   };
 
-  // keep saves the user's own text before something replaces it.
+  // keep saves the user's own text before something replaces it, and
+  // offers it back.
   Editor.prototype.keep = function (what) {
     if (!this.ownText()) return;
     this.saved = this.ta.value;
-    this.fileMsg.textContent = what + ' Your own circuit is kept: choose “Your own circuit” in the list to bring it back.';
+    this.offerPrevious(what);
+  };
+
+  // offerPrevious shows the button that brings the kept text back (so does
+  // choosing “Your own circuit” in the list of examples).
+  Editor.prototype.offerPrevious = function (what) {
+    var self = this;
+    site.offerRestore(el, what || 'Your previous circuit text is kept.', 'Restore your previous text', function () {
+      self.restore();
+    });
   };
 
   Editor.prototype.loadExample = function (id) {
     var ex = this.examples[id];
     if (!ex) return;
-    this.keep('Example loaded.');
+    this.keep('Example loaded; your circuit text is kept.');
     this.setText(ex.text);
     this.describe(ex);
     this.preset = ex.preset;
@@ -819,28 +1084,30 @@
   };
 
   Editor.prototype.restore = function () {
-    this.setText(this.saved);
-    this.saved = null;
-    this.fileMsg.textContent = 'Your own circuit is back.';
-    role('example-about').hidden = true;
+    var back = this.saved;
+    // What the restore replaces is kept in turn, so nothing is lost.
+    this.saved = this.ownText() && this.ta.value !== back ? this.ta.value : null;
+    this.setText(back);
+    this.fileMsg.textContent = 'Your previous text is back.';
+    site.dropRestore(el);
+    if (this.saved !== null) this.offerPrevious('');
+    this.markExample(true);
+    this.fresh = true;
     this.schedule();
   };
 
-  Editor.prototype.openFile = function () {
-    var file = this.fileInput.files && this.fileInput.files[0];
-    this.fileInput.value = '';
-    if (!file) return;
+  Editor.prototype.openFile = function (file) {
     var self = this;
     if (file.size > MAX_TEXT) {
       this.fileMsg.textContent = file.name + ' is ' + Math.round(file.size / 1024) + ' KB; circuit text is limited to ' + Math.round(MAX_TEXT / 1024) + ' KB.';
       return;
     }
     file.text().then(function (text) {
-      self.keep('Opened ' + file.name + '.');
+      self.keep('Opened ' + file.name + '; your circuit text is kept.');
       self.setText(text);
       self.fresh = true;
       self.markExample(true);
-      if (!self.saved) self.fileMsg.textContent = 'Opened ' + file.name + ' (read on this computer; nothing was uploaded).';
+      self.fileMsg.textContent = 'Opened ' + file.name + ' (read on this computer; nothing was uploaded).';
       self.schedule();
     }, function (err) {
       self.fileMsg.textContent = file.name + ' could not be read: ' + (err && err.message ? err.message : String(err));
@@ -864,25 +1131,44 @@
   };
 
   Editor.prototype.copy = function () {
-    if (this.last) site.copyText(this, this.last.markdown, 'Results copied as a Markdown table.');
+    if (this.last) site.copyResults(this, this.last.markdown, this.link());
+  };
+
+  // link is the share link of the circuit shown.
+  Editor.prototype.link = function () {
+    return location.href.split('#')[0] + (this.share.getAttribute('href') || '');
+  };
+
+  // design is what "Pin this design" keeps: the text and the pickers'
+  // choices as they are, or nothing while the text has problems.
+  Editor.prototype.design = function () {
+    if (this.results.classList.contains('is-stale')) {
+      this.say('Correct the marked problems first: a pin keeps a circuit that can be analyzed.');
+      return null;
+    }
+    var f = this.values();
+    return { circuit: f.circuit, reference: f.reference, ports: f.ports, gain: f.gain };
   };
 
   Editor.prototype.copyLink = function () {
-    var url = location.href.split('#')[0] + (this.share.getAttribute('href') || '');
+    var url = this.link();
     site.copyText(this, url, 'Link to this circuit copied' + (url.length > MAX_URL ? ' (it is long: see the note below).' : '.'));
   };
 
   Editor.prototype.download = function () {
-    if (!this.last || !engine) return;
-    var out = this.call({ csv: true, circuit: this.lastText }, this.last.form);
-    if (out.error || !out.csv) {
-      this.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));
-      return;
-    }
-    var name = 'zport-' + (this.exampleSel.value || 'circuit') + '.csv';
-    site.saveFile(name, 'text/csv;charset=utf-8', out.csv);
-    this.say('CSV of the sweep saved as ' + name + '.');
+    if (!this.last || !site.ready()) return;
+    var self = this;
+    var req = Object.assign({}, this.last.form, { csv: true, circuit: this.lastText, link: this.link(), pins: [] });
+    site.call('panel', req).then(function (out) {
+      if (out.error || !out.csv) {
+        self.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));
+        return;
+      }
+      var name = 'zport-' + (self.exampleSel.value || 'circuit') + '.csv';
+      site.saveFile(name, 'text/csv;charset=utf-8', out.csv);
+      self.say('CSV of the sweep saved as ' + name + '.');
+    });
   };
 
-  new Editor().boot();
+  new Editor().boot(true);
 })();

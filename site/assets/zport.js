@@ -1,51 +1,85 @@
-// zport.js: the one loader of the WebAssembly engine, and the glue of the
-// calculators. Plain JavaScript, a classic script run after the document is
-// parsed (defer, or at the end of body in the single-file export). It
-// inserts no user text as HTML: messages go through textContent, and the
-// only markup it inserts is the results panel the engine renders in Go,
-// whose text is escaped there.
+// zport.js: the one loader of the WebAssembly engine, and the library the
+// page scripts share. Plain JavaScript, a classic script run after the
+// document is parsed (defer, or at the end of body in the single-file
+// export), before calculator.js (the stage calculators), circuit.js (the
+// custom-circuit page) and aids.js (the design aids), which use it through
+// globalThis.zportSite. Like them it inserts no user text as HTML:
+// messages go through textContent, and the only markup inserted is what the
+// engine rendered (and escaped) in Go.
 //
 // Loading: zport-engine.js sets the global string zportEngine, the wasm
 // module gzip-compressed and base64-encoded, because browsers will not
 // fetch or stream-compile a .wasm file from file://. It is decoded,
 // inflated with DecompressionStream and compiled with instantiateStreaming
 // from a synthetic Response. wasm_exec.js (Go's own) supplies Go. The
-// engine registers the global object zport with analyze, catalog, panel
-// and exit. The root element's data-engine says "loading", "ready" or
+// engine registers the global object zport (its functions are listed in
+// zport/wasm). The root element's data-engine says "loading", "ready" or
 // "failed"; a failure's reason is shown in every calculator.
 //
+// zportSite, the shared part:
+//   onEngine(cb)       runs cb() once the engine is ready
+//   call(name, ...)    one engine call: object arguments go as JSON, the
+//                      answer is parsed; a promise of the answer object
+//                      (an unreadable answer becomes {error})
+//   insert(el, html)   puts markup rendered by the engine into el
+//   later(fn)          runs fn in a task of its own, soon
+//   markStale(…)       marks results as the last good ones, or clears it
+//   settings(form)     the analyses' settings typed into a form, by
+//                      analysis key (see zport/site/calc.Analysis)
+//   showFieldError(form, err) puts an engine error beside the input it
+//                      names (by name or data-param); false if none does
+//   clearFieldErrors(form)
+//   address(h)         puts h into the address bar once the user pauses
+//   readDraft(name), keepDraft(name, get)
+//                      the user's work as typed, kept across reloads (below)
+//   offerRestore(host, message, label, restore), dropRestore(host)
+//                      says that something replaced the user's work, with
+//                      a button that brings it back
+//   copyText, copyResults, saveFile, compress, decompress, hover,
+//   recomputed, fragment(), page(), single, cssName
+//   PinBar(host)       the pinned designs of a calculator (see below)
+//   settle(host, fn), settled(host)  wait for a calculator's last recompute
+//   runSliced(job, spec)  work the engine does on request (a tolerance
+//                      study, a solve), run in slices (see below)
+//   runButtons(run, cancel, bar, on)  a run's buttons and progress bar
+//   staleResults(results, text)  marks on-request results out of date
+//   chartWidth(el)     the charts' width on a phone (calc.Form.ChartWidth)
+//   onNarrow(fn)       calls fn when the phone width changes
+// and, for every page: the charts' "SVG" and "PNG" buttons, and printing
+// with every section open ("Print report" buttons print).
+//
+// Drafts: what the user typed into a calculator or the circuit editor,
+// valid or not, is kept in sessionStorage — this tab only, nothing leaves
+// the machine — under a key of the page (its path, and the calculator's
+// id), with the address it belongs to. A reload brings it back; a link
+// that opens other settings wins over it, and the page offers the draft
+// back ("your previous text"). The address itself holds only the last
+// valid state, which is what a share link should carry.
+//
+// Scripts off: the pages ship their inputs read-only (data-locked), with a
+// <noscript> line saying why; this script unlocks them as it starts, and
+// locks them again if the engine cannot start. The engine's status line is
+// empty and hidden until the script fills it.
+//
 // URL fragment: a calculator's settings live in the fragment, written by
-// the engine (see package zport/site/render), e.g.
+// the engine (package zport/site/calc), e.g.
 //   #R1=10k&R2=47k&…&f=1k&from=10&to=100M&points=400
 // In the single-file export, p=NAME comes first and selects the page.
 // A fragment without "=" is an ordinary in-page anchor and is left alone.
 //
-// The custom-circuit page's script (circuit.js, loaded after this one)
-// shares this file's engine and helpers through globalThis.zportSite:
-// onEngine(cb) runs cb(engine) once the engine is ready; copyText,
-// saveFile, hover and recomputed are the calculators' own; compress and
-// decompress are the c= encoding below; fragment() is the settings part
-// of the address and page() the page shown.
-//
-// The design aids (aids.js, loaded after this one) follow each calculator
-// through events on its element: zport:computed (detail: the panel
-// output) after every result, zport:link (detail: the form) when settings
-// came from the link, and zport:study from aids.js with its settings, which
-// join the form (Form.Study) and so the share link.
-//
 // Performance marks for the benchmark (go run ./build/bench):
 // "zport-engine-ready" when the engine has started, "zport-first-live" when
-// the first panel computed by it is on the page, and a measure
-// "zport-recompute" for every recompute (engine call, insertion, layout).
+// the first panel computed by it is on the page, a measure
+// "zport-recompute" for every recompute (engine call, insertion, layout)
+// and "zport-engine-call" for every engine call.
 (function () {
   'use strict';
 
   var root = document.documentElement;
   var single = root.getAttribute('data-single') === 'true';
   var engine = null;
-  var calculators = [];
   var firstLive = false;
-  var readyCallbacks = []; // zportSite.onEngine
+  var readyCallbacks = [];
 
   // ---- the single-file export: one section per page, chosen by p= ----
 
@@ -67,6 +101,15 @@
     for (var i = 0; i < pages.length; i++) pages[i].hidden = pages[i] !== want;
     var h = want && want.querySelector('h1');
     if (h) document.title = h.textContent + ' · zport';
+  }
+
+  // fragment is the settings part of the address, or "" when there is
+  // none (an ordinary anchor).
+  function fragmentState() {
+    var h = location.hash.slice(1);
+    if (h.indexOf('=') < 0) return '';
+    if (single) h = h.replace(/^p=[a-z0-9-]+(&|$)/, '');
+    return h;
   }
 
   // ---- engine ----
@@ -104,9 +147,12 @@
       }
       exited.then(function () {
         engine = null;
+        lock(true);
         setStatus('failed', 'The live engine has stopped; reload the page to start it again.');
       });
       window.addEventListener('pagehide', function (e) {
+        flushAddress();
+        saveDrafts();
         if (!e.persisted && engine) {
           var z = engine;
           engine = null;
@@ -114,6 +160,31 @@
         }
       });
       return globalThis.zport;
+    });
+  }
+
+  // call runs one engine function: object arguments are sent as JSON,
+  // strings and numbers as they are. The answer is parsed; an unreadable
+  // one, or a stopped engine, gives {error: {message}}. It returns a
+  // promise, so that callers need not change if the engine moves off the
+  // main thread.
+  function call(name) {
+    var args = Array.prototype.slice.call(arguments, 1).map(function (a) {
+      return a !== null && typeof a === 'object' ? JSON.stringify(a) : a;
+    });
+    return new Promise(function (resolve) {
+      if (!engine || typeof engine[name] !== 'function') {
+        resolve({ error: { message: 'the live engine is not running' } });
+        return;
+      }
+      var t0 = performance.now();
+      var text = engine[name].apply(engine, args);
+      performance.measure('zport-engine-call', { start: t0, end: performance.now() });
+      try {
+        resolve(JSON.parse(text));
+      } catch (e) {
+        resolve({ error: { message: 'the engine gave an unreadable answer' } });
+      }
     });
   }
 
@@ -128,200 +199,47 @@
     for (var i = 0; i < els.length; i++) {
       els[i].textContent = text;
       els[i].setAttribute('data-state', state);
+      els[i].hidden = false;
     }
   }
 
-  // ---- calculators ----
-
-  function Calculator(el) {
-    this.el = el;
-    this.id = el.id;
-    this.topology = el.getAttribute('data-topology');
-    this.form = el.querySelector('[data-role="form"]');
-    this.results = el.querySelector('[data-role="results"]');
-    this.notice = el.querySelector('[data-role="notice"]');
-    this.actionMsg = el.querySelector('[data-role="action-msg"]');
-    this.share = el.querySelector('[data-action="share"]');
-    this.last = null;
-    this.scheduled = false;
-    this.lastHash = null;
-    this.study = null; // design-aid settings (aids.js), kept in the share link
-    var self = this;
-    this.form.addEventListener('submit', function (e) {
-      e.preventDefault();
-      self.schedule();
-    });
-    this.form.addEventListener('input', function () { self.schedule(); });
-    el.querySelector('[data-action="copy"]').addEventListener('click', function () { self.copy(); });
-    el.querySelector('[data-action="csv"]').addEventListener('click', function () { self.download(); });
-    el.querySelector('[data-action="reset"]').addEventListener('click', function () { self.reset(); });
-    this.share.addEventListener('click', function (e) {
-      // The link already holds the settings; following it only reloads them.
-      e.preventDefault();
-      self.copyLink();
-    });
-    hover(this.results);
-    // aids.js reports its settings; they join the form and so the link.
-    el.addEventListener('zport:study', function (e) {
-      self.study = e.detail || null;
-      self.schedule();
-    });
+  // lock makes the inputs the pages ship read-only (data-locked) read-only
+  // again, or editable: text inputs take readonly, choices disabled.
+  function lock(on) {
+    var els = document.querySelectorAll('[data-locked]');
+    for (var i = 0; i < els.length; i++) {
+      var e = els[i];
+      var attr = e.tagName === 'SELECT' || e.type === 'checkbox' ? 'disabled' : 'readOnly';
+      e[attr] = on;
+    }
   }
 
-  Calculator.prototype.inputs = function () {
-    return this.form.querySelectorAll('input[name]');
-  };
+  // ---- shared helpers ----
 
-  // values collects the form as the engine's render.Form.
-  Calculator.prototype.values = function () {
-    var f = { topology: this.topology, params: {}, sweep: {}, id: this.id };
-    var inputs = this.inputs();
-    for (var i = 0; i < inputs.length; i++) {
-      var n = inputs[i].name, v = inputs[i].value;
-      if (n === 'frequency') f.frequency = v;
-      else if (n.indexOf('sweep.') === 0) f.sweep[n.slice(6)] = v;
-      else f.params[n] = v;
-    }
-    if (this.study) f.study = this.study;
-    return f;
-  };
+  function ready() { return !!engine; }
 
-  Calculator.prototype.fill = function (form) {
-    var inputs = this.inputs();
-    for (var i = 0; i < inputs.length; i++) {
-      var n = inputs[i].name, v;
-      if (n === 'frequency') v = form.frequency;
-      else if (n.indexOf('sweep.') === 0) v = form.sweep && form.sweep[n.slice(6)];
-      else v = form.params && form.params[n];
-      if (typeof v === 'string') inputs[i].value = v;
-    }
-  };
-
-  Calculator.prototype.call = function (extra, base) {
-    var req = Object.assign({}, base || this.values());
-    for (var k in extra) req[k] = extra[k];
-    var t0 = performance.now();
-    var text = engine.panel(JSON.stringify(req));
-    performance.measure('zport-engine-call', { start: t0, end: performance.now() });
-    try {
-      return JSON.parse(text);
-    } catch (e) {
-      return { error: { message: 'the engine gave an unreadable answer' } };
-    }
-  };
-
-  // owner reports whether this calculator keeps its settings in the URL:
-  // the first calculator of the page (of the visible section, in the
-  // single-file export).
-  Calculator.prototype.owner = function () {
-    var sec = currentSection();
-    var first = sec && sec.querySelector('[data-calculator]');
-    return first === this.el;
-  };
-
-  // fragment is the calculator state in the URL, or "" when there is none.
-  function fragmentState() {
-    var h = location.hash.slice(1);
-    if (h.indexOf('=') < 0) return '';
-    if (single) h = h.replace(/^p=[a-z0-9-]+(&|$)/, '');
-    return h;
-  }
-
-  Calculator.prototype.start = function () {
-    var frag = this.owner() ? fragmentState() : '';
-    var out;
-    if (frag) {
-      out = this.call({ fragment: frag });
-      if (out.error) {
-        this.showNotice('The settings in this link were not used (' + out.error.message + '). Showing the defaults instead.');
-        out = this.call({});
-      } else if (out.form) {
-        this.fill(out.form);
-        this.study = out.form.study || null;
-      }
-    } else {
-      out = this.call({});
-    }
-    // The address changes only when it held settings, or once the user
-    // edits: an ordinary in-page anchor stays as it was.
-    this.apply(out, performance.now(), !!frag);
-    if (frag && !out.error && out.form) {
-      this.el.dispatchEvent(new CustomEvent('zport:link', { detail: out.form }));
-    }
-    var buttons = this.el.querySelectorAll('button[data-action]');
-    for (var i = 0; i < buttons.length; i++) buttons[i].disabled = false;
-  };
-
-  Calculator.prototype.schedule = function () {
-    if (!engine || this.scheduled) return; // one pending update at most
-    this.scheduled = true;
-    var self = this;
-    requestAnimationFrame(function () {
-      self.scheduled = false;
-      var t0 = performance.now();
-      self.apply(self.call({}), t0, true);
-    });
-  };
-
-  Calculator.prototype.apply = function (out, t0, address) {
-    this.clearMessages();
-    if (out.error) {
-      this.showError(out.error);
-      this.setStale(true);
-      return;
-    }
+  // insert replaces el's content by markup rendered and escaped in Go.
+  function insert(el, html) {
     var tpl = document.createElement('template');
-    tpl.innerHTML = out.html; // rendered and escaped by the engine (Go)
-    this.results.replaceChildren(tpl.content);
-    this.last = out;
-    this.setStale(false);
-    hover(this.results);
-    this.updateCircuitLink();
-    this.writeState(out.state, address && this.owner());
-    recomputed(this.results, t0);
-    // aids.js follows the calculator (after the measure: it is not part of it).
-    this.el.dispatchEvent(new CustomEvent('zport:computed', { detail: out }));
-  };
-
-  // recomputed closes the "zport-recompute" measure begun at t0 once the
-  // new panel in results is laid out, and marks the first live result.
-  function recomputed(results, t0) {
-    void results.offsetHeight; // lay the new panel out inside the measure
-    var t1 = performance.now();
-    performance.measure('zport-recompute', { start: t0, end: t1 });
-    if (!firstLive) {
-      firstLive = true;
-      performance.mark('zport-first-live');
-    }
+    tpl.innerHTML = html;
+    el.replaceChildren(tpl.content);
   }
 
-  Calculator.prototype.clearMessages = function () {
-    var inputs = this.inputs();
-    for (var i = 0; i < inputs.length; i++) inputs[i].removeAttribute('aria-invalid');
-    var msgs = this.form.querySelectorAll('[data-role="msg"]');
-    for (var j = 0; j < msgs.length; j++) msgs[j].textContent = '';
-    this.notice.hidden = true;
-    this.notice.textContent = '';
+  // later runs fn in a task of its own, soon: a MessageChannel task is not
+  // throttled as nested timers are, and input and painting get their turn
+  // between tasks.
+  var queue = [];
+  var channel = new MessageChannel();
+  channel.port1.onmessage = function () {
+    var fn = queue.shift();
+    if (fn) fn();
   };
+  function later(fn) {
+    queue.push(fn);
+    channel.port2.postMessage(0);
+  }
 
-  Calculator.prototype.showNotice = function (text) {
-    this.pendingNotice = text;
-  };
-
-  Calculator.prototype.showError = function (err) {
-    var input = err.param ? this.form.querySelector('input[name="' + cssName(err.param) + '"]') : null;
-    if (input) {
-      input.setAttribute('aria-invalid', 'true');
-      var msg = input.closest('.field').querySelector('[data-role="msg"]');
-      msg.textContent = err.message;
-      return;
-    }
-    var where = err.line ? 'line ' + err.line + ', column ' + err.column + ': ' : '';
-    this.notice.textContent = where + err.message;
-    this.notice.hidden = false;
-  };
-
-  // cssName keeps a field name usable inside a quoted attribute selector.
+  // cssName keeps a name usable inside a quoted attribute selector.
   function cssName(s) {
     return String(s).replace(/["\\]/g, '');
   }
@@ -342,54 +260,158 @@
     }
   }
 
-  Calculator.prototype.setStale = function (stale) {
-    markStale(this.el, this.results, stale, 'value');
-    if (this.pendingNotice) {
-      this.notice.textContent = this.pendingNotice;
-      this.notice.hidden = false;
-      this.pendingNotice = '';
+  // settings reads the analyses' inputs of form (data-analysis and
+  // data-setting) into {key: {setting: value}}.
+  function settings(form) {
+    var out = {};
+    var els = form.querySelectorAll('[data-analysis][data-setting]');
+    for (var i = 0; i < els.length; i++) {
+      var k = els[i].getAttribute('data-analysis');
+      out[k] = out[k] || {};
+      out[k][els[i].getAttribute('data-setting')] = els[i].value;
     }
-  };
+    return out;
+  }
 
-  // writeState puts the settings into the share link and, when address is
-  // set, into the page's address.
-  Calculator.prototype.writeState = function (state, address) {
-    if (typeof state !== 'string') return;
-    var page = single ? (this.el.closest('section.page') || {}).id : '';
-    page = page ? page.replace(/^page-/, '') : 'index';
-    var h = '#' + (single ? 'p=' + page + (state ? '&' : '') : '') + state;
-    this.share.setAttribute('href', h);
-    if (address && location.hash !== h) {
-      this.lastHash = h;
+  // fillSettings sets the analyses' inputs of form from settings, leaving
+  // an input whose value is already right (and so its caret) alone.
+  function fillSettings(form, s) {
+    var els = form.querySelectorAll('[data-analysis][data-setting]');
+    for (var i = 0; i < els.length; i++) {
+      var vals = s && s[els[i].getAttribute('data-analysis')];
+      var v = vals ? vals[els[i].getAttribute('data-setting')] : undefined;
+      if (typeof v !== 'string') v = els[i].getAttribute('data-default') || '';
+      if (els[i].value !== v) els[i].value = v;
+    }
+  }
+
+  // showFieldError puts the engine's message beside the input it names
+  // (by name, else by data-param) and marks it; false when no input of
+  // form does.
+  function showFieldError(form, err) {
+    if (!err.param) return false;
+    var p = cssName(err.param);
+    var input = form.querySelector('[name="' + p + '"]') || form.querySelector('[data-param="' + p + '"]');
+    if (!input) return false;
+    var holder = input.closest('[data-field], .field, td, li');
+    var msg = holder && holder.querySelector('[data-role="msg"]');
+    if (!msg) return false;
+    input.setAttribute('aria-invalid', 'true');
+    msg.textContent = err.message;
+    return true;
+  }
+
+  function clearFieldErrors(form) {
+    var bad = form.querySelectorAll('[aria-invalid]');
+    for (var i = 0; i < bad.length; i++) bad[i].removeAttribute('aria-invalid');
+    var msgs = form.querySelectorAll('[data-role="msg"]');
+    for (var j = 0; j < msgs.length; j++) msgs[j].textContent = '';
+  }
+
+  // address puts h into the address bar once edits pause (a history
+  // update per keystroke costs more than the recompute), or at once with
+  // now set; writtenHash remembers what the page itself wrote, so that a
+  // hashchange it caused is not taken for a new link.
+  var ADDRESS_MS = 400;
+  var addressTimer = 0;
+  var pendingHash = null;
+  var writtenHash = null;
+  function address(h, now) {
+    pendingHash = h;
+    clearTimeout(addressTimer);
+    if (now) flushAddress();
+    else addressTimer = setTimeout(flushAddress, ADDRESS_MS);
+  }
+  function flushAddress() {
+    clearTimeout(addressTimer);
+    var h = pendingHash;
+    pendingHash = null;
+    if (h === null || location.hash === h) return;
+    writtenHash = h;
+    try {
+      history.replaceState(null, '', h);
+    } catch (e) {
+      // Some browsers refuse history changes on file://; the link still works.
+    }
+    saveDrafts(); // a draft remembers the address it belongs to
+  }
+  function ownHash() {
+    return location.hash === writtenHash || location.hash === pendingHash;
+  }
+
+  // ---- drafts (see the top of this file) ----
+
+  var drafts = {}; // name → the function that gives the draft to keep
+  var draftTimer = 0;
+
+  function draftKey(name) {
+    return 'zport.draft:' + location.pathname + ':' + name;
+  }
+
+  // readDraft returns the draft kept under name, or null.
+  function readDraft(name) {
+    try {
+      var d = JSON.parse(sessionStorage.getItem(draftKey(name)) || 'null');
+      return d && typeof d === 'object' ? d : null;
+    } catch (e) {
+      return null; // storage refused (a privacy setting) or damaged
+    }
+  }
+
+  // keepDraft keeps what get() returns (a JSON-able object) under name
+  // once edits pause, and at once when the page is left or the address is
+  // written; get runs then, so it sees the latest state.
+  function keepDraft(name, get) {
+    drafts[name] = get;
+    clearTimeout(draftTimer);
+    draftTimer = setTimeout(saveDrafts, ADDRESS_MS);
+  }
+
+  function saveDrafts() {
+    clearTimeout(draftTimer);
+    for (var name in drafts) {
       try {
-        history.replaceState(null, '', h);
+        sessionStorage.setItem(draftKey(name), JSON.stringify(drafts[name]()));
       } catch (e) {
-        // Some browsers refuse history changes on file://; the link still works.
+        // Storage full or refused: the address still holds the last
+        // valid state.
       }
     }
-  };
+  }
 
-  Calculator.prototype.reset = function () {
-    var inputs = this.inputs();
-    for (var i = 0; i < inputs.length; i++) inputs[i].value = inputs[i].getAttribute('data-default');
-    this.schedule();
-  };
+  // offerRestore puts a note at the top of host's results (before its
+  // notice) saying that something replaced the user's work, with a button
+  // that calls restore and removes the note. One note per host.
+  function offerRestore(host, message, label, restore) {
+    dropRestore(host);
+    var note = document.createElement('p');
+    note.className = 'calc-notice restore-note';
+    note.setAttribute('data-role', 'restore');
+    var text = document.createElement('span');
+    text.textContent = message + ' ';
+    var b = document.createElement('button');
+    b.type = 'button';
+    b.setAttribute('data-action', 'restore-previous');
+    b.textContent = label;
+    b.addEventListener('click', function () {
+      dropRestore(host);
+      restore();
+    });
+    note.appendChild(text);
+    note.appendChild(b);
+    var before = host.querySelector('[data-role="notice"]');
+    before.parentNode.insertBefore(note, before);
+  }
 
-  Calculator.prototype.say = function (text) {
-    this.actionMsg.textContent = text;
-  };
+  function dropRestore(host) {
+    var old = host.querySelector('[data-role="restore"]');
+    if (old) old.remove();
+  }
 
-  Calculator.prototype.copy = function () {
-    if (!this.last) return;
-    copyText(this, this.last.markdown, 'Results copied as a Markdown table.');
-  };
-
-  Calculator.prototype.copyLink = function () {
-    var url = location.href.split('#')[0] + (this.share.getAttribute('href') || '');
-    copyText(this, url, 'Link to these settings copied.');
-  };
-
-  function copyText(calc, text, done) {
+  // copyText puts text on the clipboard and says so through host.say; where
+  // copying is not allowed it shows the text in a box after host.actionMsg
+  // for copying by hand.
+  function copyText(host, text, done) {
     var fallback = function () {
       var ta = document.createElement('textarea');
       ta.value = text;
@@ -405,47 +427,33 @@
       }
       ta.remove();
       if (ok) {
-        calc.say(done);
+        host.say(done);
         return;
       }
-      // Last resort: show the text for copying by hand.
-      var box = calc.el.querySelector('.copy-fallback');
+      var box = host.el.querySelector('.copy-fallback');
       if (!box) {
         box = document.createElement('textarea');
         box.className = 'copy-fallback';
         box.setAttribute('readonly', '');
         box.setAttribute('aria-label', 'Text to copy');
-        calc.actionMsg.parentNode.appendChild(box);
+        host.actionMsg.parentNode.appendChild(box);
       }
       box.value = text;
       box.focus();
       box.select();
-      calc.say('Copying is not allowed here: select the text below and copy it.');
+      host.say('Copying is not allowed here: select the text below and copy it.');
     };
     if (navigator.clipboard && typeof navigator.clipboard.writeText === 'function') {
-      navigator.clipboard.writeText(text).then(function () { calc.say(done); }, fallback);
+      navigator.clipboard.writeText(text).then(function () { host.say(done); }, fallback);
     } else {
       fallback();
     }
   }
 
-  Calculator.prototype.download = function () {
-    if (!this.last || !engine) return;
-    // The CSV of the last good result, computed now rather than on every edit.
-    var out = this.call({ csv: true }, this.last.form);
-    if (out.error || !out.csv) {
-      this.say('The CSV could not be made: ' + (out.error ? out.error.message : 'no sweep'));
-      return;
-    }
-    var name = 'zport-' + this.topology + '.csv';
-    saveFile(name, 'text/csv;charset=utf-8', out.csv);
-    this.say('CSV of the sweep saved as ' + name + '.');
-  };
-
-  // saveFile offers text as a download called name; nothing leaves the
-  // machine (a blob: URL of the page itself).
-  function saveFile(name, type, text) {
-    var url = URL.createObjectURL(new Blob([text], { type: type }));
+  // saveFile offers data (text or a Blob) as a download called name;
+  // nothing leaves the machine (a blob: URL of the page itself).
+  function saveFile(name, type, data) {
+    var url = URL.createObjectURL(new Blob([data], { type: type }));
     var a = document.createElement('a');
     a.href = url;
     a.download = name;
@@ -456,36 +464,11 @@
     setTimeout(function () { URL.revokeObjectURL(url); }, 30000);
   }
 
-  // The circuit page (custom.html) reads its circuit from the fragment key
-  // c=: the circuit text as UTF-8, compressed with
+  // The custom-circuit page reads its circuit from the fragment key c=:
+  // the circuit text as UTF-8, compressed with
   // CompressionStream('deflate-raw') and encoded as base64url without
-  // padding, e.g. custom.html#c=K0ktLlEozy_KSQEA. The link's data-state
-  // (written by the engine) adds the stage's reference, ports, gain and
-  // frequencies. In the single-file export the page is a section: #p=custom&c=….
-  Calculator.prototype.updateCircuitLink = function () {
-    var a = this.results.querySelector('a.open-circuit');
-    var pre = this.results.querySelector('pre.circuit-text');
-    if (!a || !pre) return;
-    var page = 'custom.html#';
-    if (single) {
-      if (!document.getElementById('page-custom')) {
-        this.hideCircuitLink();
-        return;
-      }
-      page = '#p=custom&';
-      a.setAttribute('href', '#p=custom');
-    }
-    if (typeof CompressionStream !== 'function') return;
-    var state = a.getAttribute('data-state') || '';
-    compress(pre.textContent).then(function (c) {
-      a.setAttribute('href', page + 'c=' + c + (state ? '&' + state : ''));
-    }, function () { /* the plain link still opens the page */ });
-  };
-
-  Calculator.prototype.hideCircuitLink = function () {
-    var a = this.results.querySelector('a.open-circuit');
-    if (a) a.parentNode.hidden = true;
-  };
+  // padding, e.g. custom.html#c=K0ktLlEozy_KSQEA. The stage pages' "open as
+  // circuit" links use the same encoding.
 
   function base64url(bytes) {
     if (typeof bytes.toBase64 === 'function') return bytes.toBase64({ alphabet: 'base64url', omitPadding: true });
@@ -549,24 +532,449 @@
     if (typeof window.zportPlotHover === 'function') window.zportPlotHover(el);
   }
 
-  // ---- what the circuit page shares ----
+  // ---- pinned designs ----
+
+  // The designs a calculator keeps for comparison (calc.Pin): up to
+  // MAX_PINS, each in a slot 1 … MAX_PINS that gives its line style and
+  // its keys in the share link, with a name the user can edit. The bar
+  // lists them in the element [data-role="pins"] of host.el; host.design()
+  // returns the design to pin (or null, saying why), and host.schedule()
+  // recomputes; a pin waits for the recompute of the last edit (settle).
+  // Each pin's line-style swatch is copied from the panel the engine
+  // rendered (its "Pinned designs" section), so the styles have one home,
+  // in Go.
+  var MAX_PINS = 4;
+  var MAX_PIN_NAME = 40;
+
+  function PinBar(host) {
+    this.host = host;
+    this.el = host.el.querySelector('[data-role="pins"]');
+    this.list = host.el.querySelector('[data-role="pin-list"]');
+    this.button = host.el.querySelector('[data-action="pin"]');
+    this.pins = [];
+    var self = this;
+    this.button.addEventListener('click', function () { self.pin(); });
+    host.el.querySelector('[data-action="unpin-all"]').addEventListener('click', function () {
+      self.pins = [];
+      self.changed('Every pin removed.');
+    });
+  }
+
+  // pin keeps the design as it stands, once the recompute of the last
+  // edit has answered (a value still marked wrong is not pinned), in the
+  // lowest free slot.
+  PinBar.prototype.pin = function () {
+    var self = this;
+    settle(this.host, function () { self.keep(self.host.design()); });
+  };
+
+  PinBar.prototype.keep = function (design) {
+    if (!design) return;
+    var slot = 0;
+    for (var s = 1; s <= MAX_PINS && !slot; s++) {
+      if (!this.pins.some(function (p) { return p.slot === s; })) slot = s;
+    }
+    if (!slot) {
+      this.host.say('Four designs are pinned already: remove one to pin another.');
+      return;
+    }
+    var p = Object.assign({ name: 'Pin ' + slot, slot: slot }, design);
+    this.pins.push(p);
+    this.pins.sort(function (a, b) { return a.slot - b.slot; });
+    this.changed('Pinned as “' + p.name + '”: edit the current design and compare.');
+  };
+
+  // set replaces the pins by those of a link (the engine's form.pins);
+  // text, when given, supplies each circuit pin's text by slot.
+  PinBar.prototype.set = function (pins, text) {
+    this.pins = (pins || []).map(function (p) {
+      var q = Object.assign({}, p);
+      if (text) q.circuit = text(q.slot);
+      return q;
+    });
+    this.render();
+  };
+
+  // value is the pins as the engine's form takes them.
+  PinBar.prototype.value = function () {
+    return this.pins.map(function (p) { return Object.assign({}, p); });
+  };
+
+  PinBar.prototype.changed = function (msg) {
+    this.render();
+    if (msg) this.host.say(msg);
+    this.host.schedule();
+  };
+
+  // render lists the pins: swatch, name (editable) and a remove button.
+  PinBar.prototype.render = function () {
+    var self = this;
+    this.el.hidden = this.pins.length === 0;
+    this.button.disabled = !ready() || this.pins.length >= MAX_PINS;
+    var items = this.pins.map(function (p) {
+      var li = document.createElement('li');
+      li.setAttribute('data-pin', String(p.slot));
+      var sw = self.host.results.querySelector('.pin-summary [data-pin="' + p.slot + '"] svg');
+      if (sw) li.appendChild(sw.cloneNode(true));
+      var input = document.createElement('input');
+      input.type = 'text';
+      input.value = p.name;
+      input.maxLength = MAX_PIN_NAME;
+      input.spellcheck = false;
+      input.setAttribute('aria-label', 'Name of pin ' + p.slot);
+      input.addEventListener('input', function () {
+        p.name = input.value.trim() ? input.value : 'Pin ' + p.slot;
+        self.host.schedule();
+      });
+      var rm = document.createElement('button');
+      rm.type = 'button';
+      rm.className = 'quiet';
+      rm.textContent = 'Remove';
+      rm.setAttribute('aria-label', 'Remove pin ' + p.slot);
+      rm.setAttribute('data-action', 'unpin');
+      rm.addEventListener('click', function () {
+        self.pins = self.pins.filter(function (q) { return q !== p; });
+        self.changed('Pin ' + p.slot + ' removed.');
+      });
+      li.appendChild(input);
+      li.appendChild(rm);
+      return li;
+    });
+    // Keep the focused name input (and its caret) when only swatches change.
+    var focused = this.list.contains(document.activeElement) ? document.activeElement.getAttribute('aria-label') : null;
+    this.list.replaceChildren.apply(this.list, items);
+    if (focused) {
+      var again = this.list.querySelector('[aria-label="' + cssName(focused) + '"]');
+      if (again) again.focus();
+    }
+  };
+
+  // refresh updates the swatches once a new panel is on the page.
+  PinBar.prototype.refresh = function () {
+    var self = this;
+    var lis = this.list.querySelectorAll('li[data-pin]');
+    for (var i = 0; i < lis.length; i++) {
+      var slot = lis[i].getAttribute('data-pin');
+      var sw = self.host.results.querySelector('.pin-summary [data-pin="' + slot + '"] svg');
+      var old = lis[i].querySelector('svg');
+      if (sw && !old) lis[i].insertBefore(sw.cloneNode(true), lis[i].firstChild);
+    }
+    this.button.disabled = !ready() || this.pins.length >= MAX_PINS;
+  };
+
+  // ---- chart images ----
+
+  // Every chart (figure.plot) offers "SVG" and "PNG" buttons
+  // (data-action="save-svg" / "save-png", written by zport/site/view). The
+  // image is the chart as drawn, with its title, axes and legend, made
+  // self-contained: the page's style of each part is written onto it as
+  // presentation attributes, on a background of the chart's own colour,
+  // so that it reads the same pasted into a slide. The PNG is the SVG
+  // drawn on a canvas at twice the chart's size. Nothing leaves the page.
+  var PNG_SCALE = 2;
+  var STYLE_PROPS = ['fill', 'fill-opacity', 'stroke', 'stroke-opacity', 'stroke-width', 'stroke-dasharray',
+    'stroke-linejoin', 'stroke-linecap', 'paint-order', 'opacity', 'font-family', 'font-size', 'font-weight',
+    'font-style', 'text-anchor', 'dominant-baseline'];
+
+  function chartImage(svg) {
+    var vb = (svg.getAttribute('viewBox') || '0 0 640 400').split(/\s+/).map(Number);
+    var w = vb[2], h = vb[3];
+    var copy = svg.cloneNode(true);
+    var from = [svg].concat(Array.prototype.slice.call(svg.querySelectorAll('*')));
+    var to = [copy].concat(Array.prototype.slice.call(copy.querySelectorAll('*')));
+    for (var i = 0; i < from.length; i++) {
+      var cs = getComputedStyle(from[i]);
+      for (var k = 0; k < STYLE_PROPS.length; k++) {
+        var v = cs.getPropertyValue(STYLE_PROPS[k]);
+        if (v && v !== 'none' || STYLE_PROPS[k] === 'fill' || STYLE_PROPS[k] === 'stroke') to[i].setAttribute(STYLE_PROPS[k], v);
+      }
+      to[i].removeAttribute('class');
+      to[i].removeAttribute('tabindex');
+    }
+    var cursor = copy.querySelectorAll('[data-role="cursor"], .zcur');
+    for (var c = 0; c < cursor.length; c++) cursor[c].remove();
+    var drop = ['tabindex', 'data-freq', 'data-x0', 'data-x1', 'data-my', 'data-py', 'data-mscale', 'data-unit', 'data-fmin', 'data-fmax', 'aria-labelledby', 'aria-describedby', 'role'];
+    for (var d = 0; d < drop.length; d++) copy.removeAttribute(drop[d]);
+    var paths = copy.querySelectorAll('[data-values]');
+    for (var p = 0; p < paths.length; p++) paths[p].removeAttribute('data-values');
+    copy.setAttribute('xmlns', 'http://www.w3.org/2000/svg');
+    copy.setAttribute('width', String(w));
+    copy.setAttribute('height', String(h));
+    var bg = document.createElementNS('http://www.w3.org/2000/svg', 'rect');
+    bg.setAttribute('width', '100%');
+    bg.setAttribute('height', '100%');
+    var fig = svg.closest('figure') || svg.parentNode;
+    bg.setAttribute('fill', getComputedStyle(fig).backgroundColor || '#ffffff');
+    copy.insertBefore(bg, copy.firstChild);
+    return { text: new XMLSerializer().serializeToString(copy), width: w, height: h };
+  }
+
+  function chartName(svg, ext) {
+    var t = svg.querySelector('title');
+    var base = (t ? t.textContent : svg.id || 'chart').toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 60);
+    return 'zport-' + (base || 'chart') + '.' + ext;
+  }
+
+  function saveChart(svg, kind, say) {
+    var img = chartImage(svg);
+    if (kind === 'svg') {
+      var name = chartName(svg, 'svg');
+      saveFile(name, 'image/svg+xml;charset=utf-8', img.text);
+      say('Chart saved as ' + name + '.');
+      return;
+    }
+    var pic = new Image();
+    pic.onload = function () {
+      var canvas = document.createElement('canvas');
+      canvas.width = img.width * PNG_SCALE;
+      canvas.height = img.height * PNG_SCALE;
+      var ctx = canvas.getContext('2d');
+      ctx.scale(PNG_SCALE, PNG_SCALE);
+      ctx.drawImage(pic, 0, 0, img.width, img.height);
+      canvas.toBlob(function (blob) {
+        if (!blob) {
+          say('The PNG could not be made in this browser; save the SVG instead.');
+          return;
+        }
+        var pname = chartName(svg, 'png');
+        saveFile(pname, 'image/png', blob);
+        say('Chart saved as ' + pname + ' (' + canvas.width + ' × ' + canvas.height + ' pixels).');
+      }, 'image/png');
+    };
+    pic.onerror = function () { say('The PNG could not be made in this browser; save the SVG instead.'); };
+    var bytes = new TextEncoder().encode(img.text);
+    pic.src = 'data:image/svg+xml;base64,' + base64(bytes);
+  }
+
+  function base64(bytes) {
+    if (typeof bytes.toBase64 === 'function') return bytes.toBase64();
+    var bin = '';
+    for (var i = 0; i < bytes.length; i++) bin += String.fromCharCode(bytes[i]);
+    return btoa(bin);
+  }
+
+  document.addEventListener('click', function (e) {
+    var b = e.target.closest && e.target.closest('button[data-action="save-svg"], button[data-action="save-png"]');
+    if (!b) return;
+    var fig = b.closest('figure');
+    var svg = fig && fig.querySelector('svg.zplot');
+    if (!svg) return;
+    var msg = fig.querySelector('[data-role="chart-msg"]');
+    saveChart(svg, b.getAttribute('data-action') === 'save-svg' ? 'svg' : 'png', function (t) {
+      if (msg) msg.textContent = t;
+    });
+  });
+
+  // ---- print ----
+
+  // Printing shows every section open: closed details are opened before
+  // printing and closed again after (the print style sheet hides the
+  // controls). "Print report" buttons print the page.
+  // A circuit's text prints whole, as text, in place of its editor (a
+  // text box prints only the lines it shows).
+  var openedForPrint = [];
+  window.addEventListener('beforeprint', function () {
+    var ds = document.querySelectorAll('main details:not([open])');
+    for (var i = 0; i < ds.length; i++) {
+      if (ds[i].closest('.aids, .solve')) continue; // an unrun study or solve has nothing to print
+      ds[i].open = true;
+      openedForPrint.push(ds[i]);
+    }
+    var eds = document.querySelectorAll('[data-circuit-editor] [data-role="editor"]');
+    for (var j = 0; j < eds.length; j++) {
+      var pre = eds[j].parentNode.querySelector('pre.print-text');
+      if (!pre) {
+        pre = document.createElement('pre');
+        pre.className = 'print-text circuit-text';
+        eds[j].parentNode.insertBefore(pre, eds[j].nextSibling);
+      }
+      pre.textContent = eds[j].querySelector('textarea').value;
+    }
+  });
+  window.addEventListener('afterprint', function () {
+    for (var i = 0; i < openedForPrint.length; i++) openedForPrint[i].open = false;
+    openedForPrint = [];
+  });
+  document.addEventListener('click', function (e) {
+    if (e.target.closest && e.target.closest('button[data-action="print"]')) window.print();
+  });
+
+  // chartWidth is the width in CSS pixels at which the charts in results
+  // are shown on a phone's narrow column (calc.Form.ChartWidth), or 0
+  // where they keep their default drawing.
+  var narrow = window.matchMedia ? window.matchMedia('screen and (max-width: 30rem)') : null;
+  var FIGURE_FRAME = 18; // a figure.plot's padding and border, side to side (style.css)
+  function chartWidth(el) {
+    if (!narrow || !narrow.matches) return 0;
+    var fig = el.querySelector('figure.plot');
+    var box = fig || el;
+    var cs = getComputedStyle(box);
+    var w = box.clientWidth - parseFloat(cs.paddingLeft) - parseFloat(cs.paddingRight);
+    if (!fig) w -= FIGURE_FRAME;
+    return Math.max(240, Math.floor(w));
+  }
+
+  // onNarrow calls fn when the page crosses the phone width, or is
+  // resized while narrow (the charts are then drawn again).
+  function onNarrow(fn) {
+    if (!narrow) return;
+    var last = narrow.matches ? window.innerWidth : 0;
+    var check = function () {
+      var w = narrow.matches ? window.innerWidth : 0;
+      if (w !== last) {
+        last = w;
+        fn();
+      }
+    };
+    var t = 0;
+    window.addEventListener('resize', function () {
+      clearTimeout(t);
+      t = setTimeout(check, 150);
+    });
+  }
+
+  // settle calls fn once host (a calculator or the custom page's editor)
+  // has no recompute waiting for its frame (host.scheduled) or on its way
+  // (host.answered, the latest request answered, behind host.seq, the
+  // latest asked); host calls settled(host) after each answer.
+  function settle(host, fn) {
+    host.waiters = host.waiters || [];
+    host.waiters.push(fn);
+    settled(host);
+  }
+
+  function settled(host) {
+    if (host.scheduled || host.answered !== host.seq || !host.waiters) return;
+    var ws = host.waiters;
+    host.waiters = [];
+    for (var i = 0; i < ws.length; i++) ws[i]();
+  }
+
+  // ---- work run on request, in slices (aids.js, solve.js) ----
+
+  // runSliced steps an engine run in slices of about SLICE_MS of engine
+  // time, one task each, so that the page keeps answering, then renders
+  // it. job.run is the run's id (from the engine's start function), job.n
+  // the first slice's size; job.engineMs adds up the time spent in the
+  // engine. spec names the engine's functions — step(id, n) answering
+  // {done, total, finished?} (finished when absent: done ≥ total),
+  // panel(id) and release(id) — and max, the largest slice; it gives
+  // live() (false once the run is cancelled or superseded),
+  // progress(done, total) after each slice, done(out) with the panel's
+  // answer in a task of its own, and stopped(reason) when the engine
+  // stops the run.
+  var SLICE_MS = 8;
+  function runSliced(job, spec) {
+    function slice() {
+      if (!spec.live()) return;
+      if (!engine) return spec.stopped('the live engine stopped');
+      var t = performance.now();
+      call(spec.step, job.run, job.n).then(function (st) {
+        var dt = performance.now() - t;
+        if (!spec.live()) return;
+        job.engineMs += dt;
+        if (st.error) return spec.stopped(st.error.message);
+        // Aim each slice at SLICE_MS of engine time, changing by at most 2×.
+        var f = Math.min(2, Math.max(0.5, SLICE_MS / Math.max(dt, 0.25)));
+        job.n = Math.max(1, Math.min(spec.max, Math.round(job.n * f)));
+        spec.progress(st.done, st.total);
+        var finished = st.finished !== undefined ? st.finished : st.done >= st.total;
+        if (!finished) {
+          later(slice);
+          return;
+        }
+        call(spec.panel, job.run).then(function (out) {
+          call(spec.release, job.run);
+          later(function () {
+            if (spec.live()) spec.done(out);
+          });
+        });
+      });
+    }
+    later(slice);
+  }
+
+  // runButtons switches a run's Run and Cancel buttons and its progress
+  // bar, handing the focus from the button being disabled to the other.
+  function runButtons(run, cancel, bar, on) {
+    var focus = document.activeElement;
+    if (run) run.disabled = on;
+    if (cancel) cancel.disabled = !on;
+    if (bar) bar.hidden = !on;
+    if (on && focus === run && cancel) cancel.focus();
+    if (!on && focus === cancel && run) run.focus();
+  }
+
+  // staleResults marks on-request results (inside the element results)
+  // as out of date, with a note saying so first.
+  function staleResults(results, text) {
+    if (!results || !results.firstChild || results.classList.contains('is-stale')) return;
+    results.classList.add('is-stale');
+    var note = document.createElement('p');
+    note.className = 'stale-note';
+    note.textContent = text;
+    results.insertBefore(note, results.firstChild);
+  }
+
+  // copyResults copies a result's Markdown followed by its share link.
+  function copyResults(host, markdown, link) {
+    copyText(host, markdown + '\nLink to these results: ' + link + '\n', 'Results copied as Markdown tables, with the link.');
+  }
+
+  // recomputed closes the "zport-recompute" measure begun at t0 once the
+  // new panel in results is laid out, and marks the first live result.
+  function recomputed(results, t0) {
+    void results.offsetHeight; // lay the new panel out inside the measure
+    performance.measure('zport-recompute', { start: t0, end: performance.now() });
+    if (!firstLive) {
+      firstLive = true;
+      performance.mark('zport-first-live');
+    }
+  }
 
   globalThis.zportSite = {
     single: single,
     onEngine: function (cb) {
-      if (engine) cb(engine);
+      if (engine) cb();
       else readyCallbacks.push(cb);
     },
-    recomputed: recomputed,
+    ready: ready,
+    call: call,
+    insert: insert,
+    later: later,
+    cssName: cssName,
     markStale: markStale,
+    settings: settings,
+    fillSettings: fillSettings,
+    showFieldError: showFieldError,
+    clearFieldErrors: clearFieldErrors,
+    address: address,
+    ownHash: ownHash,
+    readDraft: readDraft,
+    keepDraft: keepDraft,
+    offerRestore: offerRestore,
+    dropRestore: dropRestore,
     copyText: copyText,
+    copyResults: copyResults,
     saveFile: saveFile,
-    hover: hover,
+    PinBar: PinBar,
+    settle: settle,
+    settled: settled,
+    runSliced: runSliced,
+    runButtons: runButtons,
+    staleResults: staleResults,
+    chartWidth: chartWidth,
+    onNarrow: onNarrow,
     compress: compress,
     decompress: decompress,
+    hover: hover,
+    recomputed: recomputed,
     fragment: fragmentState,
-    // page is the page shown: in the single-file export, the section
-    // chosen by p=; otherwise the file's own name.
+    // currentSection is the page shown: the document, or in the
+    // single-file export the section chosen by p=.
+    currentSection: currentSection,
+    // page is the name of the page shown: in the single-file export, the
+    // section chosen by p=; otherwise the file's own name.
     page: function () {
       if (single) return hashPage() || 'index';
       return (location.pathname.split('/').pop() || 'index.html').replace(/\.html$/, '');
@@ -577,28 +985,19 @@
 
   function start() {
     showPage();
-    var els = document.querySelectorAll('[data-calculator]');
-    for (var i = 0; i < els.length; i++) calculators.push(new Calculator(els[i]));
-    for (var k = 0; k < calculators.length; k++) calculators[k].updateCircuitLink();
-    window.addEventListener('hashchange', function () {
-      showPage();
-      if (!engine) return;
-      for (var j = 0; j < calculators.length; j++) {
-        var c = calculators[j];
-        if (c.owner() && location.hash !== c.lastHash && fragmentState()) c.start();
-      }
-    });
-    if (!calculators.length && !document.querySelector('[data-circuit-editor]')) return;
+    window.addEventListener('hashchange', showPage);
+    if (!document.querySelector('[data-calculator], [data-circuit-editor]')) return;
+    lock(false);
     setStatus('loading', statusText.loading);
     loadEngine().then(function (z) {
       engine = z;
       performance.mark('zport-engine-ready');
       setStatus('ready', statusText.ready);
-      for (var j = 0; j < calculators.length; j++) calculators[j].start();
       var cbs = readyCallbacks;
       readyCallbacks = [];
-      for (var n = 0; n < cbs.length; n++) cbs[n](z);
+      for (var n = 0; n < cbs.length; n++) cbs[n]();
     }, function (err) {
+      lock(true);
       setStatus('failed', 'The live engine could not start: ' + (err && err.message ? err.message : String(err)) +
         '. The results shown were computed when the page was built; the values cannot be edited here.');
     });

@@ -124,7 +124,7 @@ type edValue struct {
 const edValuesJS = `(function (root) {
   return Array.from(document.querySelectorAll(root + ' [data-role="results"] [data-quantity]')).map(function (e) {
     var d = e.dataset;
-    var key = d.quantity === 'extra' ? 'extra:' + d.name : (d.port ? d.port + '/' : '') + d.quantity;
+    var key = d.quantity === 'extra' ? 'extra:' + d.name : d.quantity === 'device' ? 'device:' + d.part + '/' + d.name : d.source ? d.quantity + ':' + d.source : (d.port ? d.port + '/' : '') + (d.pole ? 'pole' + d.pole + '/' : '') + d.quantity;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true' };
   });
 })`
@@ -143,7 +143,10 @@ func edValues(t *testing.T, ctx context.Context, root string) map[string]edValue
 
 // edExpected lists the numbers the panel must show for resp.
 func edExpected(resp *api.Response) (complexes map[string]*api.Complex, reals map[string]*float64) {
-	complexes = map[string]*api.Complex{"T": resp.ReturnRatio}
+	complexes = map[string]*api.Complex{}
+	if resp.Reference != "" {
+		complexes["T"] = resp.ReturnRatio
+	}
 	reals = map[string]*float64{}
 	for _, p := range resp.Ports {
 		for q, z := range map[string]*api.Complex{"z0": p.Z0, "tShort": p.TShort, "tOpen": p.TOpen, "z": p.Z, "zDirect": p.ZDirect} {
@@ -162,6 +165,9 @@ func edExpected(resp *api.Response) (complexes map[string]*api.Complex, reals ma
 	}
 	if m := resp.Margins; m != nil {
 		reals["fc"], reals["pm"], reals["gm"] = m.Crossover, m.PhaseMargin, m.GainMargin
+	}
+	for k, v := range deviceValues(resp) {
+		reals[k] = v
 	}
 	return complexes, reals
 }
@@ -322,10 +328,8 @@ func TestCustomExamples(t *testing.T) {
 	if before["sum/z"].Re != after["sum/z"].Re && !near12(before["sum/z"], after["sum/z"]) || before["sum/z0"] == after["sum/z0"] {
 		t.Errorf("sum: Z %v → %v and Z₀ %v → %v; want Z kept and Z₀ changed", before["sum/z"], after["sum/z"], before["sum/z0"], after["sum/z0"])
 	}
-	// Editing a choice writes it to the address.
-	if h := eval[string](t, ctx, `location.hash`); !strings.HasPrefix(h, "#c=") || !strings.Contains(h, "ref=U2") {
-		t.Errorf("address after choosing U2: %.120s", h)
-	}
+	// Editing a choice writes it to the address, once the edits pause.
+	poll(t, ctx, `location.hash.startsWith('#c=') && location.hash.includes('ref=U2')`)
 	checkHealthy(t, ctx)
 }
 
@@ -470,12 +474,20 @@ func TestCustomErrorAtItsLine(t *testing.T) {
 		t.Errorf("frequency message %q", msg)
 	}
 
-	// A circuit without a controlled source says so at the reference.
+	// A circuit without a controlled source is analysed as it is: the
+	// reference picker says none, and the direct solution is shown.
 	eval[bool](t, ctx, `(function () { var i = document.querySelector('[data-circuit-editor] input[name="frequency"]');
   i.value = '1k'; return true; })()`)
 	edSetText(t, ctx, "resistor R1 a gnd 1k\nport p a gnd\n")
-	if msg := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] [data-field="reference"] [data-role="msg"]').textContent`); !strings.Contains(msg, "no controlled source") {
-		t.Errorf("reference message %q", msg)
+	if ref := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] [data-role="reference"]').selectedOptions[0].textContent`); !strings.HasPrefix(ref, "none") {
+		t.Errorf("reference picker shows %q", ref)
+	}
+	if edStale(t, ctx) {
+		t.Error("a passive circuit is marked stale")
+	}
+	z := edValues(t, ctx, "[data-circuit-editor]")["p/zDirect"]
+	if re, err := strconv.ParseFloat(z.Re, 64); err != nil || !scalar.EqualWithinRel(re, 1000, 1e-12) || z.Im != "0" {
+		t.Errorf("Z direct of 1 kΩ shows %+v", z)
 	}
 	checkHealthy(t, ctx)
 }
@@ -601,7 +613,7 @@ func TestCustomShareLink(t *testing.T) {
 	}
 	got := edValues(t, tab, "[data-circuit-editor]")
 	for k, v := range shown {
-		if again.Used != state.Used && (k == "fc" || k == "pm" || k == "gm") {
+		if again.Used != state.Used && (k == "fc" || k == "pm" || k == "gm" || k == "closure") {
 			continue // found on different sweep grids
 		}
 		if got[k] != v {
@@ -794,8 +806,9 @@ func TestCustomHostileLink(t *testing.T) {
 		{"not deflate", "c=" + base64.RawURLEncoding.EncodeToString(noise), "damaged", first.Text},
 		{"inflates to 16 MB", "c=" + bomb, "longer than 256 KB", first.Text},
 		{"not UTF-8", "c=" + edCompress(t, []byte{'#', 0xff, 0xfe, '\n'}), "not UTF-8", first.Text},
-		{"markup as reference", "c=" + good + "&ref=" + url.QueryEscape(edHostileName), "settings in this link were not used", examples.All()[1].Text},
-		{"unknown setting", "c=" + good + "&onload=alert(1)", "settings in this link were not used", examples.All()[1].Text},
+		{"markup as reference", "c=" + good + "&ref=" + url.QueryEscape(edHostileName), `Not used from this link: ref = "`, examples.All()[1].Text},
+		{"unknown setting", "c=" + good + "&onload=alert(1)", `Not used from this link: onload = "alert(1)" (this page has no such setting). The page shows the link’s circuit`, examples.All()[1].Text},
+		{"the circuit twice", "c=" + good + "&c=" + good, "“c=” appears twice", examples.All()[1].Text},
 	} {
 		edLoad(t, ctx, fileURL("custom", c.frag))
 		notice := eval[string](t, ctx, `document.querySelector('[data-circuit-editor] [data-role="notice"]').textContent`)
@@ -950,7 +963,17 @@ func TestCustomFiles(t *testing.T) {
 	// The sweep as CSV: one row per point, the ports' and the gain's columns.
 	eval[bool](t, ctx, `(document.querySelector('[data-circuit-editor] [data-action="csv"]').click(), true)`)
 	csv := edWaitFile(t, filepath.Join(out, "zport-circuit.csv"), func(b []byte) bool { return bytes.Count(b, []byte("\n")) >= 401 })
-	head := string(csv[:bytes.IndexByte(csv, '\n')])
+	// The header row follows the comment lines that say what made the file.
+	var head string
+	for _, line := range strings.Split(string(csv), "\n") {
+		if !strings.HasPrefix(line, "#") {
+			head = line
+			break
+		}
+	}
+	if !strings.Contains(string(csv), "# circuit text:\r\n") || !strings.Contains(string(csv), "# link: file://") {
+		t.Errorf("the CSV's header does not give the circuit text and the link:\n%.600s", csv)
+	}
 	for _, col := range []string{"in.z", "sum.zDirect", "gInf"} {
 		if !strings.Contains(head, col) {
 			t.Errorf("CSV header %q lacks %s", head, col)
@@ -1021,4 +1044,23 @@ func TestCustomScreenshots(t *testing.T) {
 		}
 	}
 	t.Logf("screenshots in %s", dir)
+}
+
+// A circuit the engine cannot solve names the parts it is traced to; the
+// editor marks their lines (a loop of two voltage sources here).
+func TestCustomSingularMarksParts(t *testing.T) {
+	ctx := start(t)
+	edLoad(t, ctx, fileURL("custom", ""))
+	edSetText(t, ctx, "vsource V1 a gnd 1\nvsource V2 a gnd 2\nvcvs E1 b gnd sense=a,gnd gain=1\nresistor R1 b gnd 1k\nport p b gnd\n")
+	g := eval[geometry](t, ctx, geometryJS)
+	if fmt.Sprint(g.MarkLines) != "[1 2]" {
+		t.Errorf("gutter marks on lines %v, want 1 and 2 (V1 and V2)", g.MarkLines)
+	}
+	if len(g.Listed) != 1 || !strings.Contains(g.Listed[0], "V1") {
+		t.Errorf("listed %q, want the engine's message naming V1 and V2", g.Listed)
+	}
+	if !edStale(t, ctx) {
+		t.Error("the results are not marked stale")
+	}
+	checkHealthy(t, ctx)
 }

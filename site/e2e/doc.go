@@ -53,6 +53,8 @@
 //	screenshots_test.go  every page at 1280×800 (light, dark) and 390×844, checked non-blank
 //	aids_test.go         the design aids: tolerance study, cancel, share link, panels
 //	custom_test.go       the custom-circuit page: editor, errors, limits, links, files
+//	robust_test.go       drafts across reloads, links by one rule, tiny values, long tokens,
+//	                     scripts off, the editor's input limits
 //
 // Set ZPORT_SHOTS=DIR to keep the screenshots in DIR.
 package e2e

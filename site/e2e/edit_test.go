@@ -11,7 +11,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // inputSel is the CSS selector of input name of calculator id.
@@ -91,6 +91,9 @@ var edits = []struct{ id, param, value string }{
 	{"capload", "gbw", "10M"},
 	{"degenerated", "gm", "2m"},
 	{"shuntfeedback", "IC", "2m"},
+	{"boostedcascode", "Ab", "2000"},
+	{"emitterfollower", "IC", "3m"},
+	{"miller", "Rz", "1k"},
 }
 
 // Typing a value (key by key) updates every port row and every chart, and
@@ -200,7 +203,7 @@ func TestBadValueKeepsLastGoodResult(t *testing.T) {
 				typeInto(t, ctx, id, bad.field, bad.text)
 			}
 			in := inputs(t, ctx, id)
-			out := render.Compute(form(id, in))
+			out := calc.Compute(form(id, in))
 			if out.Error == nil || out.Error.Param != bad.field {
 				t.Fatalf("the native engine does not refuse %s=%q by that field: %+v", bad.field, bad.text, out.Error)
 			}

@@ -118,34 +118,30 @@ func newTab(t *testing.T, ctx context.Context) context.Context {
 // with (window.__e2e.hash), records uncaught errors, rejected promises and
 // policy violations in window.__e2e.errors, and it marks the results
 // panels the HTML itself carries (pre-rendered at build time) with
-// data-e2e-prerendered, counting them in window.__e2e.prerendered: every
-// panel that enters the document while the engine is not yet ready
-// (data-engine on the root element) is one the parser put there, since the
-// engine renders nothing before it is ready. A panel the engine rendered
-// has no mark. (Marking what the document holds when it is parsed would
-// not do: in the single-file export the scripts are inline, and on a busy
-// machine the parser can yield long enough for the engine to start and
-// replace panels before the document is parsed.)
+// data-e2e-prerendered when zport.js defines window.zportSite: every such
+// panel is in the document by then (the multi-page site runs its scripts
+// deferred, after parsing; the single file runs them inline at the end of
+// body), and the engine has not started, so none has been replaced. (The
+// end of parsing is too late a mark for the single file: its inline
+// scripts can start the engine, and render live panels, before
+// readyState becomes "interactive".) A panel the engine rendered has no
+// mark.
 const probeScript = `(function () {
-  var p = window.__e2e = { errors: [], prerendered: 0, hash: location.hash };
+  var p = window.__e2e = { errors: [], prerendered: -1, hash: location.hash };
   window.addEventListener('error', function (e) { p.errors.push('error: ' + e.message); });
   window.addEventListener('unhandledrejection', function (e) { p.errors.push('unhandled rejection: ' + e.reason); });
   document.addEventListener('securitypolicyviolation', function (e) { p.errors.push('csp: ' + e.violatedDirective + ' ' + e.blockedURI); });
-  var sel = '[data-role="results"] > .panel';
-  var mark = function (el) { el.setAttribute('data-e2e-prerendered', ''); p.prerendered++; };
-  // Mutation callbacks run at the end of the task that changed the
-  // document, so the engine's state here is its state at the insertion.
-  new MutationObserver(function (records) {
-    var root = document.documentElement;
-    if (root && root.getAttribute('data-engine') === 'ready') return;
-    records.forEach(function (r) {
-      r.addedNodes.forEach(function (n) {
-        if (n.nodeType !== 1) return;
-        if (n.matches(sel)) mark(n);
-        n.querySelectorAll(sel).forEach(mark);
-      });
-    });
-  }).observe(document, { childList: true, subtree: true });
+  var site;
+  Object.defineProperty(window, 'zportSite', { configurable: true, enumerable: true,
+    get: function () { return site; },
+    set: function (v) {
+      if (p.prerendered < 0) {
+        var panels = document.querySelectorAll('[data-role="results"] > .panel');
+        for (var i = 0; i < panels.length; i++) panels[i].setAttribute('data-e2e-prerendered', '');
+        p.prerendered = panels.length;
+      }
+      site = v;
+    } });
 })();`
 
 // probe is what a tab's probe saw on the Go side: JavaScript dialogs

@@ -17,7 +17,7 @@ import (
 
 	"zport/engine/api"
 	"zport/engine/value"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // What a live calculator shows is held to the native engine: the same
@@ -47,8 +47,8 @@ func inputs(t *testing.T, ctx context.Context, id string) map[string]string {
 
 // form turns a calculator's inputs into the form the page sends the
 // engine.
-func form(id string, in map[string]string) render.Form {
-	f := render.Form{Topology: id, Params: map[string]string{}, ID: "calc-" + id}
+func form(id string, in map[string]string) calc.Form {
+	f := calc.Form{Topology: id, Params: map[string]string{}, ID: "calc-" + id}
 	for k, v := range in {
 		switch {
 		case k == "frequency":
@@ -62,6 +62,7 @@ func form(id string, in map[string]string) render.Form {
 			case "sweep.points":
 				f.Sweep.Points = v
 			}
+		case setting(k, v, &f.Settings):
 		default:
 			f.Params[k] = v
 		}
@@ -71,7 +72,7 @@ func form(id string, in map[string]string) render.Form {
 
 // native analyzes what the calculator's inputs say with the native
 // engine: the topology with those parameters, at that spot frequency, over
-// that sweep.
+// that sweep, with the noise the calculator's settings ask for.
 func native(t *testing.T, id string, in map[string]string) *api.Response {
 	t.Helper()
 	req := api.Request{Topology: id, Params: map[string]string{}}
@@ -82,17 +83,26 @@ func native(t *testing.T, id string, in map[string]string) *api.Response {
 		}
 		return v
 	}
+	settings := map[string]calc.Values{}
 	for k, v := range in {
-		if k != "frequency" && !strings.HasPrefix(k, "sweep.") {
+		if k != "frequency" && !strings.HasPrefix(k, "sweep.") && !setting(k, v, &settings) {
 			req.Params[k] = v
 		}
 	}
+	askAnalyses(t, id, &req, settings)
 	req.Frequency = parse("frequency")
 	pts, err := strconv.Atoi(strings.TrimSpace(in["sweep.points"]))
 	if err != nil {
 		t.Fatalf("%s: sweep points %q: %v", id, in["sweep.points"], err)
 	}
 	req.Sweep = &api.SweepSpec{From: parse("sweep.from"), To: parse("sweep.to"), Points: pts}
+	// The noise options exactly as the calculator asks for them.
+	asked, bad := form(id, in).Request()
+	if bad != nil {
+		t.Fatalf("%s: the calculator's request: %+v", id, bad)
+	}
+	api.Noise.Ask(&req, api.Noise.Asked(asked))
+	req.Temperature = asked.Temperature
 	resp, err := api.Analyze(req)
 	if err != nil {
 		t.Fatalf("%s: native analysis of %v: %v", id, in, err)
@@ -102,7 +112,7 @@ func native(t *testing.T, id string, in map[string]string) *api.Response {
 
 // shown is one value on the page, as its element's data attributes give it.
 type shown struct {
-	Key   string `json:"key"` // "port/quantity", "quantity", "closed:port/quantity", "extra:name"
+	Key   string `json:"key"` // "port/quantity", "quantity", "closed:port/quantity", "extra:name", "device:part/name"
 	Re    string `json:"re"`
 	Im    string `json:"im"`
 	Value string `json:"value"`
@@ -118,7 +128,9 @@ func shownValues(t *testing.T, ctx context.Context, id string) []shown {
   return Array.from(root.querySelectorAll('[data-quantity], [data-closed-form]')).map(function (e) {
     var d = e.dataset, key;
     if (d.quantity === 'extra') key = 'extra:' + d.name;
-    else if (d.quantity) key = (d.port ? d.port + '/' : '') + d.quantity;
+    else if (d.quantity === 'device') key = 'device:' + d.part + '/' + d.name;
+    else if (d.quantity && d.source) key = d.quantity + ':' + d.source;
+    else if (d.quantity) key = (d.port ? d.port + '/' : '') + (d.pole ? 'pole' + d.pole + '/' : '') + d.quantity;
     else key = 'closed:' + (d.port ? d.port + '/' : '') + d.closedForm;
     return { key: key, re: d.re || '', im: d.im || '', value: d.value || '', null: d.null === 'true', text: e.textContent };
   });
@@ -131,8 +143,9 @@ type want struct {
 	z    *api.Complex
 	x    *float64
 	text *string
-	abs  bool // compare absolutely (a relative difference, itself near rounding)
-	kind byte // 'z', 'x' or 't'
+	abs  bool    // compare absolutely (a relative difference, itself near rounding)
+	tol  float64 // the tolerance when not relTol
+	kind byte    // 'z', 'x' or 't'
 }
 
 // expected lists what the page must show for resp, by the keys of shown.
@@ -166,6 +179,26 @@ func expected(resp *api.Response) map[string]want {
 		v := m.Verdict
 		w["verdict"] = want{text: &v, kind: 't'}
 	}
+	for k, v := range deviceValues(resp) {
+		x(k, v, false)
+	}
+	if n := api.Noise.Result(resp); n != nil {
+		x("noiseOutput", n.Spot.Output, false)
+		x("noiseRms", n.RMS.Output, false)
+		x("noiseTemperature", &n.Temperature, false)
+		x("noiseError", n.Integration.Error, true)
+		if n.Source != "" {
+			x("noiseInput", n.Spot.Input, false)
+			x("noiseRmsInput", n.RMS.Input, false)
+			x("noiseBandwidth", n.Bandwidth, false)
+		}
+		for _, c := range n.Contributors {
+			x("contributorSpot:"+c.Name, c.Spot, false)
+			x("contributorRms:"+c.Name, c.RMS, false)
+			x("contributorShare:"+c.Name, c.Share, false)
+		}
+	}
+	expectAnalyses(resp, w)
 	if top := resp.Topology; top != nil {
 		for _, e := range top.Extras {
 			x("extra:"+e.Name, e.Value, false)
@@ -211,6 +244,30 @@ func expected(resp *api.Response) map[string]want {
 		}
 	}
 	return w
+}
+
+// deviceValues lists the transistor values the panel's Transistors section
+// shows, keyed "device:PART/name" as the page's data-part and data-name
+// give them.
+func deviceValues(resp *api.Response) map[string]*float64 {
+	out := map[string]*float64{}
+	for _, d := range resp.Devices {
+		fields := map[string]*float64{"gm": &d.Gm, "ro": d.Ro}
+		switch d.Kind {
+		case "bjt":
+			for k, v := range map[string]*float64{"rpi": d.Rpi, "cpi": d.Cpi, "cmu": d.Cmu, "rb": d.Rb, "ic": d.Ic, "ib": d.Ib, "beta": d.Beta} {
+				fields[k] = v
+			}
+		case "mos":
+			for k, v := range map[string]*float64{"cgs": d.Cgs, "cgd": d.Cgd, "gmb": d.Gmb, "id": d.Id, "vov": d.Vov, "gamma": d.Gamma} {
+				fields[k] = v
+			}
+		}
+		for k, v := range fields {
+			out["device:"+d.Name+"/"+k] = v
+		}
+	}
+	return out
 }
 
 func relDiff(a, b complex128) float64 {
@@ -270,7 +327,11 @@ func compareOne(s shown, w want) string {
 		if s.Null || !ok1 || !ok2 {
 			return fmt.Sprintf("shows no number (re %q, im %q), native %v", s.Re, s.Im, w.z.Value())
 		}
-		if g, n := complex(re, im), w.z.Value(); !cscalar.EqualWithinRel(g, n, relTol) {
+		tol := relTol
+		if w.tol > 0 {
+			tol = w.tol
+		}
+		if g, n := complex(re, im), w.z.Value(); !cscalar.EqualWithinRel(g, n, tol) {
 			return fmt.Sprintf("page %v, native %v (relative difference %.3g)", g, n, relDiff(g, n))
 		}
 	case 'x':
@@ -284,11 +345,15 @@ func compareOne(s shown, w want) string {
 		if s.Null || !ok {
 			return fmt.Sprintf("shows no number (%q), native %v", s.Value, *w.x)
 		}
+		tol := relTol
+		if w.tol > 0 {
+			tol = w.tol
+		}
 		if w.abs {
-			if !scalar.EqualWithinAbs(v, *w.x, relTol) {
+			if !scalar.EqualWithinAbs(v, *w.x, tol) {
 				return fmt.Sprintf("page %v, native %v", v, *w.x)
 			}
-		} else if !scalar.EqualWithinRel(v, *w.x, relTol) {
+		} else if !scalar.EqualWithinRel(v, *w.x, tol) {
 			return fmt.Sprintf("page %v, native %v (relative difference %.3g)", v, *w.x, math.Abs(v-*w.x)/math.Max(math.Abs(v), math.Abs(*w.x)))
 		}
 	}
@@ -299,6 +364,7 @@ func compareOne(s shown, w want) string {
 type chart struct {
 	ID     string            `json:"id"`
 	Freq   string            `json:"freq"`
+	Time   string            `json:"time"`   // a time chart's times, instead of Freq
 	Traces map[string]string `json:"traces"` // data-name → data-values
 }
 
@@ -310,7 +376,7 @@ func charts(t *testing.T, ctx context.Context, id string) []chart {
   return Array.from(root.querySelectorAll('svg.zplot')).map(function (s) {
     var tr = {};
     s.querySelectorAll('path[data-values]').forEach(function (p) { tr[p.getAttribute('data-name')] = p.getAttribute('data-values'); });
-    return { id: s.id, freq: s.getAttribute('data-freq') || '', traces: tr };
+    return { id: s.id, freq: s.getAttribute('data-freq') || s.getAttribute('data-nyquist') || '', time: s.getAttribute('data-time') || '', traces: tr };
   });
 })()`)
 }
@@ -338,9 +404,40 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 	if s.Gain != nil && resp.Gain != nil {
 		exp = append(exp, series{prefix + "gain", "g", s.Gain.G}, series{prefix + "gain", "g∞ (ideal)", s.Gain.GInf})
 	}
+	if n := api.Noise.Result(resp); n != nil {
+		reals := func(v []*float64) []*api.Complex {
+			out := make([]*api.Complex, len(v))
+			for i, x := range v {
+				if x != nil {
+					out[i] = &api.Complex{Re: *x}
+				}
+			}
+			return out
+		}
+		exp = append(exp, series{prefix + "noise", "total", reals(n.Output)})
+		for _, c := range n.Contributors {
+			if c.Density != nil {
+				exp = append(exp, series{prefix + "noise", calc.NoiseTrace(c), reals(c.Density)})
+			}
+		}
+		if n.Input != nil {
+			exp = append(exp, series{prefix + "noise-in", "input-referred", reals(n.Input)})
+		}
+		if n.NoiseGain != nil {
+			exp = append(exp, series{prefix + "noise-gain", "noise gain 1/β", n.NoiseGain},
+				series{prefix + "noise-gain", "eₙ → " + n.Node + " (closed loop)", n.EnTransfer})
+		}
+	}
+	for _, l := range loopViewSeries(prefix, resp) {
+		exp = append(exp, series(l))
+	}
 	byID := map[string]chart{}
 	var bad []string
+	bad = append(bad, compareStepChart(prefix, got, resp)...)
 	for _, c := range got {
+		if c.Time != "" {
+			continue // the step chart, compared above
+		}
 		byID[c.ID] = c
 		f := strings.Fields(c.Freq)
 		if len(f) != len(s.Frequency) {
@@ -349,7 +446,9 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 		}
 		for i, x := range f {
 			v, err := strconv.ParseFloat(x, 64)
-			if err != nil || !scalar.EqualWithinRel(v, s.Frequency[i], 5.01e-6) {
+			// Relative however small the frequency (gonum's EqualWithinRel
+			// turns absolute below the smallest normal number).
+			if err != nil || math.Abs(v-s.Frequency[i]) > 5.01e-6*math.Max(v, s.Frequency[i]) {
 				bad = append(bad, fmt.Sprintf("chart %s: frequency %d is %s, native %v", c.ID, i, x, s.Frequency[i]))
 				break
 			}
@@ -360,6 +459,9 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 		want[e.chart]++
 	}
 	for _, c := range got {
+		if c.Time != "" {
+			continue
+		}
 		if want[c.ID] == 0 {
 			bad = append(bad, "chart "+c.ID+" is not one the native response has")
 		} else if len(c.Traces) != want[c.ID] {
@@ -385,10 +487,11 @@ func compareCharts(calcID string, got []chart, resp *api.Response) []string {
 	return bad
 }
 
-// compareTrace holds a trace's data-values ("|v| phase" pairs) to the
-// native values: |v| within half a unit of the sixth digit, the phase
-// within 0.005° modulo 360° (the chart unwraps it). A gap (NaN) is right
-// only where the native value is not finite or zero.
+// compareTrace holds a trace's data-values ("|v| phase" pairs; a
+// magnitude-only chart keeps the phases too) to the native values: |v|
+// within half a unit of the sixth digit, the phase within 0.005° modulo
+// 360° (the chart unwraps it). A gap (NaN) is right only where the native
+// value is not finite or zero.
 func compareTrace(vals string, v []*api.Complex) string {
 	f := strings.Fields(vals)
 	if len(f) != 2*len(v) {
@@ -398,7 +501,7 @@ func compareTrace(vals string, v []*api.Complex) string {
 		mag, err1 := strconv.ParseFloat(f[2*i], 64)
 		ph, err2 := strconv.ParseFloat(f[2*i+1], 64)
 		if err1 != nil || err2 != nil {
-			return fmt.Sprintf("point %d: unreadable %q %q", i, f[2*i], f[2*i+1])
+			return fmt.Sprintf("point %d: unreadable %q", i, f[2*i:2*i+2])
 		}
 		if c == nil || c.Value() == 0 {
 			if !math.IsNaN(mag) {

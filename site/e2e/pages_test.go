@@ -7,7 +7,7 @@ import (
 	"testing"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // Every topology page of the catalog, opened from file://, goes live and
@@ -38,7 +38,7 @@ func checkTopologyPages(t *testing.T, url func(id string) string) {
 			// The inputs show the catalog's defaults, so the comparison
 			// below is with the defaults' analysis.
 			in := inputs(t, ctx, e.ID)
-			d := render.DefaultForm(e)
+			d := calc.DefaultForm(e)
 			for _, p := range e.Params {
 				if in[p.Name] != d.Params[p.Name] {
 					t.Errorf("input %s = %q, the catalog's default is %q", p.Name, in[p.Name], d.Params[p.Name])
@@ -49,8 +49,8 @@ func checkTopologyPages(t *testing.T, url func(id string) string) {
 					t.Errorf("input %s = %q, the catalog's default is %q", name, in[name], v)
 				}
 			}
-			if len(in) != len(e.Params)+4 {
-				t.Errorf("%d inputs, want %d parameters and 4 analysis fields", len(in), len(e.Params))
+			if want := defaultInputs(e); len(in) != len(want) {
+				t.Errorf("%d inputs, want %d parameters, 4 analysis fields and %d analyses' settings", len(in), len(e.Params), len(want)-len(e.Params)-4)
 			}
 			resp := checkAgainstNative(t, ctx, e.ID)
 			if n := eval[int](t, ctx, `document.querySelectorAll(`+jsString(calcSel(e.ID)+` tbody[data-port]`)+`).length`); n != len(resp.Ports) || n != len(e.Ports) {

@@ -14,7 +14,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // loadFresh opens u as a new document even when the tab already shows the
@@ -82,7 +82,7 @@ func TestShareLinkRoundTrips(t *testing.T) {
 	// A link followed on a page already open (only the fragment changes)
 	// loads its settings too.
 	e, _ := api.LookupEntry(id)
-	f := render.DefaultForm(e)
+	f := calc.DefaultForm(e)
 	f.Params["R1"] = "22k"
 	f.Frequency = "3k3"
 	next := "#" + f.State(e)
@@ -132,16 +132,17 @@ func hostileFragments() []struct{ name, raw string } {
 	}
 }
 
-// A malformed or hostile fragment is ignored with a visible notice: no
-// script runs, nothing of it becomes markup, the page shows the defaults
-// and stays alive, and the address drops the hostile text.
+// A malformed or hostile fragment is refused, setting by setting, with a
+// visible notice saying exactly what was not used: no script runs, nothing
+// of it becomes markup, the page shows the rest of the link with defaults
+// in place of what was refused, stays alive, and the address drops the
+// hostile text.
 //
 // Each fragment is opened in a tab of its own, side by side.
 func TestHostileFragmentIsRefused(t *testing.T) {
 	t.Parallel()
 	const id = "inverting"
 	e, _ := api.LookupEntry(id)
-	defaults := "#" + render.DefaultForm(e).State(e)
 	check := func(t *testing.T, ctx context.Context, frag string) {
 		t.Helper()
 		// The page's own script elements, as its HTML holds them.
@@ -150,24 +151,24 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 			t.Fatal(err)
 		}
 		scripts := bytes.Count(html, []byte("<script"))
-		msg := render.Compute(render.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
-		if msg.Error == nil {
-			t.Fatalf("the native engine accepts the fragment %.80q", frag)
+		msg := calc.Compute(calc.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
+		if msg.Error != nil || len(msg.Refused) == 0 {
+			t.Fatalf("the native engine refuses nothing of the fragment %.80q: %+v", frag, msg.Error)
 		}
-		want := "The settings in this link were not used (" + msg.Error.Message + "). Showing the defaults instead."
+		want := msg.Notice
 		poll(t, ctx, `(function () { var n = document.querySelector('[data-role="notice"]'); return !n.hidden && n.offsetHeight > 0 && n.textContent === `+jsString(want)+`; })()`)
-		if got := inputs(t, ctx, id); !sameMap(got, defaultInputs(e)) {
-			t.Errorf("inputs after a refused link: %v", got)
+		if got := inputs(t, ctx, id); !sameMap(got, formInputs(*msg.Form)) {
+			t.Errorf("inputs after a refused link: %v, want %v", got, formInputs(*msg.Form))
 		}
 		checkAgainstNative(t, ctx, id)
-		if h := eval[string](t, ctx, `location.hash`); h != defaults {
-			t.Errorf("the address still holds %.80q, want the defaults", h)
+		if h := eval[string](t, ctx, `location.hash`); h != "#"+msg.State {
+			t.Errorf("the address holds %.80q, want the settings in use %.80q", h, msg.State)
 		}
 		if n := eval[int](t, ctx, `document.querySelectorAll('img, iframe, object, embed').length`); n != 0 {
 			t.Errorf("%d embedded elements appeared", n)
 		}
 		if n := eval[int](t, ctx, `document.scripts.length`); n != scripts {
-			t.Errorf("%d scripts on the page, %d before", n, scripts)
+			t.Errorf("%d scripts on the page, %d in its HTML", n, scripts)
 		}
 		if got := eval[string](t, ctx, `document.documentElement.dataset.engine`); got != "ready" {
 			t.Errorf("engine %q", got)
@@ -217,11 +218,18 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 }
 
 // defaultInputs is what a calculator's inputs hold at the catalog defaults.
-func defaultInputs(e api.CatalogEntry) map[string]string {
-	d := render.DefaultForm(e)
-	m := map[string]string{"frequency": d.Frequency, "sweep.from": d.Sweep.From, "sweep.to": d.Sweep.To, "sweep.points": d.Sweep.Points}
-	for k, v := range d.Params {
+func defaultInputs(e api.CatalogEntry) map[string]string { return formInputs(calc.DefaultForm(e)) }
+
+// formInputs is what a calculator's inputs hold for a form.
+func formInputs(f calc.Form) map[string]string {
+	m := map[string]string{"frequency": f.Frequency, "sweep.from": f.Sweep.From, "sweep.to": f.Sweep.To, "sweep.points": f.Sweep.Points}
+	for k, v := range f.Params {
 		m[k] = v
+	}
+	for _, a := range calc.Analyses {
+		for _, s := range a.Settings {
+			m[a.Field(s.Name)] = s.Default
+		}
 	}
 	return m
 }

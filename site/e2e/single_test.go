@@ -12,7 +12,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"zport/engine/api"
-	"zport/site/render"
+	"zport/site/calc"
 )
 
 // singleURL is the file:// URL of the single-file export, with an
@@ -103,7 +103,7 @@ func TestSingleFileExport(t *testing.T) {
 
 	// A link to a section with settings opens them.
 	e := mustEntry(t, "transimpedance")
-	f := render.DefaultForm(e)
+	f := calc.DefaultForm(e)
 	f.Params["Rf"] = "470k"
 	f.Frequency = "20k"
 	loadFresh(t, ctx, singleURL("p=transimpedance&"+f.State(e)))
@@ -117,7 +117,7 @@ func TestSingleFileExport(t *testing.T) {
 	// A hostile one is refused there too.
 	loadFresh(t, ctx, singleURL("p=inverting&R1=<img src=x onerror=alert(1)>"))
 	shownSection(t, ctx, "inverting")
-	poll(t, ctx, `(function () { var n = document.querySelector('#page-inverting [data-role="notice"]'); return !n.hidden && /not used/.test(n.textContent); })()`)
+	poll(t, ctx, `(function () { var n = document.querySelector('#page-inverting [data-role="notice"]'); return !n.hidden && /^Not used from this link: R1 = /.test(n.textContent); })()`)
 	if got := inputs(t, ctx, "inverting"); !sameMap(got, defaultInputs(mustEntry(t, "inverting"))) {
 		t.Errorf("inputs after a refused link: %v", got)
 	}

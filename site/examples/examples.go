@@ -36,7 +36,7 @@ type Example struct {
 // All returns the examples in the order the page lists them. The first is
 // the one the page opens with.
 func All() []Example {
-	return []Example{twoPole, cable, degenerated, twoStage, currentFeedback}
+	return []Example{twoPole, cable, degenerated, twoStage, currentFeedback, commonEmitter, photodiodeNoise}
 }
 
 // Lookup returns the example called id.
@@ -217,4 +217,58 @@ port      inv  inv  gnd                        # the inverting input
 	Ports:     []string{"out", "inv"},
 	Gain:      &api.GainSpec{Source: "Vin", Output: "out"},
 	Frequency: "1M", From: "1k", To: "1G", Points: "400",
+}
+
+var commonEmitter = Example{
+	ID:    "ce",
+	Title: "Common-emitter stage written with a bjt line",
+	Scenario: "The first gain stage of a hobby audio-band preamplifier: a bipolar transistor at 1 mA with an unbypassed " +
+		"220 Ω emitter resistor for linearity and a 4.7 kΩ collector load, driven from a 1 kΩ source, with 10 pF of wiring " +
+		"and next-stage input at the collector.",
+	Look: "The bjt line derives the hybrid-π model from the bias (the Transistors section lists gm, rπ, ro and Cπ); its " +
+		"transconductance is the reference. The emitter resistor is series feedback: at the collector it multiplies ro, at the base " +
+		"it adds (1 + β0)·RE. Change ic= and watch every value move with gm = IC/VT; delete va= to see ro become infinite.",
+	Text: `# Common-emitter stage written with a bjt line (invented
+# scenario): 1 mA, an unbypassed 220 Ω emitter resistor.
+vsource   Vs   src  gnd  1
+resistor  Rs   src  b    1k                     # the source
+bjt       Q1   c    b    e    ic=1m beta=150 va=80 ft=400M cmu=0.6p rb=100
+resistor  RE   e    gnd  220                    # emitter degeneration
+resistor  RC   c    gnd  4.7k                   # collector load
+capacitor CL   c    gnd  10p                    # wiring, next stage
+port      out  c    gnd
+port      in   src  gnd                         # what the source sees
+`,
+	Reference: "Q1",
+	Ports:     []string{"out", "in"},
+	Gain:      &api.GainSpec{Source: "Vs", Output: "c"},
+	Frequency: "10k", From: "10", To: "1G", Points: "400",
+}
+
+var photodiodeNoise = Example{
+	ID:    "pdnoise",
+	Title: "Photodiode front end: where its noise comes from",
+	Scenario: "The receiver of a short-range infrared data link: a 50 pF photodiode under about 2 µA of background light " +
+		"into a 100 kΩ transimpedance with 2 pF across it, on a FET-input op amp of 6 nV/√Hz (1/f below " +
+		"200 Hz) and 2 fA/√Hz, driving an ADC buffer that is not part of the design.",
+	Look: "Read the noise table and the density chart: at low frequency Rf's thermal noise and the shot noise " +
+		"of the background light share the output; above the noise gain's zero at 1/(2π·Rf·(Cd + Cf)) the op " +
+		"amp's eₙ, multiplied by 1 + Cd/Cf, takes over. Double Cf and watch eₙ's share fall and the bandwidth " +
+		"with it; raise shot= to see how much light the stage takes before shot noise rules.",
+	Text: `# Photodiode front end, noise budget (invented scenario): 2 µA of
+# background light on a 50 pF diode, 100 kΩ transimpedance.
+isource   Iph  gnd  sum  1                  # the signal photocurrent
+inoise    Ish  gnd  sum  shot=2u            # shot noise of 2 µA of light
+capacitor Cd   sum  gnd  50p                # diode capacitance
+resistor  Rf   out  sum  100k               # transimpedance
+capacitor Cf   out  sum  2p                 # feedback capacitor
+opamp     U1   gnd  sum  out  a0=1M gbw=20M ro=30 en=6n fce=200 in=2f
+resistor  RL   out  gnd  2k noise=off       # ADC buffer input, not ours
+port      in   sum  gnd                     # what the diode sees
+port      out  out  gnd
+`,
+	Reference: "U1",
+	Ports:     []string{"in", "out"},
+	Gain:      &api.GainSpec{Source: "Iph", Output: "out"},
+	Frequency: "1k", From: "10", To: "100M", Points: "400",
 }

@@ -330,7 +330,81 @@ func TestCurrentFeedbackClosedForm(t *testing.T) {
 	}
 }
 
+// The common-emitter example at DC (CL open), against the degenerated
+// transistor's output resistance with base resistance (P. R. Gray, P. J.
+// Hurst, S. H. Lewis, R. G. Meyer, 5th ed., ch. 3 [memory]; derived here by
+// KCL at the emitter): with Re′ = RE ∥ (rπ + Rs + rb),
+//
+//	R_Q = Re′ + ro·[1 + gm·Re′·rπ/(rπ + Rs + rb)],
+//
+// the collector port shows RC ∥ R_Q; gm = IC/VT with VT = kT/q from the
+// exact SI constants (BIPM SI Brochure, 9th ed., 2019), rπ = β0/gm,
+// ro = VA/IC (the hybrid-π model, GHLM ch. 1 [memory]). The input port
+// (Rs included) at DC is Rs + rb + rπ + (1 + β0)·RE when ro is removed
+// (delete va=) [same references].
+func TestCommonEmitterClosedForm(t *testing.T) {
+	const ic, beta, va, rs, rb, re, rc = 1e-3, 150.0, 80.0, 1e3, 100.0, 220.0, 4.7e3
+	gm := ic / (1.380649e-23 * 300 / 1.602176634e-19)
+	rpi, ro := beta/gm, va/ic
+	rep := 1 / (1/re + 1/(rpi+rs+rb))
+	rq := rep + ro*(1+gm*rep*rpi/(rpi+rs+rb))
+	r := at(t, commonEmitter.Text, "Q1", []string{"out"}, nil, 0)
+	near(t, "out at DC", port(t, r, "out").Z, complex(rc*rq/(rc+rq), 0), r)
+	if math.Abs(r.Devices[0].Gm-gm) > 1e-15*gm {
+		t.Errorf("gm %v, want %v", r.Devices[0].Gm, gm)
+	}
+
+	noEarly := strings.Replace(commonEmitter.Text, " va=80", "", 1)
+	r = at(t, noEarly, "Q1", []string{"in"}, nil, 0)
+	near(t, "in at DC without ro", port(t, r, "in").Z, complex(rs+rb+rpi+(1+beta)*re, 0), r)
+}
+
 // Request carries everything the example names.
+// The photodiode front end's noise at low frequency, far below the loop's
+// crossover, where the opamp is ideal to 1e-6: Rf's thermal noise 4kT·Rf,
+// the light's shot noise 2qI and the opamp's iₙ through Rf, and eₙ(f)
+// through the noise gain 1 + Zf/Zi, Zi = 1/(sCd), Zf = Rf ∥ 1/(sCf)
+// [derived from the node equations; Johnson 1928, Nyquist 1928, Schottky
+// 1918 for the sources]; 1/f as en²(1 + fce/f) (common practice).
+func TestPhotodiodeNoise(t *testing.T) {
+	const (
+		kT, q           = 1.380649e-23 * 300, 1.602176634e-19
+		rf, cf, cd, ish = 100e3, 2e-12, 50e-12, 2e-6
+		en, fce, in     = 6e-9, 200.0, 2e-15
+	)
+	req := photodiodeNoise.Request()
+	api.Noise.Ask(&req, &api.NoiseRequest{})
+	r, err := api.Analyze(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := api.Noise.Result(r)
+	for i, f := range n.Frequency {
+		if f > 100 {
+			break
+		}
+		zf := 1 / (1/complex(rf, 0) + s(f)*cf)
+		ng := 1 + zf*s(f)*cd
+		az := cmplx.Abs(zf)
+		want := math.Sqrt((4*kT/rf+2*q*ish+in*in)*az*az + en*en*(1+fce/f)*sq(cmplx.Abs(ng)))
+		if d := math.Abs(*n.Output[i]/want - 1); d > 1e-5 {
+			t.Errorf("at %.4g Hz: output density %.6g V/√Hz, want %.6g (%.2g)", f, *n.Output[i], want, d)
+		}
+		if d := math.Abs(*n.Input[i]*az/want - 1); d > 1e-5 {
+			t.Errorf("at %.4g Hz: input density %.6g A/√Hz, want %.6g", f, *n.Input[i], want/az)
+		}
+	}
+	names := map[string]bool{}
+	for _, c := range n.Contributors {
+		names[c.Name] = true
+	}
+	if !names["Ish"] || !names["Rf"] || !names["U1.en"] || names["RL"] || n.InputUnit != "A/√Hz" {
+		t.Errorf("contributors %v, input unit %s", names, n.InputUnit)
+	}
+}
+
+func sq(x float64) float64 { return x * x }
+
 func TestRequest(t *testing.T) {
 	req := twoStage.Request()
 	if req.Circuit != twoStage.Text || req.Reference != "U1" || len(req.Ports) != 2 || req.Gain == nil ||

@@ -96,8 +96,6 @@ func logTicks(lo, hi, pxPerDec, gap float64, unit string) []tick {
 	return ticks
 }
 
-func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
-
 func mod(a, b int) int { return ((a % b) + b) % b }
 
 // niceStep returns the smallest step of the form 1, 2 or 5 × 10^k that
@@ -198,4 +196,58 @@ func logRange(lo, hi float64) (float64, float64) {
 	}
 	pad := 0.05 * (hi - lo)
 	return lo - pad, hi + pad
+}
+
+// appendFrame draws a one-panel chart's grid — a faint line at each minor
+// tick, a stronger one at each major tick of xa and ya (all of a linear
+// axis's ticks are major) — its frame from (x0, top) to (x1, bottom), and
+// the tick labels: ya's left of the frame, xa's below it.
+func appendFrame(b []byte, xa, ya *axis, x0, x1, top, bottom float64) []byte {
+	var major, minor []byte
+	for _, t := range xa.ticks {
+		g := &minor
+		if t.major {
+			g = &major
+		}
+		*g = appendVLine(*g, tenths(xa.px(t.pos)), tenths(top), tenths(bottom))
+	}
+	for _, t := range ya.ticks {
+		g := &minor
+		if t.major {
+			g = &major
+		}
+		*g = appendHLine(*g, tenths(x0), tenths(ya.px(t.pos)), tenths(x1))
+	}
+	if len(minor) > 0 {
+		b = append(b, `<path class="grid grid-minor" fill="none" stroke="currentColor" stroke-opacity=".07" d="`...)
+		b = append(b, minor...)
+		b = append(b, `"/>`...)
+	}
+	b = append(b, `<path class="grid" fill="none" stroke="currentColor" stroke-opacity=".16" d="`...)
+	b = append(b, major...)
+	b = append(b, `"/><path class="axis" fill="none" stroke="currentColor" stroke-opacity=".5" d="`...)
+	b = appendBox(b, x0, top, x1, bottom)
+	b = append(b, `"/><g class="tick" text-anchor="end">`...)
+	for _, t := range ya.ticks {
+		if t.label != "" {
+			b = appendText(b, "", x0-6, ya.px(t.pos), ".35em", t.label)
+		}
+	}
+	b = append(b, `</g><g class="tick" text-anchor="middle">`...)
+	for _, t := range xa.ticks {
+		if t.label != "" {
+			b = appendText(b, "", xa.px(t.pos), bottom+16, "", t.label)
+		}
+	}
+	return append(b, `</g>`...)
+}
+
+// plotLeft is the left edge of a panel whose value axis carries ticks:
+// room for the axis title and the widest tick label.
+func plotLeft(ticks []tick) float64 {
+	w := 0.0
+	for _, t := range ticks {
+		w = max(w, textWidth(t.label, fontPx))
+	}
+	return math.Round(outer + 16 + w + 10)
 }

@@ -4,6 +4,8 @@ import (
 	"io"
 	"math"
 	"strconv"
+
+	"zport/engine/numeric"
 )
 
 // Bars is a horizontal bar chart of signed values, one labelled row per
@@ -75,7 +77,7 @@ func (c *Bars) AppendSVG(dst []byte) []byte {
 	for i := 0; i < n; i++ {
 		labelW = max(labelW, textWidth(c.Labels[i], fontPx))
 		valueW = max(valueW, textWidth(barLabel(c.Values[i]), 11))
-		if v := c.Values[i]; finite(v) {
+		if v := c.Values[i]; numeric.FiniteReal(v) {
 			lo, hi = min(lo, v), max(hi, v)
 		}
 	}
@@ -126,7 +128,7 @@ func (c *Bars) AppendSVG(dst []byte) []byte {
 	zero := xa.px(0)
 	for i := 0; i < n; i++ {
 		v := c.Values[i]
-		if !finite(v) || v == 0 {
+		if !numeric.FiniteReal(v) || v == 0 {
 			continue
 		}
 		y := top + rowH*float64(i)
@@ -167,7 +169,7 @@ func (c *Bars) AppendSVG(dst []byte) []byte {
 		v := c.Values[i]
 		y := top + rowH*(float64(i)+0.5)
 		switch {
-		case !finite(v):
+		case !numeric.FiniteReal(v):
 			b = appendText(b, "", zero+4, y, ".35em", "—")
 		case v < 0:
 			b = appendText(b, anchorEnd, math.Min(xa.px(v), zero-1)-4, y, ".35em", barLabel(v))

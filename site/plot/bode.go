@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 	"strconv"
+	"strings"
 
 	"zport/engine/value"
 )
@@ -15,6 +16,10 @@ type Trace struct {
 	Class  string       // CSS class suffix for the colour: "z" gives class="trace trace-z"
 	Values []complex128 // one per frequency; NaN, Inf or 0 leaves a gap in the line
 	Dashed bool
+	// Dash, when set, is the line's own dash pattern (an SVG
+	// stroke-dasharray such as "10 3 2 3"), in place of Dashed's: a
+	// pinned design's line style.
+	Dash string
 }
 
 // Marker is a vertical line at a frequency (a histogram value), labelled at
@@ -61,6 +66,10 @@ type Bode struct {
 	Width   int  // pixels; default 640
 	Height  int  // pixels; default 400
 	NoStyle bool // omit the embedded <style> (the page includes CSS itself)
+	// NoPhase draws the magnitude panel alone, over the whole height, for
+	// charts where the phase says nothing (magnitudes set against each
+	// other); the hover data keeps the phases.
+	NoPhase bool
 }
 
 // SVG returns the chart as a standalone SVG document fragment.
@@ -175,24 +184,19 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 
 	// Vertical layout: title, legend rows, magnitude panel, phase panel,
 	// frequency labels.
-	y := outer
-	titleY := 0.0
-	if c.Title != "" {
-		titleY = y + 12
-		y += 22
-	}
 	names := make([]string, len(c.Traces))
 	for i := range c.Traces {
 		names[i] = c.Traces[i].Name
 	}
-	items, rows := layoutLegend(names, W)
-	legendY := y + legendRow/2
-	y += float64(rows) * legendRow
+	titleLines, titleY, items, legendY, y := layoutHead(c.Title, names, W)
 	my0 := y + 6
 	py1 := H - 40
 	const gap = 16.0
 	avail := max(py1-my0-gap, 80)
 	magH := math.Round(avail * 0.58)
+	if c.NoPhase {
+		magH = max(py1-my0, 80)
+	}
 	my1 := my0 + magH
 	py0 := my1 + gap
 
@@ -205,10 +209,16 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	}
 	ph := axis{p0: py1, p1: py0}
 	ph.lo, ph.hi, ph.ticks = phaseRange(phLo, phHi, py1-py0)
+	// The panels drawn, and the bottom of the lowest.
+	axes := []*axis{&mag, &ph}
+	bottom := py1
+	if c.NoPhase {
+		axes, bottom = axes[:1], my1
+	}
 
 	labelW := 0.0
-	for _, ts := range [][]tick{mag.ticks, ph.ticks} {
-		for _, t := range ts {
+	for _, a := range axes {
+		for _, t := range a.ticks {
 			labelW = max(labelW, textWidth(t.label, fontPx))
 		}
 	}
@@ -256,7 +266,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = appendAttrPx(b, "data-x0", x0)
 	b = appendAttrPx(b, "data-x1", x1)
 	b = appendRange(b, "data-my", my0, my1, mag.lo, mag.hi)
-	b = appendRange(b, "data-py", py0, py1, ph.lo, ph.hi)
+	if !c.NoPhase {
+		b = appendRange(b, "data-py", py0, py1, ph.lo, ph.hi)
+	}
 	if db {
 		b = append(b, ` data-mscale="db"`...)
 	} else {
@@ -281,9 +293,11 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 			g = &major
 		}
 		*g = appendVLine(*g, x, tenths(my0), tenths(my1))
-		*g = appendVLine(*g, x, tenths(py0), tenths(py1))
+		if !c.NoPhase {
+			*g = appendVLine(*g, x, tenths(py0), tenths(py1))
+		}
 	}
-	for _, a := range []*axis{&mag, &ph} {
+	for _, a := range axes {
 		for _, t := range a.ticks {
 			g := &minor
 			if t.major {
@@ -298,12 +312,14 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = append(b, major...)
 	b = append(b, `"/><path class="axis" fill="none" stroke="currentColor" stroke-opacity=".5" d="`...)
 	b = appendBox(b, x0, my0, x1, my1)
-	b = appendBox(b, x0, py0, x1, py1)
+	if !c.NoPhase {
+		b = appendBox(b, x0, py0, x1, py1)
+	}
 	b = append(b, `"/>`...)
 
 	// Tick labels and axis titles.
 	b = append(b, `<g class="tick" text-anchor="end">`...)
-	for _, a := range []*axis{&mag, &ph} {
+	for _, a := range axes {
 		for _, t := range a.ticks {
 			if t.label != "" {
 				b = appendText(b, "", x0-6, a.px(t.pos), ".35em", t.label)
@@ -313,7 +329,7 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = append(b, `</g><g class="tick" text-anchor="middle">`...)
 	for _, t := range fx.ticks {
 		if t.label != "" {
-			b = appendText(b, "", fx.px(t.pos), py1+16, "", t.label)
+			b = appendText(b, "", fx.px(t.pos), bottom+16, "", t.label)
 		}
 	}
 	b = append(b, `</g>`...)
@@ -322,7 +338,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		magTitle += " (" + c.MagUnit + ")"
 	}
 	b = appendVText(b, 18, (my0+my1)/2, magTitle)
-	b = appendVText(b, 18, (py0+py1)/2, "Phase (°)")
+	if !c.NoPhase {
+		b = appendVText(b, 18, (py0+py1)/2, "Phase (°)")
+	}
 	b = append(b, `<text class="axis-title" text-anchor="middle"`...)
 	b = appendAttrPx(b, "x", (x0+x1)/2)
 	b = appendAttrPx(b, "y", H-8)
@@ -334,24 +352,15 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		v, ok := hlineCoord(h, db)
 		a, top := &mag, my0
 		if h.Panel == PhasePanel {
+			if c.NoPhase {
+				continue
+			}
 			a, top = &ph, py0
 		}
 		if !ok || !a.in(v) {
 			continue
 		}
-		yy := a.px(v)
-		b = append(b, `<path class="hline`...)
-		b = appendClassSuffix(b, "hline-", h.Class)
-		b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="9 3 2 3" d="`...)
-		b = appendHLine(b, tenths(x0), tenths(yy), tenths(x1))
-		b = append(b, `"/>`...)
-		if h.Label != "" {
-			ly := yy - 4
-			if ly-10 < top {
-				ly = yy + 13
-			}
-			labels = appendText(labels, anchorEnd, x1-4, ly, "", h.Label)
-		}
+		b, labels = appendRefLine(b, labels, h, x0, x1, a.px(v), top)
 	}
 	slot := 0
 	for _, m := range c.Markers {
@@ -363,7 +372,9 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		b = appendClassSuffix(b, "marker-", m.Class)
 		b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="3 3" d="`...)
 		b = appendVLine(b, tenths(x), tenths(my0), tenths(my1))
-		b = appendVLine(b, tenths(x), tenths(py0), tenths(py1))
+		if !c.NoPhase {
+			b = appendVLine(b, tenths(x), tenths(py0), tenths(py1))
+		}
 		b = append(b, `"/>`...)
 		if m.Label != "" {
 			labels = appendMarkerLabel(labels, x, x0, x1, my0+13+13*float64(slot%4), m.Label)
@@ -376,7 +387,7 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 	b = append(b, `<g class="traces" fill="none" stroke="currentColor" stroke-width="1.75" stroke-linejoin="round" stroke-linecap="round">`...)
 	for t := range ser {
 		s, tr := &ser[t], &c.Traces[t]
-		b = appendTraceOpen(b, s.class, tr.Dashed)
+		b = appendTraceOpen(b, s.class, tr)
 		b = appendAttr(b, "data-name", tr.Name)
 		b = append(b, ` data-values="`...)
 		for i := range n {
@@ -390,26 +401,40 @@ func (c *Bode) AppendSVG(dst []byte) []byte {
 		b = append(b, `" d="`...)
 		b = appendLine(b, xt, s.my, &mag, scratch)
 		b = append(b, `"/>`...)
-		b = appendTraceOpen(b, s.class, tr.Dashed)
+		if c.NoPhase {
+			continue
+		}
+		b = appendTraceOpen(b, s.class, tr)
 		b = append(b, ` d="`...)
 		b = appendLine(b, xt, s.ph, &ph, scratch)
 		b = append(b, `"/>`...)
 	}
 	b = append(b, `</g>`...)
-	if len(labels) > 0 {
-		b = append(b, `<g class="label halo">`...)
-		b = append(b, labels...)
-		b = append(b, `</g>`...)
-	}
-
-	if c.Title != "" {
-		b = appendText(b, ` class="title"`, outer, titleY, "", c.Title)
-	}
+	b = appendLabelsTitle(b, labels, titleLines, titleY)
 	b = appendLegend(b, c.Traces, ser, items, legendY)
 	if !anyFinite {
 		b = appendText(b, ` class="note" text-anchor="middle"`, (x0+x1)/2, (my0+my1)/2, ".35em", "no finite values")
 	}
 	return append(b, "</svg>"...)
+}
+
+// appendRefLine draws reference line h across [x0, x1] at height yy and
+// adds its label to labels, above the line unless that would leave the
+// panel whose top is top.
+func appendRefLine(b, labels []byte, h HLine, x0, x1, yy, top float64) ([]byte, []byte) {
+	b = append(b, `<path class="hline`...)
+	b = appendClassSuffix(b, "hline-", h.Class)
+	b = append(b, `" fill="none" stroke="currentColor" stroke-dasharray="9 3 2 3" d="`...)
+	b = appendHLine(b, tenths(x0), tenths(yy), tenths(x1))
+	b = append(b, `"/>`...)
+	if h.Label != "" {
+		ly := yy - 4
+		if ly-10 < top {
+			ly = yy + 13
+		}
+		labels = appendText(labels, anchorEnd, x1-4, ly, "", h.Label)
+	}
+	return b, labels
 }
 
 // overhang returns how far the centred label of the rightmost labelled tick
@@ -452,13 +477,42 @@ func traceClass(tr *Trace, t int) string {
 	return s + " zc" + strconv.Itoa(t%6+1)
 }
 
-func appendTraceOpen(b []byte, class string, dashed bool) []byte {
+// appendTraceOpen opens a trace's path: its classes and, for a dashed
+// trace, its pattern as an attribute (charts keep their look where no
+// style sheet applies).
+func appendTraceOpen(b []byte, class string, tr *Trace) []byte {
 	b = append(b, `<path class="`...)
 	b = append(b, class...)
-	if dashed {
+	switch {
+	case tr.Dash != "":
+		b = append(b, ` own-dash" stroke-dasharray="`...)
+		b = appendDash(b, tr.Dash)
+	case tr.Dashed:
 		b = append(b, ` dashed" stroke-dasharray="7 4`...)
 	}
 	return append(b, '"')
+}
+
+// appendDash appends a dash pattern keeping only what one may hold:
+// digits, points and spaces.
+func appendDash(b []byte, d string) []byte {
+	for i := 0; i < len(d); i++ {
+		if c := d[i]; c >= '0' && c <= '9' || c == '.' || c == ' ' {
+			b = append(b, c)
+		}
+	}
+	return b
+}
+
+// Swatch is a short line in a trace's style, for a legend outside a
+// chart (a table's column head): class is the trace's Class, dash its
+// Dash. It carries the chart classes, so the page's chart style colours it.
+func Swatch(class, dash string) string {
+	b := []byte(`<svg xmlns="http://www.w3.org/2000/svg" class="zplot swatch" viewBox="0 0 26 10" width="26" height="10" aria-hidden="true">`)
+	tr := Trace{Dash: dash}
+	b = appendTraceOpen(b, traceClass(&Trace{Class: class}, 0), &tr)
+	b = append(b, ` fill="none" stroke="currentColor" stroke-width="2" d="M1 5h24"/></svg>`...)
+	return string(b)
 }
 
 // appendLine appends path data for ys (axis coordinates, NaN = gap) at the
@@ -586,7 +640,11 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 		b = append(b, c.MagUnit...)
 		b = append(b, " on a log scale"...)
 	}
-	b = append(b, " above, phase in degrees below."...)
+	if c.NoPhase {
+		b = append(b, '.')
+	} else {
+		b = append(b, " above, phase in degrees below."...)
+	}
 	mag := func(v float64) string {
 		if c.MagUnit == "dB" {
 			return signed(strconv.FormatFloat(20*math.Log10(v), 'f', 1, 64)) + " dB"
@@ -603,28 +661,37 @@ func (c *Bode) describe(ser []series, lf0, lf1 float64, nf int) string {
 		}
 		b = append(b, ": "...)
 		b = appendSpan(b, mag(s.absLo), mag(s.absHi))
-		b = append(b, ", phase "...)
-		b = appendSpan(b, deg(s.phLo), deg(s.phHi))
+		if !c.NoPhase {
+			b = append(b, ", phase "...)
+			b = appendSpan(b, deg(s.phLo), deg(s.phHi))
+		}
 		b = append(b, '.')
 	}
 	if len(c.Traces) == 0 {
 		b = append(b, " No traces."...)
 	}
-	for _, m := range c.Markers {
-		if m.Label != "" {
-			b = append(b, " Marker: "...)
-			b = append(b, m.Label...)
-			b = append(b, '.')
+	b = appendLabels(b, " Marker: ", len(c.Markers), func(i int) string { return c.Markers[i].Label })
+	b = appendLabels(b, " Reference line: ", len(c.HLines), func(i int) string {
+		if c.NoPhase && c.HLines[i].Panel == PhasePanel {
+			return "" // not drawn
 		}
-	}
-	for _, h := range c.HLines {
-		if h.Label != "" {
-			b = append(b, " Reference line: "...)
-			b = append(b, h.Label...)
-			b = append(b, '.')
-		}
-	}
+		return c.HLines[i].Label
+	})
 	return string(b)
+}
+
+// appendLabels appends what + label + "." to a description for each of
+// the n labels that is not empty (the markers of a chart, its reference
+// lines, its marked points).
+func appendLabels(b []byte, what string, n int, label func(i int) string) []byte {
+	for i := range n {
+		if l := label(i); l != "" {
+			b = append(b, what...)
+			b = append(b, l...)
+			b = append(b, '.')
+		}
+	}
+	return b
 }
 
 // appendSpan appends "lo to hi", or just lo when both read the same.
@@ -633,6 +700,67 @@ func appendSpan(b []byte, lo, hi string) []byte {
 	if hi != lo {
 		b = append(b, " to "...)
 		b = append(b, hi...)
+	}
+	return b
+}
+
+// layoutHead lays out a chart's title and legend from the top: the
+// title's baseline (0 without a title), the legend's entries and the
+// middle of its first row, and the y below them.
+func layoutHead(title string, names []string, W float64) (titleLines []string, titleY float64, items []legendItem, legendY, y float64) {
+	y = outer
+	titleLines = wrapTitle(title, W-2*outer)
+	if len(titleLines) > 0 {
+		titleY = y + 12
+		y += 22 + titleLine*float64(len(titleLines)-1)
+	}
+	items, rows := layoutLegend(names, W)
+	legendY = y + legendRow/2
+	return titleLines, titleY, items, legendY, y + float64(rows)*legendRow
+}
+
+// titlePx is the size of a chart title (CSS rule .zplot .title, bold),
+// and titleLine the distance between the lines of a wrapped one.
+const (
+	titlePx   = 14.0
+	titleLine = 18.0
+)
+
+// wrapTitle breaks a title into lines no wider than width at its size,
+// at spaces (a word too long for a line keeps a line to itself), so that
+// a narrow chart shows all of it.
+func wrapTitle(title string, width float64) []string {
+	if title == "" {
+		return nil
+	}
+	// The title is bold: about a tenth wider than textWidth's estimate.
+	fits := func(s string) bool { return 1.1*textWidth(s, titlePx) <= width }
+	var lines []string
+	line := ""
+	for _, word := range strings.Fields(title) {
+		switch {
+		case line == "":
+			line = word
+		case fits(line + " " + word):
+			line += " " + word
+		default:
+			lines = append(lines, line)
+			line = word
+		}
+	}
+	return append(lines, line)
+}
+
+// appendLabelsTitle appends the labels of markers and reference lines
+// (with a halo, over the traces) and the title.
+func appendLabelsTitle(b, labels []byte, titleLines []string, titleY float64) []byte {
+	if len(labels) > 0 {
+		b = append(b, `<g class="label halo">`...)
+		b = append(b, labels...)
+		b = append(b, `</g>`...)
+	}
+	for i, line := range titleLines {
+		b = appendText(b, ` class="title"`, outer, titleY+titleLine*float64(i), "", line)
 	}
 	return b
 }
@@ -669,7 +797,7 @@ func appendLegend(b []byte, traces []Trace, ser []series, items []legendItem, y0
 	b = append(b, `<g class="legend">`...)
 	for i, it := range items {
 		y := y0 + float64(it.row)*legendRow
-		b = appendTraceOpen(b, ser[i].class, traces[i].Dashed)
+		b = appendTraceOpen(b, ser[i].class, &traces[i])
 		b = append(b, ` fill="none" stroke="currentColor" stroke-width="2" d="M`...)
 		b = appendTenths(b, tenths(it.x), true)
 		b = appendNum(b, tenths(y))

@@ -203,7 +203,8 @@ func TestHoverInBrowser(t *testing.T) {
 }
 
 // TestFormatterMatchesValueFormat holds the script's formatter to
-// value.Format on seeded random values across the prefix range and beyond.
+// value.Format on seeded random values across the prefix range and beyond,
+// over the whole range of float64 from the smallest subnormal.
 func TestFormatterMatchesValueFormat(t *testing.T) {
 	ctx := browser(t)
 	srv := servePage(t, "", "")
@@ -216,18 +217,25 @@ func TestFormatterMatchesValueFormat(t *testing.T) {
 		Sig  int     `json:"s"`
 	}
 	cases := []testCase{{0, "Ω", 3}, {999.96, "Hz", 4}, {999.5, "Hz", 3}, {1e-15, "F", 3}, {9.9996e-16, "F", 3},
-		{1e13, "Ω", 3}, {1e15, "Ω", 3}, {-2.5e-12, "F", 3}, {12345, "", 3}, {1, "", 3}, {math.Inf(1), "Ω", 3}}
+		{1e13, "Ω", 3}, {1e15, "Ω", 3}, {-2.5e-12, "F", 3}, {12345, "", 3}, {1, "", 3}, {math.Inf(1), "Ω", 3},
+		{0.15, "", 1}, {1.005, "", 3}, {300, "Hz", 1},
+		// The subnormals and the ends of the range.
+		{math.SmallestNonzeroFloat64, "Hz", 4}, {1e-320, "Hz", 4}, {1e-320, "Hz", 6}, {math.Float64frombits(0x000fffffffffffff), "Hz", 3},
+		{0x1p-1022, "Hz", 3}, {math.MaxFloat64, "Ω", 4}, {math.MaxFloat64, "Ω", 1}}
 	rng := rand.New(rand.NewPCG(1, 1))
 	units := []string{"Ω", "Hz", "", "S"}
-	for range 2000 {
+	for i := range 3000 {
 		v := math.Pow(10, -20+40*rng.Float64())
+		switch {
+		case i%3 == 0: // anywhere in the range of float64, the subnormals too
+			v = math.Float64frombits(1 + rng.Uint64N(0x7ff0000000000000-1))
+		case rng.IntN(5) == 0: // round numbers, where rounding edges live
+			v = math.Round(v/math.Pow10(int(math.Floor(math.Log10(math.Abs(v))))-2)) * math.Pow10(int(math.Floor(math.Log10(math.Abs(v))))-2)
+		}
 		if rng.IntN(4) == 0 {
 			v = -v
 		}
-		if rng.IntN(5) == 0 { // round numbers, where rounding edges live
-			v = math.Round(v/math.Pow10(int(math.Floor(math.Log10(math.Abs(v))))-2)) * math.Pow10(int(math.Floor(math.Log10(math.Abs(v))))-2)
-		}
-		cases = append(cases, testCase{v, units[rng.IntN(len(units))], 1 + rng.IntN(4)})
+		cases = append(cases, testCase{v, units[rng.IntN(len(units))], 1 + rng.IntN(6)})
 	}
 	enc := make([][3]any, len(cases))
 	for i, c := range cases {

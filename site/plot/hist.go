@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 
+	"zport/engine/numeric"
 	"zport/engine/value"
 )
 
@@ -60,7 +61,7 @@ func (h *Histogram) problem() string {
 			return fmt.Sprintf("invalid histogram: edge %d is not above 0 on a log axis", i)
 		}
 	}
-	if !finite(h.Edges[len(h.Edges)-1] - h.Edges[0]) {
+	if !numeric.FiniteReal(h.Edges[len(h.Edges)-1] - h.Edges[0]) {
 		return "invalid histogram: the edges span more than a float64 can hold"
 	}
 	for i, c := range h.Counts {
@@ -102,12 +103,12 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	for _, m := range h.Markers {
 		// A marker widens the range unless that would overflow it.
 		if v := xc(m.Freq); !math.IsNaN(v) {
-			if l, u := min(lo, v), max(hi, v); finite(u - l) {
+			if l, u := min(lo, v), max(hi, v); numeric.FiniteReal(u - l) {
 				lo, hi = l, u
 			}
 		}
 	}
-	if pad := 0.02 * (hi - lo); finite(lo-pad) && finite(hi+pad) {
+	if pad := 0.02 * (hi - lo); numeric.FiniteReal(lo-pad) && numeric.FiniteReal(hi+pad) {
 		lo, hi = lo-pad, hi+pad
 	}
 
@@ -129,11 +130,7 @@ func (h *Histogram) AppendSVG(dst []byte) []byte {
 	step := max(1, niceStep(float64(maxC)*1.08, n))
 	cy.lo, cy.hi = 0, math.Max(step, math.Ceil(float64(maxC)*1.08/step-eps)*step)
 	cy.ticks = linTicks(0, cy.hi, step, "")
-	labelW := 0.0
-	for _, t := range cy.ticks {
-		labelW = max(labelW, textWidth(t.label, fontPx))
-	}
-	x0 := math.Round(outer + 16 + labelW + 10)
+	x0 := plotLeft(cy.ticks)
 	x1 := W - 16
 	xa := axis{lo: lo, hi: hi, p0: x0, p1: x1}
 	ticks := func() []tick {
@@ -250,18 +247,7 @@ func engTicks(lo, hi, px float64, unit string) []tick {
 		widest := 0.0
 		for i := math.Ceil(lo/step - eps); i*step <= hi+eps*step && len(ticks) <= n+2; i++ {
 			v := i * step
-			sig := 1
-			if math.Abs(v) < step*eps {
-				v = 0
-			} else {
-				// Digits down to the step's: 4.65 kΩ for a 10 Ω step.
-				sig = int(math.Floor(math.Log10(math.Abs(v))+eps)-math.Floor(math.Log10(step)+eps)) + 1
-				sig = min(max(sig, 1), 6)
-			}
-			t := tick{pos: v, label: value.Format(v, unit, sig), major: true}
-			if unit == "°" { // an angle takes no SI prefix: 0.25°, not 250 m°
-				t.label = linLabel(v, step) + "°"
-			}
+			t := tick{pos: v, label: engLabel(v, step, unit), major: true}
 			widest = max(widest, textWidth(t.label, fontPx))
 			ticks = append(ticks, t)
 		}
@@ -270,6 +256,28 @@ func engTicks(lo, hi, px float64, unit string) []tick {
 		}
 	}
 	return ticks
+}
+
+// engLabel writes the tick value v of a linear axis with the given step,
+// by value.Format in unit with the digits the step needs (4.65 kΩ for a
+// 10 Ω step); an angle, a level in decibels and a percentage take no SI
+// prefix (0.25°, not 250 m°; 0.5 dB, not 500 mdB).
+func engLabel(v, step float64, unit string) string {
+	if math.Abs(v) < step*eps {
+		v = 0
+	}
+	switch unit {
+	case "°":
+		return linLabel(v, step) + "°"
+	case "dB", "%":
+		return linLabel(v, step) + " " + unit
+	}
+	sig := 1
+	if v != 0 {
+		sig = int(math.Floor(math.Log10(math.Abs(v))+eps)-math.Floor(math.Log10(step)+eps)) + 1
+		sig = min(max(sig, 1), 6)
+	}
+	return value.Format(v, unit, sig)
 }
 
 // describe writes the text of the histogram's <desc>.
@@ -295,12 +303,6 @@ func (h *Histogram) describe(problem string, total, fullest int) string {
 		b = strconv.AppendInt(b, int64(h.Counts[fullest]), 10)
 	}
 	b = append(b, '.')
-	for _, m := range h.Markers {
-		if m.Label != "" {
-			b = append(b, " Marker: "...)
-			b = append(b, m.Label...)
-			b = append(b, '.')
-		}
-	}
+	b = appendLabels(b, " Marker: ", len(h.Markers), func(i int) string { return h.Markers[i].Label })
 	return string(b)
 }

@@ -529,6 +529,37 @@ func TestDataValuesRoundTrip(t *testing.T) {
 	}
 }
 
+// A magnitude-only chart: one panel over the whole height, one path per
+// trace (its data-values keep the phases, for the hover data), no phase
+// axis, and a description that says nothing of phase.
+func TestNoPhase(t *testing.T) {
+	f := []float64{10, 1e3, 1e5}
+	v := []complex128{4e-9, 4e-9, 2e-9}
+	c := &Bode{Freq: f, Traces: []Trace{{Name: "output", Values: v}}, MagUnit: "V/√Hz", NoPhase: true,
+		HLines: []HLine{{Panel: PhasePanel, Value: -180, Label: "−180°"}}}
+	root := parse(t, c.SVG())
+	mag, ph := tracePaths(root)
+	if len(mag) != 1 || len(ph) != 0 {
+		t.Fatalf("%d magnitude and %d phase paths, want 1 and 0", len(mag), len(ph))
+	}
+	if got, want := mag[0].attr["data-values"], "4e-9 0 4e-9 0 2e-9 0"; got != want {
+		t.Errorf("data-values %q, want %q", got, want)
+	}
+	if _, ok := root.attr["data-py"]; ok {
+		t.Error("a magnitude-only chart carries data-py")
+	}
+	my := strings.Fields(root.attr["data-my"])
+	if len(my) != 4 || my[1] != "360" {
+		t.Errorf("data-my %q: the magnitude panel should reach the frequency axis at 360", root.attr["data-my"])
+	}
+	svg := c.SVG()
+	for _, no := range []string{"Phase (°)", "phase", "−180°"} {
+		if strings.Contains(svg, no) {
+			t.Errorf("the chart mentions %q", no)
+		}
+	}
+}
+
 func TestPhaseUnwrap(t *testing.T) {
 	// A pure delay e^(−j2πfτ) has phase −360°·fτ (definition of a delay,
 	// common practice): with τ = 1 ms up to 2 kHz it winds through two turns.

@@ -152,8 +152,12 @@ func appendHundredths(b []byte, v float64) []byte {
 // SI prefix.
 func linLabel(v, step float64) string {
 	d := 0
-	if step < 1 {
-		d = int(math.Ceil(-math.Log10(step) - 1e-9))
+	if step > 0 && step < 1 {
+		// A step too small to print (or none: step 0, which a caller
+		// with no spread may pass) gets 15 decimals at most; the
+		// conversion of an infinite count would differ between native
+		// code and WebAssembly.
+		d = min(15, int(math.Ceil(-math.Log10(step)-1e-9)))
 	}
 	return signed(strconv.FormatFloat(v, 'f', d, 64))
 }
