@@ -417,7 +417,8 @@ func TestPinsInSingleFile(t *testing.T) {
 	}
 	out := t.TempDir()
 	if _, err := chromedp.Call(tab, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{
-		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out}); err != nil {
+		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out,
+		BrowserContextID: chromedp.FromContext(tab).BrowserContextID}); err != nil {
 		t.Fatal(err)
 	}
 	eval[bool](t, tab, `(function () {
@@ -431,6 +432,6 @@ func TestPinsInSingleFile(t *testing.T) {
 	vb := eval[[]string](t, tab, `document.querySelector('[data-e2e-chart] svg').getAttribute('viewBox').split(' ')`)
 	w, _ := strconv.Atoi(vb[2])
 	h, _ := strconv.Atoi(vb[3])
-	checkChartSVG(t, reviewWaitFile(t, filepath.Join(out, name)), w, h, eval[string](t, tab, `document.querySelector('[data-e2e-chart] svg title').textContent`))
+	checkChartSVG(t, waitFile(t, filepath.Join(out, name), svgWhole), w, h, eval[string](t, tab, `document.querySelector('[data-e2e-chart] svg title').textContent`))
 	checkHealthy(t, tab)
 }

@@ -16,7 +16,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/chromedp/cdproto/browser"
 	"github.com/chromedp/chromedp"
@@ -956,13 +955,13 @@ func TestCustomFiles(t *testing.T) {
 		t.Fatal(err)
 	}
 	eval[bool](t, ctx, `(document.querySelector('[data-circuit-editor] .editor-files [data-action="save-file"]').click(), true)`)
-	if b := edWaitFile(t, filepath.Join(out, "zport-circuit.txt"), func(b []byte) bool { return len(b) == len(text) }); string(b) != text {
+	if b := waitFile(t, filepath.Join(out, "zport-circuit.txt"), func(b []byte) bool { return len(b) == len(text) }); string(b) != text {
 		t.Errorf("saved file differs from the text")
 	}
 
 	// The sweep as CSV: one row per point, the ports' and the gain's columns.
 	eval[bool](t, ctx, `(document.querySelector('[data-circuit-editor] [data-action="csv"]').click(), true)`)
-	csv := edWaitFile(t, filepath.Join(out, "zport-circuit.csv"), func(b []byte) bool { return bytes.Count(b, []byte("\n")) >= 401 })
+	csv := waitFile(t, filepath.Join(out, "zport-circuit.csv"), func(b []byte) bool { return bytes.Count(b, []byte("\n")) >= 401 })
 	// The header row follows the comment lines that say what made the file.
 	var head string
 	for _, line := range strings.Split(string(csv), "\n") {
@@ -983,20 +982,6 @@ func TestCustomFiles(t *testing.T) {
 	eval[bool](t, ctx, `(document.querySelector('[data-circuit-editor] [data-action="copy"]').click(), true)`)
 	poll(t, ctx, `/copied|select the text/i.test(document.querySelector('[data-circuit-editor] [data-role="action-msg"]').textContent)`)
 	checkHealthy(t, ctx)
-}
-
-// edWaitFile waits until the browser has written the file at path and
-// complete says it is whole, and returns its bytes.
-func edWaitFile(t *testing.T, path string, complete func([]byte) bool) []byte {
-	t.Helper()
-	for deadline := time.Now().Add(waitFor); time.Now().Before(deadline); time.Sleep(20 * time.Millisecond) {
-		if b, err := os.ReadFile(path); err == nil && complete(b) {
-			return b
-		}
-	}
-	entries, _ := os.ReadDir(filepath.Dir(path))
-	t.Fatalf("no complete %s after %v (the folder holds %v)", path, waitFor, entries)
-	return nil
 }
 
 // Screenshots of the custom page with an example and with an error, at

@@ -3,6 +3,7 @@
 package e2e
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"flag"
@@ -289,6 +290,27 @@ func nextFrames(t *testing.T, ctx context.Context, n int) {
 		t.Fatalf("waiting for %d frames: %v", n, err)
 	}
 }
+
+// waitFile waits until the browser has written the file at path and
+// complete says it is whole, and returns its bytes.
+func waitFile(t *testing.T, path string, complete func([]byte) bool) []byte {
+	t.Helper()
+	for deadline := time.Now().Add(waitFor); time.Now().Before(deadline); time.Sleep(20 * time.Millisecond) {
+		if b, err := os.ReadFile(path); err == nil && complete(b) {
+			return b
+		}
+	}
+	entries, _ := os.ReadDir(filepath.Dir(path))
+	t.Fatalf("no complete %s after %v (the folder holds %v)", path, waitFor, entries)
+	return nil
+}
+
+// svgWhole says whether b is a whole SVG file: its root element closed.
+func svgWhole(b []byte) bool { return bytes.HasSuffix(bytes.TrimSpace(b), []byte("</svg>")) }
+
+// pngWhole says whether b is a whole PNG file: it ends with the IEND chunk
+// (its type and CRC, which are always the same).
+func pngWhole(b []byte) bool { return bytes.HasSuffix(b, []byte("IEND\xaeB`\x82")) }
 
 // requests records every URL the page asks for, through the DevTools
 // protocol's network events, and which requests are still in flight.

@@ -14,7 +14,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/chromedp/cdproto/browser"
 	"github.com/chromedp/cdproto/page"
@@ -44,39 +43,21 @@ func reviewOpen(t *testing.T, ctx context.Context, page string) {
 	checkLive(t, ctx, page)
 }
 
-// reviewWaitFile waits until path exists with a size that no longer
-// changes, and returns its bytes.
-func reviewWaitFile(t *testing.T, path string) []byte {
-	t.Helper()
-	deadline := time.Now().Add(waitFor)
-	last := -1
-	for {
-		if b, err := os.ReadFile(path); err == nil && len(b) > 0 && len(b) == last {
-			return b
-		} else if err == nil {
-			last = len(b)
-		}
-		if time.Now().After(deadline) {
-			entries, _ := os.ReadDir(filepath.Dir(path))
-			t.Fatalf("no complete %s (the folder holds %v)", path, entries)
-		}
-		time.Sleep(100 * time.Millisecond)
-	}
-}
-
 // Every chart's "Save as SVG" and "Save as PNG" give files: an SVG that is
 // well-formed XML of the chart's size with its title, axis titles and
 // legend as text, and a PNG of twice the chart's size that is not blank.
 // On a stage page and on the custom page, from file://.
 func TestChartImages(t *testing.T) {
-	ctx := start(t)
-	out := t.TempDir()
-	if _, err := chromedp.Call(ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{
-		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out}); err != nil {
-		t.Fatal(err)
-	}
+	t.Parallel()
 	for _, pg := range reviewPages {
 		t.Run(pg.page, func(t *testing.T) {
+			ctx := start(t)
+			out := t.TempDir()
+			if _, err := chromedp.Call(ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{
+				Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out,
+				BrowserContextID: chromedp.FromContext(ctx).BrowserContextID}); err != nil {
+				t.Fatal(err)
+			}
 			reviewOpen(t, ctx, pg.page)
 			// The loop chart (its title names T), and its size.
 			info := eval[[]string](t, ctx, `(function () {
@@ -98,10 +79,10 @@ func TestChartImages(t *testing.T) {
 				name = strings.ReplaceAll(name, "--", "-")
 			}
 			pinClick(t, ctx, `[data-e2e-chart]`, "save-svg")
-			svg := reviewWaitFile(t, filepath.Join(out, name+".svg"))
+			svg := waitFile(t, filepath.Join(out, name+".svg"), svgWhole)
 			checkChartSVG(t, svg, w, h, info[2])
 			pinClick(t, ctx, `[data-e2e-chart]`, "save-png")
-			pic := reviewWaitFile(t, filepath.Join(out, name+".png"))
+			pic := waitFile(t, filepath.Join(out, name+".png"), pngWhole)
 			img, err := png.Decode(bytes.NewReader(pic))
 			if err != nil {
 				t.Fatalf("the PNG does not decode: %v", err)
@@ -112,8 +93,6 @@ func TestChartImages(t *testing.T) {
 			checkNotBlank(t, name+".png", pic, 2*w, 2*h)
 			poll(t, ctx, `/saved as/.test(document.querySelector('[data-e2e-chart] [data-role="chart-msg"]').textContent)`)
 			checkHealthy(t, ctx)
-			os.Remove(filepath.Join(out, name+".svg"))
-			os.Remove(filepath.Join(out, name+".png"))
 		})
 	}
 }
@@ -305,13 +284,14 @@ func TestPrintReport(t *testing.T) {
 // width, and the page does not scroll sideways. On a stage page and the
 // custom page, and with pins (their legend entries too).
 func TestPhoneCharts(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	opts := []chromedp.EmulateViewportOption{chromedp.EmulateScale(1), chromedp.EmulateMobile}
-	if err := chromedp.Do(ctx, chromedp.EmulateViewport(390, 844, opts...)); err != nil {
-		t.Fatal(err)
-	}
 	for _, pg := range reviewPages {
 		t.Run(pg.page, func(t *testing.T) {
+			ctx := start(t)
+			if err := chromedp.Do(ctx, chromedp.EmulateViewport(390, 844, opts...)); err != nil {
+				t.Fatal(err)
+			}
 			reviewOpen(t, ctx, pg.page)
 			if pg.page != "custom" {
 				pinClick(t, ctx, pg.root, "pin")

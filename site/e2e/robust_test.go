@@ -170,14 +170,16 @@ func TestStageValuesSurviveReload(t *testing.T) {
 // A link with a bad setting shows the link's own circuit with the default
 // in that setting's place, says exactly that, and the field shows the
 // value in use; a later link without the setting does not inherit it.
+// Each link in a tab of its own, side by side.
 func TestBadSettingLinks(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	text := "# a link's own circuit (invented)\nvsource Vin in gnd 1\nopamp U7 in fb out a0=100k gbw=1M\nresistor R1 fb gnd 1k\nresistor R2 out fb 9k\nport zz out gnd\nport in in gnd\n"
 	c := edCompress(t, []byte(text))
 	for _, bad := range []string{"f=abc", "points=9999", "f=NaN"} {
 		t.Run(bad, func(t *testing.T) {
+			ctx := start(t)
 			frag := "ref=U7&port=zz&" + bad
-			loadFresh(t, ctx, fileURL("custom", "c="+c+"&"+frag))
+			load(t, ctx, fileURL("custom", "c="+c+"&"+frag))
 			poll(t, ctx, `document.querySelector('[data-circuit-editor]').dataset.live === 'true'`)
 			native := calc.ComputeCircuit(calc.CircuitRequest{Form: calc.Form{Circuit: text, Fragment: &frag, ID: "circuit"}})
 			if native.Output == nil || native.Output.Notice == "" {
@@ -201,103 +203,115 @@ func TestBadSettingLinks(t *testing.T) {
 				t.Errorf("the address still holds %s: %.120q", bad, h)
 			}
 			checkHealthy(t, ctx)
+			if bad != "f=abc" {
+				return
+			}
+			// The next link leaves f out: the default, not what the last
+			// one had.
+			eval[bool](t, ctx, `location.hash = `+jsString("c="+c+"&ref=U7&port=in")+`, true`)
+			poll(t, ctx, `Array.from(document.querySelectorAll('[data-circuit-editor] [data-role="ports"] input:checked')).map(function (c) { return c.value; }).join() === 'in'`)
+			if s := edRead(t, ctx); s.Frequency != "1k" {
+				t.Errorf("a link without f shows f = %q", s.Frequency)
+			}
 		})
-	}
-	// The next link leaves f out: the default, not what the last one had.
-	eval[bool](t, ctx, `location.hash = `+jsString("c="+c+"&ref=U7&port=in")+`, true`)
-	poll(t, ctx, `Array.from(document.querySelectorAll('[data-circuit-editor] [data-role="ports"] input:checked')).map(function (c) { return c.value; }).join() === 'in'`)
-	if s := edRead(t, ctx); s.Frequency != "1k" {
-		t.Errorf("a link without f shows f = %q", s.Frequency)
 	}
 
 	// The same rule on a stage page, and for the design aids' settings.
 	const id = "inverting"
 	for _, frag := range []string{"R1=22k&f=abc", "R1=22k&aid.n=abc&aid.seed=-5", "R1=22k&aid.n=500&aid.seed=-5"} {
-		loadFresh(t, ctx, fileURL(id, frag))
-		checkLive(t, ctx, id)
-		native := calc.Compute(calc.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
-		poll(t, ctx, `document.querySelector('[data-role="notice"]').textContent === `+jsString(native.Notice))
-		if got := inputs(t, ctx, id); !sameMap(got, formInputs(*native.Form)) || got["R1"] != "22k" {
-			t.Errorf("%s: inputs %v", frag, got)
-		}
-		if h := eval[string](t, ctx, `location.hash`); h != "#"+native.State || strings.Contains(h, "seed") || strings.Contains(h, "abc") {
-			t.Errorf("%s: address %q, want %q", frag, h, native.State)
-		}
-		checkAgainstNative(t, ctx, id)
-		if strings.Contains(frag, "n=500") {
-			// The aids open with the values the link could give.
-			poll(t, ctx, `(function () { var d = document.querySelector('details.aids'); var n = d && d.querySelector('[data-study="trials"]'); return !!d && d.open && !!n; })()`)
-			got := eval[[]string](t, ctx, `[document.querySelector('[data-study="trials"]').value, document.querySelector('[data-study="seed"]').value]`)
-			if got[0] != "500" || got[1] != calc.DefaultSeed {
-				t.Errorf("%s: trials %q, seed %q", frag, got[0], got[1])
+		t.Run(frag, func(t *testing.T) {
+			ctx := start(t)
+			load(t, ctx, fileURL(id, frag))
+			checkLive(t, ctx, id)
+			native := calc.Compute(calc.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
+			poll(t, ctx, `document.querySelector('[data-role="notice"]').textContent === `+jsString(native.Notice))
+			if got := inputs(t, ctx, id); !sameMap(got, formInputs(*native.Form)) || got["R1"] != "22k" {
+				t.Errorf("inputs %v", got)
 			}
-		}
-		checkHealthy(t, ctx)
+			if h := eval[string](t, ctx, `location.hash`); h != "#"+native.State || strings.Contains(h, "seed") || strings.Contains(h, "abc") {
+				t.Errorf("address %q, want %q", h, native.State)
+			}
+			checkAgainstNative(t, ctx, id)
+			if strings.Contains(frag, "n=500") {
+				// The aids open with the values the link could give.
+				poll(t, ctx, `(function () { var d = document.querySelector('details.aids'); var n = d && d.querySelector('[data-study="trials"]'); return !!d && d.open && !!n; })()`)
+				got := eval[[]string](t, ctx, `[document.querySelector('[data-study="trials"]').value, document.querySelector('[data-study="seed"]').value]`)
+				if got[0] != "500" || got[1] != calc.DefaultSeed {
+					t.Errorf("trials %q, seed %q", got[0], got[1])
+				}
+			}
+			checkHealthy(t, ctx)
+		})
 	}
 }
 
 // A value below 2.3e-308 is written, never as NaN.
 func TestTinyValuesShown(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	const id = "inverting"
 	for _, c := range []struct{ frag, want string }{
 		{"f=1e-320", "Results at 1.000 × 10⁻³²⁰ Hz"},
 		{"from=1e-320", "Charts sweep from 1.000 × 10⁻³²⁰ Hz to 100.0 MHz"},
 	} {
-		loadFresh(t, ctx, fileURL(id, c.frag))
-		checkLive(t, ctx, id)
-		head := eval[string](t, ctx, `document.querySelector('[data-calculator] .panel-head').textContent`)
-		if !strings.Contains(head, c.want) {
-			t.Errorf("%s: %q", c.frag, head)
-		}
-		if text := eval[string](t, ctx, `document.body.innerText`); strings.Contains(text, "NaN") || strings.Contains(text, "Infinity") {
-			i := max(strings.Index(text, "NaN"), strings.Index(text, "Infinity"))
-			t.Errorf("%s: the page shows %q", c.frag, text[max(0, i-60):min(len(text), i+20)])
-		}
-		if eval[bool](t, ctx, `!document.querySelector('[data-role="notice"]').hidden`) {
-			t.Errorf("%s: notice %q", c.frag, eval[string](t, ctx, `document.querySelector('[data-role="notice"]').textContent`))
-		}
-		checkAgainstNative(t, ctx, id)
+		t.Run(c.frag, func(t *testing.T) {
+			ctx := start(t)
+			load(t, ctx, fileURL(id, c.frag))
+			checkLive(t, ctx, id)
+			head := eval[string](t, ctx, `document.querySelector('[data-calculator] .panel-head').textContent`)
+			if !strings.Contains(head, c.want) {
+				t.Errorf("%q", head)
+			}
+			if text := eval[string](t, ctx, `document.body.innerText`); strings.Contains(text, "NaN") || strings.Contains(text, "Infinity") {
+				i := max(strings.Index(text, "NaN"), strings.Index(text, "Infinity"))
+				t.Errorf("the page shows %q", text[max(0, i-60):min(len(text), i+20)])
+			}
+			if eval[bool](t, ctx, `!document.querySelector('[data-role="notice"]').hidden`) {
+				t.Errorf("notice %q", eval[string](t, ctx, `document.querySelector('[data-role="notice"]').textContent`))
+			}
+			checkAgainstNative(t, ctx, id)
+			checkHealthy(t, ctx)
+		})
 	}
-	checkHealthy(t, ctx)
 }
 
 // A 10,000-character token in a field, or in circuit text, wraps or is
 // cut in every message: the page keeps its width, at desktop and phone
 // width.
 func TestLongTokenKeepsPageWidth(t *testing.T) {
-	browser := start(t)
+	t.Parallel()
 	const id = "inverting"
 	token := strings.Repeat("x", 10000)
 	for _, w := range []int64{1280, 390} {
-		ctx := newTab(t, browser) // a tab of its own: no draft of the other width's token
-		if err := chromedp.Do(ctx, chromedp.EmulateViewport(w, 844)); err != nil {
-			t.Fatal(err)
-		}
-		load(t, ctx, fileURL(id, ""))
-		checkLive(t, ctx, id)
-		width := `Math.max(document.documentElement.scrollWidth, document.body.scrollWidth)`
-		before := eval[int64](t, ctx, width)
-		pasteInto(t, ctx, id, "R1", "1"+token)
-		msg := calcSel(id) + ` [data-field="R1"] [data-role="msg"]`
-		poll(t, ctx, `document.querySelector(`+jsString(msg)+`).textContent !== ''`)
-		if got := eval[int64](t, ctx, width); got > before {
-			t.Errorf("at %d px the page grew from %d to %d px wide with the token in R1", w, before, got)
-		}
-		if m := eval[string](t, ctx, `document.querySelector(`+jsString(msg)+`).textContent`); len(m) > 200 {
-			t.Errorf("at %d px the message echoes %d characters", w, len(m))
-		}
+		t.Run(fmt.Sprint(w), func(t *testing.T) {
+			ctx := start(t) // a tab of its own: no draft of the other width's token
+			if err := chromedp.Do(ctx, chromedp.EmulateViewport(w, 844)); err != nil {
+				t.Fatal(err)
+			}
+			load(t, ctx, fileURL(id, ""))
+			checkLive(t, ctx, id)
+			width := `Math.max(document.documentElement.scrollWidth, document.body.scrollWidth)`
+			before := eval[int64](t, ctx, width)
+			pasteInto(t, ctx, id, "R1", "1"+token)
+			msg := calcSel(id) + ` [data-field="R1"] [data-role="msg"]`
+			poll(t, ctx, `document.querySelector(`+jsString(msg)+`).textContent !== ''`)
+			if got := eval[int64](t, ctx, width); got > before {
+				t.Errorf("at %d px the page grew from %d to %d px wide with the token in R1", w, before, got)
+			}
+			if m := eval[string](t, ctx, `document.querySelector(`+jsString(msg)+`).textContent`); len(m) > 200 {
+				t.Errorf("at %d px the message echoes %d characters", w, len(m))
+			}
 
-		edLoad(t, ctx, fileURL("custom", ""))
-		before = eval[int64](t, ctx, width)
-		edSetText(t, ctx, "vsource Vin in gnd 1\nresistor R1 in gnd 1"+token[:4000]+"\nport p in gnd\n")
-		if p := rbProblems(t, ctx); !strings.Contains(p, "line 2") {
-			t.Fatalf("problems %q", p)
-		}
-		if got := eval[int64](t, ctx, width); got > before {
-			t.Errorf("at %d px the custom page grew from %d to %d px wide with the token in the text", w, before, got)
-		}
-		checkHealthy(t, ctx)
+			edLoad(t, ctx, fileURL("custom", ""))
+			before = eval[int64](t, ctx, width)
+			edSetText(t, ctx, "vsource Vin in gnd 1\nresistor R1 in gnd 1"+token[:4000]+"\nport p in gnd\n")
+			if p := rbProblems(t, ctx); !strings.Contains(p, "line 2") {
+				t.Fatalf("problems %q", p)
+			}
+			if got := eval[int64](t, ctx, width); got > before {
+				t.Errorf("at %d px the custom page grew from %d to %d px wide with the token in the text", w, before, got)
+			}
+			checkHealthy(t, ctx)
+		})
 	}
 }
 
@@ -305,34 +319,38 @@ func TestLongTokenKeepsPageWidth(t *testing.T) {
 // the inputs read-only, and the circuit editor's line numbers beside their
 // lines.
 func TestScriptsOff(t *testing.T) {
-	ctx := start(t)
-	if _, err := chromedp.Call(ctx, emulation.SetScriptExecutionDisabled, emulation.SetScriptExecutionDisabledParams{Value: true}); err != nil {
-		t.Fatal(err)
-	}
+	t.Parallel()
 	for _, page := range []string{"inverting", "custom"} {
-		if err := chromedp.Do(ctx, chromedp.Navigate(fileURL(page, ""))); err != nil {
-			t.Fatal(err)
-		}
-		// DevTools evaluates even where the page's own scripts may not run.
-		if eval[bool](t, ctx, `!!window.zportSite`) {
-			t.Fatalf("%s: the page's scripts ran", page)
-		}
-		text := eval[string](t, ctx, `document.body.innerText`)
-		if strings.Contains(text, "starting") || strings.Contains(text, "Live:") {
-			t.Errorf("%s: the page speaks of the live engine with scripts off", page)
-		}
-		if !strings.Contains(text, "Scripts are off, so the ") {
-			t.Errorf("%s: no word that scripts are off", page)
-		}
-		editable := eval[[]string](t, ctx, `Array.from(document.querySelectorAll('.calculator input, .calculator textarea, .calculator select')).filter(function (e) {
+		t.Run(page, func(t *testing.T) {
+			ctx := start(t)
+			if _, err := chromedp.Call(ctx, emulation.SetScriptExecutionDisabled, emulation.SetScriptExecutionDisabledParams{Value: true}); err != nil {
+				t.Fatal(err)
+			}
+			if err := chromedp.Do(ctx, chromedp.Navigate(fileURL(page, ""))); err != nil {
+				t.Fatal(err)
+			}
+			// DevTools evaluates even where the page's own scripts may not run.
+			if eval[bool](t, ctx, `!!window.zportSite`) {
+				t.Fatalf("%s: the page's scripts ran", page)
+			}
+			text := eval[string](t, ctx, `document.body.innerText`)
+			if strings.Contains(text, "starting") || strings.Contains(text, "Live:") {
+				t.Errorf("%s: the page speaks of the live engine with scripts off", page)
+			}
+			if !strings.Contains(text, "Scripts are off, so the ") {
+				t.Errorf("%s: no word that scripts are off", page)
+			}
+			editable := eval[[]string](t, ctx, `Array.from(document.querySelectorAll('.calculator input, .calculator textarea, .calculator select')).filter(function (e) {
   return e.type !== 'file' && !e.readOnly && !e.disabled;
 }).map(function (e) { return e.name || e.getAttribute('data-role') || e.id; })`)
-		if len(editable) > 0 {
-			t.Errorf("%s: editable with scripts off: %q", page, editable)
-		}
-	}
-	// The gutter: one number per line of the text, each beside its line.
-	gutter := eval[map[string]any](t, ctx, `(function () {
+			if len(editable) > 0 {
+				t.Errorf("%s: editable with scripts off: %q", page, editable)
+			}
+			if page != "custom" {
+				return
+			}
+			// The gutter: one number per line of the text, each beside its line.
+			gutter := eval[map[string]any](t, ctx, `(function () {
   var ta = document.querySelector('[data-circuit-editor] [data-role="text"]');
   var pre = document.querySelector('[data-circuit-editor] [data-role="numbers"]');
   var g = document.querySelector('[data-circuit-editor] [data-role="gutter"]');
@@ -345,18 +363,20 @@ func TestScriptsOff(t *testing.T) {
     preTop: pre.getBoundingClientRect().top + parseFloat(cp.paddingTop), taLine: cs.lineHeight, preLine: cp.lineHeight,
     inside: box.left >= gb.left - 0.5 && box.right <= gb.right + 0.5 };
 })()`)
-	var want []string
-	for i := 1; i <= int(gutter["lines"].(float64)); i++ {
-		want = append(want, fmt.Sprint(i))
-	}
-	if gutter["numbers"] != strings.Join(want, " ") {
-		t.Errorf("gutter numbers %q for %v lines", gutter["numbers"], gutter["lines"])
-	}
-	if gutter["taLine"] != gutter["preLine"] || abs(gutter["taTop"].(float64)-gutter["preTop"].(float64)) > 0.5 {
-		t.Errorf("the numbers are not beside their lines: %v", gutter)
-	}
-	if gutter["inside"] != true {
-		t.Errorf("the numbers are cut by the gutter: %v", gutter)
+			var want []string
+			for i := 1; i <= int(gutter["lines"].(float64)); i++ {
+				want = append(want, fmt.Sprint(i))
+			}
+			if gutter["numbers"] != strings.Join(want, " ") {
+				t.Errorf("gutter numbers %q for %v lines", gutter["numbers"], gutter["lines"])
+			}
+			if gutter["taLine"] != gutter["preLine"] || abs(gutter["taTop"].(float64)-gutter["preTop"].(float64)) > 0.5 {
+				t.Errorf("the numbers are not beside their lines: %v", gutter)
+			}
+			if gutter["inside"] != true {
+				t.Errorf("the numbers are cut by the gutter: %v", gutter)
+			}
+		})
 	}
 }
 

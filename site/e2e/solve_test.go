@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"zport/engine/api"
+	"zport/site/calc"
 )
 
 // The solve section (site/assets/solve.js): opened from a link it runs
@@ -207,8 +208,14 @@ func TestSolveSingleFile(t *testing.T) {
 // its defaults.
 func TestSolveBadLink(t *testing.T) {
 	ctx := start(t)
-	load(t, ctx, fileURL("transimpedance", "solve.part=Cf&solve.quantity=pm&solve.value=400"))
-	poll(t, ctx, `(function () { var n = document.querySelector('#calc-transimpedance [data-role="notice"]'); return !n.hidden && n.textContent.includes('solve.target.value'); })()`)
+	const id = "transimpedance"
+	frag := "solve.part=Cf&solve.quantity=pm&solve.value=400"
+	native := calc.Compute(calc.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
+	if !strings.Contains(native.Notice, `solve.value = "400"`) {
+		t.Fatalf("the native engine's notice does not name solve.value: %q", native.Notice)
+	}
+	load(t, ctx, fileURL(id, frag))
+	poll(t, ctx, `(function () { var n = document.querySelector('#calc-transimpedance [data-role="notice"]'); return !n.hidden && n.textContent === `+jsString(native.Notice)+`; })()`)
 	if eval[string](t, ctx, `document.querySelector('#calc-transimpedance details.solve').getAttribute('data-solve-state')`) != "idle" {
 		t.Error("a refused link ran the solve")
 	}
