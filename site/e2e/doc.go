@@ -55,6 +55,14 @@
 //	custom_test.go       the custom-circuit page: editor, errors, limits, links, files
 //	robust_test.go       drafts across reloads, links by one rule, tiny values, long tokens,
 //	                     scripts off, the editor's input limits
+//	noise_test.go        the noise section: a stage page, the custom page, the single file
+//	response_test.go     the closed-loop response section, on stage pages and the custom page
+//	solve_test.go        design to a target: stage page, custom page, single file, a bad link
+//	compare_test.go      pins: overlays, the comparison table, pins on the custom page and in
+//	                     the single file
+//	review_test.go       chart images (SVG, PNG), the printed report read back as text, charts
+//	                     at a phone's width
+//	contrast_test.go     input borders reach 3:1 in light and dark
 //
 // Set ZPORT_SHOTS=DIR to keep the screenshots in DIR.
 package e2e
