@@ -12,7 +12,6 @@ import (
 	"testing"
 
 	"zport/engine/api"
-	"zport/site/calc"
 )
 
 // The solve section (site/assets/solve.js): opened from a link it runs
@@ -204,18 +203,16 @@ func TestSolveSingleFile(t *testing.T) {
 	checkHealthy(t, ctx)
 }
 
-// A bad setting in a link is refused with its field named; the page shows
-// its defaults.
+// A bad setting in a link is refused with its setting named and why; the
+// solve's other settings go with it (a target without its value is none),
+// and the rest of the link is used.
 func TestSolveBadLink(t *testing.T) {
 	ctx := start(t)
-	const id = "transimpedance"
-	frag := "solve.part=Cf&solve.quantity=pm&solve.value=400"
-	native := calc.Compute(calc.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
-	if !strings.Contains(native.Notice, `solve.value = "400"`) {
-		t.Fatalf("the native engine's notice does not name solve.value: %q", native.Notice)
+	load(t, ctx, fileURL("transimpedance", "Cf=2p&solve.part=Cf&solve.quantity=pm&solve.value=400"))
+	poll(t, ctx, `(function () { var n = document.querySelector('#calc-transimpedance [data-role="notice"]'); return !n.hidden && n.textContent.includes('solve.value = "400"') && n.textContent.includes('a phase margin lies from'); })()`)
+	if got := eval[string](t, ctx, `document.querySelector('`+inputSel("transimpedance", "Cf")+`').value`); got != "2p" {
+		t.Errorf("Cf = %q after the link, want its 2p", got)
 	}
-	load(t, ctx, fileURL(id, frag))
-	poll(t, ctx, `(function () { var n = document.querySelector('#calc-transimpedance [data-role="notice"]'); return !n.hidden && n.textContent === `+jsString(native.Notice)+`; })()`)
 	if eval[string](t, ctx, `document.querySelector('#calc-transimpedance details.solve').getAttribute('data-solve-state')`) != "idle" {
 		t.Error("a refused link ran the solve")
 	}
