@@ -15,9 +15,8 @@ import (
 // They are bracketed root searches, not sweeps: a walk up in ln f, a decade
 // a step wherever the response turns slowly, brackets each crossing, and
 // Brent's method on ln f (feedback.Refine) closes it: 20 to 30
-// samples and 30 to 80 evaluations of the circuit in all for the catalog's
-// defaults, where a sweep took 701 samples, and the same numbers
-// (TestMarginExtrasMatchDenseSweep).
+// samples for the catalog's defaults, where a sweep took 701, and the same
+// numbers (TestMarginExtrasMatchDenseSweep).
 //
 // A search from a closed-form estimate of the crossover alone would be
 // cheaper still, but a loop can cross unity more than once — a capacitive-
