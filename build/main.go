@@ -7,7 +7,9 @@
 //	go run ./build single          build one self-contained HTML file
 //	go run ./build analyze [-timeout d]  read a request (JSON) on stdin, write the response
 //	go run ./build topologies      print the topology catalog as JSON
-//	go run ./build bench           browser benchmark of the built site (medians)
+//
+// The browser benchmark is a command of its own, go run ./build/bench, so
+// that this one does not carry the browser driver.
 package main
 
 import (
@@ -36,8 +38,6 @@ func main() {
 		os.Exit(runAnalyze(context.Background(), args, os.Stdin, os.Stdout, os.Stderr))
 	case "topologies":
 		err = runTopologies(os.Stdout)
-	case "bench":
-		err = runBench(args)
 	case "help", "-h", "--help":
 		fmt.Print(usage)
 		return
@@ -61,5 +61,6 @@ const usage = `usage: go run ./build [command]
                read an analysis request (JSON) on stdin, write the response JSON;
                -timeout stops a long analysis with an error after d (e.g. 30s)
   topologies   print the topology catalog as JSON
-  bench        run the browser benchmark against the built site, print medians
+
+The browser benchmark is a command of its own: go run ./build/bench
 `

@@ -12,17 +12,16 @@ import (
 // buildSite builds dist/ under the module root and returns its path.
 func buildSite() (dist string, opt site.Options, err error) {
 	start := time.Now()
-	root, err := site.ModuleRoot()
-	if err != nil {
-		return "", opt, err
-	}
-	wasm, wasmExec, err := site.CompileEngine(root)
+	opt, err = site.ModuleOptions()
 	if err != nil {
 		return "", opt, err
 	}
 	compiled := time.Since(start)
-	opt = site.Options{Engine: wasm, WasmExec: wasmExec}
 	files, err := site.Build(opt)
+	if err != nil {
+		return "", opt, err
+	}
+	root, err := site.ModuleRoot()
 	if err != nil {
 		return "", opt, err
 	}
@@ -35,7 +34,7 @@ func buildSite() (dist string, opt site.Options, err error) {
 	}
 	eng := files["zport-engine.js"]
 	fmt.Fprintf(os.Stderr, "build: engine %s raw, %s as loaded (zport-engine.js); %d files; compile %v, total %v\n",
-		mb(int64(len(wasm))), mb(int64(len(eng))), len(files), compiled.Round(time.Millisecond), time.Since(start).Round(time.Millisecond))
+		mb(int64(len(opt.Engine))), mb(int64(len(eng))), len(files), compiled.Round(time.Millisecond), time.Since(start).Round(time.Millisecond))
 	return dist, opt, nil
 }
 
@@ -74,3 +73,5 @@ func runSingle(args []string) error {
 	fmt.Println(p)
 	return nil
 }
+
+func mb(n int64) string { return fmt.Sprintf("%.3f MB", float64(n)/1e6) }

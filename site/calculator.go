@@ -175,7 +175,7 @@ func (t *blockTransformer) Transform(doc *ast.Document, reader text.Reader, pc p
 	count := map[string]int{}
 	for _, b := range blocks {
 		line := lineOf(src, b)
-		body := string(b.Text(src))
+		body := string(b.Lines().Value(src))
 		var repl ast.Node
 		switch string(b.Language(src)) {
 		case "calculator":

@@ -61,9 +61,12 @@
 //
 // # Output
 //
-// Build returns the multi-file site; Single returns one HTML file holding
-// every page as a section chosen by the fragment (#p=NAME), with its style
-// sheet and scripts inline and allowed by their SHA-256 hashes in its
+// Build and Single take Options: the engine, compiled from zport/wasm by
+// CompileEngine with the toolchain on PATH, and that toolchain's
+// wasm_exec.js (ModuleOptions gives both). Build returns the multi-file
+// site; Single returns one HTML file holding every page as a section
+// chosen by the fragment (#p=NAME), with its style sheet and scripts
+// inline and allowed by their SHA-256 hashes in its
 // Content-Security-Policy. The engine is written as zport-engine.js, the
 // module gzip-compressed and base-122-encoded into one global string
 // beside Go's wasm_exec.js as the body of a function (see EngineScript),

@@ -85,7 +85,7 @@ func (t *editorTransformer) Transform(doc *ast.Document, reader text.Reader, pc 
 	})
 	for i, b := range blocks {
 		line := lineOf(src, b)
-		n := t.read(string(b.Text(src)), line)
+		n := t.read(string(b.Lines().Value(src)), line)
 		n.Line = line
 		n.ID = "circuit"
 		if page.Single {

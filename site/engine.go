@@ -89,3 +89,19 @@ func CompileEngine(root string) (wasm, wasmExec []byte, err error) {
 	}
 	return wasm, wasmExec, nil
 }
+
+// ModuleOptions returns the Options that Build and Single take for the
+// zport module the working directory lies in: its engine compiled by
+// CompileEngine, and the toolchain's wasm_exec.js. The command, the
+// browser tests and the benchmark all build the site from it.
+func ModuleOptions() (Options, error) {
+	root, err := ModuleRoot()
+	if err != nil {
+		return Options{}, err
+	}
+	wasm, wasmExec, err := CompileEngine(root)
+	if err != nil {
+		return Options{}, err
+	}
+	return Options{Engine: wasm, WasmExec: wasmExec}, nil
+}

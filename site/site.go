@@ -10,9 +10,11 @@ import (
 	"fmt"
 	"html/template"
 	"io/fs"
+	"maps"
 	"os"
 	"path"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 
@@ -65,14 +67,7 @@ type Options struct {
 type Files map[string][]byte
 
 // Names returns the file names in lexical order.
-func (f Files) Names() []string {
-	names := make([]string, 0, len(f))
-	for n := range f {
-		names = append(names, n)
-	}
-	sort.Strings(names)
-	return names
-}
+func (f Files) Names() []string { return slices.Sorted(maps.Keys(f)) }
 
 // Write writes every file under dir, creating directories as needed.
 func (f Files) Write(dir string) error {

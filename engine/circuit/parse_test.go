@@ -279,3 +279,16 @@ func FuzzParse(f *testing.F) {
 		}
 	})
 }
+
+// Ladder has the nodes it is asked for, and parses.
+func TestLadder(t *testing.T) {
+	for _, n := range []int{4, 5, 50, 200} {
+		c, err := Parse(Ladder(n))
+		if err != nil {
+			t.Fatalf("Ladder(%d): %v", n, err)
+		}
+		if got := len(c.Nodes) - 1; got != n { // Nodes[0] is gnd
+			t.Errorf("Ladder(%d) has %d nodes besides gnd", n, got)
+		}
+	}
+}

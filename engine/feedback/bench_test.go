@@ -1,9 +1,7 @@
 package feedback_test
 
 import (
-	"fmt"
 	"math"
-	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/floats"
@@ -108,34 +106,21 @@ func BenchmarkSweep10Node2Port1600(b *testing.B) {
 	benchSweep(b, bench10, ports10, &[3]string{"Vin", "o2"}, 1600)
 }
 
-// ladder writes an n-node RC ladder driven by an opamp follower with the
-// feedback taken from the ladder's far end (invented test circuit).
-func ladder(n int) string {
-	var s strings.Builder
-	s.WriteString("vsource Vin src gnd 1\nopamp U1 src l0 out a0=100k gbw=1M ro=50\nresistor Rd out l1 10\n")
-	for i := 1; i < n-2; i++ {
-		fmt.Fprintf(&s, "resistor R%d l%d l%d 100\ncapacitor C%d l%d gnd 1p\n", i, i, i+1, i, i+1)
-	}
-	fmt.Fprintf(&s, "resistor Rf l%d l0 1\n", n-2)
-	return s.String()
-}
-
 func BenchmarkSweep50NodeLadder400(b *testing.B) {
-	benchSweep(b, ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 400)
+	benchSweep(b, circuit.Ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 400)
 }
 
-// Time per point grows about linearly with the nodes: 200 against 50
-// (ladder(n) has n+1 nodes).
+// Time per point grows about linearly with the nodes: 200 against 50.
 func BenchmarkSweep200NodeLadder100(b *testing.B) {
-	benchSweep(b, ladder(199), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 100)
+	benchSweep(b, circuit.Ladder(200), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 100)
 }
 
 func BenchmarkSweep50NodeLadder100(b *testing.B) {
-	benchSweep(b, ladder(49), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 100)
+	benchSweep(b, circuit.Ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"}, 100)
 }
 
 func BenchmarkSpot50NodeLadder(b *testing.B) {
-	a := benchAnalyzer(b, ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"})
+	a := benchAnalyzer(b, circuit.Ladder(50), [][3]string{{"in", "src", "gnd"}, {"out", "out", "gnd"}}, &[3]string{"Vin", "out"})
 	f := 1e3
 	for b.Loop() {
 		f *= 1.0001

@@ -95,7 +95,7 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 		}
 		la, lb := math.Log(cmplx.Abs(T[i])), math.Log(cmplx.Abs(T[i+1]))
 		if la >= 0 && lb < 0 || la < 0 && lb >= 0 {
-			fc := refine(grid[i], grid[i+1], la, lb, func(f float64) (float64, bool) {
+			fc := Refine(grid[i], grid[i+1], la, lb, func(f float64) (float64, bool) {
 				t, ok := evalOK(f)
 				return math.Log(cmplx.Abs(t)), ok
 			})
@@ -120,7 +120,7 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 			if da == 0 && i > 0 && !math.IsNaN(ph[i-1]) && (ph[i-1]-target)*db <= 0 {
 				continue
 			}
-			f180 := refine(fa, fb, da, db, func(f float64) (float64, bool) {
+			f180 := Refine(fa, fb, da, db, func(f float64) (float64, bool) {
 				t, ok := evalOK(f)
 				if !ok {
 					return 0, false
@@ -198,9 +198,11 @@ func Margins(grid []float64, T []complex128, eval func(f float64) (complex128, e
 	return m
 }
 
-// refine finds the root of g between fa and fb (ga, gb of opposite sign or
-// zero) by false position on log f with the Illinois modification.
-func refine(fa, fb, ga, gb float64, g func(f float64) (float64, bool)) float64 {
+// Refine finds the root of g between the frequencies fa and fb, where g
+// takes the values ga and gb of opposite sign (or one of them zero), by
+// Brent's method on ln f (numeric.Root), to about 1e-14 in ln f. When g
+// cannot be evaluated (ok false) it returns the best estimate so far.
+func Refine(fa, fb, ga, gb float64, g func(f float64) (float64, bool)) float64 {
 	if ga == 0 {
 		return fa
 	}

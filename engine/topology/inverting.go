@@ -6,10 +6,7 @@ import (
 	"math/cmplx"
 	"strings"
 
-	"gonum.org/v1/gonum/floats"
-
 	"zport/engine/circuit"
-	"zport/engine/feedback"
 	"zport/engine/value"
 )
 
@@ -382,47 +379,3 @@ func opmWith(v Values, set map[string]float64, drop ...string) Values {
 	}
 	return w
 }
-
-// opmMarginGrid is the frequency grid on which Extras evaluate a variant's
-// loop: wide enough for any crossover the parameter ranges allow, with the
-// engine refining each crossing between grid points.
-func opmMarginGrid() []float64 { return floats.LogSpan(make([]float64, 701), 1e-2, 1e12) }
-
-// loopMargins analyzes the loop of circuit text for the reference ref,
-// parsed at kelvin, and returns its margins, evaluated by the engine
-// itself. Extras use it on variants of a stage (a different Cf, Riso
-// removed …); it never goes through Forms, so it cannot recurse.
-func loopMargins(text, ref string, kelvin float64) (feedback.MarginResult, error) {
-	c, err := circuit.ParseWith(text, circuit.Options{Temperature: kelvin})
-	if err != nil {
-		return feedback.MarginResult{}, err
-	}
-	a, err := feedback.New(c, ref, nil, nil)
-	if err != nil {
-		return feedback.MarginResult{}, err
-	}
-	grid := opmMarginGrid()
-	T := make([]complex128, len(grid))
-	for i, f := range grid {
-		if T[i], err = a.ReturnRatio(f); err != nil {
-			return feedback.MarginResult{}, err
-		}
-	}
-	return feedback.Margins(grid, T, a.ReturnRatio), nil
-}
-
-// opmMarginExtras reports the governing phase margin and crossover of a
-// variant's loop as two Extras (NaN values when there is no crossover or the
-// variant cannot be analyzed).
-func opmMarginExtras(text, label, note, source string) []Extra {
-	pm, fc := math.NaN(), math.NaN()
-	if m, err := loopMargins(text, "U1", circuit.DefaultTemperature); err == nil {
-		pm, fc = m.PhaseMargin, m.Crossover
-	}
-	return []Extra{
-		{Name: "phase margin " + label, Value: pm, Unit: "°", Note: note, Source: source},
-		{Name: "crossover " + label, Value: fc, Unit: "Hz", Note: "where |T| = 1 for the same variant", Source: source},
-	}
-}
-
-const opmSrcEngine = "computed by zport's engine on the stage with the value substituted (return ratio swept, crossings refined)"

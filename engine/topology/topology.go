@@ -3,7 +3,9 @@ package topology
 import (
 	"errors"
 	"fmt"
+	"maps"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -215,12 +217,7 @@ func (t *Topology) Param(name string) (*Param, bool) {
 // Values parses params over the defaults. Unknown names, malformed values
 // and values outside a parameter's range are errors naming the parameter.
 func (t *Topology) Values(params map[string]string) (Values, error) {
-	keys := make([]string, 0, len(params))
-	for k := range params {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	for _, k := range keys {
+	for _, k := range slices.Sorted(maps.Keys(params)) {
 		if _, ok := t.Param(k); !ok {
 			names := make([]string, len(t.Params))
 			for i, p := range t.Params {

@@ -5,10 +5,9 @@ import (
 	"math"
 	"math/cmplx"
 
-	"zport/engine/value"
-
 	"zport/engine/circuit"
 	"zport/engine/feedback"
+	"zport/engine/value"
 )
 
 func init() {
@@ -210,33 +209,43 @@ func tiaCfExtras(v Values, label string, cf float64, formula, source string) []E
 }
 
 // tiaBandwidth finds the first frequency where |G| falls to |G(0)|/√2 for
-// the circuit text, by the engine, refined by Brent's method on log f.
+// the circuit text, by the engine: the walk brackets it, Brent's method on
+// ln f closes it.
 func tiaBandwidth(text string) float64 {
-	c, err := circuit.Parse(text)
+	a, err := loopAnalyzer(text, "U1", circuit.DefaultTemperature, "Iin", "out")
 	if err != nil {
 		return math.NaN()
 	}
-	src, out := -1, 0
-	for i := range c.Parts {
-		if c.Parts[i].Name == "Iin" {
-			src = i
-		}
-	}
-	out, _ = c.Node("out")
-	a, err := feedback.New(c, "U1", nil, &feedback.Gain{Source: src, OutA: out, OutB: circuit.Gnd, SourceName: "Iin", OutputName: "out"})
-	if err != nil {
-		return math.NaN()
-	}
-	mag := func(f float64) float64 {
+	gain := func(f float64) (complex128, bool) {
 		p, err := a.At(f)
 		if err != nil || p.Gain == nil {
-			return math.NaN()
+			return 0, false
 		}
-		return cmplx.Abs(p.Gain.GDirect)
+		return p.Gain.GDirect, true
 	}
-	target := mag(0) / math.Sqrt2
-	grid := opmMarginGrid()
-	return firstRoot(grid[0], grid[len(grid)-1], len(grid), func(f float64) float64 { return mag(f) - target })
+	g0, ok := gain(0)
+	if !ok {
+		return math.NaN()
+	}
+	level := math.Log(cmplx.Abs(g0) / math.Sqrt2)
+	// above is ln|G| less the level: positive until |G| has fallen 3 dB.
+	above := func(f float64) (float64, bool) {
+		g, ok := gain(f)
+		d := math.Log(cmplx.Abs(g)) - level
+		return d, ok && !math.IsNaN(d) && !math.IsInf(d, 0)
+	}
+	f3 := math.NaN()
+	pf, pd := 0.0, math.NaN()
+	walk(gain, func(f float64, g complex128) bool {
+		d := math.Log(cmplx.Abs(g)) - level
+		if d < 0 && pd >= 0 {
+			f3 = feedback.Refine(pf, f, pd, d, above)
+			return false
+		}
+		pf, pd = f, d
+		return true
+	})
+	return f3
 }
 
 // tiaCfCaution says which phase margin the two Cf rules give on the ideal

@@ -29,7 +29,7 @@
 //                   calc.Study settings ("tol", "tol.R1", "seed", "t1" …),
 //                   which the calculator keeps in its form and share link
 //
-// Performance marks for the benchmark (go run ./build bench): a measure
+// Performance marks for the benchmark (go run ./build/bench): a measure
 // "zport-tolerance" from Run to the results on the page, with
 // "zport-tolerance-engine" (the time spent in the engine's steps), and
 // "zport-aids-panels" for each standard-value and sensitivity update.

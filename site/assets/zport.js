@@ -1323,13 +1323,28 @@
 
   // ---- start ----
 
+  // whenParsed resolves to what p resolves to once the document is parsed
+  // (DOMContentLoaded), so that every page script after this one listens
+  // before a calculator announces its first result and its link's
+  // settings. In the single file the scripts are inline, and on a busy
+  // machine the parser can yield between two of them long enough for the
+  // engine to start.
+  function whenParsed(p) {
+    if (document.readyState === 'complete') return p;
+    var parsed = new Promise(function (resolve) {
+      document.addEventListener('DOMContentLoaded', resolve, { once: true });
+      window.addEventListener('load', resolve, { once: true });
+    });
+    return Promise.all([p, parsed]).then(function (r) { return r[0]; });
+  }
+
   function start() {
     showPage();
     window.addEventListener('hashchange', showPage);
     if (!document.querySelector('[data-calculator], [data-circuit-editor]')) return;
     lock(false);
     setStatus('loading', statusText.loading);
-    loadEngine().then(function (w) {
+    whenParsed(loadEngine()).then(function (w) {
       engine = w;
       window.addEventListener('pagehide', function (e) {
         flushAddress();

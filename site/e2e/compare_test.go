@@ -53,7 +53,7 @@ func pinCount(t *testing.T, ctx context.Context, root string, n int) {
   return lis === %d && bar === %d && svgs.length > 0 && svgs.every(function (s) {
     return s.querySelectorAll('path[data-values][class*="trace-pin"]').length === %d;
   });
-})()`, jsString(root), n, n, n), waitFor)
+})()`, jsString(root), n, n, n))
 }
 
 // pinTable is the page's comparison, each value or difference by its
@@ -222,7 +222,7 @@ func TestPinsOverlayAndCompare(t *testing.T) {
 	pinClick(t, ctx, root, "pin")
 	pinCount(t, ctx, root, 1)
 	typeInto(t, ctx, id, "Cf", "2p2")
-	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-action="share"]`)+`).getAttribute('href').indexOf('Cf=2p2') > 0`, waitFor)
+	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-action="share"]`)+`).getAttribute('href').indexOf('Cf=2p2') > 0`)
 	pinClick(t, ctx, root, "pin")
 	pinCount(t, ctx, root, 2)
 	typeInto(t, ctx, id, "Cf", "3p3")
@@ -237,7 +237,7 @@ func TestPinsOverlayAndCompare(t *testing.T) {
 	if err := chromedp.Do(ctx, chromedp.KeyEvent("Cf 1 pF")); err != nil {
 		t.Fatal(err)
 	}
-	poll(t, ctx, `location.hash.indexOf('pin1=Cf+1+pF&pin1.Cf=1p&pin2=Pin+2&pin2.Cf=2p2') > 0 && location.hash.indexOf('Cf=3p3') > 0`, waitFor)
+	poll(t, ctx, `location.hash.indexOf('pin1=Cf+1+pF&pin1.Cf=1p&pin2=Pin+2&pin2.Cf=2p2') > 0 && location.hash.indexOf('Cf=3p3') > 0`)
 	pinCount(t, ctx, root, 2)
 
 	e := form(id, inputs(t, ctx, id))
@@ -291,9 +291,9 @@ func TestPinsOverlayAndCompare(t *testing.T) {
 	// Remove pin 1, then all.
 	pinClick(t, ctx, root+` [data-role="pin-list"] li[data-pin="1"]`, "unpin")
 	pinCount(t, ctx, root, 1)
-	poll(t, ctx, `document.querySelectorAll(`+jsString(root+` path.trace-pin1`)+`).length === 0 && location.hash.indexOf('pin1') < 0 && location.hash.indexOf('pin2=') > 0`, waitFor)
+	poll(t, ctx, `document.querySelectorAll(`+jsString(root+` path.trace-pin1`)+`).length === 0 && location.hash.indexOf('pin1') < 0 && location.hash.indexOf('pin2=') > 0`)
 	pinClick(t, ctx, root, "unpin-all")
-	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-role="pins"]`)+`).hidden && !document.querySelector(`+jsString(root+` .pin-summary`)+`) && location.hash.indexOf('pin') < 0`, waitFor)
+	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-role="pins"]`)+`).hidden && !document.querySelector(`+jsString(root+` .pin-summary`)+`) && location.hash.indexOf('pin') < 0`)
 	checkHealthy(t, ctx)
 }
 
@@ -320,7 +320,7 @@ func TestCustomPins(t *testing.T) {
 	pinCount(t, ctx, root, 2)
 	edSetText(t, ctx, strings.Replace(first, "capacitor Cm   mid  gnd  10p", "# no guard trace", 1))
 	pinCount(t, ctx, root, 2)
-	poll(t, ctx, `location.hash.indexOf('&pin1=Pin+1') > 0 && location.hash.indexOf('&pin1.c=') > 0 && location.hash.indexOf('&pin2.c=') > 0`, waitFor)
+	poll(t, ctx, `location.hash.indexOf('&pin1=Pin+1') > 0 && location.hash.indexOf('&pin1.c=') > 0 && location.hash.indexOf('&pin2.c=') > 0`)
 	got := pinRead(t, ctx, root)
 	if len(got.Cells) == 0 || got.Cells["loop/pm/1/diff"] == "" || len(got.Traces) < 6 {
 		t.Fatalf("the comparison with two pinned circuits is missing: %d cells, %d traces", len(got.Cells), len(got.Traces))
@@ -368,7 +368,7 @@ func TestCustomPasteNewCircuit(t *testing.T) {
 		t.Fatal(err)
 	}
 	edWait(t, ctx, n)
-	poll(t, ctx, `document.querySelector('[data-circuit-editor] [data-role="gain-source"]').value === 'Vs'`, waitFor)
+	poll(t, ctx, `document.querySelector('[data-circuit-editor] [data-role="gain-source"]').value === 'Vs'`)
 	s := edRead(t, ctx)
 	if s.Text != text || s.Source != "Vs" || s.Output != "out" || s.Reference != "U1" || strings.Join(s.Ports, " ") != "o" {
 		t.Errorf("after the paste the editor holds %+v", s)
@@ -397,7 +397,7 @@ func TestPinsInSingleFile(t *testing.T) {
 	pinClick(t, ctx, root, "pin")
 	pinCount(t, ctx, root, 2)
 	typeInto(t, ctx, id, "Cd", "10p")
-	poll(t, ctx, `location.hash.indexOf('#p=transimpedance&') === 0 && location.hash.indexOf('Cd=10p') > 0 && location.hash.indexOf('&pin1.Cd=20p&pin2=Pin+2&pin2.Cd=47p') > 0`, waitFor)
+	poll(t, ctx, `location.hash.indexOf('#p=transimpedance&') === 0 && location.hash.indexOf('Cd=10p') > 0 && location.hash.indexOf('&pin1.Cd=20p&pin2=Pin+2&pin2.Cd=47p') > 0`)
 	pinCount(t, ctx, root, 2)
 	got := pinRead(t, ctx, root)
 	link := eval[string](t, ctx, `location.href`)
@@ -417,7 +417,8 @@ func TestPinsInSingleFile(t *testing.T) {
 	}
 	out := t.TempDir()
 	if _, err := chromedp.Call(tab, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{
-		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out}); err != nil {
+		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out,
+		BrowserContextID: chromedp.FromContext(tab).BrowserContextID}); err != nil {
 		t.Fatal(err)
 	}
 	eval[bool](t, tab, `(function () {
@@ -426,11 +427,11 @@ func TestPinsInSingleFile(t *testing.T) {
   return true;
 })()`)
 	pinClick(t, tab, `[data-e2e-chart]`, "save-svg")
-	poll(t, tab, `/saved as zport-.*\.svg/.test(document.querySelector('[data-e2e-chart] [data-role="chart-msg"]').textContent)`, waitFor)
+	poll(t, tab, `/saved as zport-.*\.svg/.test(document.querySelector('[data-e2e-chart] [data-role="chart-msg"]').textContent)`)
 	name := strings.TrimSuffix(strings.TrimPrefix(eval[string](t, tab, `document.querySelector('[data-e2e-chart] [data-role="chart-msg"]').textContent`), "Chart saved as "), ".")
 	vb := eval[[]string](t, tab, `document.querySelector('[data-e2e-chart] svg').getAttribute('viewBox').split(' ')`)
 	w, _ := strconv.Atoi(vb[2])
 	h, _ := strconv.Atoi(vb[3])
-	checkChartSVG(t, reviewWaitFile(t, filepath.Join(out, name)), w, h, eval[string](t, tab, `document.querySelector('[data-e2e-chart] svg title').textContent`))
+	checkChartSVG(t, waitFile(t, filepath.Join(out, name), svgWhole), w, h, eval[string](t, tab, `document.querySelector('[data-e2e-chart] svg title').textContent`))
 	checkHealthy(t, tab)
 }

@@ -50,29 +50,32 @@ const contrastJS = `(function (min) {
 // what is behind them, in light and dark (WCAG 2.1 SC 1.4.11, non-text
 // contrast), on a stage page and the custom page.
 func TestInputBorderContrast(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	for _, scheme := range []string{"light", "dark"} {
-		err := chromedp.Do(ctx, chromedp.Func(func(ctx context.Context, _ *chromedp.Target) error {
-			_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{
-				Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: scheme}},
-			})
-			return err
-		}))
-		if err != nil {
-			t.Fatal(err)
-		}
 		for _, page := range []string{"inverting", "custom"} {
-			load(t, ctx, fileURL(page, ""))
-			got := eval[struct {
-				N   int      `json:"n"`
-				Bad []string `json:"bad"`
-			}](t, ctx, contrastJS)
-			if got.N < 5 {
-				t.Errorf("%s, %s: only %d bordered inputs found", page, scheme, got.N)
-			}
-			for _, b := range got.Bad {
-				t.Errorf("%s, %s: %s, below 3:1", page, scheme, b)
-			}
+			t.Run(scheme+"/"+page, func(t *testing.T) {
+				ctx := start(t)
+				err := chromedp.Do(ctx, chromedp.Func(func(ctx context.Context, _ *chromedp.Target) error {
+					_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{
+						Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: scheme}},
+					})
+					return err
+				}))
+				if err != nil {
+					t.Fatal(err)
+				}
+				load(t, ctx, fileURL(page, ""))
+				got := eval[struct {
+					N   int      `json:"n"`
+					Bad []string `json:"bad"`
+				}](t, ctx, contrastJS)
+				if got.N < 5 {
+					t.Errorf("only %d bordered inputs found", got.N)
+				}
+				for _, b := range got.Bad {
+					t.Errorf("%s, below 3:1", b)
+				}
+			})
 		}
 	}
 }

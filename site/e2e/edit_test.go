@@ -75,7 +75,7 @@ func waitState(t *testing.T, ctx context.Context, id string) string {
 		want = "#p=" + page + "&" + want[1:]
 	}
 	poll(t, ctx, `document.querySelector(`+jsString(calcSel(id)+` [data-action="share"]`)+`).getAttribute('href') === `+jsString(want)+
-		` && location.hash === `+jsString(want), waitFor)
+		` && location.hash === `+jsString(want))
 	return want
 }
 
@@ -97,13 +97,15 @@ var edits = []struct{ id, param, value string }{
 }
 
 // Typing a value (key by key) updates every port row and every chart, and
-// the new values are the native engine's for the new parameter.
+// the new values are the native engine's for the new parameter. A stage
+// per tab, side by side.
 func TestTypingUpdatesEveryRowAndChart(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	covered := map[string]bool{}
 	for _, ed := range edits {
 		covered[ed.id] = true
 		t.Run(ed.id, func(t *testing.T) {
+			ctx := start(t)
 			load(t, ctx, fileURL(ed.id, ""))
 			checkLive(t, ctx, ed.id)
 			before := shownValues(t, ctx, ed.id)
@@ -206,7 +208,7 @@ func TestBadValueKeepsLastGoodResult(t *testing.T) {
 				t.Fatalf("the native engine does not refuse %s=%q by that field: %+v", bad.field, bad.text, out.Error)
 			}
 			msgSel := jsString(calcSel(id) + ` .field[data-field="` + bad.field + `"] [data-role="msg"]`)
-			poll(t, ctx, `document.querySelector(`+msgSel+`).textContent === `+jsString(out.Error.Message), waitFor)
+			poll(t, ctx, `document.querySelector(`+msgSel+`).textContent === `+jsString(out.Error.Message))
 			if bad.field == "R1" && !strings.Contains(out.Error.Message, "R₁") {
 				t.Errorf("the message %q does not name the parameter R₁", out.Error.Message)
 			}
@@ -239,7 +241,7 @@ func TestBadValueKeepsLastGoodResult(t *testing.T) {
 			fix := map[string]string{"R1": "4k7", "frequency": "2k"}[bad.field]
 			typeInto(t, ctx, id, bad.field, fix)
 			waitState(t, ctx, id)
-			poll(t, ctx, `document.querySelector(`+msgSel+`).textContent === ''`, waitFor)
+			poll(t, ctx, `document.querySelector(`+msgSel+`).textContent === ''`)
 			if n := eval[int](t, ctx, `document.querySelectorAll('[aria-invalid], .is-stale, [data-role="stale"]').length`); n != 0 {
 				t.Errorf("%d error or stale marks left after the fix", n)
 			}

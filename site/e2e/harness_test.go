@@ -3,14 +3,18 @@
 package e2e
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
+	"flag"
 	"fmt"
+	"maps"
 	"net/http"
 	"net/http/httptest"
 	"net/url"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"sync"
 	"testing"
@@ -24,15 +28,20 @@ import (
 	"zport/site/browser"
 )
 
-// Built site, shared by every test in the package.
+// Built site and browser, shared by every test in the package.
 var (
 	distDir    string // the multi-page site
 	singleFile string // the single-file export
 	buildErr   error
+	shared     = browser.Shared{Width: 1280, Height: 800}
 )
 
 func TestMain(m *testing.M) {
+	flag.Parse()
 	code := func() int {
+		if testing.Short() {
+			return m.Run() // every test skips: no site to build
+		}
 		tmp, err := os.MkdirTemp("", "zport-e2e-")
 		if err != nil {
 			fmt.Fprintln(os.Stderr, err)
@@ -42,21 +51,17 @@ func TestMain(m *testing.M) {
 		distDir = filepath.Join(tmp, "dist")
 		singleFile = filepath.Join(tmp, "single", "zport-single.html")
 		buildErr = buildSite(distDir, singleFile)
+		defer shared.Stop()
 		return m.Run()
 	}()
 	os.Exit(code)
 }
 
 func buildSite(dist, single string) error {
-	root, err := site.ModuleRoot()
+	opt, err := site.ModuleOptions()
 	if err != nil {
 		return err
 	}
-	wasm, exec, err := site.CompileEngine(root)
-	if err != nil {
-		return err
-	}
-	opt := site.Options{Engine: wasm, WasmExec: exec}
 	files, err := site.Build(opt)
 	if err != nil {
 		return err
@@ -74,19 +79,32 @@ func buildSite(dist, single string) error {
 	return os.WriteFile(single, one, 0o644)
 }
 
-// start gives a browser for t (skipping or failing per package browser)
-// and fails t if the site did not build. Its tab carries a probe (see
-// installProbe) from the first navigation on.
+// start begins a browser test: t runs in parallel with the package's other
+// browser tests, in a tab of its own in the shared browser (skipping or
+// failing per package browser). It fails t if the site did not build. The
+// tab carries a probe (see installProbe) from the first navigation on.
+//
+// Go's package timeout (go test -timeout, 10 minutes by default) is the
+// only limit on how long a test may take; the tab's commands stop a little
+// before it, so that a page that hangs fails its own test with the step it
+// hung in rather than the whole package with a stack dump.
 func start(t *testing.T) context.Context {
 	t.Helper()
-	ctx := browser.ForTest(t)
+	t.Parallel()
+	ctx := shared.Tab(t)
 	if buildErr != nil {
 		t.Fatalf("building the site: %v", buildErr)
+	}
+	if d, ok := t.Deadline(); ok {
+		var cancel context.CancelFunc
+		ctx, cancel = context.WithDeadline(ctx, d.Add(-15*time.Second))
+		t.Cleanup(cancel)
 	}
 	return installProbe(t, ctx)
 }
 
-// newTab opens another tab of the browser of ctx, with its own probe. It
+// newTab opens another tab of the browser of ctx, in the same browser
+// context (as a link opened in a new tab does), with its own probe. It
 // closes when t ends.
 func newTab(t *testing.T, ctx context.Context) context.Context {
 	t.Helper()
@@ -207,7 +225,7 @@ func serveSubpath(t *testing.T, prefix string) string {
 // engine is ready (or fails the test with the page's own reason).
 func load(t *testing.T, ctx context.Context, u string) {
 	t.Helper()
-	tctx, cancel := context.WithTimeout(ctx, 60*time.Second)
+	tctx, cancel := context.WithTimeout(ctx, waitFor)
 	defer cancel()
 	if err := chromedp.Do(tctx, chromedp.Navigate(u)); err != nil {
 		t.Fatalf("navigate %s: %v", u, err)
@@ -219,18 +237,11 @@ func load(t *testing.T, ctx context.Context, u string) {
 // "none": a page without a calculator does not start the engine).
 func waitEngine(t *testing.T, ctx context.Context) {
 	t.Helper()
-	deadline := time.Now().Add(60 * time.Second)
-	for time.Now().Before(deadline) {
-		state := eval[string](t, ctx, `document.documentElement.dataset.engine || ""`)
-		switch state {
-		case "ready", "none":
-			return
-		case "failed":
-			t.Fatalf("engine failed: %s", eval[string](t, ctx, `document.body.innerText.slice(0, 400)`))
-		}
-		time.Sleep(20 * time.Millisecond)
-	}
-	t.Fatal("engine not ready after 60 s")
+	poll(t, ctx, `(function () {
+  var state = document.documentElement.dataset.engine || "";
+  if (state === "failed") throw new Error("engine failed: " + document.body.innerText.slice(0, 400));
+  return state === "ready" || state === "none";
+})()`)
 }
 
 // eval evaluates a JavaScript expression and returns its value as T.
@@ -249,47 +260,110 @@ func jsString(s string) string {
 	return string(b)
 }
 
-// waitFor is how long a test waits for the page to reach a state. Only a
-// failing test waits that long; it is generous because the machines the
-// tests run on are shared and at times heavily loaded.
-const waitFor = 30 * time.Second
+// waitFor is how long a test waits for the page to reach a state before
+// it fails. Only a failing test waits that long: it is a safety net, not a
+// measure of speed, and generous because the machines the tests run on are
+// shared and at times heavily loaded.
+const waitFor = 2 * time.Minute
 
-// poll evaluates cond (a JavaScript boolean expression) until it holds or
-// the timeout passes.
-func poll(t *testing.T, ctx context.Context, cond string, timeout time.Duration) {
+// poll evaluates cond (a JavaScript boolean expression) until it holds, or
+// fails t after waitFor. An exception thrown by cond fails t at once with
+// its message.
+func poll(t *testing.T, ctx context.Context, cond string) {
 	t.Helper()
-	deadline := time.Now().Add(timeout)
-	for time.Now().Before(deadline) {
+	for deadline := time.Now().Add(waitFor); time.Now().Before(deadline); {
 		if eval[bool](t, ctx, cond) {
 			return
 		}
 		time.Sleep(15 * time.Millisecond)
 	}
-	t.Fatalf("timed out after %v waiting for %s", timeout, cond)
+	t.Fatalf("timed out after %v waiting for %s", waitFor, cond)
 }
 
+// nextFrames waits until the page has drawn n more animation frames: what
+// it changed before is then laid out and painted, and the tasks it queued
+// before have run.
+func nextFrames(t *testing.T, ctx context.Context, n int) {
+	t.Helper()
+	js := fmt.Sprintf(`new Promise(function (r) { var n = %d; (function f() { if (n-- > 0) requestAnimationFrame(f); else r(true); })(); })`, n)
+	if _, err := chromedp.Run(ctx, chromedp.Evaluate[bool](js, chromedp.EvalAwaitPromise)); err != nil {
+		t.Fatalf("waiting for %d frames: %v", n, err)
+	}
+}
+
+// waitFile waits until the browser has written the file at path and
+// complete says it is whole, and returns its bytes.
+func waitFile(t *testing.T, path string, complete func([]byte) bool) []byte {
+	t.Helper()
+	for deadline := time.Now().Add(waitFor); time.Now().Before(deadline); time.Sleep(20 * time.Millisecond) {
+		if b, err := os.ReadFile(path); err == nil && complete(b) {
+			return b
+		}
+	}
+	entries, _ := os.ReadDir(filepath.Dir(path))
+	t.Fatalf("no complete %s after %v (the folder holds %v)", path, waitFor, entries)
+	return nil
+}
+
+// svgWhole says whether b is a whole SVG file: its root element closed.
+func svgWhole(b []byte) bool { return bytes.HasSuffix(bytes.TrimSpace(b), []byte("</svg>")) }
+
+// pngWhole says whether b is a whole PNG file: it ends with the IEND chunk
+// (its type and CRC, which are always the same).
+func pngWhole(b []byte) bool { return bytes.HasSuffix(b, []byte("IEND\xaeB`\x82")) }
+
 // requests records every URL the page asks for, through the DevTools
-// protocol's network events.
+// protocol's network events, and which requests are still in flight.
 type requests struct {
-	mu   sync.Mutex
-	urls []string
+	mu      sync.Mutex
+	urls    []string
+	pending map[network.RequestID]string // URL by request
 }
 
 func watchRequests(t *testing.T, ctx context.Context) *requests {
 	t.Helper()
-	r := &requests{}
+	r := &requests{pending: map[network.RequestID]string{}}
 	// chromedp enables the Network domain on every tab it attaches.
 	err := chromedp.Listen(ctx, func(ev any) {
-		if e, ok := ev.(*network.EventRequestWillBeSent); ok {
-			r.mu.Lock()
+		r.mu.Lock()
+		defer r.mu.Unlock()
+		switch e := ev.(type) {
+		case *network.EventRequestWillBeSent:
 			r.urls = append(r.urls, e.Request.URL)
-			r.mu.Unlock()
+			// The browser's own fetches (the tab's icon) are recorded but
+			// not waited for: over file:// Chromium does not always report
+			// their end.
+			if e.Type != network.ResourceTypeOther || e.Initiator == nil || e.Initiator.Type != network.InitiatorTypeOther {
+				r.pending[e.RequestID] = e.Request.URL
+			}
+		case *network.EventLoadingFinished:
+			delete(r.pending, e.RequestID)
+		case *network.EventLoadingFailed:
+			delete(r.pending, e.RequestID)
 		}
 	})
 	if err != nil {
 		t.Fatalf("listening to network events: %v", err)
 	}
 	return r
+}
+
+// settle waits until the page of ctx has drawn two more frames (so that
+// what it started has been sent) and every request it sent has finished or
+// failed.
+func (r *requests) settle(t *testing.T, ctx context.Context) {
+	t.Helper()
+	nextFrames(t, ctx, 2)
+	var left []string
+	for deadline := time.Now().Add(waitFor); time.Now().Before(deadline); time.Sleep(15 * time.Millisecond) {
+		r.mu.Lock()
+		left = slices.Sorted(maps.Values(r.pending))
+		r.mu.Unlock()
+		if len(left) == 0 {
+			return
+		}
+	}
+	t.Fatalf("requests still in flight after %v: %.200q", waitFor, left)
 }
 
 // outside returns the requested URLs that are not under base (a folder
@@ -323,9 +397,7 @@ func screenshot(t *testing.T, ctx context.Context, dir, name string, opts ...chr
 	// until it settles.
 	for full, i := h, 0; i < 4; i++ {
 		// Two animation frames: one to lay out at the new size, one to paint.
-		if _, err := chromedp.Run(ctx, chromedp.Evaluate[bool](`new Promise(function (r) { requestAnimationFrame(function () { requestAnimationFrame(function () { r(true); }); }); })`, chromedp.EvalAwaitPromise)); err != nil {
-			t.Fatalf("waiting for a frame: %v", err)
-		}
+		nextFrames(t, ctx, 2)
 		// scrollHeight never falls below the viewport's height, so the
 		// root element's own box measures the page.
 		next := max(h, eval[int64](t, ctx, `Math.ceil(document.documentElement.getBoundingClientRect().height)`))

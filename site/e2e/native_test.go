@@ -532,7 +532,7 @@ func checkLive(t *testing.T, ctx context.Context, id string) {
 	}
 	poll(t, ctx, `document.querySelector(`+jsString(calcSel(id)+` [data-role="results"] > .panel:not([data-e2e-prerendered])`)+`) !== null && `+
 		`document.querySelectorAll('[data-e2e-prerendered]').length === 0 && `+
-		`performance.getEntriesByName('zport-first-live').length === 1`, waitFor)
+		`performance.getEntriesByName('zport-first-live').length === 1`)
 }
 
 // checkAgainstNative compares every value and chart of calculator id with

@@ -57,7 +57,7 @@ func TestNoiseOnStagePage(t *testing.T) {
 		t.Fatalf("the native engine does not refuse temperature 0 by its field: %+v", out.Error)
 	}
 	msgSel := jsString(calcSel(id) + ` .field[data-field="noise.temperature"] [data-role="msg"]`)
-	poll(t, ctx, `document.querySelector(`+msgSel+`).textContent === `+jsString(out.Error.Message), waitFor)
+	poll(t, ctx, `document.querySelector(`+msgSel+`).textContent === `+jsString(out.Error.Message))
 	if got := rms(); got != coldRms {
 		t.Errorf("the rms shows %s after a bad temperature; the last good one (77 K) is %s", got, coldRms)
 	}
@@ -79,7 +79,7 @@ func TestNoiseOnCustomPage(t *testing.T) {
 	edLoad(t, ctx, fileURL("custom", ""))
 	edSetText(t, ctx, "# RC low-pass (invented)\nvsource Vin in gnd 0\nresistor R in out 10k\ncapacitor C out gnd 1n\nport out out gnd\n")
 	edChoose(t, ctx, "gain-source", "Vin")
-	poll(t, ctx, `document.querySelector('[data-circuit-editor] [data-analysis="noise"] [data-quantity="noiseRms"]') !== null`, waitFor)
+	poll(t, ctx, `document.querySelector('[data-circuit-editor] [data-analysis="noise"] [data-quantity="noiseRms"]') !== null`)
 	s := edRead(t, ctx)
 	if s.Reference != "" || s.Output != "out" {
 		t.Fatalf("editor state %+v", s)
@@ -118,7 +118,7 @@ func TestNoiseInSingleFile(t *testing.T) {
 	ctx := start(t)
 	load(t, ctx, singleURL("p=noninverting&noise.band.from=100&noise.band.to=20k"))
 	shownSection(t, ctx, "noninverting")
-	poll(t, ctx, `document.querySelector(`+jsString(calcSel("noninverting")+` [data-role="results"] > .panel:not([data-e2e-prerendered])`)+`) !== null`, waitFor)
+	poll(t, ctx, `document.querySelector(`+jsString(calcSel("noninverting")+` [data-role="results"] > .panel:not([data-e2e-prerendered])`)+`) !== null`)
 	resp := checkAgainstNative(t, ctx, "noninverting")
 	n := api.Noise.Result(resp)
 	if n == nil || n.Band.From != 100 || n.Band.To != 20e3 || n.InputUnit != "V/√Hz" {

@@ -13,24 +13,26 @@ import (
 // Every topology page of the catalog, opened from file://, goes live and
 // then shows exactly what the native engine computes for its defaults.
 func TestTopologyPagesFromFile(t *testing.T) {
-	ctx := start(t)
-	checkTopologyPages(t, ctx, func(id string) string { return fileURL(id, "") })
+	t.Parallel()
+	checkTopologyPages(t, func(id string) string { return fileURL(id, "") })
 }
 
 // The same pages served over http under a deep sub-path, as from a wiki.
 func TestTopologyPagesUnderSubpath(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	base := serveSubpath(t, "/wiki/a/b/zport/")
-	checkTopologyPages(t, ctx, func(id string) string { return base + id + ".html" })
+	checkTopologyPages(t, func(id string) string { return base + id + ".html" })
 }
 
-func checkTopologyPages(t *testing.T, ctx context.Context, url func(id string) string) {
+// checkTopologyPages checks every stage's page, each in a tab of its own.
+func checkTopologyPages(t *testing.T, url func(id string) string) {
 	cat := api.Catalog()
 	if len(cat) < 10 {
 		t.Fatalf("the catalog has %d stages, want the ten of the issue at least", len(cat))
 	}
 	for _, e := range cat {
 		t.Run(e.ID, func(t *testing.T) {
+			ctx := start(t)
 			load(t, ctx, url(e.ID))
 			checkLive(t, ctx, e.ID)
 			// The inputs show the catalog's defaults, so the comparison

@@ -302,7 +302,7 @@ func TestResponseSection(t *testing.T) {
 	// Too few points: named beside the input; the last good result stays.
 	typeInto(t, ctx, id, "response.points", "5")
 	msgSel := jsString(calcSel(id) + ` .field[data-field="response.points"] [data-role="msg"]`)
-	poll(t, ctx, `/10 to 20000/.test(document.querySelector(`+msgSel+`).textContent)`, waitFor)
+	poll(t, ctx, `/10 to 20000/.test(document.querySelector(`+msgSel+`).textContent)`)
 	if got := shownValues(t, ctx, id); !sameShown(got, good) {
 		t.Error("the values changed although the setting is bad")
 	}

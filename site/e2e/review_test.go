@@ -14,12 +14,12 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/chromedp/cdproto/browser"
 	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/chromedp"
 
+	"zport/engine/circuit"
 	zbrowser "zport/site/browser"
 	"zport/site/examples"
 )
@@ -43,39 +43,21 @@ func reviewOpen(t *testing.T, ctx context.Context, page string) {
 	checkLive(t, ctx, page)
 }
 
-// reviewWaitFile waits until path exists with a size that no longer
-// changes, and returns its bytes.
-func reviewWaitFile(t *testing.T, path string) []byte {
-	t.Helper()
-	deadline := time.Now().Add(waitFor)
-	last := -1
-	for {
-		if b, err := os.ReadFile(path); err == nil && len(b) > 0 && len(b) == last {
-			return b
-		} else if err == nil {
-			last = len(b)
-		}
-		if time.Now().After(deadline) {
-			entries, _ := os.ReadDir(filepath.Dir(path))
-			t.Fatalf("no complete %s (the folder holds %v)", path, entries)
-		}
-		time.Sleep(100 * time.Millisecond)
-	}
-}
-
 // Every chart's "Save as SVG" and "Save as PNG" give files: an SVG that is
 // well-formed XML of the chart's size with its title, axis titles and
 // legend as text, and a PNG of twice the chart's size that is not blank.
 // On a stage page and on the custom page, from file://.
 func TestChartImages(t *testing.T) {
-	ctx := start(t)
-	out := t.TempDir()
-	if _, err := chromedp.Call(ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{
-		Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out}); err != nil {
-		t.Fatal(err)
-	}
+	t.Parallel()
 	for _, pg := range reviewPages {
 		t.Run(pg.page, func(t *testing.T) {
+			ctx := start(t)
+			out := t.TempDir()
+			if _, err := chromedp.Call(ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{
+				Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: out,
+				BrowserContextID: chromedp.FromContext(ctx).BrowserContextID}); err != nil {
+				t.Fatal(err)
+			}
 			reviewOpen(t, ctx, pg.page)
 			// The loop chart (its title names T), and its size.
 			info := eval[[]string](t, ctx, `(function () {
@@ -97,10 +79,10 @@ func TestChartImages(t *testing.T) {
 				name = strings.ReplaceAll(name, "--", "-")
 			}
 			pinClick(t, ctx, `[data-e2e-chart]`, "save-svg")
-			svg := reviewWaitFile(t, filepath.Join(out, name+".svg"))
+			svg := waitFile(t, filepath.Join(out, name+".svg"), svgWhole)
 			checkChartSVG(t, svg, w, h, info[2])
 			pinClick(t, ctx, `[data-e2e-chart]`, "save-png")
-			pic := reviewWaitFile(t, filepath.Join(out, name+".png"))
+			pic := waitFile(t, filepath.Join(out, name+".png"), pngWhole)
 			img, err := png.Decode(bytes.NewReader(pic))
 			if err != nil {
 				t.Fatalf("the PNG does not decode: %v", err)
@@ -109,10 +91,8 @@ func TestChartImages(t *testing.T) {
 				t.Errorf("PNG is %d×%d, want twice the chart's %d×%d", b.Dx(), b.Dy(), w, h)
 			}
 			checkNotBlank(t, name+".png", pic, 2*w, 2*h)
-			poll(t, ctx, `/saved as/.test(document.querySelector('[data-e2e-chart] [data-role="chart-msg"]').textContent)`, waitFor)
+			poll(t, ctx, `/saved as/.test(document.querySelector('[data-e2e-chart] [data-role="chart-msg"]').textContent)`)
 			checkHealthy(t, ctx)
-			os.Remove(filepath.Join(out, name+".svg"))
-			os.Remove(filepath.Join(out, name+".png"))
 		})
 	}
 }
@@ -258,11 +238,11 @@ func TestPrintReport(t *testing.T) {
 	pinClick(t, ctx, root, "pin")
 	pinCount(t, ctx, root, 1)
 	typeInto(t, ctx, id, "R2", "100k")
-	poll(t, ctx, `location.hash.indexOf('R2=100k') > 0`, waitFor)
+	poll(t, ctx, `location.hash.indexOf('R2=100k') > 0`)
 	pinClick(t, ctx, root, "pin")
 	pinCount(t, ctx, root, 2)
 	typeInto(t, ctx, id, "R2", "22k")
-	poll(t, ctx, `location.hash.indexOf('R2=22k') > 0 && location.hash.indexOf('pin2.R2=100k') > 0`, waitFor)
+	poll(t, ctx, `location.hash.indexOf('R2=22k') > 0 && location.hash.indexOf('pin2.R2=100k') > 0`)
 	pinCount(t, ctx, root, 2)
 	text, _ = pdfText(t, printPDF(t, ctx), dir, "print-"+id+"-pins")
 	flat = strings.Join(strings.Fields(text), " ")
@@ -279,7 +259,7 @@ func TestPrintReport(t *testing.T) {
 	// The custom page prints its whole circuit text, not the lines its
 	// text box shows.
 	edLoad(t, ctx, fileURL("custom", ""))
-	edSetText(t, ctx, edLadder(40))
+	edSetText(t, ctx, circuit.Ladder(40))
 	text, _ = pdfText(t, printPDF(t, ctx), dir, "print-custom")
 	flat = strings.Join(strings.Fields(text), " ")
 	for _, want := range []string{"resistor R1 l1 l2 100", "capacitor C36 l37 gnd 1p", "resistor Rf l37 l0 1", "port out out gnd", "Port impedances"} {
@@ -304,13 +284,14 @@ func TestPrintReport(t *testing.T) {
 // width, and the page does not scroll sideways. On a stage page and the
 // custom page, and with pins (their legend entries too).
 func TestPhoneCharts(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	opts := []chromedp.EmulateViewportOption{chromedp.EmulateScale(1), chromedp.EmulateMobile}
-	if err := chromedp.Do(ctx, chromedp.EmulateViewport(390, 844, opts...)); err != nil {
-		t.Fatal(err)
-	}
 	for _, pg := range reviewPages {
 		t.Run(pg.page, func(t *testing.T) {
+			ctx := start(t)
+			if err := chromedp.Do(ctx, chromedp.EmulateViewport(390, 844, opts...)); err != nil {
+				t.Fatal(err)
+			}
 			reviewOpen(t, ctx, pg.page)
 			if pg.page != "custom" {
 				pinClick(t, ctx, pg.root, "pin")
@@ -320,15 +301,15 @@ func TestPhoneCharts(t *testing.T) {
 			poll(t, ctx, `(function () {
   var s = document.querySelector(`+jsString(pg.root+` [data-role="results"] svg.zplot[data-freq]`)+`);
   return !!s && Number(s.getAttribute('viewBox').split(' ')[2]) < 400;
-})()`, waitFor)
+})()`)
 			if pg.page == "inverting" {
 				// The design aids' charts: the sensitivities' bars, the
 				// tolerance study's histograms.
 				aidOpen(t, ctx)
-				poll(t, ctx, `document.querySelectorAll(`+jsString(aidCalc+` figure.bars svg.zplot`)+`).length > 0`, waitFor)
+				poll(t, ctx, `document.querySelectorAll(`+jsString(aidCalc+` figure.bars svg.zplot`)+`).length > 0`)
 				aidSet(t, ctx, `[data-param="tolerance.trials"]`, "200")
 				aidClick(t, ctx, "run")
-				aidWaitState(t, ctx, "done", 60*time.Second)
+				aidWaitState(t, ctx, "done")
 			}
 			bad := eval[[]string](t, ctx, `(function () {
   var out = [];

@@ -6,6 +6,7 @@ import (
 	"bytes"
 	"context"
 	"image"
+	"image/draw"
 	"image/png"
 	"math"
 	"os"
@@ -20,9 +21,12 @@ import (
 // ZPORT_SHOTS when set (kept), else a temporary one. Each must be a PNG of
 // the page's width that is not blank, and no page may scroll sideways as a
 // whole on the phone (wide tables and schematics scroll inside their own
-// boxes).
+// boxes). Each page is loaded once, in a tab of its own, and shown in the
+// three views in turn (the emulated screen and colour scheme change under
+// the page, which lays itself out again as a resized window would).
 func TestScreenshotsOfEveryPage(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
+	names := pages(t)
 	dir := os.Getenv("ZPORT_SHOTS")
 	if dir == "" {
 		dir = t.TempDir()
@@ -39,40 +43,41 @@ func TestScreenshotsOfEveryPage(t *testing.T) {
 		{"1280x800-dark", 1280, 800, false, true},
 		{"390x844", 390, 844, true, false},
 	}
-	for _, v := range views {
-		t.Run(v.name, func(t *testing.T) {
-			opts := []chromedp.EmulateViewportOption{chromedp.EmulateScale(1)}
-			if v.mobile {
-				opts = append(opts, chromedp.EmulateMobile)
+	for _, name := range names {
+		t.Run(name, func(t *testing.T) {
+			ctx := start(t)
+			load(t, ctx, fileURL(name, ""))
+			if eval[bool](t, ctx, `!!document.querySelector('[data-calculator]')`) {
+				poll(t, ctx, `performance.getEntriesByName('zport-first-live').length === 1`)
 			}
-			scheme := "light"
-			if v.dark {
-				scheme = "dark"
-			}
-			err := chromedp.Do(ctx, chromedp.EmulateViewport(v.width, v.height, opts...), chromedp.Func(func(ctx context.Context, t *chromedp.Target) error {
-				_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{
-					Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: scheme}},
-				})
-				return err
-			}))
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, name := range pages(t) {
-				loadFresh(t, ctx, fileURL(name, ""))
-				if eval[bool](t, ctx, `!!document.querySelector('[data-calculator]')`) {
-					poll(t, ctx, `performance.getEntriesByName('zport-first-live').length === 1`, waitFor)
+			for _, v := range views {
+				opts := []chromedp.EmulateViewportOption{chromedp.EmulateScale(1)}
+				if v.mobile {
+					opts = append(opts, chromedp.EmulateMobile)
+				}
+				scheme := "light"
+				if v.dark {
+					scheme = "dark"
+				}
+				err := chromedp.Do(ctx, chromedp.EmulateViewport(v.width, v.height, opts...), chromedp.Func(func(ctx context.Context, t *chromedp.Target) error {
+					_, err := chromedp.Call(ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{
+						Features: []*emulation.MediaFeature{{Name: "prefers-color-scheme", Value: scheme}},
+					})
+					return err
+				}))
+				if err != nil {
+					t.Fatal(err)
 				}
 				if got := eval[bool](t, ctx, `matchMedia('(prefers-color-scheme: dark)').matches`); got != v.dark {
-					t.Fatalf("the page sees prefers-color-scheme dark = %v", got)
+					t.Fatalf("%s: the page sees prefers-color-scheme dark = %v", v.name, got)
 				}
 				if w := eval[int](t, ctx, `document.documentElement.scrollWidth`); w > int(v.width) {
 					t.Errorf("%s at %s: the page is %d px wide, wider than the %d px window", name, v.name, w, v.width)
 				}
 				buf := screenshot(t, ctx, dir, name+"-"+v.name, opts...)
 				checkNotBlank(t, name+"-"+v.name, buf, int(v.width), int(v.height))
-				checkHealthy(t, ctx)
 			}
+			checkHealthy(t, ctx)
 		})
 	}
 }
@@ -99,22 +104,40 @@ func checkNotBlank(t *testing.T, name string, buf []byte, width, height int) {
 }
 
 // imageStats counts distinct colours and gives the mean and standard
-// deviation of the luminance (0–255) over every pixel.
+// deviation of the luminance (0–255) over every pixel. Screenshots are
+// several megapixels: the pixels are read from the image's own bytes, and
+// the colours seen are bits in a set of all 2²⁴.
 func imageStats(img image.Image) (colours int, mean, sd float64) {
 	b := img.Bounds()
-	seen := map[uint32]bool{}
+	var pix []uint8
+	stride := 0
+	switch m := img.(type) {
+	case *image.NRGBA:
+		pix, stride = m.Pix, m.Stride
+	case *image.RGBA:
+		pix, stride = m.Pix, m.Stride
+	default: // not what Chromium writes; convert
+		c := image.NewNRGBA(b)
+		draw.Draw(c, b, img, b.Min, draw.Src)
+		pix, stride = c.Pix, c.Stride
+	}
+	seen := make([]uint64, 1<<24/64)
 	var sum, sum2 float64
-	n := 0
-	for y := b.Min.Y; y < b.Max.Y; y++ {
-		for x := b.Min.X; x < b.Max.X; x++ {
-			r, g, bl, _ := img.At(x, y).RGBA()
-			seen[(r>>8)<<16|(g>>8)<<8|bl>>8] = true
-			l := (0.2126*float64(r) + 0.7152*float64(g) + 0.0722*float64(bl)) / 257
+	for y := 0; y < b.Dy(); y++ {
+		row := pix[y*stride : y*stride+4*b.Dx()]
+		for x := 0; x < len(row); x += 4 {
+			r, g, bl := row[x], row[x+1], row[x+2]
+			c := uint32(r)<<16 | uint32(g)<<8 | uint32(bl)
+			if seen[c/64]&(1<<(c%64)) == 0 {
+				seen[c/64] |= 1 << (c % 64)
+				colours++
+			}
+			l := 0.2126*float64(r) + 0.7152*float64(g) + 0.0722*float64(bl)
 			sum += l
 			sum2 += l * l
-			n++
 		}
 	}
-	mean = sum / float64(n)
-	return len(seen), mean, math.Sqrt(math.Max(0, sum2/float64(n)-mean*mean))
+	n := float64(b.Dx() * b.Dy())
+	mean = sum / n
+	return colours, mean, math.Sqrt(math.Max(0, sum2/n-mean*mean))
 }

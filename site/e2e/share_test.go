@@ -3,8 +3,11 @@
 package e2e
 
 import (
+	"bytes"
 	"context"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -49,7 +52,7 @@ func TestShareLinkRoundTrips(t *testing.T) {
 	if err := chromedp.Do(ctx, chromedp.Click(chromedp.CSS(calcSel(id)+` [data-action="share"]`))); err != nil {
 		t.Fatal(err)
 	}
-	poll(t, ctx, `document.querySelector(`+jsString(calcSel(id)+` [data-role="action-msg"]`)+`).textContent !== ''`, waitFor)
+	poll(t, ctx, `document.querySelector(`+jsString(calcSel(id)+` [data-role="action-msg"]`)+`).textContent !== ''`)
 	if got := eval[string](t, ctx, `location.href`); got != link {
 		t.Errorf("clicking the share link moved the page to %q", got)
 	}
@@ -84,7 +87,7 @@ func TestShareLinkRoundTrips(t *testing.T) {
 	f.Frequency = "3k3"
 	next := "#" + f.State(e)
 	eval[bool](t, tab, `location.hash = `+jsString(next)+`, true`)
-	poll(t, tab, `document.querySelector(`+jsString(inputSel(id, "R1"))+`).value === '22k' && location.hash === `+jsString(next), waitFor)
+	poll(t, tab, `document.querySelector(`+jsString(inputSel(id, "R1"))+`).value === '22k' && location.hash === `+jsString(next))
 	if got := inputs(t, tab, id)["frequency"]; got != "3k3" {
 		t.Errorf("frequency %q after following the link, want 3k3", got)
 	}
@@ -134,21 +137,26 @@ func hostileFragments() []struct{ name, raw string } {
 // of it becomes markup, the page shows the rest of the link with defaults
 // in place of what was refused, stays alive, and the address drops the
 // hostile text.
+//
+// Each fragment is opened in a tab of its own, side by side.
 func TestHostileFragmentIsRefused(t *testing.T) {
-	ctx := start(t)
+	t.Parallel()
 	const id = "inverting"
 	e, _ := api.LookupEntry(id)
-	load(t, ctx, fileURL(id, ""))
-	scripts := eval[int](t, ctx, `document.scripts.length`)
-
-	check := func(t *testing.T, frag string) {
+	check := func(t *testing.T, ctx context.Context, frag string) {
 		t.Helper()
+		// The page's own script elements, as its HTML holds them.
+		html, err := os.ReadFile(filepath.Join(distDir, id+".html"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		scripts := bytes.Count(html, []byte("<script"))
 		msg := calc.Compute(calc.Form{Topology: id, ID: "calc-" + id, Fragment: &frag})
 		if msg.Error != nil || len(msg.Refused) == 0 {
 			t.Fatalf("the native engine refuses nothing of the fragment %.80q: %+v", frag, msg.Error)
 		}
 		want := msg.Notice
-		poll(t, ctx, `(function () { var n = document.querySelector('[data-role="notice"]'); return !n.hidden && n.offsetHeight > 0 && n.textContent === `+jsString(want)+`; })()`, waitFor)
+		poll(t, ctx, `(function () { var n = document.querySelector('[data-role="notice"]'); return !n.hidden && n.offsetHeight > 0 && n.textContent === `+jsString(want)+`; })()`)
 		if got := inputs(t, ctx, id); !sameMap(got, formInputs(*msg.Form)) {
 			t.Errorf("inputs after a refused link: %v, want %v", got, formInputs(*msg.Form))
 		}
@@ -160,7 +168,7 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 			t.Errorf("%d embedded elements appeared", n)
 		}
 		if n := eval[int](t, ctx, `document.scripts.length`); n != scripts {
-			t.Errorf("%d scripts on the page, %d before", n, scripts)
+			t.Errorf("%d scripts on the page, %d in its HTML", n, scripts)
 		}
 		if got := eval[string](t, ctx, `document.documentElement.dataset.engine`); got != "ready" {
 			t.Errorf("engine %q", got)
@@ -170,7 +178,8 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 
 	for _, h := range hostileFragments() {
 		t.Run(h.name, func(t *testing.T) {
-			loadFresh(t, ctx, fileURL(id, "")+"#"+h.raw)
+			ctx := start(t)
+			load(t, ctx, fileURL(id, "")+"#"+h.raw)
 			checkLive(t, ctx, id)
 			// The browser escapes some characters of a fragment; the page
 			// reads what the address holds, and so does the check.
@@ -178,22 +187,24 @@ func TestHostileFragmentIsRefused(t *testing.T) {
 			if frag == "" {
 				t.Fatal("the page was opened without the fragment")
 			}
-			check(t, frag)
+			check(t, ctx, frag)
 		})
 	}
 
 	// The same through hashchange on a page that is already live.
 	t.Run("hashchange", func(t *testing.T) {
-		loadFresh(t, ctx, fileURL(id, ""))
+		ctx := start(t)
+		load(t, ctx, fileURL(id, ""))
 		checkLive(t, ctx, id)
 		raw := `R2=<img src=x onerror=alert(2)>`
 		frag := eval[string](t, ctx, `location.hash = `+jsString(raw)+`, location.hash.slice(1)`)
-		check(t, frag)
+		check(t, ctx, frag)
 	})
 
 	// A fragment without "=" is an in-page anchor: left alone, no notice.
 	t.Run("anchor", func(t *testing.T) {
-		loadFresh(t, ctx, fileURL(id, "")+"#%E0%A4%A")
+		ctx := start(t)
+		load(t, ctx, fileURL(id, "")+"#%E0%A4%A")
 		checkLive(t, ctx, id)
 		if eval[bool](t, ctx, `!document.querySelector('[data-role="notice"]').hidden`) {
 			t.Errorf("notice for an anchor: %q", eval[string](t, ctx, `document.querySelector('[data-role="notice"]').textContent`))

@@ -8,7 +8,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-	"time"
 
 	"github.com/chromedp/chromedp"
 
@@ -34,7 +33,7 @@ func shownSection(t *testing.T, ctx context.Context, name string) {
   var shown = document.querySelectorAll('section.page:not([hidden])');
   return shown.length === 1 && shown[0].id === `+jsString("page-"+name)+` && shown[0].offsetHeight > 0 &&
     document.title === shown[0].querySelector('h1').textContent + ' · zport';
-})()`, waitFor)
+})()`)
 }
 
 // The single-file export works from file://: the engine starts, every
@@ -118,7 +117,7 @@ func TestSingleFileExport(t *testing.T) {
 	// A hostile one is refused there too.
 	loadFresh(t, ctx, singleURL("p=inverting&R1=<img src=x onerror=alert(1)>"))
 	shownSection(t, ctx, "inverting")
-	poll(t, ctx, `(function () { var n = document.querySelector('#page-inverting [data-role="notice"]'); return !n.hidden && /^Not used from this link: R1 = /.test(n.textContent); })()`, waitFor)
+	poll(t, ctx, `(function () { var n = document.querySelector('#page-inverting [data-role="notice"]'); return !n.hidden && /^Not used from this link: R1 = /.test(n.textContent); })()`)
 	if got := inputs(t, ctx, "inverting"); !sameMap(got, defaultInputs(mustEntry(t, "inverting"))) {
 		t.Errorf("inputs after a refused link: %v", got)
 	}
@@ -128,7 +127,7 @@ func TestSingleFileExport(t *testing.T) {
 	checkAgainstNative(t, ctx, "inverting")
 	checkHealthy(t, ctx)
 
-	time.Sleep(100 * time.Millisecond)
+	reqs.settle(t, ctx)
 	if out := reqs.outside(singleURL("")); len(out) > 0 {
 		t.Errorf("the single file asked for other resources:\n%s", strings.Join(out, "\n"))
 	}

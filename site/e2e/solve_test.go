@@ -10,7 +10,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"time"
 
 	"zport/engine/api"
 )
@@ -27,7 +26,7 @@ import (
 func solveWait(t *testing.T, ctx context.Context, root, state string) {
 	t.Helper()
 	d := `document.querySelector(` + jsString(root+" details.solve") + `)`
-	poll(t, ctx, `!!`+d+` && `+d+`.getAttribute('data-solve-state') === `+jsString(state), 60*time.Second)
+	poll(t, ctx, `!!`+d+` && `+d+`.getAttribute('data-solve-state') === `+jsString(state))
 }
 
 // solveNumbers reads the numbers of the solve panel under root: by row
@@ -117,7 +116,7 @@ func TestSolveStagePage(t *testing.T) {
 	if v := eval[string](t, ctx, `document.querySelector(`+jsString(root+` input[name="Cf"]`)+`).value`); v != text {
 		t.Errorf("Cf input %q, applied %q", v, text)
 	}
-	poll(t, ctx, `(function () { var e = document.querySelector(`+jsString(root+` [data-role="results"] [data-quantity="pm"]`)+`); return !!e && Math.abs(Number(e.dataset.value) - 45) < 1e-5; })()`, waitFor)
+	poll(t, ctx, `(function () { var e = document.querySelector(`+jsString(root+` [data-role="results"] [data-quantity="pm"]`)+`); return !!e && Math.abs(Number(e.dataset.value) - 45) < 1e-5; })()`)
 	// A standard value applied: the margin the page shows is the one the
 	// row promised.
 	below := native.Standard[0].Below
@@ -125,17 +124,17 @@ func TestSolveStagePage(t *testing.T) {
 	if text != "470f" {
 		t.Errorf("the E12 value below applies %q", text)
 	}
-	poll(t, ctx, `(function () { var e = document.querySelector(`+jsString(root+` [data-role="results"] [data-quantity="pm"]`)+`); return !!e && Math.abs(Number(e.dataset.value) - `+strconv.FormatFloat(*below.Achieved, 'g', -1, 64)+`) < 1e-6; })()`, waitFor)
+	poll(t, ctx, `(function () { var e = document.querySelector(`+jsString(root+` [data-role="results"] [data-quantity="pm"]`)+`); return !!e && Math.abs(Number(e.dataset.value) - `+strconv.FormatFloat(*below.Achieved, 'g', -1, 64)+`) < 1e-6; })()`)
 	if eval[bool](t, ctx, `document.querySelector(`+jsString(root+` [data-role="solve-results"]`)+`).classList.contains('is-stale')`) {
 		t.Error("applying a value the results offered marked them out of date")
 	}
 	// Another edit makes them out of date.
 	eval[bool](t, ctx, `(() => { const i = document.querySelector(`+jsString(root+` input[name="Rf"]`)+`); i.value = '2M'; i.dispatchEvent(new Event('input', {bubbles: true})); return true; })()`)
-	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-role="solve-results"]`)+`).classList.contains('is-stale')`, waitFor)
+	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-role="solve-results"]`)+`).classList.contains('is-stale')`)
 
 	// The share link carries the solve's settings and the part applied;
 	// opened in another tab, it gives the same answer again.
-	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-action="share"]`)+`).getAttribute('href').includes('Rf=2M')`, waitFor)
+	poll(t, ctx, `document.querySelector(`+jsString(root+` [data-action="share"]`)+`).getAttribute('href').includes('Rf=2M')`)
 	href := eval[string](t, ctx, `document.querySelector(`+jsString(root+` [data-action="share"]`)+`).getAttribute('href')`)
 	for _, want := range []string{"Cf=470f", "solve.part=Cf", "solve.quantity=pm", "solve.value=45"} {
 		if !strings.Contains(href, want) {
@@ -180,16 +179,16 @@ func TestSolveCustomPage(t *testing.T) {
 
 	applied := solveApply(t, ctx, root, "solution")
 	want := strings.Replace(text, "1pF ", applied+"F ", 1)
-	poll(t, ctx, `document.querySelector('[data-circuit-editor] textarea').value === `+jsString(want), waitFor)
-	poll(t, ctx, `(function () { var e = document.querySelector('[data-circuit-editor] [data-role="results"] [data-quantity="pm"]'); return !!e && Math.abs(Number(e.dataset.value) - 60) < 1e-5; })()`, waitFor)
+	poll(t, ctx, `document.querySelector('[data-circuit-editor] textarea').value === `+jsString(want))
+	poll(t, ctx, `(function () { var e = document.querySelector('[data-circuit-editor] [data-role="results"] [data-quantity="pm"]'); return !!e && Math.abs(Number(e.dataset.value) - 60) < 1e-5; })()`)
 	// A standard value too, into the same token.
 	applied = solveApply(t, ctx, root, "above")
 	if applied != "2.2p" {
 		t.Errorf("the E12 value above 2.10 pF applies %q", applied)
 	}
 	want = strings.Replace(text, "1pF ", "2.2pF ", 1)
-	poll(t, ctx, `document.querySelector('[data-circuit-editor] textarea').value === `+jsString(want), waitFor)
-	poll(t, ctx, `location.hash.includes('solve.part=Cf') && location.hash.includes('solve.value=60')`, waitFor)
+	poll(t, ctx, `document.querySelector('[data-circuit-editor] textarea').value === `+jsString(want))
+	poll(t, ctx, `location.hash.includes('solve.part=Cf') && location.hash.includes('solve.value=60')`)
 	checkHealthy(t, ctx)
 }
 
@@ -210,7 +209,7 @@ func TestSolveSingleFile(t *testing.T) {
 func TestSolveBadLink(t *testing.T) {
 	ctx := start(t)
 	load(t, ctx, fileURL("transimpedance", "Cf=2p&solve.part=Cf&solve.quantity=pm&solve.value=400"))
-	poll(t, ctx, `(function () { var n = document.querySelector('#calc-transimpedance [data-role="notice"]'); return !n.hidden && n.textContent.includes('solve.value = "400"') && n.textContent.includes('a phase margin lies from'); })()`, waitFor)
+	poll(t, ctx, `(function () { var n = document.querySelector('#calc-transimpedance [data-role="notice"]'); return !n.hidden && n.textContent.includes('solve.value = "400"') && n.textContent.includes('a phase margin lies from'); })()`)
 	if got := eval[string](t, ctx, `document.querySelector('`+inputSel("transimpedance", "Cf")+`').value`); got != "2p" {
 		t.Errorf("Cf = %q after the link, want its 2p", got)
 	}

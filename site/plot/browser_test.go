@@ -62,13 +62,11 @@ func servePage(t *testing.T, body, css string) *httptest.Server {
 }
 
 // browser starts Chromium the project's way (package zport/site/browser:
-// its flags, and a loud skip or, with ZPORT_BROWSER=required, a failure
-// when it is missing), with the 760×900 viewport these tests measure in.
+// its flags, a skip in -short mode, and a loud skip or, with
+// ZPORT_BROWSER=required, a failure when it is missing), with the 760×900
+// viewport these tests measure in.
 func browser(t *testing.T) context.Context {
 	t.Helper()
-	if testing.Short() {
-		t.Skip("browser test skipped in -short mode")
-	}
 	ctx := zbrowser.ForTest(t)
 	if err := chromedp.Do(ctx, chromedp.EmulateViewport(760, 900)); err != nil {
 		t.Fatal(err)

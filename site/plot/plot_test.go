@@ -728,7 +728,8 @@ func TestDeterministic(t *testing.T) {
 		t.Fatalf("AppendSVG does not append")
 	}
 	h := sampleHistogram()
-	if h.SVG() != h.SVG() {
+	hist := h.SVG()
+	if h.SVG() != hist || sampleHistogram().SVG() != hist {
 		t.Fatal("two renderings of the same histogram differ")
 	}
 }

@@ -77,11 +77,11 @@ func recomputes(u string, rounds int) error {
 	}
 	var ratio, total, call []float64
 	for i := 0; i < rounds+3; i++ {
-		t, c, err := edit(ctx, i)
+		td, cd, err := zbrowser.Recompute(ctx, i)
 		if err != nil {
 			return fmt.Errorf("inverting: edit %d: %w", i, err)
 		}
-		if i >= 3 { // the first edits warm the engine's code up
+		if t, c := float64(td), float64(cd); i >= 3 { // the first edits warm the engine's code up
 			ratio, total, call = append(ratio, t/c), append(total, t), append(call, c)
 		}
 	}
@@ -191,35 +191,6 @@ func navigate(ctx context.Context, u, cond string, wait time.Duration) error {
 	}
 	time.Sleep(wait)
 	return nil
-}
-
-// edit changes the spot frequency of the page's calculator and returns the
-// recompute it caused ("zport-recompute": from the edit until the new
-// panel is laid out) and its engine call ("zport-engine-call"), in
-// nanoseconds.
-func edit(ctx context.Context, i int) (total, call float64, err error) {
-	tctx, cancel := context.WithTimeout(ctx, 30*time.Second)
-	defer cancel()
-	v := []string{"1.1k", "900"}[i%2]
-	n, err := chromedp.Run(tctx, chromedp.Evaluate[int](`(() => {
-		const n = performance.getEntriesByName('zport-recompute').length;
-		const input = document.querySelector('[data-calculator] input[name="frequency"]');
-		input.value = '`+v+`';
-		input.dispatchEvent(new Event('input', {bubbles: true}));
-		return n;
-	})()`))
-	if err != nil {
-		return 0, 0, err
-	}
-	d, err := chromedp.Run(tctx, chromedp.Poll[[]float64](fmt.Sprintf(`(() => {
-		const e = performance.getEntriesByName('zport-recompute');
-		const c = performance.getEntriesByName('zport-engine-call');
-		return e.length > %d ? [e[e.length - 1].duration, c[c.length - 1].duration] : null;
-	})()`, n), chromedp.WithPollingInterval(2*time.Millisecond)))
-	if err != nil {
-		return 0, 0, err
-	}
-	return d[0] * 1e6, d[1] * 1e6, nil
 }
 
 // firstEdit opens u in a fresh browser, types a digit into the spot

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math/cmplx"
 	"runtime"
-	"strings"
 	"syscall"
 	"time"
 	"unsafe"
@@ -57,22 +56,10 @@ func inverting() (*api.Prepared, api.Request, error) {
 	return p, req, err
 }
 
-// ladderText is an n-node RC ladder (n ≥ 4) driven by an opamp follower
-// whose feedback comes from the ladder's far end (invented test circuit).
-func ladderText(n int) string {
-	var s strings.Builder
-	s.WriteString("vsource Vin src gnd 1\nopamp U1 src l0 out a0=100k gbw=1M ro=50\nresistor Rd out l1 10\n")
-	for i := 1; i < n-3; i++ {
-		fmt.Fprintf(&s, "resistor R%d l%d l%d 100\ncapacitor C%d l%d gnd 1p\n", i, i, i+1, i, i+1)
-	}
-	fmt.Fprintf(&s, "resistor Rf l%d l0 1\n", n-3)
-	return s.String()
-}
-
 // ladder prepares an n-node ladder with an input and an output port and
 // the gain, over points frequencies from 10 Hz to 100 MHz.
 func ladder(n, points int) (*sweepJob, error) {
-	c, err := circuit.Parse(ladderText(n))
+	c, err := circuit.Parse(circuit.Ladder(n))
 	if err != nil {
 		return nil, err
 	}

@@ -1,3 +1,17 @@
+// Command bench is zport's browser benchmark: it builds the site into a
+// temporary folder and measures it in Debian's Chromium from file://,
+// printing medians.
+//
+//	go run ./build/bench [-runs 9] [-page inverting] [-only custom]
+//
+// It measures navigation to the first live result, cold (a fresh browser
+// and profile each run) and warm (the same browser navigating again); one
+// recompute and redraw per topology at its default sweep; each topology's
+// design aids (aids.go); the custom-circuit page (custom.go; -only custom
+// runs that part alone); and the engine's size as the page loads it.
+//
+// It is a command of its own, apart from ./build, so that the site's
+// builder does not carry the browser driver (chromedp) it needs.
 package main
 
 import (
@@ -14,6 +28,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"zport/engine/api"
+	"zport/site"
 	zbrowser "zport/site/browser"
 )
 
@@ -50,37 +65,6 @@ func firstLive(ctx context.Context, u string) (load, error) {
 
 func dur(ms float64) time.Duration { return time.Duration(ms * float64(time.Millisecond)) }
 
-// recompute edits the spot frequency of the page's calculator and returns
-// the duration of the recompute it caused (the "zport-recompute" measure:
-// the engine's call, rendering the panel with its charts, inserting it and
-// laying it out) and of the engine's call within it ("zport-engine-call":
-// analysis and rendering in WebAssembly, and the JSON both ways).
-func recompute(ctx context.Context, i int) (total, call time.Duration, err error) {
-	tctx, cancel := context.WithTimeout(ctx, 10*time.Second)
-	defer cancel()
-	// Alternate between two nearby frequencies so every edit changes the result.
-	v := []string{"1.1k", "900"}[i%2]
-	n, err := chromedp.Run(tctx, chromedp.Evaluate[int](`(() => {
-		const n = performance.getEntriesByName('zport-recompute').length;
-		const input = document.querySelector('[data-calculator] input[name="frequency"]');
-		input.value = `+"`"+v+"`"+`;
-		input.dispatchEvent(new Event('input', {bubbles: true}));
-		return n;
-	})()`))
-	if err != nil {
-		return 0, 0, err
-	}
-	ms, err := chromedp.Run(tctx, chromedp.Poll[[]float64](fmt.Sprintf(`(() => {
-		const e = performance.getEntriesByName('zport-recompute');
-		const c = performance.getEntriesByName('zport-engine-call');
-		return e.length > %d ? [e[e.length - 1].duration, c[c.length - 1].duration] : null;
-	})()`, n), chromedp.WithPollingInterval(2*time.Millisecond)))
-	if err != nil {
-		return 0, 0, err
-	}
-	return dur(ms[0]), dur(ms[1]), nil
-}
-
 func median(d []time.Duration) time.Duration {
 	s := slices.Clone(d)
 	slices.Sort(s)
@@ -96,14 +80,14 @@ func median(d []time.Duration) time.Duration {
 
 func ms(d time.Duration) string { return fmt.Sprintf("%.1f ms", float64(d)/float64(time.Millisecond)) }
 
-// runBench builds the site and measures it in Chromium from file://,
-// printing medians: navigation to the first live result, cold (a fresh
-// browser and profile each run) and warm (the same browser navigating
-// again); one recompute and redraw per topology at its default sweep; each
-// topology's design aids (bench_aids.go); the custom-circuit page
-// (bench_custom.go; -only custom runs that part alone); and the engine's
-// size as the page loads it.
-func runBench(args []string) error {
+func main() {
+	if err := run(os.Args[1:]); err != nil {
+		fmt.Fprintln(os.Stderr, "bench:", err)
+		os.Exit(1)
+	}
+}
+
+func run(args []string) error {
 	fs := flag.NewFlagSet("bench", flag.ContinueOnError)
 	runs := fs.Int("runs", 9, "runs per measurement (the median is printed)")
 	page := fs.String("page", "inverting", "page for the first-live measurements")
@@ -112,13 +96,17 @@ func runBench(args []string) error {
 		return err
 	}
 	if *runs < 1 {
-		return errors.New("bench: -runs must be at least 1")
+		return errors.New("-runs must be at least 1")
 	}
 	if err := zbrowser.Available(); err != nil {
 		return fmt.Errorf("bench needs Chromium: %v", err)
 	}
-	dist, _, err := buildSite()
+	dist, err := os.MkdirTemp("", "zport-bench-")
 	if err != nil {
+		return err
+	}
+	defer os.RemoveAll(dist)
+	if err := buildSite(dist); err != nil {
 		return err
 	}
 	pageURL := func(name string) string {
@@ -132,7 +120,7 @@ func runBench(args []string) error {
 		defer stop()
 		return runBenchCustom(ctx, pageURL, *runs)
 	} else if *only != "" {
-		return fmt.Errorf("bench: -only %q: the only part is \"custom\"", *only)
+		return fmt.Errorf("-only %q: the only part is \"custom\"", *only)
 	}
 
 	var cold, coldReady []time.Duration
@@ -177,7 +165,7 @@ func runBench(args []string) error {
 		}
 		var d, c []time.Duration
 		for i := 0; i < *runs+2; i++ {
-			t, call, err := recompute(ctx, i)
+			t, call, err := zbrowser.Recompute(ctx, i)
 			if err != nil {
 				return fmt.Errorf("%s: recompute: %w", e.ID, err)
 			}
@@ -210,3 +198,17 @@ func runBench(args []string) error {
 
 func mb(n int64) string  { return fmt.Sprintf("%.3f MB", float64(n)/1e6) }
 func kbs(n int64) string { return fmt.Sprintf("%.1f kB", float64(n)/1e3) }
+
+// buildSite builds the site into dist, as go run ./build does into the
+// module's dist/.
+func buildSite(dist string) error {
+	opt, err := site.ModuleOptions()
+	if err != nil {
+		return err
+	}
+	files, err := site.Build(opt)
+	if err != nil {
+		return err
+	}
+	return files.Write(dist)
+}

@@ -7,11 +7,11 @@ import (
 	"encoding/base64"
 	"fmt"
 	"net/url"
-	"strings"
 	"time"
 
 	"github.com/chromedp/chromedp"
 
+	"zport/engine/circuit"
 	"zport/site/examples"
 )
 
@@ -26,19 +26,6 @@ import (
 // for it, as the URL fragment keys of calc.Form.CircuitState.
 type benchCircuit struct {
 	name, text, settings string
-}
-
-// benchLadder is an opamp follower driving an RC ladder, the feedback
-// taken from its far end: n nodes in all (an invented test circuit, the
-// shape of the engine's own ladder benchmark).
-func benchLadder(n int) string {
-	var b strings.Builder
-	b.WriteString("# ladder benchmark circuit (invented)\nvsource Vin src gnd 1\nopamp U1 src l0 out a0=100k gbw=1M ro=50\nresistor Rd out l1 10\n")
-	for i := 1; i < n-3; i++ {
-		fmt.Fprintf(&b, "resistor R%d l%d l%d 100\ncapacitor C%d l%d gnd 1p\n", i, i, i+1, i, i+1)
-	}
-	fmt.Fprintf(&b, "resistor Rf l%d l0 1\nport in src gnd\nport out out gnd\n", n-3)
-	return b.String()
 }
 
 // circuitFragment is the page's c= encoding (raw DEFLATE, base64url)
@@ -66,9 +53,9 @@ func benchCircuits() []benchCircuit {
 	}
 	sweep := "&f=1k&from=10&to=100M&points=400"
 	return append(list,
-		benchCircuit{"50-node ladder, 1 port", benchLadder(50), "ref=U1&port=out" + sweep},
-		benchCircuit{"50-node ladder, 2 ports, gain", benchLadder(50), "ref=U1&port=in&port=out&src=Vin&out=out" + sweep},
-		benchCircuit{"200-node ladder, 1 port", benchLadder(200), "ref=U1&port=out" + sweep},
+		benchCircuit{"50-node ladder, 1 port", circuit.Ladder(50), "ref=U1&port=out" + sweep},
+		benchCircuit{"50-node ladder, 2 ports, gain", circuit.Ladder(50), "ref=U1&port=in&port=out&src=Vin&out=out" + sweep},
+		benchCircuit{"200-node ladder, 1 port", circuit.Ladder(200), "ref=U1&port=out" + sweep},
 	)
 }
 
