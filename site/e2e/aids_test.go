@@ -127,15 +127,19 @@ func aidWaitState(t *testing.T, ctx context.Context, want string) {
 	t.Fatalf("design aids: state %q after %v, want %q", aidState(t, ctx), waitFor, want)
 }
 
-// aidSlices wraps the page engine's toleranceStep so that the test can see
-// how a study runs: in how many calls (slices, each a task of its own), the
+// aidSlices watches the page's calls of the engine's toleranceStep (the
+// messages to the engine's worker) so that the test can see how a study
+// runs: in how many calls (slices, each a task of its own), the
 // most trials one call was asked for, and how many animation frames the page
 // drew while the study was running. A study run in one piece would be one
 // call of all its trials, with no frame drawn until it ended.
 const aidSlices = `(() => {
-	const z = globalThis.zport, step = z.toleranceStep;
 	const c = window.__aidSlices = {calls: 0, most: 0, frames: 0};
-	z.toleranceStep = function (run, n) { c.calls++; c.most = Math.max(c.most, n); return step.apply(this, arguments); };
+	const post = Worker.prototype.postMessage;
+	Worker.prototype.postMessage = function (m) {
+		if (m && m.name === 'toleranceStep') { c.calls++; c.most = Math.max(c.most, m.args[1]); }
+		return post.apply(this, arguments);
+	};
 	const details = document.querySelector(` + "`" + aidCalc + ` details.aids` + "`" + `);
 	const f = () => { if (details.getAttribute('data-aid-state') === 'running') c.frames++; requestAnimationFrame(f); };
 	requestAnimationFrame(f);

@@ -330,10 +330,11 @@ func watchRequests(t *testing.T, ctx context.Context) *requests {
 		switch e := ev.(type) {
 		case *network.EventRequestWillBeSent:
 			r.urls = append(r.urls, e.Request.URL)
-			// The browser's own fetches (the tab's icon) are recorded but
-			// not waited for: over file:// Chromium does not always report
-			// their end.
-			if e.Type != network.ResourceTypeOther || e.Initiator == nil || e.Initiator.Type != network.InitiatorTypeOther {
+			// The browser's own fetches (the tab's icon) and the page's
+			// blob: URLs (the engine's worker script) are recorded but not
+			// waited for: Chromium does not always report their end.
+			if !strings.HasPrefix(e.Request.URL, "blob:") &&
+				(e.Type != network.ResourceTypeOther || e.Initiator == nil || e.Initiator.Type != network.InitiatorTypeOther) {
 				r.pending[e.RequestID] = e.Request.URL
 			}
 		case *network.EventLoadingFinished:
