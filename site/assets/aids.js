@@ -61,31 +61,10 @@
     this.panelsKey = null;
     this.refreshTimer = 0;
 
-    var d = document.createElement('details');
-    d.className = 'aids';
-    d.id = this.id + '-aids';
-    d.hidden = true;
-    d.setAttribute('data-aid-state', 'idle');
-    var s = document.createElement('summary');
-    s.textContent = 'Design aids: tolerance spread, standard values, sensitivity';
-    var body = document.createElement('div');
-    body.setAttribute('data-role', 'aids-content');
-    var p = document.createElement('p');
-    p.className = 'explain';
-    p.textContent = 'Opening this section lists the parts; the studies run on request.';
-    body.appendChild(p);
-    d.appendChild(s);
-    d.appendChild(body);
-    slot.appendChild(d);
-    this.details = d;
-    this.body = body;
-
+    var d = this.build(slot, 'aids', this.id + '-aids', 'Design aids: tolerance spread, standard values, sensitivity', 'aids-content',
+      'Opening this section lists the parts; the studies run on request.');
+    var body = this.body;
     var self = this;
-    d.addEventListener('toggle', function () {
-      if (d.open) self.opened();
-    });
-    body.addEventListener('input', function (e) { self.edited(e.target); });
-    body.addEventListener('change', function (e) { self.edited(e.target); });
     body.addEventListener('click', function (e) {
       var b = e.target.closest ? e.target.closest('[data-aid-action]') : null;
       if (b && !b.disabled) self.action(b.getAttribute('data-aid-action'), b);

@@ -57,31 +57,10 @@
     this.applied = false; // a value was applied: the next result is its own
     this.autorun = false; // run once the form is rendered (a link's settings)
 
-    var d = document.createElement('details');
-    d.className = 'solve';
-    d.id = host.id + '-solve';
-    d.hidden = true;
-    d.setAttribute('data-solve-state', 'idle');
-    var s = document.createElement('summary');
-    s.textContent = 'Design to a target: solve for a part value';
-    var body = document.createElement('div');
-    body.setAttribute('data-role', 'solve-content');
-    var p = document.createElement('p');
-    p.className = 'explain';
-    p.textContent = 'Opening this section lists the parts; the search runs when you press Solve.';
-    body.appendChild(p);
-    d.appendChild(s);
-    d.appendChild(body);
-    slot.appendChild(d);
-    this.details = d;
-    this.body = body;
-
+    var d = this.build(slot, 'solve', host.id + '-solve', 'Design to a target: solve for a part value', 'solve-content',
+      'Opening this section lists the parts; the search runs when you press Solve.');
+    var body = this.body;
     var self = this;
-    d.addEventListener('toggle', function () {
-      if (d.open) self.opened();
-    });
-    body.addEventListener('input', function (e) { self.edited(e.target); });
-    body.addEventListener('change', function (e) { self.edited(e.target); });
     body.addEventListener('click', function (e) {
       var b = e.target.closest ? e.target.closest('[data-solve-action], [data-solve-apply]') : null;
       if (!b || b.disabled) return;

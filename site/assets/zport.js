@@ -1167,7 +1167,7 @@
 
   // onRequest gives proto — a section whose engine work runs on request
   // (aids.js's tolerance study, solve.js's search) — the methods both
-  // share. The section keeps its calculator's form in form, its own
+  // share, build (which makes the section) among them. The section keeps its calculator's form in form, its own
   // settings' element in body and its details element in details, and
   // has collect() (its settings as typed), rendered, values and host.
   // spec names the rest: key (its settings' key), action and state (the
@@ -1177,6 +1177,37 @@
   // (for runSliced), noun ("search"), measure ("zport-solve"), again (what
   // an out-of-date result asks for) and done(out), a note for the status.
   function onRequest(proto, spec) {
+    // build makes the section in slot, collapsed and hidden until its
+    // calculator has a result: details (class cls, id, state "idle"), its
+    // summary title and the body (data-role role) with the line explain;
+    // opening it calls opened(), and every edit in it edited(el).
+    proto.build = function (slot, cls, id, title, role, explain) {
+      var d = document.createElement('details');
+      d.className = cls;
+      d.id = id;
+      d.hidden = true;
+      d.setAttribute(spec.state, 'idle');
+      var s = document.createElement('summary');
+      s.textContent = title;
+      var body = document.createElement('div');
+      body.setAttribute('data-role', role);
+      var p = document.createElement('p');
+      p.className = 'explain';
+      p.textContent = explain;
+      body.appendChild(p);
+      d.appendChild(s);
+      d.appendChild(body);
+      slot.appendChild(d);
+      this.details = d;
+      this.body = body;
+      var self = this;
+      d.addEventListener('toggle', function () {
+        if (d.open) self.opened();
+      });
+      body.addEventListener('input', function (e) { self.edited(e.target); });
+      body.addEventListener('change', function (e) { self.edited(e.target); });
+      return d;
+    };
     // circuitKey changes when the circuit or its spot frequency does.
     proto.circuitKey = function () {
       var f = this.form;
