@@ -5,6 +5,7 @@ package e2e
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"image"
 	"image/draw"
 	"image/png"
@@ -23,7 +24,8 @@ import (
 // whole on the phone (wide tables and schematics scroll inside their own
 // boxes). Each page is loaded once, in a tab of its own, and shown in the
 // three views in turn (the emulated screen and colour scheme change under
-// the page, which lays itself out again as a resized window would).
+// the page, which lays itself out again as a resized window would, and at
+// the phone's width draws its charts again for the narrow column).
 func TestScreenshotsOfEveryPage(t *testing.T) {
 	t.Parallel()
 	names := pages(t)
@@ -50,7 +52,9 @@ func TestScreenshotsOfEveryPage(t *testing.T) {
 			if eval[bool](t, ctx, `!!document.querySelector('[data-calculator]')`) {
 				poll(t, ctx, `performance.getEntriesByName('zport-first-live').length === 1`)
 			}
+			live := eval[bool](t, ctx, `!!document.querySelector('[data-calculator], [data-circuit-editor]')`)
 			for _, v := range views {
+				recomputes := eval[int](t, ctx, `performance.getEntriesByName('zport-recompute').length`)
 				opts := []chromedp.EmulateViewportOption{chromedp.EmulateScale(1)}
 				if v.mobile {
 					opts = append(opts, chromedp.EmulateMobile)
@@ -70,6 +74,12 @@ func TestScreenshotsOfEveryPage(t *testing.T) {
 				}
 				if got := eval[bool](t, ctx, `matchMedia('(prefers-color-scheme: dark)').matches`); got != v.dark {
 					t.Fatalf("%s: the page sees prefers-color-scheme dark = %v", v.name, got)
+				}
+				if v.mobile && live {
+					// At a phone's width the calculator draws its charts
+					// again for the narrow column: the picture is of that.
+					poll(t, ctx, fmt.Sprintf(`performance.getEntriesByName('zport-recompute').length > %d`, recomputes))
+					nextFrames(t, ctx, 2)
 				}
 				if w := eval[int](t, ctx, `document.documentElement.scrollWidth`); w > int(v.width) {
 					t.Errorf("%s at %s: the page is %d px wide, wider than the %d px window", name, v.name, w, v.width)
