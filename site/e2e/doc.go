@@ -63,6 +63,7 @@
 //	review_test.go       chart images (SVG, PNG), the printed report read back as text, charts
 //	                     at a phone's width
 //	contrast_test.go     input borders reach 3:1 in light and dark
+//	worker_test.go       the engine runs in a worker; a superseded recompute never reaches it
 //
 // Set ZPORT_SHOTS=DIR to keep the screenshots in DIR.
 package e2e
