@@ -91,8 +91,9 @@
   // are those of every section that runs on request (zport.js).
   site.onRequest(Aids.prototype, {
     key: KEY, action: 'data-aid-action', state: 'data-aid-state', results: '[data-role="tolerance-results"]',
-    msg: '[data-role="tolerance-msg"]', holder: '.field, td, li', step: 'toleranceStep', panel: 'tolerancePanel',
-    release: 'toleranceRelease', max: 2000, noun: 'study', measure: 'zport-tolerance', again: 'Run the study again.',
+    msg: '[data-role="tolerance-msg"]', holder: '.field, td, li', start: 'toleranceStart', first: 25,
+    step: 'toleranceStep', panel: 'tolerancePanel', release: 'toleranceRelease', max: 2000,
+    noun: 'study', measure: 'zport-tolerance', again: 'Run the study again.',
     done: function () { return ''; }
   });
 
@@ -277,31 +278,7 @@
     if (!site.ready() || this.job || !this.rendered) return;
     this.clearMessages();
     this.notify(); // the share link gets the seed of this study
-    var t0 = performance.now();
-    var job = { t0: t0, engineMs: 0, n: 25, key: this.circuitKey() };
-    this.job = job;
-    this.setRunning(true);
-    // Running from the click on: the engine's first answer comes later.
-    var bar = this.q('[data-role="progress"]');
-    if (bar) bar.value = 0;
-    this.setState('running');
-    var self = this;
-    this.call('toleranceStart').then(function (started) {
-      if (self.job !== job) return;
-      if (started.error) {
-        self.job = null;
-        self.setRunning(false);
-        self.showError(started.error);
-        self.say('Not run: see the marked setting.');
-        self.setState('error');
-        return;
-      }
-      job.run = started.run;
-      job.total = started.total;
-      self.setState('running');
-      self.progress(0, started.total);
-      self.slice(job);
-    });
+    this.begin();
   };
 
   // progress moves the bar on every slice, and the words (which a screen

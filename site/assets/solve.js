@@ -95,8 +95,8 @@
   // are those of every section that runs on request (zport.js).
   site.onRequest(Solve.prototype, {
     key: KEY, action: 'data-solve-action', state: 'data-solve-state', results: '[data-role="solve-results"]',
-    msg: '[data-role="solve-msg"]', holder: '.field', step: 'solveStep', panel: 'solvePanel', release: 'solveRelease',
-    max: 200, noun: 'search', measure: 'zport-solve', again: 'Solve again.',
+    msg: '[data-role="solve-msg"]', holder: '.field', start: 'solveStart', first: 2,
+    step: 'solveStep', panel: 'solvePanel', release: 'solveRelease', max: 200, noun: 'search', measure: 'zport-solve', again: 'Solve again.',
     done: function (out) { return ' (' + out.done + ' analyses)'; }
   });
 
@@ -239,25 +239,7 @@
     // there already (each edit sends them), and sending them again would
     // recompute the calculator while the search runs.
     if (JSON.stringify(this.collect()) !== JSON.stringify(this.values)) this.notify();
-    var job = { t0: performance.now(), engineMs: 0, n: 2, key: this.circuitKey() };
-    this.job = job;
-    this.setRunning(true);
-    var self = this;
-    this.call('solveStart').then(function (started) {
-      if (self.job !== job) return;
-      if (started.error) {
-        self.job = null;
-        self.setRunning(false);
-        self.showError(started.error);
-        self.say('Not run: see the marked setting.');
-        self.setState('error');
-        return;
-      }
-      job.run = started.run;
-      self.setState('running');
-      self.progress(0, started.total);
-      self.slice(job);
-    });
+    this.begin();
   };
 
   Solve.prototype.progress = function (done, total) {

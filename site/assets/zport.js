@@ -1173,8 +1173,9 @@
   // spec names the rest: key (its settings' key), action and state (the
   // attributes of its Run/Cancel buttons and of its state on details),
   // results and msg (the selectors of its results and its notice), holder
-  // (what holds a setting and its message), step, panel, release and max
-  // (for runSliced), noun ("search"), measure ("zport-solve"), again (what
+  // (what holds a setting and its message), start and first (the run's
+  // start function and its first slice's size), step, panel, release and
+  // max (for runSliced), noun ("search"), measure ("zport-solve"), again (what
   // an out-of-date result asks for) and done(out), a note for the status.
   function onRequest(proto, spec) {
     // build makes the section in slot, collapsed and hidden until its
@@ -1246,6 +1247,33 @@
     };
     proto.setState = function (state) {
       this.details.setAttribute(spec.state, state);
+    };
+    // begin starts a run (spec.start, its first slice spec.first units of
+    // work), running from the click on: the engine's first answer comes
+    // later. A setting the engine refuses is marked (showError).
+    proto.begin = function () {
+      var job = { t0: performance.now(), engineMs: 0, n: spec.first, key: this.circuitKey() };
+      this.job = job;
+      this.setRunning(true);
+      var bar = this.q('[data-role="progress"]');
+      if (bar) bar.value = 0;
+      this.setState('running');
+      var self = this;
+      this.call(spec.start).then(function (started) {
+        if (self.job !== job) return;
+        if (started.error) {
+          self.job = null;
+          self.setRunning(false);
+          self.showError(started.error);
+          self.say('Not run: see the marked setting.');
+          self.setState('error');
+          return;
+        }
+        job.run = started.run;
+        job.total = started.total;
+        self.progress(0, started.total);
+        self.slice(job);
+      });
     };
     proto.slice = function (job) {
       var self = this;
