@@ -142,6 +142,12 @@ func samePinTables(t *testing.T, what string, got, want pinTable) {
 	}
 }
 
+// numberFields splits a list of numbers written with spaces, commas or
+// semicolons between them.
+func numberFields(s string) []string {
+	return strings.FieldsFunc(s, func(r rune) bool { return r == ' ' || r == ',' || r == ';' })
+}
+
 // sameNumbers reports whether two texts are the same but for numbers
 // within tol of each other, relatively: the page's engine is WebAssembly,
 // whose math functions may differ from amd64's in the last bit.
@@ -149,10 +155,7 @@ func sameNumbers(a, b string, tol float64) bool {
 	if a == b {
 		return true
 	}
-	split := func(s string) []string {
-		return strings.FieldsFunc(s, func(r rune) bool { return r == ' ' || r == ',' || r == ';' })
-	}
-	fa, fb := split(a), split(b)
+	fa, fb := numberFields(a), numberFields(b)
 	if len(fa) != len(fb) {
 		return false
 	}
@@ -176,10 +179,7 @@ func sameVector(a, b string, tol float64) bool {
 	if a == b {
 		return true
 	}
-	split := func(s string) []string {
-		return strings.FieldsFunc(s, func(r rune) bool { return r == ' ' || r == ',' || r == ';' })
-	}
-	fa, fb := split(a), split(b)
+	fa, fb := numberFields(a), numberFields(b)
 	if len(fa) != len(fb) {
 		return false
 	}
