@@ -7,6 +7,7 @@ import (
 
 	"github.com/chromedp/chromedp"
 
+	"zport/build/bench/ratios"
 	"zport/engine/api"
 )
 
@@ -95,7 +96,7 @@ func runBenchAids(ctx context.Context, pageURL func(string) string, runs int) er
 		if err != nil {
 			return fmt.Errorf("%s: design aids: %w", e.ID, err)
 		}
-		fmt.Printf("  %-16s study %s (engine %s); standard values + sensitivity %s\n", e.ID, ms(median(study)), ms(median(engine)), ms(median(panels)))
+		fmt.Printf("  %-16s study %s (engine %s); standard values + sensitivity %s\n", e.ID, ms(ratios.Median(study)), ms(ratios.Median(engine)), ms(ratios.Median(panels)))
 	}
 	return nil
 }

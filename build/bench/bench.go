@@ -3,12 +3,15 @@
 // printing medians.
 //
 //	go run ./build/bench [-runs 9] [-page inverting] [-only custom]
+//	go run ./build/bench ratios [-native] [-rounds 9]
 //
 // It measures navigation to the first live result, cold (a fresh browser
 // and profile each run) and warm (the same browser navigating again); one
 // recompute and redraw per topology at its default sweep; each topology's
 // design aids (aids.go); the custom-circuit page (custom.go; -only custom
 // runs that part alone); and the engine's size as the page loads it.
+// "ratios" measures the speed targets instead, as interleaved ratios
+// (package zport/build/bench/ratios).
 //
 // It is a command of its own, apart from ./build, so that the site's
 // builder does not carry the browser driver (chromedp) it needs.
@@ -22,11 +25,11 @@ import (
 	"net/url"
 	"os"
 	"path/filepath"
-	"slices"
 	"time"
 
 	"github.com/chromedp/chromedp"
 
+	"zport/build/bench/ratios"
 	"zport/engine/api"
 	"zport/site"
 	zbrowser "zport/site/browser"
@@ -65,19 +68,6 @@ func firstLive(ctx context.Context, u string) (load, error) {
 
 func dur(ms float64) time.Duration { return time.Duration(ms * float64(time.Millisecond)) }
 
-func median(d []time.Duration) time.Duration {
-	s := slices.Clone(d)
-	slices.Sort(s)
-	n := len(s)
-	if n == 0 {
-		return 0
-	}
-	if n%2 == 1 {
-		return s[n/2]
-	}
-	return (s[n/2-1] + s[n/2]) / 2
-}
-
 func ms(d time.Duration) string { return fmt.Sprintf("%.1f ms", float64(d)/float64(time.Millisecond)) }
 
 func main() {
@@ -88,6 +78,9 @@ func main() {
 }
 
 func run(args []string) error {
+	if len(args) > 0 && args[0] == "ratios" {
+		return ratios.Run(args[1:])
+	}
 	fs := flag.NewFlagSet("bench", flag.ContinueOnError)
 	runs := fs.Int("runs", 9, "runs per measurement (the median is printed)")
 	page := fs.String("page", "inverting", "page for the first-live measurements")
@@ -155,8 +148,8 @@ func run(args []string) error {
 	}
 
 	fmt.Printf("first live result, %s.html from file:// (medians of %d runs; target ≤ 200 ms)\n", *page, *runs)
-	fmt.Printf("  cold (fresh browser and profile)      engine ready %s, first live result %s\n", ms(median(coldReady)), ms(median(cold)))
-	fmt.Printf("  warm (same browser, navigated again)  engine ready %s, first live result %s\n", ms(median(warmReady)), ms(median(warm)))
+	fmt.Printf("  cold (fresh browser and profile)      engine ready %s, first live result %s\n", ms(ratios.Median(coldReady)), ms(ratios.Median(cold)))
+	fmt.Printf("  warm (same browser, navigated again)  engine ready %s, first live result %s\n", ms(ratios.Median(warmReady)), ms(ratios.Median(warm)))
 
 	fmt.Printf("recompute and redraw after one edit of the spot frequency (medians; target ≤ 16 ms)\n")
 	for _, e := range api.Catalog() {
@@ -173,7 +166,7 @@ func run(args []string) error {
 				d, c = append(d, t), append(c, call)
 			}
 		}
-		fmt.Printf("  %-16s %4d points  total %s, of which the engine call %s\n", e.ID, e.Sweep.Points, ms(median(d)), ms(median(c)))
+		fmt.Printf("  %-16s %4d points  total %s, of which the engine call %s\n", e.ID, e.Sweep.Points, ms(ratios.Median(d)), ms(ratios.Median(c)))
 	}
 
 	if err := runBenchAids(ctx, pageURL, *runs); err != nil {

@@ -11,6 +11,7 @@ import (
 
 	"github.com/chromedp/chromedp"
 
+	"zport/build/bench/ratios"
 	"zport/engine/circuit"
 	"zport/site/examples"
 )
@@ -117,7 +118,7 @@ func runBenchCustom(ctx context.Context, pageURL func(string) string, runs int) 
 				d, e, points = append(d, t), append(e, call), p
 			}
 		}
-		fmt.Printf("  %-30s %4s points  total %s, of which the engine call %s\n", c.name, points, ms(median(d)), ms(median(e)))
+		fmt.Printf("  %-30s %4s points  total %s, of which the engine call %s\n", c.name, points, ms(ratios.Median(d)), ms(ratios.Median(e)))
 	}
 	return nil
 }

@@ -90,7 +90,7 @@ func benchSweepTol(b *testing.B, text string, ports [][3]string, gain *[3]string
 		sweeps++
 	}
 	// The complex multiply-adds a point needs (factorizations, solves,
-	// residual bounds), against which build/bench/ratios times it.
+	// residual bounds), against which the benchmark's ratios (build/bench/ratios) time it.
 	b.ReportMetric(float64(a.MulAdds()-m0)/float64(sweeps*n), "muladds/point")
 }
 

@@ -74,8 +74,8 @@
 // In the single-file export, p=NAME comes first and selects the page.
 // A fragment without "=" is an ordinary in-page anchor and is left alone.
 //
-// Performance marks for the benchmarks (go run ./build/bench and
-// ./build/bench/ratios): "zport-engine-ready" when the engine has started,
+// Performance marks for the benchmark (go run ./build/bench, and its
+// ratios): "zport-engine-ready" when the engine has started,
 // "zport-first-live" when the first panel computed by it is on the page, a
 // measure "zport-recompute" for every recompute (from the edit's frame:
 // engine call, insertion, layout) and "zport-engine-call" for every engine

@@ -1,4 +1,4 @@
-package main
+package ratios
 
 import (
 	"context"
@@ -85,8 +85,8 @@ func recomputes(u string, rounds int) error {
 			ratio, total, call = append(ratio, t/c), append(total, t), append(call, c)
 		}
 	}
-	line("inverting recompute vs its engine call", fmt.Sprintf("%.2f×", median(ratio)), verdict(median(ratio), 1.5),
-		fmt.Sprintf("(%s vs %s)", ms(median(total)), ms(median(call))))
+	line("inverting recompute vs its engine call", fmt.Sprintf("%.2f×", Median(ratio)), verdict(Median(ratio), 1.5),
+		fmt.Sprintf("(%s vs %s)", ms(Median(total)), ms(Median(call))))
 	return nil
 }
 
@@ -106,9 +106,9 @@ func pastes(u string, rounds int) error {
 		}
 		longest, scripts, layout = append(longest, d.task), append(scripts, d.scripts), append(layout, d.layout)
 	}
-	line("longest main-thread task, 10,000-line paste", ms(median(longest)), fmt.Sprintf("(worst of %d: %s)", rounds, ms(slicesMax(longest))),
+	line("longest main-thread task, 10,000-line paste", ms(Median(longest)), fmt.Sprintf("(worst of %d: %s)", rounds, ms(slicesMax(longest))),
 		"target ≤ 50 ms: "+map[bool]string{true: "met", false: "missed"}[slicesMax(longest) <= 50e6])
-	line("  of a long frame's time, scripts at most", ms(median(scripts)), "and style and layout at most", ms(median(layout)))
+	line("  of a long frame's time, scripts at most", ms(Median(scripts)), "and style and layout at most", ms(Median(layout)))
 
 	return nil
 }
@@ -127,8 +127,8 @@ func firstEdits(u string, rounds int) error {
 			}
 			first, steady, fs = append(first, f), append(steady, s), append(fs, f/s)
 		}
-		line(fmt.Sprintf("first edit (%.1f s after ready) vs a steady one", after.Seconds()), fmt.Sprintf("%.2f×", median(fs)), verdict(median(fs), 2),
-			fmt.Sprintf("(%s vs %s, keystroke to result)", ms(median(first)), ms(median(steady))))
+		line(fmt.Sprintf("first edit (%.1f s after ready) vs a steady one", after.Seconds()), fmt.Sprintf("%.2f×", Median(fs)), verdict(Median(fs), 2),
+			fmt.Sprintf("(%s vs %s, keystroke to result)", ms(Median(first)), ms(Median(steady))))
 	}
 	return nil
 }
@@ -224,7 +224,7 @@ func firstEdit(u string, after time.Duration) (first, steady float64, err error)
 			later = append(later, t)
 		}
 	}
-	return first, median(later), nil
+	return first, Median(later), nil
 }
 
 // keystroke types digit over the spot frequency of the page's calculator,

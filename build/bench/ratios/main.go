@@ -1,11 +1,12 @@
-// Command ratios measures how fast zport answers, as ratios taken in one
-// run with their two sides interleaved round by round, so that a shared,
-// busy machine slows both alike; it prints the median of each ratio over
-// the rounds, and the medians of the times beside it.
+// Package ratios is the benchmark's "ratios" part: it measures how fast
+// zport answers, as ratios taken in one run with their two sides
+// interleaved round by round, so that a shared, busy machine slows both
+// alike; it prints the median of each ratio over the rounds, and the
+// medians of the times beside it.
 //
-//	go run ./build/bench/ratios            # native and browser
-//	go run ./build/bench/ratios -native    # the engine alone (no Chromium)
-//	go run ./build/bench/ratios -rounds 15
+//	go run ./build/bench ratios            # native and browser
+//	go run ./build/bench ratios -native    # the engine alone (no Chromium)
+//	go run ./build/bench ratios -rounds 15
 //
 // Native (the engine in Go, package engine):
 //   - a sweep point against its arithmetic floor: the time of the complex
@@ -22,42 +23,44 @@
 // Browser (the built site in Chromium from file://, browser.go): a
 // recompute against its engine call, the first edit against a steady one,
 // and the longest main-thread task during a 10,000-line paste.
-package main
+package ratios
 
 import (
+	"errors"
 	"flag"
 	"fmt"
-	"os"
 	"slices"
 	"strings"
 	"time"
 )
 
-func main() {
-	native := flag.Bool("native", false, "measure the engine only")
-	browserOnly := flag.Bool("browser", false, "measure the browser only")
-	rounds := flag.Int("rounds", 9, "interleaved rounds (medians are printed; at least 7)")
-	only := flag.String("only", "", `measure one part of the browser's: "recompute", "paste" or "first"`)
-	flag.Parse()
+// Run measures the ratios the flags in args ask for.
+func Run(args []string) error {
+	fs := flag.NewFlagSet("ratios", flag.ContinueOnError)
+	native := fs.Bool("native", false, "measure the engine only")
+	browserOnly := fs.Bool("browser", false, "measure the browser only")
+	rounds := fs.Int("rounds", 9, "interleaved rounds (medians are printed; at least 7)")
+	only := fs.String("only", "", `measure one part of the browser's: "recompute", "paste" or "first"`)
+	if err := fs.Parse(args); err != nil {
+		return err
+	}
 	if *rounds < 7 {
-		fmt.Fprintln(os.Stderr, "ratios: -rounds must be at least 7")
-		os.Exit(2)
+		return errors.New("-rounds must be at least 7")
 	}
-	var err error
 	if !*browserOnly {
-		err = runNative(*rounds)
+		if err := runNative(*rounds); err != nil {
+			return err
+		}
 	}
-	if err == nil && !*native {
-		err = runBrowser(*rounds, *only)
+	if !*native {
+		return runBrowser(*rounds, *only)
 	}
-	if err != nil {
-		fmt.Fprintln(os.Stderr, "ratios:", err)
-		os.Exit(1)
-	}
+	return nil
 }
 
-// median returns the median of xs.
-func median(xs []float64) float64 {
+// Median returns the median of xs (the mean of the middle two when their
+// number is even), 0 for none. The benchmark's other parts use it too.
+func Median[T ~int64 | ~float64](xs []T) T {
 	s := slices.Clone(xs)
 	slices.Sort(s)
 	n := len(s)

@@ -1,4 +1,4 @@
-package main
+package ratios
 
 import (
 	"fmt"
@@ -133,14 +133,14 @@ func runNative(rounds int) error {
 		return fmt.Errorf("the multiply-add floor summed to NaN")
 	}
 	fmt.Printf("native engine, %d interleaved rounds, medians (%s)\n", rounds, machine())
-	line("inverting stage point vs multiply-add floor", fmt.Sprintf("%.2f× (CPU %.2f×)", median(invR), median(invC)), verdict(median(invR), 3),
-		fmt.Sprintf("(%s a point, %.0f multiply-adds)", us(median(invP)), median(invM)))
-	line("50-node ladder point vs multiply-add floor", fmt.Sprintf("%.2f× (CPU %.2f×)", median(l50R), median(l50C)), verdict(median(l50R), 3),
-		fmt.Sprintf("(%s a point, %.0f multiply-adds)", us(median(l50P)), median(l50M)))
-	line("200-node point vs 50-node point", fmt.Sprintf("%.2f× (CPU %.2f×)", median(grow), median(growC)), verdict(median(grow), 1.3*4),
-		fmt.Sprintf("(%s vs %s a point; linear: 4×)", us(median(l200P)), us(median(l50P))))
-	line("inverting 400-point sweep", ms(median(sweepW))+" wall", ms(median(sweepC))+" thread CPU", "(target < 2 ms)")
-	line("inverting page recompute (api.Analyze)", ms(median(pageW))+" wall", ms(median(pageC))+" thread CPU")
+	line("inverting stage point vs multiply-add floor", fmt.Sprintf("%.2f× (CPU %.2f×)", Median(invR), Median(invC)), verdict(Median(invR), 3),
+		fmt.Sprintf("(%s a point, %.0f multiply-adds)", us(Median(invP)), Median(invM)))
+	line("50-node ladder point vs multiply-add floor", fmt.Sprintf("%.2f× (CPU %.2f×)", Median(l50R), Median(l50C)), verdict(Median(l50R), 3),
+		fmt.Sprintf("(%s a point, %.0f multiply-adds)", us(Median(l50P)), Median(l50M)))
+	line("200-node point vs 50-node point", fmt.Sprintf("%.2f× (CPU %.2f×)", Median(grow), Median(growC)), verdict(Median(grow), 1.3*4),
+		fmt.Sprintf("(%s vs %s a point; linear: 4×)", us(Median(l200P)), us(Median(l50P))))
+	line("inverting 400-point sweep", ms(Median(sweepW))+" wall", ms(Median(sweepC))+" thread CPU", "(target < 2 ms)")
+	line("inverting page recompute (api.Analyze)", ms(Median(pageW))+" wall", ms(Median(pageC))+" thread CPU")
 	return nil
 }
 
